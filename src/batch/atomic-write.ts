@@ -1,0 +1,65 @@
+/**
+ * Crash-safe output: every file is written under a temporary name in the same folder and renamed
+ * into place when complete (rename is atomic within a file system, POSIX), so a killed run never
+ * leaves a half-written file under a final name. Temporaries start with TEMP_PREFIX and are
+ * removed by the next run.
+ */
+import { randomBytes } from 'node:crypto';
+import { createWriteStream } from 'node:fs';
+import { mkdir, readdir, rename, rm, writeFile } from 'node:fs/promises';
+import { basename, dirname, join } from 'node:path';
+import { once } from 'node:events';
+
+export const TEMP_PREFIX = '.hindcast-tmp-';
+
+function tempPath(path: string): string {
+  return join(dirname(path), `${TEMP_PREFIX}${randomBytes(4).toString('hex')}-${basename(path)}`);
+}
+
+export async function writeFileAtomic(path: string, content: string | Uint8Array): Promise<void> {
+  await mkdir(dirname(path), { recursive: true });
+  const tmp = tempPath(path);
+  try {
+    await writeFile(tmp, content);
+    await rename(tmp, path);
+  } catch (e) {
+    await rm(tmp, { force: true });
+    throw e;
+  }
+}
+
+/** Stream chunks to a temporary file, then rename into place. */
+export async function writeChunksAtomic(path: string, chunks: Iterable<string>): Promise<void> {
+  await mkdir(dirname(path), { recursive: true });
+  const tmp = tempPath(path);
+  const ws = createWriteStream(tmp);
+  try {
+    for (const c of chunks) if (!ws.write(c)) await once(ws, 'drain');
+    ws.end();
+    await once(ws, 'finish');
+    await rename(tmp, path);
+  } catch (e) {
+    ws.destroy();
+    await rm(tmp, { force: true });
+    throw e;
+  }
+}
+
+/** Remove temporaries left by an interrupted run, recursively below dir. */
+export async function cleanTemporaries(dir: string): Promise<number> {
+  let removed = 0;
+  let entries;
+  try {
+    entries = await readdir(dir, { withFileTypes: true });
+  } catch {
+    return 0;
+  }
+  for (const e of entries) {
+    const p = join(dir, e.name);
+    if (e.name.startsWith(TEMP_PREFIX)) {
+      await rm(p, { force: true, recursive: true });
+      removed++;
+    } else if (e.isDirectory()) removed += await cleanTemporaries(p);
+  }
+  return removed;
+}

@@ -1,0 +1,113 @@
+/**
+ * The configuration: one schema (zod) for profiles, --config files and library callers.
+ * Every field has a default, so an empty object is a valid configuration.
+ */
+import { z } from 'zod';
+
+const positive = z.number().positive();
+
+export const columnsSchema = z
+  .object({
+    time: z.string(),
+    gpsWeek: z.string(),
+    tow: z.string(),
+    lat: z.string(),
+    lon: z.string(),
+    height: z.string(),
+    hdop: z.string(),
+    vdop: z.string(),
+    sats: z.string(),
+    fixQuality: z.string(),
+    sdEast: z.string(),
+    sdNorth: z.string(),
+    sdUp: z.string(),
+  })
+  .partial()
+  .strict();
+
+export const configSchema = z
+  .object({
+    /** Name of the profile this configuration came from (informational). */
+    profile: z.string().default('default'),
+    input: z
+      .object({
+        /** Header names for columns the built-in aliases do not recognise. */
+        columns: columnsSchema.default({}),
+        /** IANA zone for ISO times written without an offset (e.g. "Europe/Berlin"). */
+        timeZone: z.string().optional(),
+        /** Unit of numeric times: seconds, milliseconds, or decided from the magnitude. */
+        timeUnit: z.enum(['s', 'ms', 'auto']).default('auto'),
+        /** CSV delimiter; detected from the header line when absent. */
+        delimiter: z.string().length(1).optional(),
+      })
+      .strict()
+      .default({ columns: {}, timeUnit: 'auto' }),
+    model: z
+      .object({
+        /** Kinematic model per axis: constant velocity or constant acceleration. */
+        motion: z.enum(['cv', 'ca']).default('cv'),
+        /** Spectral density of the white acceleration (cv, m²/s³) or jerk (ca, m²/s⁵), horizontal axes. */
+        qHorizontal: positive.default(0.5),
+        /** The same for the vertical axis. */
+        qVertical: positive.default(0.1),
+        /** Prior speed scale (m/s) and acceleration scale (m/s²) for the first epoch. */
+        priorSpeedMps: positive.default(30),
+        priorAccelMps2: positive.default(5),
+      })
+      .strict()
+      .default({ motion: 'cv', qHorizontal: 0.5, qVertical: 0.1, priorSpeedMps: 30, priorAccelMps2: 5 }),
+    noise: z
+      .object({
+        /** White fix noise, 1-sigma per horizontal axis (m), at the session's median quality. */
+        horizontalSigmaM: positive.default(2),
+        /** White fix noise, 1-sigma vertical (m). */
+        verticalSigmaM: positive.default(4),
+        /** Time-correlated (first-order Gauss–Markov) fix error, 1-sigma horizontal per axis (m); 0 for none. */
+        correlatedHorizontalSigmaM: z.number().min(0).default(1.5),
+        correlatedVerticalSigmaM: z.number().min(0).default(3),
+        /** Its correlation time (s). */
+        correlationTimeSec: positive.default(60),
+        /** Multiplier of reported per-fix sigmas (sd_east, sd_north, sd_up) when the log has them. */
+        reportedSigmaScale: positive.default(1),
+      })
+      .strict()
+      .default({
+        horizontalSigmaM: 2,
+        verticalSigmaM: 4,
+        correlatedHorizontalSigmaM: 1.5,
+        correlatedVerticalSigmaM: 3,
+        correlationTimeSec: 60,
+        reportedSigmaScale: 1,
+      }),
+    gate: z
+      .object({
+        /** Probability of the chi-square gate on the normalized innovation squared. */
+        probability: z.number().gt(0.5).lt(1).default(0.999),
+        /** Consecutive rejections after which the filter re-acquires the track. */
+        reacquireAfter: z.number().int().min(2).default(6),
+      })
+      .strict()
+      .default({ probability: 0.999, reacquireAfter: 6 }),
+    segments: z
+      .object({
+        /** Gaps longer than this (s) split the track into segments; shorter gaps are bridged. */
+        maxGapSec: positive.default(60),
+        /** A gap is bridged with rows at the nominal interval when longer than this many intervals. */
+        bridgeFactor: z.number().gt(1).default(1.5),
+      })
+      .strict()
+      .default({ maxGapSec: 60, bridgeFactor: 1.5 }),
+    output: z
+      .object({
+        /** Decimal places of degrees in GeoJSON coordinates (RFC 7946 §11.2: 6 ≈ 0.1 m). */
+        geojsonDecimals: z.number().int().min(0).max(12).default(7),
+      })
+      .strict()
+      .default({ geojsonDecimals: 7 }),
+  })
+  .strict();
+
+export type HindcastConfig = z.infer<typeof configSchema>;
+export type ColumnMapping = z.infer<typeof columnsSchema>;
+/** A partial configuration as written in a profile or --config file. */
+export type ConfigOverrides = z.input<typeof configSchema>;

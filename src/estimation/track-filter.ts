@@ -1,0 +1,251 @@
+/**
+ * Forward pass over one segment of epochs: three independent axis filters (east, north, up) with a
+ * joint chi-square gate on the normalized innovation squared (NIS) of each fix, and re-acquisition
+ * after a run of rejections.
+ * Gate: Bar-Shalom, Li, Kirubarajan (2001) §5.4 (NIS ~ χ²(m) under the model; validation region).
+ * Re-acquisition: when `reacquireAfter` consecutive fixes fail the gate, the model has lost the
+ * track (a manoeuvre beyond its process noise, or a step in the fix error): the filter rewinds to the
+ * epoch before the run, inflates the covariance there (a recorded extra process noise that the
+ * smoother reuses, so forward and backward passes see the same model), and runs the epochs again.
+ */
+import type { AxisModel } from '../models/axis-model.js';
+import { chiSquareQuantile } from './chi-square.js';
+import { innovation, makeScratch, predict, updateJoseph, type KalmanScratch } from './kalman.js';
+
+/** Epoch-wise inputs of one segment, per axis arrays indexed by epoch. */
+export interface SegmentData {
+  /** Number of epochs. */
+  N: number;
+  tSec: Float64Array;
+  /** Measured coordinate per axis (m, local frame); NaN where the axis is not measured. */
+  z: Float64Array[];
+  /** Measurement variance per axis (m²). */
+  r: Float64Array[];
+  /** 0 no measurement (bridged epoch, invalid or user-rejected fix), 1 gated fix, 2 fix accepted without gating (user-kept). */
+  use: Uint8Array;
+}
+
+export interface FilterOptions {
+  /** Probability of the chi-square gate (e.g. 0.999). */
+  gateProbability: number;
+  /** Consecutive rejected fixes after which the filter re-acquires. */
+  reacquireAfter: number;
+  /** Prior variances for the first epoch, per kinematic derivative (position, velocity, acceleration), m², (m/s)², (m/s²)². */
+  priorVar: [number, number, number];
+  /** Optional per-epoch multiplier of the kinematic process noise of the step ending at that epoch. */
+  qScale?: Float64Array | null;
+}
+
+/** Forward history of one segment; x/P hold filtered values (later overwritten by the smoother). */
+export interface FilterHistory {
+  N: number;
+  /** Per axis: N×n states. */
+  x: Float64Array[];
+  /** Per axis: N×n×n covariances. */
+  P: Float64Array[];
+  /** NIS of each offered fix against the prediction (NaN where none). */
+  nis: Float64Array;
+  /** Degrees of freedom of that NIS. */
+  dof: Uint8Array;
+  /** Gate threshold used at that epoch. */
+  threshold: Float64Array;
+  /** 1 where the fix was used in the update. */
+  accepted: Uint8Array;
+  /** Extra process-noise diagonal added to the step ending at an epoch (re-acquisition), per axis. */
+  extraQ: Map<number, Float64Array[]>;
+  /** Gaussian log-likelihood contribution of each epoch (capped at the gate for rejected fixes). */
+  logLik: Float64Array;
+  /** Epochs where re-acquisition happened. */
+  reacquired: number[];
+}
+
+const LOG_2PI = Math.log(2 * Math.PI);
+
+/** Buffers reused across epochs of one pass. */
+interface Work {
+  F: Float64Array[];
+  Q: Float64Array[];
+  s: KalmanScratch[];
+  nu: Float64Array;
+  S: Float64Array;
+  out1: Float64Array;
+}
+
+function makeWork(models: AxisModel[]): Work {
+  return {
+    F: models.map((m) => new Float64Array(m.n * m.n)),
+    Q: models.map((m) => new Float64Array(m.n * m.n)),
+    s: models.map((m) => makeScratch(m.n)),
+    nu: new Float64Array(models.length),
+    S: new Float64Array(models.length),
+    out1: new Float64Array(1),
+  };
+}
+
+export function allocateHistory(N: number, models: AxisModel[]): FilterHistory {
+  return {
+    N,
+    x: models.map((m) => new Float64Array(N * m.n)),
+    P: models.map((m) => new Float64Array(N * m.n * m.n)),
+    nis: new Float64Array(N).fill(NaN),
+    dof: new Uint8Array(N),
+    threshold: new Float64Array(N).fill(NaN),
+    accepted: new Uint8Array(N),
+    extraQ: new Map(),
+    logLik: new Float64Array(N),
+    reacquired: [],
+  };
+}
+
+/** Fill F and Q (with any recorded extra noise) of every axis for the step ending at epoch k. */
+export function stepMatrices(models: AxisModel[], data: SegmentData, h: FilterHistory, k: number, qScale: Float64Array | null | undefined, F: Float64Array[], Q: Float64Array[]): void {
+  const dt = data.tSec[k]! - data.tSec[k - 1]!;
+  const qs = qScale ? qScale[k]! : 1;
+  const extra = h.extraQ.get(k);
+  for (let a = 0; a < models.length; a++) {
+    const m = models[a]!;
+    m.fillF(dt, F[a]!);
+    m.fillQ(dt, Q[a]!, qs);
+    if (extra) {
+      const e = extra[a]!;
+      for (let i = 0; i < m.n; i++) Q[a]![i * m.n + i] += e[i]!;
+    }
+  }
+}
+
+/**
+ * Run the forward filter over a segment. The first epoch must carry a fix (use ≠ 0).
+ */
+export function forwardFilter(models: AxisModel[], data: SegmentData, opt: FilterOptions, history?: FilterHistory): FilterHistory {
+  const N = data.N;
+  const h = history ?? allocateHistory(N, models);
+  const w = makeWork(models);
+  const nAx = models.length;
+  const thresholds = [0, 0, 0, 0].map((_, d) => (d === 0 ? Infinity : chiSquareQuantile(opt.gateProbability, d)));
+  const rewound = new Set<number>();
+
+  let runStart = -1;
+  let runCount = 0;
+  let k = 0;
+  while (k < N) {
+    // ---- prediction (or prior at the first epoch) ----
+    for (let a = 0; a < nAx; a++) {
+      const m = models[a]!;
+      const n = m.n;
+      const x = h.x[a]!;
+      const P = h.P[a]!;
+      if (k === 0) {
+        // prior: position at the first fix (or 0), diffuse kinematics, stationary GM error
+        x.fill(0, 0, n);
+        P.fill(0, 0, n * n);
+        const z0 = data.z[a]![0]!;
+        x[0] = Number.isFinite(z0) ? z0 : 0;
+        for (let i = 0; i < m.nMotion; i++) P[i * n + i] = opt.priorVar[i]!;
+        if (m.iBias >= 0) P[m.iBias * n + m.iBias] = m.params.gm!.sigmaM ** 2;
+      }
+    }
+    if (k > 0) {
+      stepMatrices(models, data, h, k, opt.qScale, w.F, w.Q);
+      for (let a = 0; a < nAx; a++) {
+        const n = models[a]!.n;
+        predict(n, w.F[a]!, w.Q[a]!, h.x[a]!, (k - 1) * n, h.P[a]!, (k - 1) * n * n, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!);
+      }
+    }
+    h.accepted[k] = 0;
+    h.logLik[k] = 0;
+    h.nis[k] = NaN;
+    h.dof[k] = 0;
+    h.threshold[k] = NaN;
+    const use = data.use[k]!;
+    if (use === 0) {
+      k++;
+      continue;
+    }
+    // ---- innovations and the joint gate ----
+    let nis = 0;
+    let dof = 0;
+    let ll = 0;
+    for (let a = 0; a < nAx; a++) {
+      const z = data.z[a]![k]!;
+      if (!Number.isFinite(z)) {
+        w.S[a] = NaN;
+        continue;
+      }
+      const m = models[a]!;
+      const n = m.n;
+      const nu = innovation(n, m.h, z, data.r[a]![k]!, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!, w.out1);
+      const S = w.out1[0]!;
+      w.nu[a] = nu;
+      w.S[a] = S;
+      // NIS = Σ ν²/S over independent axes
+      nis += (nu * nu) / S;
+      ll += LOG_2PI + Math.log(S);
+      dof++;
+    }
+    if (dof === 0) {
+      k++;
+      continue;
+    }
+    const thr = thresholds[dof]!;
+    h.nis[k] = nis;
+    h.dof[k] = dof;
+    h.threshold[k] = thr;
+    const pass = use === 2 || nis <= thr;
+    if (pass) {
+      for (let a = 0; a < nAx; a++) {
+        if (!Number.isFinite(w.S[a]!)) continue;
+        const m = models[a]!;
+        const n = m.n;
+        // innovation() left P hᵀ in the scratch; recompute to be safe after other axes used theirs
+        innovation(n, m.h, data.z[a]![k]!, data.r[a]![k]!, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!, w.out1);
+        updateJoseph(n, m.h, w.nu[a]!, w.S[a]!, data.r[a]![k]!, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!);
+      }
+      h.accepted[k] = 1;
+      h.logLik[k] = -0.5 * (ll + nis);
+      runStart = -1;
+      runCount = 0;
+      k++;
+      continue;
+    }
+    // rejected: capped likelihood contribution keeps outliers from dominating calibration
+    h.logLik[k] = -0.5 * (ll + thr);
+    if (runCount === 0) runStart = k;
+    runCount++;
+    if (runCount >= opt.reacquireAfter && runStart > 0 && !rewound.has(runStart)) {
+      // ---- re-acquire: rewind to the run start with inflated covariance ----
+      rewound.add(runStart);
+      const extra: Float64Array[] = [];
+      const span = Math.max(data.tSec[k]! - data.tSec[runStart - 1]!, 1e-3);
+      for (let a = 0; a < nAx; a++) {
+        const m = models[a]!;
+        const e = new Float64Array(m.n);
+        // largest miss of this axis over the run (innovations recomputed from the stored predictions are
+        // not available after the rewind, so use the gap between fix and predicted position now)
+        let miss = 0;
+        for (let j = runStart; j <= k; j++) {
+          const z = data.z[a]![j]!;
+          if (Number.isFinite(z) && data.use[j]) miss = Math.max(miss, Math.abs(z - h.x[a]![j * m.n]! - (m.iBias >= 0 ? h.x[a]![j * m.n + m.iBias]! : 0)));
+        }
+        e[0] = miss * miss + opt.priorVar[0] * 0;
+        if (m.nMotion > 1) e[1] = Math.max((miss / span) ** 2 * 4, 1);
+        if (m.nMotion > 2) e[2] = Math.max((miss / (span * span)) ** 2 * 4, 0.1);
+        extra.push(e);
+      }
+      h.extraQ.set(runStart, extra);
+      h.reacquired.push(runStart);
+      k = runStart;
+      runStart = -1;
+      runCount = 0;
+      continue;
+    }
+    k++;
+  }
+  return h;
+}
+
+/** Sum of the per-epoch log-likelihood contributions. */
+export function totalLogLik(h: FilterHistory): number {
+  let s = 0;
+  for (let k = 0; k < h.N; k++) s += h.logLik[k]!;
+  return s;
+}

@@ -1,0 +1,148 @@
+/**
+ * FixSeries: the positions of one log, column-wise in typed arrays, in time order, with the line of
+ * each fix in its source file for messages. Readers fill it through FixSeriesBuilder.
+ */
+import type { InputWarning } from '../errors.js';
+
+/** Optional per-fix quality columns; NaN where a row has no value. */
+export const QUALITY_COLUMNS = ['hdop', 'vdop', 'sats', 'fixQuality', 'sdEast', 'sdNorth', 'sdUp'] as const;
+export type QualityColumn = (typeof QUALITY_COLUMNS)[number];
+
+export interface FixSeries {
+  /** Display path of the source file. */
+  file: string;
+  /** Number of fixes. */
+  n: number;
+  /** UTC, Unix seconds. */
+  tSec: Float64Array;
+  latDeg: Float64Array;
+  lonDeg: Float64Array;
+  /** Ellipsoidal height (m); NaN where missing; null when the log has no height at all. */
+  heightM: Float64Array | null;
+  /** Quality columns present in the log. */
+  quality: Partial<Record<QualityColumn, Float64Array>>;
+  /** 1-based source line of each fix. */
+  line: Uint32Array;
+  /** What the reader noticed and handled by a documented rule. */
+  warnings: InputWarning[];
+  /** Free-form facts about the source (format, height reference, …). */
+  meta: Record<string, string | number | boolean>;
+}
+
+class GrowF64 {
+  a: Float64Array;
+  n = 0;
+  constructor(cap = 1024) {
+    this.a = new Float64Array(cap);
+  }
+  push(v: number): void {
+    if (this.n === this.a.length) {
+      const b = new Float64Array(this.a.length * 2);
+      b.set(this.a);
+      this.a = b;
+    }
+    this.a[this.n++] = v;
+  }
+  take(): Float64Array {
+    return this.a.slice(0, this.n);
+  }
+}
+
+/** Accumulates fixes row by row; finish() sorts by time and drops duplicate times (keep first). */
+export class FixSeriesBuilder {
+  private t = new GrowF64();
+  private lat = new GrowF64();
+  private lon = new GrowF64();
+  private h = new GrowF64();
+  private ln = new GrowF64();
+  private q = new Map<QualityColumn, GrowF64>();
+  private anyHeight = false;
+  readonly warnings: InputWarning[] = [];
+  readonly meta: Record<string, string | number | boolean> = {};
+
+  constructor(readonly file: string, readonly qualityColumns: readonly QualityColumn[] = []) {
+    for (const c of qualityColumns) this.q.set(c, new GrowF64());
+  }
+
+  get count(): number {
+    return this.t.n;
+  }
+
+  warn(code: string, message: string, line?: number): void {
+    this.warnings.push({ file: this.file, line, code, message });
+  }
+
+  /** Add a fix; quality values in the order of `qualityColumns` (NaN for missing). */
+  add(tSec: number, latDeg: number, lonDeg: number, heightM: number, line: number, quality?: ArrayLike<number>): void {
+    this.t.push(tSec);
+    this.lat.push(latDeg);
+    this.lon.push(lonDeg);
+    this.h.push(heightM);
+    if (Number.isFinite(heightM)) this.anyHeight = true;
+    this.ln.push(line);
+    let i = 0;
+    for (const g of this.q.values()) g.push(quality ? (quality[i++] ?? NaN) : NaN);
+  }
+
+  /**
+   * Finish: rows out of time order are sorted (stable, counted in a warning); of rows with the same
+   * time the first is kept and the others are dropped with a warning naming their lines.
+   */
+  finish(): FixSeries {
+    const n0 = this.t.n;
+    const t = this.t.a;
+    let ordered = true;
+    for (let i = 1; i < n0; i++)
+      if (t[i]! < t[i - 1]!) {
+        ordered = false;
+        break;
+      }
+    let idx: Uint32Array = new Uint32Array(n0);
+    for (let i = 0; i < n0; i++) idx[i] = i;
+    if (!ordered) {
+      let outOfOrder = 0;
+      for (let i = 1; i < n0; i++) if (t[i]! < t[i - 1]!) outOfOrder++;
+      const arr = Array.from(idx);
+      arr.sort((a, b) => t[a]! - t[b]! || a - b);
+      idx = Uint32Array.from(arr);
+      this.warn('rows-sorted', `${outOfOrder} row(s) out of time order; rows sorted by time`);
+    }
+    // duplicates: keep the first of equal times (first in file order thanks to the stable sort)
+    const keep: number[] = [];
+    const dupLines: number[] = [];
+    for (let j = 0; j < n0; j++) {
+      const i = idx[j]!;
+      if (keep.length > 0 && t[i] === t[keep[keep.length - 1]!]) {
+        dupLines.push(this.ln.a[i]!);
+        continue;
+      }
+      keep.push(i);
+    }
+    if (dupLines.length > 0) {
+      const shown = dupLines.slice(0, 10).join(', ') + (dupLines.length > 10 ? ', …' : '');
+      this.warn('duplicate-time', `${dupLines.length} row(s) repeat an earlier time and were dropped (kept the first); lines ${shown}`, dupLines[0]);
+    }
+    const n = keep.length;
+    const pick = (src: Float64Array) => {
+      const out = new Float64Array(n);
+      for (let j = 0; j < n; j++) out[j] = src[keep[j]!]!;
+      return out;
+    };
+    const quality: Partial<Record<QualityColumn, Float64Array>> = {};
+    for (const [k, g] of this.q) quality[k] = pick(g.a);
+    const line = new Uint32Array(n);
+    for (let j = 0; j < n; j++) line[j] = this.ln.a[keep[j]!]!;
+    return {
+      file: this.file,
+      n,
+      tSec: pick(t),
+      latDeg: pick(this.lat.a),
+      lonDeg: pick(this.lon.a),
+      heightM: this.anyHeight ? pick(this.h.a) : null,
+      quality,
+      line,
+      warnings: this.warnings,
+      meta: this.meta,
+    };
+  }
+}

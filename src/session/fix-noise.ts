@@ -1,0 +1,84 @@
+/**
+ * Per-fix white measurement noise from the log's quality columns.
+ * Rules (documented in README):
+ * - reported sigmas (sd_east, sd_north, sd_up) are used as given, times noise.reportedSigmaScale;
+ * - otherwise the profile's sigma holds at the session's median quality and is scaled by
+ *   hdop/median(hdop) (vdop for the vertical, hdop when there is no vdop), by √(median sats / sats),
+ *   and by a factor for the fix quality indicator relative to the session's most common one.
+ * Relative scaling keeps the calibrated sigma meaningful whatever the receiver's DOP convention.
+ */
+import type { FixSeries } from '../input/fix-series.js';
+
+/** Sigma factor per GGA fix quality (0 invalid, 1 GPS, 2 DGPS, 3 PPS, 4 RTK fixed, 5 RTK float, 6 dead reckoning, 7 manual, 8 simulation, 9 SBAS); common practice, rounded. */
+export const FIX_QUALITY_FACTOR: Record<number, number> = { 1: 1, 2: 0.6, 3: 1, 4: 0.02, 5: 0.2, 6: 5, 7: 1, 8: 1, 9: 0.6 };
+
+function median(a: Float64Array | undefined): number {
+  if (!a) return NaN;
+  const v = Array.from(a).filter((x) => Number.isFinite(x) && x > 0);
+  if (v.length === 0) return NaN;
+  v.sort((x, y) => x - y);
+  return v[v.length >> 1]!;
+}
+
+function mode(a: Float64Array | undefined): number {
+  if (!a) return NaN;
+  const c = new Map<number, number>();
+  for (const x of a) if (Number.isFinite(x)) c.set(x, (c.get(x) ?? 0) + 1);
+  let best = NaN;
+  let bc = 0;
+  for (const [k, v] of c) if (v > bc) {
+    best = k;
+    bc = v;
+  }
+  return best;
+}
+
+export interface FixSigmaFactors {
+  /** Relative factor on the horizontal sigma per fix (NaN where a reported sigma is used instead). */
+  horizontal: Float64Array;
+  vertical: Float64Array;
+  /** Reported absolute sigmas (m) per axis, or null. */
+  reported: [Float64Array, Float64Array, Float64Array] | null;
+  /** Which columns were used. */
+  used: string[];
+}
+
+export function fixSigmaFactors(s: FixSeries): FixSigmaFactors {
+  const n = s.n;
+  const fh = new Float64Array(n).fill(1);
+  const fv = new Float64Array(n).fill(1);
+  const used: string[] = [];
+  const q = s.quality;
+  const hd = q.hdop, vd = q.vdop, sats = q.sats, fq = q.fixQuality;
+  const mh = median(hd), mv = median(vd), ms = median(sats), mq = mode(fq);
+  if (hd && Number.isFinite(mh)) used.push('hdop');
+  if (vd && Number.isFinite(mv)) used.push('vdop');
+  if (sats && Number.isFinite(ms)) used.push('sats');
+  if (fq && Number.isFinite(mq)) used.push('fix_quality');
+  const qRef = FIX_QUALITY_FACTOR[mq] ?? 1;
+  for (let i = 0; i < n; i++) {
+    let h = 1, v = 1;
+    if (hd && Number.isFinite(mh) && hd[i]! > 0) h *= hd[i]! / mh;
+    if (vd && Number.isFinite(mv) && vd[i]! > 0) v *= vd[i]! / mv;
+    else if (hd && Number.isFinite(mh) && hd[i]! > 0) v *= hd[i]! / mh;
+    if (sats && Number.isFinite(ms) && sats[i]! > 0) {
+      const f = Math.sqrt(ms / Math.max(sats[i]!, 3));
+      h *= f;
+      v *= f;
+    }
+    if (fq && Number.isFinite(mq) && Number.isFinite(fq[i]!)) {
+      const f = (FIX_QUALITY_FACTOR[fq[i]!] ?? 1) / qRef;
+      h *= f;
+      v *= f;
+    }
+    fh[i] = h;
+    fv[i] = v;
+  }
+  let reported: FixSigmaFactors['reported'] = null;
+  if (q.sdEast && q.sdNorth) {
+    reported = [q.sdEast, q.sdNorth, q.sdUp ?? new Float64Array(n).fill(NaN)];
+    used.push('sd_east', 'sd_north');
+    if (q.sdUp) used.push('sd_up');
+  }
+  return { horizontal: fh, vertical: fv, reported, used };
+}

@@ -1,0 +1,312 @@
+/**
+ * The per-session pipeline: fixes → local frame → segments and epoch grid → forward filter with
+ * gate → RTS smoother → products. Pure: no file system; the batch layer reads and writes.
+ */
+import type { HindcastConfig } from '../config/schema.js';
+import type { FixSeries } from '../input/fix-series.js';
+import { makeLocalFrame, sessionCentre } from '../geodesy/local-frame.js';
+import { geodesicLengthM } from '../geodesy/geodesic.js';
+import { makeAxisModel, type AxisModel } from '../models/axis-model.js';
+import { forwardFilter, type SegmentData, type FilterOptions } from '../estimation/track-filter.js';
+import { smoothInPlace } from '../estimation/track-smoother.js';
+import { errorEllipse } from '../output/ellipse.js';
+import { epochGrid, nominalIntervalSec, splitSegments } from './segments.js';
+import { fixSigmaFactors } from './fix-noise.js';
+import { STATUS, type OutlierRecord, type SessionResult } from './result.js';
+
+/** Validity of each fix before filtering: finite, in range, not the (0, 0) "null island" placeholder. */
+export function validFixes(s: FixSeries): { valid: Uint8Array; why: string[] } {
+  const valid = new Uint8Array(s.n);
+  const why: string[] = new Array(s.n).fill('');
+  for (let i = 0; i < s.n; i++) {
+    const lat = s.latDeg[i]!, lon = s.lonDeg[i]!;
+    if (!Number.isFinite(lat) || !Number.isFinite(lon) || Math.abs(lat) > 90 || Math.abs(lon) > 180) why[i] = 'position out of range';
+    else if (Math.abs(lat) < 1e-7 && Math.abs(lon) < 1e-7) why[i] = 'position at 0°, 0° (no fix)';
+    else if (s.quality.fixQuality && s.quality.fixQuality[i] === 0) why[i] = 'fix quality 0 (no fix)';
+    else valid[i] = 1;
+  }
+  return { valid, why };
+}
+
+export interface AxisParams {
+  motion: 'cv' | 'ca';
+  qHorizontal: number;
+  qVertical: number;
+  sigmaHorizontalM: number;
+  sigmaVerticalM: number;
+  gmHorizontalSigmaM: number;
+  gmVerticalSigmaM: number;
+  gmTauSec: number;
+}
+
+export function axisParamsFromConfig(cfg: HindcastConfig): AxisParams {
+  return {
+    motion: cfg.model.motion,
+    qHorizontal: cfg.model.qHorizontal,
+    qVertical: cfg.model.qVertical,
+    sigmaHorizontalM: cfg.noise.horizontalSigmaM,
+    sigmaVerticalM: cfg.noise.verticalSigmaM,
+    gmHorizontalSigmaM: cfg.noise.correlatedHorizontalSigmaM,
+    gmVerticalSigmaM: cfg.noise.correlatedVerticalSigmaM,
+    gmTauSec: cfg.noise.correlationTimeSec,
+  };
+}
+
+export function buildAxisModels(p: AxisParams, withHeight: boolean): AxisModel[] {
+  const h = makeAxisModel({ motion: p.motion, q: p.qHorizontal, gm: { sigmaM: p.gmHorizontalSigmaM, tauSec: p.gmTauSec } });
+  const models = [h, h];
+  if (withHeight) models.push(makeAxisModel({ motion: p.motion, q: p.qVertical, gm: { sigmaM: p.gmVerticalSigmaM, tauSec: p.gmTauSec } }));
+  return models;
+}
+
+/** Prepared, projected fixes shared by calibration and the final run. */
+export interface PreparedSession {
+  series: FixSeries;
+  valid: Uint8Array;
+  invalidWhy: string[];
+  /** Fixes offered to the filter (valid and not rejected by the user). */
+  offered: Uint8Array;
+  /** 2 for fixes the user kept (no gate). */
+  forced: Uint8Array;
+  frame: ReturnType<typeof makeLocalFrame>;
+  heightRefM: number;
+  hasHeight: boolean;
+  e: Float64Array;
+  n: Float64Array;
+  u: Float64Array;
+  factors: ReturnType<typeof fixSigmaFactors>;
+  intervalSec: number;
+  reportedSigmaScale: number;
+  segments: Array<[number, number]>;
+}
+
+export function prepareSession(s: FixSeries, cfg: HindcastConfig, userDecisions?: Map<number, 'keep' | 'reject'>): PreparedSession {
+  const { valid, why } = validFixes(s);
+  const offered = valid.slice();
+  const forced = new Uint8Array(s.n);
+  if (userDecisions)
+    for (const [i, d] of userDecisions) {
+      if (d === 'reject') offered[i] = 0;
+      else if (valid[i]) forced[i] = 1;
+    }
+  const [lat0, lon0] = sessionCentre(s.latDeg, s.lonDeg, valid);
+  const frame = makeLocalFrame(lat0, lon0);
+  const e = new Float64Array(s.n).fill(NaN);
+  const n = new Float64Array(s.n).fill(NaN);
+  const u = new Float64Array(s.n).fill(NaN);
+  const hs: number[] = [];
+  if (s.heightM) for (let i = 0; i < s.n; i++) if (valid[i] && Number.isFinite(s.heightM[i]!)) hs.push(s.heightM[i]!);
+  hs.sort((a, b) => a - b);
+  const hasHeight = hs.length > 0;
+  const heightRefM = hasHeight ? hs[hs.length >> 1]! : 0;
+  const out = [0, 0];
+  for (let i = 0; i < s.n; i++) {
+    if (!valid[i]) continue;
+    frame.forward(s.lonDeg[i]!, s.latDeg[i]!, out);
+    e[i] = out[0]!;
+    n[i] = out[1]!;
+    if (hasHeight && s.heightM) u[i] = s.heightM[i]! - heightRefM;
+  }
+  const intervalSec = nominalIntervalSec(s.tSec, offered);
+  const segments = splitSegments(s.tSec, offered, cfg.segments.maxGapSec);
+  return { series: s, valid, invalidWhy: why, offered, forced, frame, heightRefM, hasHeight, e, n, u, factors: fixSigmaFactors(s), intervalSec, reportedSigmaScale: cfg.noise.reportedSigmaScale, segments };
+}
+
+/** Build the filter inputs of one segment. */
+export function segmentData(ps: PreparedSession, seg: [number, number], p: AxisParams, bridgeFactor: number): { data: SegmentData; fix: Int32Array } {
+  const grid = epochGrid(ps.series.tSec, seg[0], seg[1], ps.intervalSec, bridgeFactor);
+  const N = grid.tSec.length;
+  const nAx = ps.hasHeight ? 3 : 2;
+  const z = Array.from({ length: nAx }, () => new Float64Array(N).fill(NaN));
+  const r = Array.from({ length: nAx }, () => new Float64Array(N).fill(NaN));
+  const use = new Uint8Array(N);
+  const f = ps.factors;
+  for (let k = 0; k < N; k++) {
+    const i = grid.fix[k]!;
+    if (i < 0 || !ps.offered[i]) continue;
+    use[k] = ps.forced[i] ? 2 : 1;
+    z[0]![k] = ps.e[i]!;
+    z[1]![k] = ps.n[i]!;
+    if (nAx === 3) z[2]![k] = ps.u[i]!;
+    const rep = f.reported;
+    for (let a = 0; a < nAx; a++) {
+      let sigma: number;
+      const reported = rep ? rep[a]![i]! : NaN;
+      if (Number.isFinite(reported) && reported > 0) sigma = reported * ps.reportedSigmaScale;
+      else sigma = a < 2 ? p.sigmaHorizontalM * f.horizontal[i]! : p.sigmaVerticalM * f.vertical[i]!;
+      r[a]![k] = sigma * sigma;
+    }
+  }
+  return { data: { N, tSec: grid.tSec, z, r, use }, fix: grid.fix };
+}
+
+export function filterOptions(cfg: HindcastConfig, p: AxisParams): FilterOptions {
+  return {
+    gateProbability: cfg.gate.probability,
+    reacquireAfter: cfg.gate.reacquireAfter,
+    priorVar: [1e6, cfg.model.priorSpeedMps ** 2, cfg.model.priorAccelMps2 ** 2],
+  };
+}
+
+function median(v: number[]): number {
+  if (v.length === 0) return NaN;
+  const a = v.slice().sort((x, y) => x - y);
+  return a[a.length >> 1]!;
+}
+
+/** Run the whole pipeline on one FixSeries. */
+export function processSession(series: FixSeries, cfg: HindcastConfig, name: string, userDecisions?: Map<number, 'keep' | 'reject'>): SessionResult {
+  const ps = prepareSession(series, cfg, userDecisions);
+  const p = axisParamsFromConfig(cfg);
+  return runPrepared(ps, cfg, p, name);
+}
+
+export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisParams, name: string): SessionResult {
+  const s = ps.series;
+  const models = buildAxisModels(p, ps.hasHeight);
+  const opt = filterOptions(cfg, p);
+  const nAx = models.length;
+  // run every segment, collecting epochs
+  type SegOut = { data: SegmentData; fix: Int32Array; x: Float64Array[]; P: Float64Array[]; accepted: Uint8Array; nis: Float64Array; thr: Float64Array; dof: Uint8Array; reacq: number };
+  const segOuts: SegOut[] = [];
+  for (const seg of ps.segments) {
+    const { data, fix } = segmentData(ps, seg, p, cfg.segments.bridgeFactor);
+    const h = forwardFilter(models, data, opt);
+    smoothInPlace(models, data, h, opt.qScale);
+    segOuts.push({ data, fix, x: h.x, P: h.P, accepted: h.accepted, nis: h.nis, thr: h.threshold, dof: h.dof, reacq: h.reacquired.length });
+  }
+  const N = segOuts.reduce((a, o) => a + o.data.N, 0);
+  const mk = () => new Float64Array(N).fill(NaN);
+  const res: SessionResult = {
+    name,
+    file: s.file,
+    N,
+    tSec: mk(), latDeg: mk(), lonDeg: mk(), heightM: mk(),
+    posEnu: [mk(), mk(), mk()], velEnu: [mk(), mk(), mk()], sdEnu: [mk(), mk(), mk()],
+    covEN: mk(), ell95MajorM: mk(), ell95MinorM: mk(), ell95AzimuthDeg: mk(),
+    status: new Uint8Array(N), segment: new Int32Array(N), fix: new Int32Array(N),
+    nis: mk(), nisThreshold: mk(),
+    hasHeight: ps.hasHeight,
+    outliers: [],
+    metrics: undefined as unknown as SessionResult['metrics'],
+    warnings: s.warnings.slice(),
+    info: {},
+  };
+  const ll = [0, 0];
+  let k0 = 0;
+  let lengthM = 0;
+  let reacq = 0;
+  const sdH: number[] = [];
+  const ellMaj: number[] = [];
+  let sumR2 = 0, nR = 0, sumU2 = 0, nU = 0;
+  const fixEpoch = new Int32Array(s.n).fill(-1);
+  segOuts.forEach((o, si) => {
+    reacq += o.reacq;
+    for (let k = 0; k < o.data.N; k++) {
+      const j = k0 + k;
+      res.tSec[j] = o.data.tSec[k]!;
+      res.segment[j] = si;
+      const i = o.fix[k]!;
+      res.fix[j] = i;
+      if (i >= 0) fixEpoch[i] = j;
+      for (let a = 0; a < nAx; a++) {
+        const n = models[a]!.n;
+        res.posEnu[a]![j] = o.x[a]![k * n]!;
+        res.velEnu[a]![j] = o.x[a]![k * n + 1]!;
+        res.sdEnu[a]![j] = Math.sqrt(o.P[a]![k * n * n]!);
+      }
+      // independent axes: no east–north covariance
+      res.covEN[j] = 0;
+      const ve = res.sdEnu[0]![j]! ** 2, vn = res.sdEnu[1]![j]! ** 2;
+      const el = errorEllipse(ve, vn, 0);
+      res.ell95MajorM[j] = el.majorM;
+      res.ell95MinorM[j] = el.minorM;
+      res.ell95AzimuthDeg[j] = el.azimuthDeg;
+      sdH.push(Math.sqrt(ve + vn));
+      ellMaj.push(el.majorM);
+      ps.frame.inverse(res.posEnu[0]![j]!, res.posEnu[1]![j]!, ll);
+      res.lonDeg[j] = ll[0]!;
+      res.latDeg[j] = ll[1]!;
+      if (ps.hasHeight) res.heightM[j] = res.posEnu[2]![j]! + ps.heightRefM;
+      res.nis[j] = o.nis[k]!;
+      res.nisThreshold[j] = o.thr[k]!;
+      if (i < 0) res.status[j] = STATUS.bridged;
+      else if (!ps.offered[i]) res.status[j] = STATUS.outlier;
+      else res.status[j] = o.accepted[k] ? STATUS.kept : STATUS.outlier;
+      if (i >= 0 && res.status[j] === STATUS.kept) {
+        const de = ps.e[i]! - res.posEnu[0]![j]!, dn = ps.n[i]! - res.posEnu[1]![j]!;
+        sumR2 += de * de + dn * dn;
+        nR++;
+        if (ps.hasHeight && Number.isFinite(ps.u[i]!)) {
+          const du = ps.u[i]! - res.posEnu[2]![j]!;
+          sumU2 += du * du;
+          nU++;
+        }
+      }
+    }
+    lengthM += geodesicLengthM(res.latDeg, res.lonDeg, k0, k0 + o.data.N);
+    k0 += o.data.N;
+  });
+  // outlier records, in time order
+  for (let i = 0; i < s.n; i++) {
+    const j = fixEpoch[i]!;
+    const isInvalid = !ps.valid[i];
+    const rejectedByFilter = j >= 0 && ps.offered[i] && res.status[j] === STATUS.outlier;
+    if (!isInvalid && !rejectedByFilter) continue;
+    let offsetM = NaN, offsetUpM = NaN;
+    if (j >= 0 && !isInvalid) {
+      offsetM = Math.hypot(ps.e[i]! - res.posEnu[0]![j]!, ps.n[i]! - res.posEnu[1]![j]!);
+      if (ps.hasHeight) offsetUpM = ps.u[i]! - res.posEnu[2]![j]!;
+    }
+    res.outliers.push({
+      fix: i,
+      line: s.line[i]!,
+      tSec: s.tSec[i]!,
+      latDeg: s.latDeg[i]!,
+      lonDeg: s.lonDeg[i]!,
+      heightM: s.heightM ? s.heightM[i]! : NaN,
+      reason: isInvalid ? 'invalid' : 'innovation',
+      statistic: isInvalid ? NaN : res.nis[j]!,
+      threshold: isInvalid ? NaN : res.nisThreshold[j]!,
+      dof: 0,
+      offsetM,
+      offsetUpM,
+      detail: isInvalid ? ps.invalidWhy[i]! : 'normalized innovation squared above the chi-square gate',
+    });
+  }
+  let kept = 0, outl = 0, bridged = 0;
+  for (let j = 0; j < N; j++) {
+    const st = res.status[j]!;
+    if (st === STATUS.kept) kept++;
+    else if (st === STATUS.outlier) outl++;
+    else bridged++;
+  }
+  let invalid = 0;
+  for (let i = 0; i < s.n; i++) if (!ps.valid[i]) invalid++;
+  res.metrics = {
+    fixCount: s.n,
+    epochCount: N,
+    keptCount: kept,
+    outlierCount: res.outliers.length,
+    invalidCount: invalid,
+    bridgedCount: bridged,
+    segmentCount: segOuts.length,
+    durationSec: s.n > 0 ? s.tSec[s.n - 1]! - s.tSec[0]! : 0,
+    nominalIntervalSec: ps.intervalSec,
+    lengthM,
+    medianSdHorizontalM: median(sdH),
+    worstEll95MajorM: ellMaj.length ? ellMaj.reduce((m, v) => (v > m ? v : m), -Infinity) : NaN,
+    medianEll95MajorM: median(ellMaj),
+    rmsResidualHorizontalM: nR ? Math.sqrt(sumR2 / nR) : NaN,
+    rmsResidualUpM: nU ? Math.sqrt(sumU2 / nU) : NaN,
+    reacquisitions: reacq,
+  };
+  res.info = {
+    frame: ps.frame.definition,
+    heightReferenceM: ps.heightRefM,
+    model: p,
+    gateProbability: cfg.gate.probability,
+    qualityColumnsUsed: ps.factors.used,
+  };
+  return res;
+}

@@ -1,0 +1,86 @@
+/**
+ * SessionResult: everything the writers and the report need from one session. Plain data, typed
+ * arrays inside; the writers only read it.
+ */
+import type { InputWarning } from '../errors.js';
+
+export const STATUS = { kept: 0, outlier: 1, bridged: 2 } as const;
+export const STATUS_NAMES = ['kept', 'outlier', 'bridged'] as const;
+export type StatusName = (typeof STATUS_NAMES)[number];
+
+/** Why a fix was flagged. */
+export type OutlierReason = 'innovation' | 'review' | 'invalid';
+
+export interface OutlierRecord {
+  /** Index of the fix in the FixSeries. */
+  fix: number;
+  line: number;
+  tSec: number;
+  latDeg: number;
+  lonDeg: number;
+  heightM: number;
+  reason: OutlierReason;
+  /** Test statistic (NIS, χ²) and its threshold; NaN for invalid fixes. */
+  statistic: number;
+  threshold: number;
+  dof: number;
+  /** Horizontal distance from the smoothed track (m); NaN where there is none. */
+  offsetM: number;
+  /** Vertical offset raw − smoothed (m). */
+  offsetUpM: number;
+  detail: string;
+}
+
+export interface SessionMetrics {
+  fixCount: number;
+  epochCount: number;
+  keptCount: number;
+  outlierCount: number;
+  invalidCount: number;
+  bridgedCount: number;
+  segmentCount: number;
+  durationSec: number;
+  nominalIntervalSec: number;
+  lengthM: number;
+  medianSdHorizontalM: number;
+  worstEll95MajorM: number;
+  medianEll95MajorM: number;
+  rmsResidualHorizontalM: number;
+  rmsResidualUpM: number;
+  reacquisitions: number;
+}
+
+export interface SessionResult {
+  name: string;
+  file: string;
+  /** Epochs of the track (fix epochs and bridged epochs), in time order. */
+  N: number;
+  tSec: Float64Array;
+  latDeg: Float64Array;
+  lonDeg: Float64Array;
+  heightM: Float64Array;
+  /** Local frame (m): east, north, up relative to the frame origin / reference height. */
+  posEnu: [Float64Array, Float64Array, Float64Array];
+  velEnu: [Float64Array, Float64Array, Float64Array];
+  /** 1-sigma (m). */
+  sdEnu: [Float64Array, Float64Array, Float64Array];
+  covEN: Float64Array;
+  ell95MajorM: Float64Array;
+  ell95MinorM: Float64Array;
+  ell95AzimuthDeg: Float64Array;
+  /** STATUS code per epoch. */
+  status: Uint8Array;
+  /** Segment index per epoch. */
+  segment: Int32Array;
+  /** Fix index of each epoch (−1 for bridged). */
+  fix: Int32Array;
+  /** Forward NIS of the fix at each epoch and its gate threshold (NaN where none). */
+  nis: Float64Array;
+  nisThreshold: Float64Array;
+  hasHeight: boolean;
+  outliers: OutlierRecord[];
+  metrics: SessionMetrics;
+  warnings: InputWarning[];
+  /** Facts about the processing (frame, model parameters used, …) for summary.json. */
+  info: Record<string, unknown>;
+}

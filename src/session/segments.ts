@@ -1,0 +1,61 @@
+/**
+ * Splitting a session into segments at long gaps, and the epoch grid of a segment: the fix epochs
+ * plus bridged epochs at the nominal fix interval inside shorter gaps.
+ */
+
+/** Median of the positive differences of consecutive times, or 1 s when there are none. */
+export function nominalIntervalSec(tSec: Float64Array, use?: Uint8Array): number {
+  const d: number[] = [];
+  let prev = NaN;
+  for (let i = 0; i < tSec.length; i++) {
+    if (use && !use[i]) continue;
+    if (Number.isFinite(prev) && tSec[i]! > prev) d.push(tSec[i]! - prev);
+    prev = tSec[i]!;
+  }
+  if (d.length === 0) return 1;
+  d.sort((a, b) => a - b);
+  return d[d.length >> 1]!;
+}
+
+/** [first, last] indices (inclusive) of consecutive fixes with no gap longer than maxGapSec between offered fixes. */
+export function splitSegments(tSec: Float64Array, offered: Uint8Array, maxGapSec: number): Array<[number, number]> {
+  const segs: Array<[number, number]> = [];
+  let start = -1;
+  let lastOffered = -1;
+  for (let i = 0; i < tSec.length; i++) {
+    if (!offered[i]) continue;
+    if (start < 0) start = i;
+    else if (tSec[i]! - tSec[lastOffered]! > maxGapSec) {
+      segs.push([start, lastOffered]);
+      start = i;
+    }
+    lastOffered = i;
+  }
+  if (start >= 0) segs.push([start, lastOffered]);
+  return segs;
+}
+
+/**
+ * Epoch grid of fixes i0..i1: returns for each epoch its time and the fix index (−1 for bridged).
+ * A gap longer than bridgeFactor·interval gets epochs at t + k·interval while they stay more than
+ * half an interval before the next fix.
+ */
+export function epochGrid(tSec: Float64Array, i0: number, i1: number, intervalSec: number, bridgeFactor: number): { tSec: Float64Array; fix: Int32Array } {
+  const times: number[] = [];
+  const fix: number[] = [];
+  for (let i = i0; i <= i1; i++) {
+    if (i > i0) {
+      const t0 = tSec[i - 1]!;
+      const t1 = tSec[i]!;
+      if (t1 - t0 > bridgeFactor * intervalSec) {
+        for (let t = t0 + intervalSec; t < t1 - 0.5 * intervalSec; t += intervalSec) {
+          times.push(t);
+          fix.push(-1);
+        }
+      }
+    }
+    times.push(tSec[i]!);
+    fix.push(i);
+  }
+  return { tSec: Float64Array.from(times), fix: Int32Array.from(fix) };
+}
