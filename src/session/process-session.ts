@@ -66,8 +66,10 @@ export interface PreparedSession {
   invalidWhy: string[];
   /** Fixes offered to the filter (valid and not rejected by the user). */
   offered: Uint8Array;
-  /** 2 for fixes the user kept (no gate). */
+  /** 1 for fixes the user kept (no gate). */
   forced: Uint8Array;
+  /** 1 for fixes the user rejected. */
+  userRejected: Uint8Array;
   frame: ReturnType<typeof makeLocalFrame>;
   heightRefM: number;
   hasHeight: boolean;
@@ -84,10 +86,13 @@ export function prepareSession(s: FixSeries, cfg: HindcastConfig, userDecisions?
   const { valid, why } = validFixes(s);
   const offered = valid.slice();
   const forced = new Uint8Array(s.n);
+  const userRejected = new Uint8Array(s.n);
   if (userDecisions)
     for (const [i, d] of userDecisions) {
-      if (d === 'reject') offered[i] = 0;
-      else if (valid[i]) forced[i] = 1;
+      if (d === 'reject') {
+        offered[i] = 0;
+        userRejected[i] = 1;
+      } else if (valid[i]) forced[i] = 1;
     }
   const [lat0, lon0] = sessionCentre(s.latDeg, s.lonDeg, valid);
   const frame = makeLocalFrame(lat0, lon0);
@@ -109,7 +114,7 @@ export function prepareSession(s: FixSeries, cfg: HindcastConfig, userDecisions?
   }
   const intervalSec = nominalIntervalSec(s.tSec, offered);
   const segments = splitSegments(s.tSec, offered, cfg.segments.maxGapSec);
-  return { series: s, valid, invalidWhy: why, offered, forced, frame, heightRefM, hasHeight, e, n, u, factors: fixSigmaFactors(s), intervalSec, reportedSigmaScale: cfg.noise.reportedSigmaScale, segments };
+  return { series: s, valid, invalidWhy: why, offered, forced, userRejected, frame, heightRefM, hasHeight, e, n, u, factors: fixSigmaFactors(s), intervalSec, reportedSigmaScale: cfg.noise.reportedSigmaScale, segments };
 }
 
 /** Build the filter inputs of one segment. */
@@ -231,9 +236,11 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
       res.nis[j] = o.nis[k]!;
       res.nisThreshold[j] = o.thr[k]!;
       if (i < 0) res.status[j] = STATUS.bridged;
+      else if (ps.userRejected[i]) res.status[j] = STATUS.userRejected;
       else if (!ps.offered[i]) res.status[j] = STATUS.outlier;
+      else if (ps.forced[i]) res.status[j] = STATUS.userKept;
       else res.status[j] = o.accepted[k] ? STATUS.kept : STATUS.outlier;
-      if (i >= 0 && res.status[j] === STATUS.kept) {
+      if (i >= 0 && (res.status[j] === STATUS.kept || res.status[j] === STATUS.userKept)) {
         const de = ps.e[i]! - res.posEnu[0]![j]!, dn = ps.n[i]! - res.posEnu[1]![j]!;
         sumR2 += de * de + dn * dn;
         nR++;
@@ -251,10 +258,12 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
   for (let i = 0; i < s.n; i++) {
     const j = fixEpoch[i]!;
     const isInvalid = !ps.valid[i];
+    const byUser = ps.userRejected[i] === 1 && !isInvalid;
     const rejectedByFilter = j >= 0 && ps.offered[i] && res.status[j] === STATUS.outlier;
-    if (!isInvalid && !rejectedByFilter) continue;
+    if (!isInvalid && !rejectedByFilter && !byUser) continue;
     let offsetM = NaN, offsetUpM = NaN;
     if (j >= 0 && !isInvalid) {
+      // offset from the smoothed track at this epoch
       offsetM = Math.hypot(ps.e[i]! - res.posEnu[0]![j]!, ps.n[i]! - res.posEnu[1]![j]!);
       if (ps.hasHeight) offsetUpM = ps.u[i]! - res.posEnu[2]![j]!;
     }
@@ -265,21 +274,21 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
       latDeg: s.latDeg[i]!,
       lonDeg: s.lonDeg[i]!,
       heightM: s.heightM ? s.heightM[i]! : NaN,
-      reason: isInvalid ? 'invalid' : 'innovation',
-      statistic: isInvalid ? NaN : res.nis[j]!,
-      threshold: isInvalid ? NaN : res.nisThreshold[j]!,
+      reason: isInvalid ? 'invalid' : byUser ? 'user' : 'innovation',
+      statistic: isInvalid || byUser ? NaN : res.nis[j]!,
+      threshold: isInvalid || byUser ? NaN : res.nisThreshold[j]!,
       dof: 0,
       offsetM,
       offsetUpM,
-      detail: isInvalid ? ps.invalidWhy[i]! : 'normalized innovation squared above the chi-square gate',
+      detail: isInvalid ? ps.invalidWhy[i]! : byUser ? 'rejected by the user (decisions file)' : 'normalized innovation squared above the chi-square gate',
     });
   }
   let kept = 0, outl = 0, bridged = 0;
   for (let j = 0; j < N; j++) {
     const st = res.status[j]!;
-    if (st === STATUS.kept) kept++;
-    else if (st === STATUS.outlier) outl++;
-    else bridged++;
+    if (st === STATUS.kept || st === STATUS.userKept) kept++;
+    else if (st === STATUS.bridged) bridged++;
+    else outl++;
   }
   let invalid = 0;
   for (let i = 0; i < s.n; i++) if (!ps.valid[i]) invalid++;

@@ -4,12 +4,12 @@
  */
 import type { InputWarning } from '../errors.js';
 
-export const STATUS = { kept: 0, outlier: 1, bridged: 2 } as const;
-export const STATUS_NAMES = ['kept', 'outlier', 'bridged'] as const;
+export const STATUS = { kept: 0, outlier: 1, bridged: 2, userKept: 3, userRejected: 4 } as const;
+export const STATUS_NAMES = ['kept', 'outlier', 'bridged', 'user-kept', 'user-rejected'] as const;
 export type StatusName = (typeof STATUS_NAMES)[number];
 
 /** Why a fix was flagged. */
-export type OutlierReason = 'innovation' | 'review' | 'invalid';
+export type OutlierReason = 'innovation' | 'review' | 'invalid' | 'user';
 
 export interface OutlierRecord {
   /** Index of the fix in the FixSeries. */
