@@ -254,6 +254,16 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
     lengthM += geodesicLengthM(res.latDeg, res.lonDeg, k0, k0 + o.data.N);
     k0 += o.data.N;
   });
+  // raw fix position per epoch in the local frame (report residuals); NaN where there is no valid fix
+  const rawEnu: [Float64Array, Float64Array, Float64Array] = [mk(), mk(), mk()];
+  for (let j = 0; j < N; j++) {
+    const i = res.fix[j]!;
+    if (i < 0 || !ps.valid[i]) continue;
+    rawEnu[0][j] = ps.e[i]!;
+    rawEnu[1][j] = ps.n[i]!;
+    rawEnu[2][j] = ps.u[i]!;
+  }
+  res.rawEnu = rawEnu;
   // outlier records, in time order
   for (let i = 0; i < s.n; i++) {
     const j = fixEpoch[i]!;

@@ -77,6 +77,11 @@ export interface SessionResult {
   /** Forward NIS of the fix at each epoch and its gate threshold (NaN where none). */
   nis: Float64Array;
   nisThreshold: Float64Array;
+  /**
+   * Raw fix position per epoch in the same local frame as posEnu (m): east, north, up; NaN at
+   * bridged epochs and invalid fixes (up NaN without height). For residual plots in the report.
+   */
+  rawEnu?: [Float64Array, Float64Array, Float64Array];
   hasHeight: boolean;
   outliers: OutlierRecord[];
   metrics: SessionMetrics;
