@@ -112,6 +112,78 @@ export const configSchema = z
       })
       .strict()
       .default({ geojsonDecimals: 7, points: false, gpx: false, report: true, reportMaxPoints: 2000 }),
+    imu: z
+      .object({
+        /** Unit of the accelerometer columns ax, ay, az: m/s² or standard gravities (9.80665 m/s²). */
+        accelUnit: z.enum(['mps2', 'g']).default('mps2'),
+        /** Unit of the gyro columns gx, gy, gz: rad/s or deg/s. */
+        gyroUnit: z.enum(['radps', 'degps']).default('radps'),
+        /** Rotation from the sensor axes to the body axes (x forward, y left, z up): C_bs = Rz(yaw)·Ry(pitch)·Rx(roll), degrees. */
+        sensorToBodyDeg: z
+          .object({ roll: z.number().default(0), pitch: z.number().default(0), yaw: z.number().default(0) })
+          .strict()
+          .default({ roll: 0, pitch: 0, yaw: 0 }),
+        /** GNSS antenna position relative to the IMU in the body frame (x forward, y left, z up), m. */
+        leverArmM: z.tuple([z.number(), z.number(), z.number()]).default([0, 0, 0]),
+        /** Accelerometer white noise density (m/s²/√Hz = m/s/√s, velocity random walk). */
+        accelNoiseDensity: positive.default(0.004),
+        /** Gyro white noise density (rad/s/√Hz = rad/√s, angle random walk). */
+        gyroNoiseDensity: positive.default(0.0004),
+        /** Initial accelerometer bias uncertainty, 1-sigma per axis (m/s²). */
+        accelBiasSigmaMps2: positive.default(0.1),
+        /** Initial gyro bias uncertainty, 1-sigma per axis (rad/s). */
+        gyroBiasSigmaRadps: positive.default(0.006),
+        /** Random-walk density of the accelerometer bias (m/s²/√s). */
+        accelBiasWalk: positive.default(2e-4),
+        /** Random-walk density of the gyro bias (rad/s/√s). */
+        gyroBiasWalk: positive.default(2e-5),
+        /** Model the Earth's rotation (gyro sensing and Coriolis) in the mechanization. */
+        earthRotation: z.boolean().default(true),
+        /** Zero-velocity and zero-angular-rate updates while the IMU shows the vehicle stationary. */
+        zupt: z.boolean().default(true),
+        /** Non-holonomic constraint: no sideways or vertical velocity in the body frame (ground vehicles). */
+        nhc: z.boolean().default(false),
+        /** 1-sigma of the zero-velocity pseudo-measurement (m/s). */
+        zuptSigmaMps: positive.default(0.02),
+        /** 1-sigma of the non-holonomic pseudo-measurement, per axis (m/s). */
+        nhcSigmaMps: positive.default(0.15),
+        /** Stationary detector: window (s), accelerometer sd limit (m/s²), rate limit (rad/s), estimated-speed limit (m/s). */
+        staticWindowSec: positive.default(1),
+        staticAccelSdMps2: positive.default(0.15),
+        staticGyroRadps: positive.default(0.02),
+        staticMaxSpeedMps: positive.default(1),
+        /** Longest accelerometer averaging for the initial levelling (s). */
+        alignSec: positive.default(5),
+        /** Ground speed (m/s) of the GNSS track that counts as the first motion for the initial heading. */
+        headingSpeedMps: positive.default(3),
+        /** Longest step of the error-covariance propagation between IMU samples (s). */
+        propagationStepSec: positive.default(0.1),
+      })
+      .strict()
+      .default({
+        accelUnit: 'mps2',
+        gyroUnit: 'radps',
+        sensorToBodyDeg: { roll: 0, pitch: 0, yaw: 0 },
+        leverArmM: [0, 0, 0],
+        accelNoiseDensity: 0.004,
+        gyroNoiseDensity: 0.0004,
+        accelBiasSigmaMps2: 0.1,
+        gyroBiasSigmaRadps: 0.006,
+        accelBiasWalk: 2e-4,
+        gyroBiasWalk: 2e-5,
+        earthRotation: true,
+        zupt: true,
+        nhc: false,
+        zuptSigmaMps: 0.02,
+        nhcSigmaMps: 0.15,
+        staticWindowSec: 1,
+        staticAccelSdMps2: 0.15,
+        staticGyroRadps: 0.02,
+        staticMaxSpeedMps: 1,
+        alignSec: 5,
+        headingSpeedMps: 3,
+        propagationStepSec: 0.1,
+      }),
   })
   .strict();
 
