@@ -39,9 +39,28 @@ export const configSchema = z
         timeUnit: z.enum(['s', 'ms', 'auto']).default('auto'),
         /** CSV delimiter; detected from the header line when absent. */
         delimiter: z.string().length(1).optional(),
+        /** Unit of CSV latitude/longitude columns: decimal degrees or radians (NMEA and GPX are always degrees). */
+        angleUnit: z.enum(['deg', 'rad']).default('deg'),
+        /**
+         * UTC date ("YYYY-MM-DD") of the first fix of NMEA logs that carry no date (GGA without RMC);
+         * later fixes roll over at UTC midnight. Ignored when the log has RMC dates.
+         */
+        date: z
+          .string()
+          .regex(/^\d{4}-(0[1-9]|1[0-2])-(0[1-9]|[12]\d|3[01])$/, 'a UTC date as YYYY-MM-DD')
+          .optional(),
+        /**
+         * Height reference of the fix heights (and so of the output heights). Absent: per format —
+         * CSV "ellipsoidal", NMEA "ellipsoidal" (GGA altitude + geoid separation), GPX "msl"
+         * (GPX 1.1 `ele` is usually above mean sea level). For NMEA "msl" keeps the GGA altitude;
+         * for CSV and GPX it states what the file holds (no geoid model is applied).
+         */
+        heightReference: z.enum(['ellipsoidal', 'msl']).optional(),
+        /** Treat any reader warning (skipped row, bad checksum, duplicate, …) as a failure of the file. */
+        strict: z.boolean().default(false),
       })
       .strict()
-      .default({ columns: {}, timeUnit: 'auto' }),
+      .default({ columns: {}, timeUnit: 'auto', angleUnit: 'deg', strict: false }),
     model: z
       .object({
         /** Kinematic model per axis: constant velocity or constant acceleration. */
