@@ -45,8 +45,18 @@ export async function writeChunksAtomic(path: string, chunks: Iterable<string>):
   }
 }
 
-/** Remove temporaries left by an interrupted run, recursively below dir. */
-export async function cleanTemporaries(dir: string): Promise<number> {
+/** The final file name a temporary stands for, or null when `name` is not a temporary. */
+export function finalNameOfTemp(name: string): string | null {
+  const m = /^\.hindcast-tmp-[0-9a-f]{8}-(.+)$/.exec(name);
+  return m ? m[1]! : null;
+}
+
+/**
+ * Remove temporaries left by an interrupted run, recursively below dir. With `owned`, only the
+ * temporaries whose final path (relative to dir, "/"-separated) it accepts are removed, so that
+ * several shards sharing one output folder never delete each other's files in progress.
+ */
+export async function cleanTemporaries(dir: string, owned?: (finalRelPath: string) => boolean, prefix = ''): Promise<number> {
   let removed = 0;
   let entries;
   try {
@@ -57,9 +67,11 @@ export async function cleanTemporaries(dir: string): Promise<number> {
   for (const e of entries) {
     const p = join(dir, e.name);
     if (e.name.startsWith(TEMP_PREFIX)) {
+      const final = finalNameOfTemp(e.name);
+      if (owned && (final === null || !owned(prefix + final))) continue;
       await rm(p, { force: true, recursive: true });
       removed++;
-    } else if (e.isDirectory()) removed += await cleanTemporaries(p);
+    } else if (e.isDirectory()) removed += await cleanTemporaries(p, owned, `${prefix}${e.name}/`);
   }
   return removed;
 }

@@ -8,8 +8,11 @@ import { availableParallelism } from 'node:os';
 import { loadConfig, listProfiles } from '../config/load.js';
 import { ConfigError, UsageError } from '../errors.js';
 import { runBatch } from '../batch/run-batch.js';
+import { joinShards } from '../batch/join.js';
+import { parseShard, type Shard } from '../batch/shard.js';
 import { VERSION } from '../version.js';
 import { CAUTION } from '../output/caution.js';
+import { makeProgress } from './progress.js';
 
 function positiveNumber(v: string): number {
   const n = Number(v);
@@ -35,6 +38,18 @@ interface RunOpts {
   gateProbability?: number;
   jobs?: number;
   quiet?: boolean;
+  force?: boolean;
+  shard?: Shard;
+  strict?: boolean;
+  workerMemory?: number;
+}
+
+function shardArg(v: string): Shard {
+  try {
+    return parseShard(v);
+  } catch (e) {
+    throw new InvalidArgumentError((e as Error).message.replace(/^--shard /, ''));
+  }
 }
 
 export async function main(argv: string[]): Promise<number> {
@@ -55,31 +70,58 @@ export async function main(argv: string[]): Promise<number> {
     .option('-c, --config <file>', 'JSON file with settings that override the profile')
     .option('--max-gap <seconds>', 'gaps longer than this split the track into segments', positiveNumber)
     .option('--gate-probability <p>', 'probability of the chi-square outlier gate', probability)
-    .option('-j, --jobs <n>', 'sessions processed at once', positiveInt)
+    .option('-j, --jobs <n>', 'sessions processed at once, each on its own thread (default: the number of cores)', positiveInt)
+    .option('-f, --force', 'process every session again, even those whose outputs are up to date')
+    .option('--shard <K/N>', 'take only part K of N of the sessions (for array jobs; then run join-shards)', shardArg)
+    .option('--strict', 'treat any reader warning (skipped row, duplicate time, …) as a failure of the file')
+    .option('--worker-memory <MB>', 'heap limit of each worker thread; a session above it fails alone', positiveInt)
     .option('-q, --quiet', 'print nothing but errors')
     .action(async (input: string, o: RunOpts) => {
       const overrides: Record<string, unknown> = {};
       if (o.maxGap !== undefined) overrides.segments = { maxGapSec: o.maxGap };
       if (o.gateProbability !== undefined) overrides.gate = { probability: o.gateProbability };
+      if (o.strict) overrides.input = { strict: true };
       const config = loadConfig({ profile: o.profile, configFile: o.config, overrides });
-      const res = await runBatch({
-        input,
-        out: o.out,
-        config,
-        jobs: o.jobs ?? availableParallelism(),
-        onSession: o.quiet
-          ? undefined
-          : (s, done, total) => {
-              const m = s.metrics;
-              const what = s.status === 'ok' ? `ok  ${m!.fixCount} fixes, ${m!.outlierCount} flagged, ${m!.bridgedCount} bridged` : `FAILED  ${s.reason}`;
-              process.stdout.write(`[${done}/${total}] ${s.name}: ${what}\n`);
-            },
-      });
-      for (const s of res.summary.sessions) if (s.status === 'failed' && o.quiet) process.stderr.write(`${s.name}: ${s.reason}\n`);
+      const progress = makeProgress({ quiet: !!o.quiet, tty: !!process.stderr.isTTY, out: process.stdout, err: process.stderr });
+      let res;
+      try {
+        res = await runBatch({
+          input,
+          out: o.out,
+          config,
+          jobs: o.jobs ?? availableParallelism(),
+          inProcess: false,
+          force: !!o.force,
+          ...(o.shard ? { shard: o.shard } : {}),
+          ...(o.workerMemory ? { workerMemoryMb: o.workerMemory } : {}),
+          onEvent: (e) => progress.onEvent(e),
+        });
+      } finally {
+        progress.stop();
+      }
+      if (res.reportError) process.stderr.write(`hindcast: the report could not be written: ${res.reportError}\n`);
+      if (o.quiet) for (const s of res.summary.sessions) if (s.status === 'failed') process.stderr.write(`${s.name}: ${s.reason}\n`);
       if (!o.quiet) {
         const t = res.summary.totals;
-        process.stdout.write(`${t.ok} of ${t.sessions} sessions written to ${o.out} (summary.json).\n${CAUTION}\n`);
+        const where = o.shard ? `shard ${o.shard.index}/${o.shard.count}: ` : '';
+        process.stdout.write(
+          `${where}${t.ok} of ${t.sessions} sessions written to ${o.out} (${res.processed.length} processed, ${res.upToDate.length} up to date; ${res.summaryPath.replace(/^.*[\\/]/, '')}).\n${CAUTION}\n`,
+        );
       }
+      code = res.exitCode;
+    });
+  program
+    .command('join-shards')
+    .description('after every shard of a batch has run into <out>: join their summaries into summary.json (and the report)')
+    .argument('<out>', 'the output folder the shards shared')
+    .option('-q, --quiet', 'print nothing but errors')
+    .action(async (outDir: string, o: { quiet?: boolean }) => {
+      const res = await joinShards(outDir);
+      if (res.reportError) process.stderr.write(`hindcast: the report could not be written: ${res.reportError}\n`);
+      const t = res.summary.totals;
+      if (o.quiet) {
+        for (const s of res.summary.sessions) if (s.status === 'failed') process.stderr.write(`${s.name}: ${s.reason}\n`);
+      } else process.stdout.write(`joined ${res.summary.run?.joinedShards} shards: ${t.ok} of ${t.sessions} sessions ok (summary.json).\n`);
       code = res.exitCode;
     });
   try {

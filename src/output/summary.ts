@@ -1,6 +1,9 @@
 /**
  * summary.json: one entry per session of the batch, ok or failed, with the reason, warnings and
- * metrics, so scripts can tell what happened without opening every output.
+ * metrics, so scripts can tell what happened without opening every output. Facts about the run
+ * itself (when, how many sessions were processed or found up to date, elapsed times) are in
+ * `createdUtc`, `run` and each entry's `elapsedSec`; everything else depends only on the inputs,
+ * the configuration and the tool version.
  */
 import type { InputWarning } from '../errors.js';
 import type { SessionResult } from '../session/result.js';
@@ -18,6 +21,17 @@ export interface SessionSummary {
   elapsedSec?: number;
 }
 
+/** How this summary came about (differs between a clean run and a resumed one). */
+export interface RunInfo {
+  /** Sessions processed by this run. */
+  processed: number;
+  /** Sessions found up to date and kept from an earlier run. */
+  upToDate: number;
+  elapsedSec: number;
+  /** For a joined summary: the number of shard summaries joined. */
+  joinedShards?: number;
+}
+
 export interface BatchSummary {
   tool: string;
   version: string;
@@ -25,6 +39,11 @@ export interface BatchSummary {
   caution: string;
   input: string;
   profile: string;
+  /** SHA-256 of the effective configuration (canonical JSON), the same in every shard of a batch. */
+  configHash?: string;
+  /** Present in a shard's summary (summary.shard-K-of-N.json). */
+  shard?: { index: number; count: number };
+  run?: RunInfo;
   totals: { sessions: number; ok: number; failed: number; fixes: number; outliers: number; bridged: number };
   sessions: SessionSummary[];
 }
@@ -33,7 +52,13 @@ export function okEntry(r: SessionResult, input: string, outputs: string[], elap
   return { name: r.name, input, status: 'ok', warnings: r.warnings, outputs, metrics: r.metrics, info: r.info, elapsedSec };
 }
 
-export function buildSummary(version: string, input: string, profile: string, sessions: SessionSummary[]): BatchSummary {
+export function buildSummary(
+  version: string,
+  input: string,
+  profile: string,
+  sessions: SessionSummary[],
+  extra: Pick<BatchSummary, 'configHash' | 'shard' | 'run'> = {},
+): BatchSummary {
   const ok = sessions.filter((s) => s.status === 'ok');
   return {
     tool: 'hindcast',
@@ -42,6 +67,9 @@ export function buildSummary(version: string, input: string, profile: string, se
     caution: CAUTION,
     input,
     profile,
+    ...(extra.configHash !== undefined ? { configHash: extra.configHash } : {}),
+    ...(extra.shard !== undefined ? { shard: extra.shard } : {}),
+    ...(extra.run !== undefined ? { run: extra.run } : {}),
     totals: {
       sessions: sessions.length,
       ok: ok.length,

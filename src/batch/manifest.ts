@@ -1,0 +1,148 @@
+/**
+ * The resume manifest: one small JSON entry per session under `<out>/.hindcast/manifest/`, written
+ * atomically after the session's outputs, removed before they are rewritten. An entry records the
+ * content hashes (SHA-256) of the session's input files, the effective configuration and its hash,
+ * the tool version, and the outputs with their sizes, so a rerun can tell a current session from a
+ * stale one without reading its outputs. Per-session report payloads sit beside it under
+ * `<out>/.hindcast/payloads/`.
+ */
+import { createHash } from 'node:crypto';
+import { createReadStream } from 'node:fs';
+import { readFile, rm, stat } from 'node:fs/promises';
+import { join } from 'node:path';
+import type { HindcastConfig } from '../config/schema.js';
+import type { SessionSummary } from '../output/summary.js';
+import { writeFileAtomic } from './atomic-write.js';
+
+/** The hidden folder of the output folder that holds the manifest and the report payloads. */
+export const STATE_DIR = '.hindcast';
+export const MANIFEST_SCHEMA = 1;
+
+export interface InputHash {
+  /** "/"-separated path relative to the input root. */
+  file: string;
+  sha256: string;
+  size: number;
+}
+
+export interface OutputFile {
+  /** "/"-separated path relative to the output folder. */
+  file: string;
+  size: number;
+}
+
+export interface ManifestEntry {
+  schema: number;
+  tool: 'hindcast';
+  version: string;
+  name: string;
+  inputs: InputHash[];
+  configHash: string;
+  config: HindcastConfig;
+  outputs: OutputFile[];
+  /** A report payload was saved for this session. */
+  payload: boolean;
+  /** The session's summary entry, reused as it is when the session is skipped. */
+  summary: SessionSummary;
+  /** A failure that would repeat on the same inputs (bad input): kept instead of retried. */
+  settled: boolean;
+}
+
+/** SHA-256 of a file, streamed (constant memory for logs of any size). */
+export async function hashFile(path: string): Promise<{ sha256: string; size: number }> {
+  const h = createHash('sha256');
+  let size = 0;
+  for await (const chunk of createReadStream(path, { highWaterMark: 1 << 20 })) {
+    h.update(chunk as Buffer);
+    size += (chunk as Buffer).length;
+  }
+  return { sha256: h.digest('hex'), size };
+}
+
+/** JSON with object keys in sorted order, so equal values always give equal text. */
+export function canonicalJson(v: unknown): string {
+  return JSON.stringify(v, (_k, x: unknown) => {
+    if (x && typeof x === 'object' && !Array.isArray(x)) {
+      const o: Record<string, unknown> = {};
+      for (const k of Object.keys(x as object).sort()) o[k] = (x as Record<string, unknown>)[k];
+      return o;
+    }
+    return x;
+  });
+}
+
+export function configHash(cfg: HindcastConfig): string {
+  return createHash('sha256').update(canonicalJson(cfg)).digest('hex');
+}
+
+function stateFile(out: string, kind: 'manifest' | 'payloads', name: string): string {
+  return join(out, STATE_DIR, kind, ...`${name}.json`.split('/'));
+}
+
+export const manifestPath = (out: string, name: string): string => stateFile(out, 'manifest', name);
+export const payloadPath = (out: string, name: string): string => stateFile(out, 'payloads', name);
+
+export async function readEntry(out: string, name: string): Promise<ManifestEntry | null> {
+  try {
+    const e = JSON.parse(await readFile(manifestPath(out, name), 'utf8')) as ManifestEntry;
+    return e && e.schema === MANIFEST_SCHEMA && e.name === name ? e : null;
+  } catch {
+    return null;
+  }
+}
+
+export async function writeEntry(out: string, e: ManifestEntry): Promise<void> {
+  await writeFileAtomic(manifestPath(out, e.name), JSON.stringify(e) + '\n');
+}
+
+export async function removeEntry(out: string, name: string): Promise<void> {
+  await rm(manifestPath(out, name), { force: true });
+}
+
+export async function writePayload(out: string, name: string, payload: unknown): Promise<void> {
+  await writeFileAtomic(payloadPath(out, name), JSON.stringify(payload) + '\n');
+}
+
+export async function readPayload(out: string, name: string): Promise<unknown> {
+  return JSON.parse(await readFile(payloadPath(out, name), 'utf8')) as unknown;
+}
+
+export async function removePayload(out: string, name: string): Promise<void> {
+  await rm(payloadPath(out, name), { force: true });
+}
+
+export interface CurrentCheck {
+  version: string;
+  configHash: string;
+  inputs: InputHash[];
+  /** The report module is present, so an ok session needs a saved payload. */
+  needPayload: boolean;
+}
+
+/** Why an entry is not current, or null when the session can be skipped. */
+export async function staleReason(out: string, e: ManifestEntry | null, want: CurrentCheck): Promise<string | null> {
+  if (!e) return 'not processed yet';
+  if (e.version !== want.version) return `made by version ${e.version}`;
+  if (e.configHash !== want.configHash) return 'configuration changed';
+  const a = e.inputs.map((i) => `${i.file}\0${i.sha256}`).join('\n');
+  const b = want.inputs.map((i) => `${i.file}\0${i.sha256}`).join('\n');
+  if (a !== b) return 'input changed';
+  if (e.summary.status === 'failed') return e.settled ? null : 'failed before';
+  for (const o of e.outputs) {
+    try {
+      const st = await stat(join(out, ...o.file.split('/')));
+      if (!st.isFile() || st.size !== o.size) return `output ${o.file} changed`;
+    } catch {
+      return `output ${o.file} missing`;
+    }
+  }
+  if (want.needPayload && !e.payload) return 'no report data';
+  if (e.payload) {
+    try {
+      await stat(payloadPath(out, e.name));
+    } catch {
+      return 'report data missing';
+    }
+  }
+  return null;
+}

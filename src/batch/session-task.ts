@@ -1,0 +1,117 @@
+/**
+ * One session from log to outputs: read, (user decisions), process, write every output atomically,
+ * and compute the report payload. Runs inside a worker thread (worker.ts) or in-process; it takes
+ * and returns only structured-clone-safe data, and returns the summary entry and the small
+ * payload instead of the SessionResult, so the batch's memory does not grow with its size.
+ */
+import { rm } from 'node:fs/promises';
+import { join } from 'node:path';
+import type { HindcastConfig } from '../config/schema.js';
+import { ConfigError, InputError, NumericalError } from '../errors.js';
+import type { InputWarning } from '../errors.js';
+import { readFixLog } from '../input/read-log.js';
+import { processSession } from '../session/process-session.js';
+import type { SessionResult } from '../session/result.js';
+import { trackCsvChunks } from '../output/track-csv.js';
+import { outliersCsv } from '../output/outliers-csv.js';
+import { sessionGeoJson } from '../output/geojson.js';
+import { okEntry, type SessionSummary } from '../output/summary.js';
+import { writeChunksAtomic, writeFileAtomic } from './atomic-write.js';
+import { loadDecisionsReader, loadReportModule } from './optional.js';
+import type { OutputFile } from './manifest.js';
+import { stat } from 'node:fs/promises';
+
+export interface SessionTask {
+  name: string;
+  /** Absolute path of the log. */
+  path: string;
+  /** "/"-separated path relative to the input root. */
+  relPath: string;
+  /** Absolute path of `<stem>.decisions.csv`, when there is one. */
+  decisionsPath?: string;
+  /** Absolute output folder. */
+  out: string;
+  config: HindcastConfig;
+  /** Compute a report payload (the report module is present and the report is on). */
+  withPayload: boolean;
+}
+
+export interface SessionOutcome {
+  summary: SessionSummary;
+  outputs: OutputFile[];
+  payload?: unknown;
+  /** The failure would repeat on the same inputs and configuration (bad input or settings). */
+  settled: boolean;
+}
+
+/** Output files of a session, relative to the output folder ("/"-separated). */
+export function outputNames(name: string): { track: string; outliers: string; geojson: string } {
+  return { track: `${name}.track.csv`, outliers: `${name}.outliers.csv`, geojson: `${name}.geojson` };
+}
+
+/** Output file paths of a session. */
+export function outputPaths(out: string, name: string): { track: string; outliers: string; geojson: string } {
+  const n = outputNames(name);
+  const abs = (rel: string): string => join(out, ...rel.split('/'));
+  return { track: abs(n.track), outliers: abs(n.outliers), geojson: abs(n.geojson) };
+}
+
+/** Write the outputs of one session (each atomically); returns them relative to `out` with sizes. */
+export async function writeSessionOutputs(out: string, r: SessionResult, cfg: HindcastConfig): Promise<OutputFile[]> {
+  const n = outputNames(r.name);
+  const p = outputPaths(out, r.name);
+  await writeChunksAtomic(p.track, trackCsvChunks(r));
+  await writeFileAtomic(p.outliers, outliersCsv(r));
+  await writeFileAtomic(p.geojson, JSON.stringify(sessionGeoJson(r, { decimals: cfg.output.geojsonDecimals })) + '\n');
+  const files: OutputFile[] = [];
+  for (const [rel, abs] of [[n.track, p.track], [n.outliers, p.outliers], [n.geojson, p.geojson]] as const)
+    files.push({ file: rel, size: (await stat(abs)).size });
+  return files;
+}
+
+/** Remove the outputs of a session (after a failure, so none is left that does not match its input). */
+export async function removeSessionOutputs(out: string, name: string): Promise<void> {
+  for (const p of Object.values(outputPaths(out, name))) await rm(p, { force: true });
+}
+
+/** A short reason for a failed session: input and config errors as they are, others named. */
+export function failureReason(e: unknown): string {
+  if (e instanceof InputError || e instanceof ConfigError) return e.message;
+  if (e instanceof NumericalError) return `numerical failure: ${e.message}`;
+  return `internal error: ${(e as Error)?.message ?? String(e)}`;
+}
+
+export function failedEntry(name: string, input: string, reason: string, warnings: InputWarning[] = []): SessionSummary {
+  return { name, input, status: 'failed', reason, warnings };
+}
+
+export async function runSessionTask(t: SessionTask): Promise<SessionOutcome> {
+  const t0 = performance.now();
+  try {
+    const series = await readFixLog(t.path, t.relPath, t.config);
+    let decisions: Map<number, 'keep' | 'reject'> | undefined;
+    if (t.decisionsPath) {
+      const readDecisions = await loadDecisionsReader();
+      if (readDecisions) decisions = await readDecisions(t.decisionsPath, series);
+      else
+        series.warnings.push({
+          file: t.relPath,
+          code: 'decisions-unsupported',
+          message: 'a decisions file lies beside this log but this build cannot read decisions files; it was ignored',
+        });
+    }
+    const r = processSession(series, t.config, t.name, decisions);
+    const payload = t.withPayload ? (await loadReportModule())?.reportPayload(r) : undefined;
+    const outputs = await writeSessionOutputs(t.out, r, t.config);
+    const summary = okEntry(r, t.relPath, outputs.map((o) => o.file), round3((performance.now() - t0) / 1000));
+    return { summary, outputs, payload, settled: false };
+  } catch (e) {
+    await removeSessionOutputs(t.out, t.name).catch(() => undefined);
+    const warnings = (e as { warnings?: InputWarning[] }).warnings ?? [];
+    return { summary: failedEntry(t.name, t.relPath, failureReason(e), warnings), outputs: [], settled: e instanceof InputError || e instanceof ConfigError };
+  }
+}
+
+function round3(v: number): number {
+  return Math.round(v * 1000) / 1000;
+}
