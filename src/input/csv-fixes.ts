@@ -1,63 +1,180 @@
 /**
- * Reader for fix logs in CSV: a header row, then one fix per row. Times as ISO 8601 (with an offset,
- * or in the configured IANA zone), Unix seconds/milliseconds, or GPS week + time of week columns.
- * Positions in decimal degrees, WGS84; height ellipsoidal (m) when present.
- * Rows with values that cannot be parsed are skipped with a warning naming the line.
+ * Reader for fix logs in CSV (delimited text after RFC 4180): a header row, then one fix per row.
+ * Times as ISO 8601 (with an offset, or in the configured IANA zone), Unix seconds/milliseconds, or
+ * GPS week + time of week columns. Positions in decimal degrees (or radians with
+ * `input.angleUnit: "rad"`), WGS84; height ellipsoidal (m) when present.
+ *
+ * Rules (documented in README "Input formats"):
+ * - delimiter: `input.delimiter`, else an Excel "sep=X" first line, else the one of , ; tab | that
+ *   occurs (outside quotes) in the header and the same number of times in most of the next rows;
+ * - decimal comma: with a delimiter other than ",", a "," inside a number is its decimal sign; with
+ *   "," as delimiter a quoted number with one "," and no "." is read the same way (no thousands
+ *   separators); ISO times may use "," before the fraction of a second (ISO 8601 §4.2.2.4);
+ * - quoted fields ("…", "" for a quote) may hold delimiters but not line breaks: a quote still
+ *   open at the end of a line spoils that row only;
+ * - lines starting with "#" and blank lines are ignored;
+ * - a row with an unparsable or out-of-range time or position is skipped with a warning; a last
+ *   line without a line ending and with fewer fields than the header is a truncated write, skipped;
+ *   (0, 0) positions are kept (the session flags them invalid); heights outside −12 000…100 000 m are
+ *   dropped from the row (row kept).
  */
-import { parse } from 'csv-parse/sync';
 import type { HindcastConfig } from '../config/schema.js';
 import { InputError } from '../errors.js';
 import { gpsWeekTowToUnixUtc } from '../time/gps-time.js';
 import { parseIsoToUnix } from '../time/parse-time.js';
 import { matchColumns, MSL_HEIGHT_ALIASES, type ColumnRole } from './columns.js';
 import { FixSeriesBuilder, type FixSeries, type QualityColumn } from './fix-series.js';
+import { HEIGHT_RANGE_M } from './nmea.js';
+import { RowWarnings } from './row-warnings.js';
 
 const QUALITY_ROLES: QualityColumn[] = ['hdop', 'vdop', 'sats', 'fixQuality', 'sdEast', 'sdNorth', 'sdUp'];
+const DELIMITERS = [',', ';', '\t', '|'] as const;
 
-/** Choose the delimiter from the header line: the most frequent of , ; tab |. */
-export function detectDelimiter(headerLine: string): string {
+export interface CsvRow {
+  fields: string[];
+  /** 1-based line of the row. */
+  line: number;
+  /** A quote was still open at the end of the line. */
+  unclosedQuote: boolean;
+  /** The row ended with a line break (false only for a last line without one). */
+  terminated: boolean;
+}
+
+/** Split one line into fields (RFC 4180 quoting within the line; fields trimmed). */
+export function splitCsvLine(s: string, delimiter: string): { fields: string[]; unclosedQuote: boolean } {
+  const fields: string[] = [];
+  const d = delimiter.charCodeAt(0);
+  let i = 0;
+  const n = s.length;
+  let unclosedQuote = false;
+  for (;;) {
+    // skip leading blanks of a field
+    while (i < n && (s.charCodeAt(i) === 32 || (s.charCodeAt(i) === 9 && d !== 9))) i++;
+    let v = '';
+    if (i < n && s.charCodeAt(i) === 34) {
+      i++;
+      let closed = false;
+      let start = i;
+      while (i < n) {
+        const c = s.charCodeAt(i);
+        if (c === 34) {
+          if (s.charCodeAt(i + 1) === 34) {
+            v += s.slice(start, i + 1);
+            i += 2;
+            start = i;
+            continue;
+          }
+          v += s.slice(start, i);
+          i++;
+          closed = true;
+          break;
+        }
+        i++;
+      }
+      if (!closed) {
+        v += s.slice(start, i);
+        unclosedQuote = true;
+      }
+      // text after the closing quote up to the delimiter is kept (lenient)
+      const next = s.indexOf(delimiter, i);
+      const tail = next < 0 ? s.slice(i) : s.slice(i, next);
+      v += tail;
+      i = next < 0 ? n : next;
+    } else {
+      const next = s.indexOf(delimiter, i);
+      v = next < 0 ? s.slice(i) : s.slice(i, next);
+      i = next < 0 ? n : next;
+    }
+    fields.push(v.trim());
+    if (i >= n) break;
+    i++; // past the delimiter
+    if (i === n) {
+      fields.push('');
+      break;
+    }
+  }
+  return { fields, unclosedQuote };
+}
+
+/** Count `ch` outside double quotes. */
+function countOutsideQuotes(s: string, ch: string): number {
+  let q = false;
+  let c = 0;
+  for (let i = 0; i < s.length; i++) {
+    const x = s[i];
+    if (x === '"') q = !q;
+    else if (!q && x === ch) c++;
+  }
+  return c;
+}
+
+/**
+ * Choose the delimiter from the header and up to 20 following lines: among , ; tab | present in the
+ * header, the one whose count per line matches the header's in most rows (ties: the larger count).
+ */
+export function detectDelimiter(headerLine: string, sampleLines: readonly string[] = []): string {
   let best = ',';
+  let bestScore = -1;
   let bestCount = 0;
-  for (const d of [',', ';', '\t', '|']) {
-    const c = headerLine.split(d).length - 1;
-    if (c > bestCount) {
+  for (const d of DELIMITERS) {
+    const hc = countOutsideQuotes(headerLine, d);
+    if (hc === 0) continue;
+    let agree = 0;
+    for (const l of sampleLines) if (countOutsideQuotes(l, d) === hc) agree++;
+    const score = sampleLines.length ? agree / sampleLines.length : 1;
+    if (score > bestScore || (score === bestScore && hc > bestCount)) {
       best = d;
-      bestCount = c;
+      bestScore = score;
+      bestCount = hc;
     }
   }
   return best;
 }
 
-/** Parse a number that may use a decimal comma (only when the delimiter is not a comma). */
-function num(text: string | undefined, decimalComma: boolean): number {
+const DECIMAL = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
+
+/** Parse a plain decimal number; a decimal comma is accepted as described in the file header. */
+export function parseCsvNumber(text: string | undefined, decimalComma: boolean): number {
   if (text === undefined) return NaN;
-  const s = text.trim();
+  let s = text.trim();
   if (s === '') return NaN;
-  return Number(decimalComma ? s.replace(',', '.') : s);
+  const comma = s.indexOf(',');
+  if (comma >= 0 && (decimalComma || (s.indexOf('.') < 0 && s.indexOf(',', comma + 1) < 0))) {
+    if (s.indexOf('.') >= 0 || s.indexOf(',', comma + 1) >= 0) return NaN;
+    s = s.slice(0, comma) + '.' + s.slice(comma + 1);
+  }
+  return DECIMAL.test(s) ? Number(s) : NaN;
 }
+
+const DEG_PER_RAD = 180 / Math.PI;
 
 export function readFixCsv(text: string, file: string, cfg: HindcastConfig): FixSeries {
   const body = text.replace(/^\uFEFF/, '');
-  const firstNl = body.search(/\r?\n/);
-  const headerLine = firstNl < 0 ? body : body.slice(0, firstNl);
-  if (headerLine.trim() === '') throw new InputError({ file, line: 1 }, 'empty file or empty header line: a fix CSV needs a header row');
-  const delimiter = cfg.input.delimiter ?? detectDelimiter(headerLine);
-  const decimalComma = delimiter !== ',';
-  let records: { record: string[]; info: { lines: number } }[];
-  try {
-    records = parse(body, {
-      delimiter,
-      relax_column_count: true,
-      skip_empty_lines: true,
-      info: true,
-      trim: true,
-    }) as unknown as { record: string[]; info: { lines: number } }[];
-  } catch (e) {
-    const err = e as Error & { lines?: number };
-    throw new InputError({ file, line: err.lines }, `not readable as CSV: ${err.message.replace(/^Invalid [^:]*:\s*/, '')}`);
+  if (body.trim() === '') throw new InputError({ file, line: 1 }, 'empty file');
+  const lines = body.split(/\r\n|\n|\r/);
+  // a final line break leaves an empty last element: the last real line was terminated
+  const lastTerminated = lines.length > 1 && lines[lines.length - 1] === '';
+  if (lastTerminated) lines.pop();
+  let li = 0;
+  let delimiter = cfg.input.delimiter;
+  const isSkippable = (l: string) => l.trim() === '' || l.trimStart().startsWith('#');
+  while (li < lines.length && isSkippable(lines[li]!)) li++;
+  const sep = li < lines.length ? /^\s*"?sep=(.)"?\s*$/i.exec(lines[li]!) : null;
+  if (sep) {
+    delimiter ??= sep[1] === 't' ? '\t' : sep[1]!;
+    li++;
+    while (li < lines.length && isSkippable(lines[li]!)) li++;
   }
-  if (records.length === 0) throw new InputError({ file }, 'empty file');
-  const header = records[0]!.record;
+  if (li >= lines.length) throw new InputError({ file, line: 1 }, 'no header row: the file holds only blank or comment lines');
+  const headerLineNo = li + 1;
+  const headerLine = lines[li]!;
+  if (!delimiter) {
+    const sample: string[] = [];
+    for (let j = li + 1; j < lines.length && sample.length < 20; j++) if (!isSkippable(lines[j]!)) sample.push(lines[j]!);
+    delimiter = detectDelimiter(headerLine, sample);
+  }
+  const decimalComma = delimiter !== ',';
+  const header = splitCsvLine(headerLine, delimiter).fields;
   const { index, matched } = matchColumns(header, cfg.input.columns);
   const hasWeekTow = index.gpsWeek >= 0 && index.tow >= 0;
   const missing: string[] = [];
@@ -66,35 +183,52 @@ export function readFixCsv(text: string, file: string, cfg: HindcastConfig): Fix
   if (index.lon < 0) missing.push('lon');
   if (missing.length)
     throw new InputError(
-      { file, line: 1 },
-      `no ${missing.join(', ')} column in the header (${header.join(', ')}); name it in input.columns of a --config file`,
+      { file, line: headerLineNo },
+      `no ${missing.join(', ')} column in the header (${header.slice(0, 20).map((h) => h.slice(0, 40)).join(', ')}); name it in input.columns of a --config file`,
     );
   const qualityPresent = QUALITY_ROLES.filter((r) => index[r] >= 0);
   const b = new FixSeriesBuilder(file, qualityPresent);
+  const w = new RowWarnings(b);
   b.meta.format = 'csv';
-  if (index.height >= 0 && matched.height && MSL_HEIGHT_ALIASES.has(matched.height)) {
+  b.meta.delimiter = delimiter === '\t' ? 'tab' : delimiter;
+  if (decimalComma) b.meta.decimalComma = true;
+  b.meta.angleUnit = cfg.input.angleUnit;
+  const heightReference = cfg.input.heightReference ?? 'ellipsoidal';
+  b.meta.heightReference = heightReference;
+  if (index.height >= 0 && matched.height && MSL_HEIGHT_ALIASES.has(matched.height) && cfg.input.heightReference === undefined) {
     b.meta.heightReference = 'assumed-ellipsoidal';
-    b.warn('height-reference', `column "${header[index.height]}" is read as ellipsoidal height; if it is above mean sea level, heights carry the geoid separation`);
+    b.warn('height-reference', `column "${header[index.height]}" is read as ellipsoidal height; if it is above mean sea level, set input.heightReference to "msl"`);
   }
   const zone = cfg.input.timeZone;
   const unit = cfg.input.timeUnit;
+  const rad = cfg.input.angleUnit === 'rad';
   const qv = new Float64Array(qualityPresent.length);
-  let skipped = 0;
-  let firstSkipped: string | null = null;
   let msNoted = false;
-  const skip = (line: number, why: string) => {
-    skipped++;
-    if (skipped <= 20) b.warn('row-skipped', why, line);
-    if (firstSkipped === null) firstSkipped = `line ${line}: ${why}`;
-  };
-  for (let r = 1; r < records.length; r++) {
-    const rec = records[r]!.record;
-    const line = records[r]!.info.lines;
-    if (rec.length === 1 && rec[0] === '') continue;
+  let rows = 0;
+  const need = Math.max(index.time, index.lat, index.lon, hasWeekTow ? Math.max(index.gpsWeek, index.tow) : -1) + 1;
+  for (let j = li + 1; j < lines.length; j++) {
+    const raw = lines[j]!;
+    if (isSkippable(raw)) continue;
+    const line = j + 1;
+    rows++;
+    const { fields: rec, unclosedQuote } = splitCsvLine(raw, delimiter);
+    const isLast = j === lines.length - 1;
+    if (isLast && !lastTerminated && rec.length < header.length) {
+      w.add('truncated-last-line', `last line has ${rec.length} of ${header.length} fields and no line ending (file cut short?); skipped`, line);
+      continue;
+    }
+    if (unclosedQuote) {
+      w.add('row-skipped', 'a quoted field is not closed on this line', line);
+      continue;
+    }
+    if (rec.length < need) {
+      w.add('row-skipped', `row has ${rec.length} field(s), the position and time columns need ${need}`, line);
+      continue;
+    }
     let t: number;
     if (index.time >= 0 && !(hasWeekTow && (rec[index.time] ?? '') === '')) {
-      const raw = rec[index.time] ?? '';
-      const v = num(raw, false);
+      const rawT = rec[index.time] ?? '';
+      const v = parseCsvNumber(rawT, false);
       if (Number.isFinite(v)) {
         const ms = unit === 'ms' || (unit === 'auto' && Math.abs(v) > 1e11);
         if (ms && unit === 'auto' && !msNoted) {
@@ -103,40 +237,57 @@ export function readFixCsv(text: string, file: string, cfg: HindcastConfig): Fix
         }
         t = ms ? v / 1000 : v;
       } else {
-        t = parseIsoToUnix(raw, zone);
+        const iso = rawT.replace(/(\d{2}:\d{2}:\d{2}),(\d)/, '$1.$2');
+        t = parseIsoToUnix(iso, zone);
         if (Number.isNaN(t)) {
-          skip(line, `time "${raw}" is not ISO 8601 with a zone or offset, nor Unix seconds${zone ? '' : ' (set input.timeZone for local times)'}`);
+          w.add('row-skipped', `time "${rawT.slice(0, 40)}" is not ISO 8601 with a zone or offset, nor Unix seconds${zone ? '' : ' (set input.timeZone for local times)'}`, line);
           continue;
         }
       }
     } else {
-      const week = num(rec[index.gpsWeek], false);
-      const tow = num(rec[index.tow], decimalComma);
-      if (!Number.isInteger(week) || week < 0 || !(tow >= 0 && tow < 604800)) {
-        skip(line, `GPS week "${rec[index.gpsWeek]}" / time of week "${rec[index.tow]}" out of range`);
+      const week = parseCsvNumber(rec[index.gpsWeek], false);
+      const tow = parseCsvNumber(rec[index.tow], decimalComma);
+      if (!Number.isInteger(week) || week < 0 || week > 1e5 || !(tow >= 0 && tow < 604800)) {
+        w.add('row-skipped', `GPS week "${(rec[index.gpsWeek] ?? '').slice(0, 20)}" / time of week "${(rec[index.tow] ?? '').slice(0, 20)}" out of range`, line);
         continue;
       }
       t = gpsWeekTowToUnixUtc(week, tow);
     }
-    const lat = num(rec[index.lat], decimalComma);
-    const lon = num(rec[index.lon], decimalComma);
-    if (!Number.isFinite(lat) || !Number.isFinite(lon) || Math.abs(lat) > 90 || Math.abs(lon) > 180) {
-      skip(line, `position "${rec[index.lat]}", "${rec[index.lon]}" is not a latitude/longitude in decimal degrees`);
+    if (!Number.isFinite(t) || Math.abs(t) > 1e11) {
+      w.add('row-skipped', `time "${(rec[index.time] ?? '').slice(0, 40)}" is out of range`, line);
       continue;
     }
-    const h = index.height >= 0 ? num(rec[index.height], decimalComma) : NaN;
+    let lat = parseCsvNumber(rec[index.lat], decimalComma);
+    let lon = parseCsvNumber(rec[index.lon], decimalComma);
+    if (rad) {
+      lat *= DEG_PER_RAD;
+      lon *= DEG_PER_RAD;
+    }
+    if (!Number.isFinite(lat) || !Number.isFinite(lon) || Math.abs(lat) > 90 || Math.abs(lon) > 180) {
+      w.add(
+        'row-skipped',
+        `position "${(rec[index.lat] ?? '').slice(0, 20)}", "${(rec[index.lon] ?? '').slice(0, 20)}" is not a latitude/longitude in ${rad ? 'radians' : 'decimal degrees'}`,
+        line,
+      );
+      continue;
+    }
+    let h = index.height >= 0 ? parseCsvNumber(rec[index.height], decimalComma) : NaN;
+    if (Number.isFinite(h) && (h < HEIGHT_RANGE_M[0] || h > HEIGHT_RANGE_M[1])) {
+      w.add('height-out-of-range', `height "${rec[index.height]}" outside ${HEIGHT_RANGE_M[0]}…${HEIGHT_RANGE_M[1]} m dropped (row kept)`, line);
+      h = NaN;
+    }
     for (let i = 0; i < qualityPresent.length; i++) {
-      const v = num(rec[index[qualityPresent[i] as ColumnRole]], decimalComma);
+      const v = parseCsvNumber(rec[index[qualityPresent[i] as ColumnRole]], decimalComma);
       qv[i] = Number.isFinite(v) && v >= 0 ? v : NaN;
     }
     b.add(t, lat, lon, h, line, qv);
   }
-  if (skipped > 20) b.warn('row-skipped', `${skipped - 20} more row(s) skipped for the same kinds of reason`);
+  w.finish();
   if (b.count === 0) {
-    if (records.length === 1) throw new InputError({ file, line: 1 }, 'header only: the file has no fix rows');
-    throw new InputError({ file }, `no readable fix rows (${skipped} skipped; first: ${firstSkipped})`);
+    if (rows === 0) throw new InputError({ file, line: headerLineNo }, 'header only: the file has no fix rows');
+    throw new InputError({ file, line: headerLineNo + 1 }, `no readable fix rows (${w.total} skipped; first: ${w.first})`);
   }
   const s = b.finish();
-  if (s.n < 2) throw new InputError({ file }, `only ${s.n} fix: a session needs at least two fixes at distinct times`);
+  if (s.n < 2) throw new InputError({ file, line: s.line[0] }, `only ${s.n} fix: a session needs at least two fixes at distinct times`);
   return s;
 }
