@@ -1,0 +1,120 @@
+/**
+ * The track in the local frame (east, north in metres, equal scale on both axes): the smoothed
+ * track, solid where fixes support it and dashed across bridged spans, 95% error ellipses at
+ * intervals (to scale), the raw positions of flagged fixes and of the user's decisions as symbols.
+ */
+import type { TopLevelSpec } from 'vega-lite';
+import { STATUS } from '../../session/result.js';
+import { CHART_WIDTH, flagEncoding, flagMark, r4 } from './chart-common.js';
+import type { EllipseMark, PlotSeries } from './payload.js';
+
+const ELLIPSE_VERTICES = 36;
+export const TRACK_KINDS = ['smoothed track', 'bridged (no fix)'] as const;
+
+/** Points of a 95% ellipse (azimuth clockwise from north) around its centre, closed. */
+export function ellipsePoints(e: EllipseMark, vertices = ELLIPSE_VERTICES): Array<[number, number]> {
+  const az = (e.azimuthDeg * Math.PI) / 180;
+  // major axis direction (east, north) = (sin az, cos az); minor axis perpendicular
+  const ue = Math.sin(az), un = Math.cos(az);
+  const pts: Array<[number, number]> = [];
+  for (let i = 0; i <= vertices; i++) {
+    const th = (2 * Math.PI * i) / vertices;
+    const a = e.majorM * Math.cos(th), b = e.minorM * Math.sin(th);
+    pts.push([e.east + a * ue + b * un, e.north + a * un - b * ue]);
+  }
+  return pts;
+}
+
+/** Domains giving the same metres per pixel on both axes, and the plot height for a fixed width. */
+export function equalAxes(eMin: number, eMax: number, nMin: number, nMax: number, width: number, hMin = 260, hMax = 620): { x: [number, number]; y: [number, number]; height: number } {
+  let dx = Math.max(eMax - eMin, 1);
+  let dy = Math.max(nMax - nMin, 1);
+  dx *= 1.06;
+  dy *= 1.06;
+  const height = Math.round(Math.min(hMax, Math.max(hMin, (width * dy) / dx)));
+  const mPerPx = Math.max(dx / width, dy / height);
+  const cx = 0.5 * (eMin + eMax), cy = 0.5 * (nMin + nMax);
+  const hx = 0.5 * mPerPx * width, hy = 0.5 * mPerPx * height;
+  return { x: [cx - hx, cx + hx], y: [cy - hy, cy + hy], height };
+}
+
+export function trackChart(p: PlotSeries, ellipses: EllipseMark[], name: string): TopLevelSpec {
+  // track as runs of one kind within a segment; a bridged run includes its neighbours so it joins up
+  const line: Array<{ e: number | null; n: number | null; part: number; kind: string; k: number }> = [];
+  let part = -1;
+  let prevKind = '';
+  let prevSeg = -1;
+  const M = p.tSec.length;
+  for (let k = 0; k < M; k++) {
+    const kind = p.status[k] === STATUS.bridged ? TRACK_KINDS[1] : TRACK_KINDS[0];
+    if (kind !== prevKind || p.segment[k] !== prevSeg) {
+      part++;
+      // start the new run at the previous point so runs touch (same segment only)
+      if (k > 0 && p.segment[k] === prevSeg) line.push({ e: r4(p.east[k - 1]!), n: r4(p.north[k - 1]!), part, kind, k: k - 1 });
+    }
+    line.push({ e: r4(p.east[k]!), n: r4(p.north[k]!), part, kind, k });
+    prevKind = kind;
+    prevSeg = p.segment[k]!;
+  }
+  const ell: Array<{ e: number | null; n: number | null; id: number; k: number }> = [];
+  ellipses.forEach((el, id) => ellipsePoints(el).forEach(([e, n], k) => ell.push({ e: r4(e), n: r4(n), id, k })));
+  const flagged: Array<{ e: number | null; n: number | null; mark: string }> = [];
+  for (let k = 0; k < M; k++) {
+    const m = flagMark(p.status[k]!);
+    // the raw fix where there is one (that is what was judged), else the smoothed position
+    if (!m) continue;
+    const e = Number.isFinite(p.rawEast[k]!) ? p.rawEast[k]! : p.east[k]!;
+    const n = Number.isFinite(p.rawNorth[k]!) ? p.rawNorth[k]! : p.north[k]!;
+    flagged.push({ e: r4(e), n: r4(n), mark: m.label });
+  }
+  let eMin = Infinity, eMax = -Infinity, nMin = Infinity, nMax = -Infinity;
+  for (const q of [...line, ...ell, ...flagged]) {
+    if (q.e === null || q.n === null) continue;
+    eMin = Math.min(eMin, q.e);
+    eMax = Math.max(eMax, q.e);
+    nMin = Math.min(nMin, q.n);
+    nMax = Math.max(nMax, q.n);
+  }
+  if (!Number.isFinite(eMin)) [eMin, eMax, nMin, nMax] = [-1, 1, -1, 1];
+  const ax = equalAxes(eMin, eMax, nMin, nMax, CHART_WIDTH);
+  const x = { field: 'e', type: 'quantitative', scale: { domain: ax.x, nice: false, zero: false }, axis: { title: 'east (m)' } };
+  const y = { field: 'n', type: 'quantitative', scale: { domain: ax.y, nice: false, zero: false }, axis: { title: 'north (m)' } };
+  const start = line.length ? [{ e: line[0]!.e, n: line[0]!.n, label: 'start' }] : [];
+  const layers: unknown[] = [
+    {
+      data: { values: ell },
+      mark: { type: 'line', strokeWidth: 0.8, color: '#5d6d7e', opacity: 0.8, clip: true },
+      encoding: { x, y, detail: { field: 'id' }, order: { field: 'k' } },
+    },
+    {
+      data: { values: line },
+      mark: { type: 'line', strokeWidth: 1.6, color: '#1f4e79', clip: true },
+      encoding: {
+        x, y, detail: { field: 'part' }, order: { field: 'k' },
+        strokeDash: { field: 'kind', type: 'nominal', scale: { domain: [...TRACK_KINDS], range: [[1, 0], [6, 4]] }, legend: { title: null, orient: 'bottom' } },
+      },
+    },
+    {
+      data: { values: start },
+      mark: { type: 'point', shape: 'square', size: 70, filled: false, color: '#000000', strokeWidth: 1.5 },
+      encoding: { x, y },
+    },
+    {
+      data: { values: start },
+      mark: { type: 'text', dx: 8, dy: -8, align: 'left', fontSize: 11 },
+      encoding: { x, y, text: { field: 'label' } },
+    },
+  ];
+  if (flagged.length)
+    layers.push({
+      data: { values: flagged },
+      mark: { type: 'point', size: 60, filled: true, opacity: 0.9, clip: true },
+      encoding: { x, y, ...flagEncoding() },
+    });
+  return {
+    description: `Track of ${name} in the local frame`,
+    width: CHART_WIDTH,
+    height: ax.height,
+    layer: layers,
+  } as TopLevelSpec;
+}

@@ -1,0 +1,50 @@
+/**
+ * Extension point for optional plot groups in the report (IMU attitude and bias estimates, …),
+ * keyed on optional fields of SessionResult.
+ *
+ * To add one: write `src/output/report/<name>-extension.ts` exporting a ReportExtension whose
+ * `collect` reads the optional field(s) it needs from the SessionResult (returning undefined when
+ * they are absent, so sessions without them show nothing extra) and picks the plotted epochs
+ * `epochs` out of them; `charts` turns that data into Vega-Lite specs (see `seriesChart` in
+ * chart-time.ts for lines over time). Then add it to REPORT_EXTENSIONS below with a static import:
+ * the list must be the same in the batch's worker threads (which run `collect` through
+ * reportPayload) and in the thread that writes the report (which runs `charts`), so it is never
+ * changed at run time.
+ */
+import type { TopLevelSpec } from 'vega-lite';
+import type { SessionResult } from '../../session/result.js';
+import type { PlotSeries } from './payload.js';
+
+/** Structured-clone-safe data of one extension for one session. */
+export type ExtensionData = Record<string, Float64Array | Float32Array | Int32Array | Uint8Array | number | string | boolean | null>;
+
+export interface ExtensionChart {
+  /** Heading shown above the plot. */
+  title: string;
+  /** One line under the plot saying how to read it. */
+  caption: string;
+  spec: TopLevelSpec;
+}
+
+export interface ReportExtension {
+  /** Key of its data in ReportPayload.extensions. */
+  id: string;
+  /** Heading of its group of plots. */
+  title: string;
+  /** Runs in the worker: the data for the plotted epochs, or undefined when the fields are absent. */
+  collect(r: SessionResult, epochs: Int32Array): ExtensionData | undefined;
+  /** Runs when the report is written: the plots of the group. */
+  charts(data: ExtensionData, plot: PlotSeries, bridgedSpans: Array<[number, number]>): ExtensionChart[];
+}
+
+/** The registered extensions, in the order their groups appear. None yet (IMU comes later). */
+export const REPORT_EXTENSIONS: readonly ReportExtension[] = [];
+
+export function collectExtensions(r: SessionResult, epochs: Int32Array, list: readonly ReportExtension[] = REPORT_EXTENSIONS): Record<string, ExtensionData> {
+  const out: Record<string, ExtensionData> = {};
+  for (const x of list) {
+    const d = x.collect(r, epochs);
+    if (d !== undefined) out[x.id] = d;
+  }
+  return out;
+}

@@ -1,0 +1,82 @@
+/**
+ * report.html as one self-contained page: inline style, inline SVG plots, one small inline script,
+ * a Content-Security-Policy that forbids every load, so the file opens the same from a USB stick
+ * with no network. The cautions stand at the top and the bottom.
+ */
+import { CAUTION } from '../caution.js';
+import type { BatchSummary } from '../summary.js';
+import { REPORT_EXTENSIONS, type ReportExtension } from './extensions.js';
+import { esc } from './html-text.js';
+import { overviewTable } from './overview-table.js';
+import type { ReportPayload } from './payload.js';
+import { sessionSection } from './session-section.js';
+import { SORT_SCRIPT } from './sort-script.js';
+
+const STYLE = `
+body { font-family: system-ui, -apple-system, "Segoe UI", Roboto, sans-serif; margin: 1.5rem auto; max-width: 72rem; padding: 0 1rem; color: #1b1b1b; line-height: 1.4; }
+h1 { font-size: 1.6rem; margin-bottom: .2rem; }
+h2 { border-top: 2px solid #444; padding-top: .8rem; margin-top: 2.5rem; }
+h2 .status { font-size: .9rem; font-weight: normal; border: 1px solid #666; border-radius: 3px; padding: 0 .3rem; }
+.caution { border: 2px solid #8a6d00; background: #fff8dc; padding: .6rem .9rem; margin: 1rem 0; }
+table { border-collapse: collapse; margin: .8rem 0; font-size: .86rem; }
+caption { text-align: left; font-weight: 600; padding: .3rem 0; }
+th, td { border: 1px solid #bbb; padding: .2rem .45rem; text-align: left; vertical-align: top; }
+td { font-variant-numeric: tabular-nums; }
+thead th { background: #eef1f4; }
+thead th button { font: inherit; font-weight: 600; border: 0; background: none; cursor: pointer; padding: 0; text-align: left; }
+thead th[aria-sort="ascending"] button::after { content: " ▲"; }
+thead th[aria-sort="descending"] button::after { content: " ▼"; }
+tr.failed th, tr.failed td { background: #fbeaea; font-style: italic; }
+dl.figures { display: grid; grid-template-columns: max-content 1fr; gap: .1rem 1rem; font-size: .88rem; }
+dl.figures dt { color: #444; }
+dl.figures dd { margin: 0; overflow-wrap: anywhere; }
+figure.plot { margin: 1.2rem 0; }
+figure.plot svg { max-width: 100%; height: auto; display: block; }
+figcaption { font-size: .86rem; margin-bottom: .3rem; }
+.note, .howto { font-size: .86rem; color: #333; }
+.warnings .code { color: #555; }
+footer { margin-top: 3rem; font-size: .85rem; border-top: 1px solid #999; padding-top: .6rem; }
+@media print { .caution { background: none; } h2 { break-before: page; } }
+`;
+
+export const REPORT_CSP = "default-src 'none'; style-src 'unsafe-inline'; script-src 'unsafe-inline'; img-src data:; base-uri 'none'; form-action 'none'";
+
+export async function reportHtml(summary: BatchSummary, payloads: Map<string, ReportPayload>, extensions: readonly ReportExtension[] = REPORT_EXTENSIONS): Promise<string> {
+  const sections: string[] = [];
+  for (let i = 0; i < summary.sessions.length; i++) {
+    const s = summary.sessions[i]!;
+    sections.push(await sessionSection(s, payloads.get(s.name), i, extensions));
+  }
+  const t = summary.totals;
+  const caution = `<p class="caution" role="note"><strong>Caution.</strong> ${esc(CAUTION)}</p>`;
+  return `<!DOCTYPE html>
+<html lang="en">
+<head>
+<meta charset="utf-8">
+<meta http-equiv="Content-Security-Policy" content="${REPORT_CSP}">
+<meta name="viewport" content="width=device-width, initial-scale=1">
+<meta name="generator" content="${esc(`${summary.tool} ${summary.version}`)}">
+<title>Hindcast review report: ${esc(summary.input)}</title>
+<style>${STYLE}</style>
+</head>
+<body>
+<header>
+<h1>Hindcast review report</h1>
+<p>Input <code>${esc(summary.input)}</code>, profile <code>${esc(summary.profile)}</code>, written ${esc(summary.createdUtc)} by ${esc(summary.tool)} ${esc(summary.version)}.
+${t.sessions} session(s): ${t.ok} ok, ${t.failed} failed; ${t.fixes} fixes, ${t.outliers} flagged, ${t.bridged} bridged epochs.</p>
+${caution}
+</header>
+<main>
+<h2 id="overview-heading">Overview</h2>
+${overviewTable(summary, payloads)}
+${sections.join('\n')}
+</main>
+<footer>
+${caution}
+<p>Times are UTC. Positions in the plots are metres in each session's local frame (named in its figures); the GeoJSON, GPX and CSV outputs hold WGS84 coordinates.</p>
+</footer>
+<script>${SORT_SCRIPT}</script>
+</body>
+</html>
+`;
+}

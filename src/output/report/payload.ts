@@ -1,0 +1,230 @@
+/**
+ * ReportPayload: what the report needs of one session, computed right after processing (in the
+ * batch's worker) so the full SessionResult need not be kept until the end of the batch. Small and
+ * structured-clone-safe: plain objects, arrays, strings, numbers and typed arrays only.
+ */
+import type { InputWarning } from '../../errors.js';
+import { STATUS, STATUS_NAMES, type OutlierReason, type SessionMetrics, type SessionResult, type StatusName } from '../../session/result.js';
+import { everyNth, plotEpochs } from './decimate.js';
+import { collectExtensions, type ExtensionData } from './extensions.js';
+
+export const PAYLOAD_VERSION = 1;
+/** Ellipses drawn on the track plot of a session (about; plus the worst one). */
+export const ELLIPSES_PER_SESSION = 30;
+/** Flagged fixes and decisions listed in a session's table (all are plotted). */
+export const LISTED_ROWS_MAX = 400;
+/** Warnings carried per session (the count is always exact). */
+export const WARNINGS_MAX = 50;
+
+/** Per plotted epoch (decimated), times in UTC Unix seconds, lengths in metres of the local frame. */
+export interface PlotSeries {
+  /** Epoch index in the full session of each plotted point. */
+  epoch: Int32Array;
+  tSec: Float64Array;
+  segment: Int32Array;
+  status: Uint8Array;
+  east: Float64Array;
+  north: Float64Array;
+  up: Float64Array;
+  sdHorizontalM: Float32Array;
+  sdUpM: Float32Array;
+  nis: Float32Array;
+  nisThreshold: Float32Array;
+  /** Raw fix minus smoothed (m); NaN where there is no valid fix. */
+  resEast: Float32Array;
+  resNorth: Float32Array;
+  resUp: Float32Array;
+  rawEast: Float64Array;
+  rawNorth: Float64Array;
+  speedMps: Float32Array;
+}
+
+export interface EllipseMark {
+  tSec: number;
+  east: number;
+  north: number;
+  majorM: number;
+  minorM: number;
+  azimuthDeg: number;
+}
+
+export interface FlaggedRow {
+  tSec: number;
+  line: number;
+  reason: OutlierReason;
+  /** Status of its epoch in the track ('outlier', 'user-rejected'), or 'not in track' for invalid fixes. */
+  status: StatusName | 'not in track';
+  statistic: number;
+  threshold: number;
+  offsetM: number;
+  detail: string;
+}
+
+export interface DecisionRow {
+  tSec: number;
+  decision: 'keep' | 'reject';
+  statistic: number;
+  threshold: number;
+}
+
+export interface ReportPayload {
+  version: number;
+  name: string;
+  file: string;
+  epochs: number;
+  hasHeight: boolean;
+  metrics: SessionMetrics;
+  /** Time spent bridged (s): total length of the bridged spans. */
+  bridgedSec: number;
+  /** [start, end] (UTC Unix s) of each run of bridged epochs, extended to the fixes on each side. */
+  bridgedSpans: Array<[number, number]>;
+  /** Calibrated fix noise when the session was calibrated (from SessionResult.info), else null. */
+  calibratedNoise: { horizontalSigmaM: number; verticalSigmaM: number } | null;
+  /** Facts worth showing (frame, model), as short text pairs. */
+  facts: Array<[string, string]>;
+  warningCount: number;
+  warnings: InputWarning[];
+  plot: PlotSeries;
+  ellipses: EllipseMark[];
+  flagged: FlaggedRow[];
+  flaggedCount: number;
+  decisions: DecisionRow[];
+  decisionCount: number;
+  /** Data of optional plot groups (IMU, …), keyed by extension id; see extensions.ts. */
+  extensions: Record<string, ExtensionData>;
+}
+
+export interface PayloadOptions {
+  /** Most epochs drawn (flagged fixes always on top); default 2000. */
+  maxPoints?: number;
+}
+
+function num(v: unknown): number | undefined {
+  return typeof v === 'number' && Number.isFinite(v) ? v : undefined;
+}
+
+/** Calibrated white fix noise, when a calibration step recorded it in info.calibration. */
+export function calibratedNoise(info: Record<string, unknown> | undefined): ReportPayload['calibratedNoise'] {
+  const cal = info?.calibration as Record<string, unknown> | undefined;
+  if (!cal || typeof cal !== 'object') return null;
+  const p = ((cal.params as Record<string, unknown> | undefined) ?? cal) as Record<string, unknown>;
+  const h = num(p.sigmaHorizontalM) ?? num(p.horizontalSigmaM);
+  const v = num(p.sigmaVerticalM) ?? num(p.verticalSigmaM);
+  if (h === undefined && v === undefined) return null;
+  return { horizontalSigmaM: h ?? NaN, verticalSigmaM: v ?? NaN };
+}
+
+function facts(r: SessionResult): Array<[string, string]> {
+  const out: Array<[string, string]> = [['source', r.file]];
+  const frame = r.info.frame;
+  if (typeof frame === 'string') out.push(['local frame', frame]);
+  const h = num(r.info.heightReferenceM);
+  if (h !== undefined) out.push(['height reference (m)', h.toFixed(3)]);
+  const model = r.info.model as Record<string, unknown> | undefined;
+  if (model && typeof model === 'object')
+    out.push(['model', Object.entries(model).map(([k, v]) => `${k}=${typeof v === 'number' ? +v.toPrecision(4) : String(v)}`).join(', ')]);
+  const g = num(r.info.gateProbability);
+  if (g !== undefined) out.push(['gate probability', String(g)]);
+  return out;
+}
+
+export function reportPayload(r: SessionResult, opt: PayloadOptions = {}): ReportPayload {
+  const idx = plotEpochs(r, opt.maxPoints ?? 2000);
+  const M = idx.length;
+  const f64 = () => new Float64Array(M);
+  const f32 = () => new Float32Array(M);
+  const plot: PlotSeries = {
+    epoch: idx,
+    tSec: f64(), segment: new Int32Array(M), status: new Uint8Array(M),
+    east: f64(), north: f64(), up: f64(),
+    sdHorizontalM: f32(), sdUpM: f32(), nis: f32(), nisThreshold: f32(),
+    resEast: f32(), resNorth: f32(), resUp: f32(), rawEast: f64(), rawNorth: f64(), speedMps: f32(),
+  };
+  const raw = r.rawEnu;
+  for (let k = 0; k < M; k++) {
+    const j = idx[k]!;
+    plot.tSec[k] = r.tSec[j]!;
+    plot.segment[k] = r.segment[j]!;
+    plot.status[k] = r.status[j]!;
+    plot.east[k] = r.posEnu[0][j]!;
+    plot.north[k] = r.posEnu[1][j]!;
+    plot.up[k] = r.hasHeight ? r.posEnu[2][j]! : NaN;
+    plot.sdHorizontalM[k] = Math.hypot(r.sdEnu[0][j]!, r.sdEnu[1][j]!);
+    plot.sdUpM[k] = r.hasHeight ? r.sdEnu[2][j]! : NaN;
+    plot.nis[k] = r.nis[j]!;
+    plot.nisThreshold[k] = r.nisThreshold[j]!;
+    plot.rawEast[k] = raw ? raw[0][j]! : NaN;
+    plot.rawNorth[k] = raw ? raw[1][j]! : NaN;
+    plot.resEast[k] = raw ? raw[0][j]! - r.posEnu[0][j]! : NaN;
+    plot.resNorth[k] = raw ? raw[1][j]! - r.posEnu[1][j]! : NaN;
+    plot.resUp[k] = raw && r.hasHeight ? raw[2][j]! - r.posEnu[2][j]! : NaN;
+    plot.speedMps[k] = Math.hypot(r.velEnu[0][j]!, r.velEnu[1][j]!);
+  }
+  // bridged spans, from the full-rate data, extended to the epochs on each side within the segment
+  const bridgedSpans: Array<[number, number]> = [];
+  let bridgedSec = 0;
+  for (let j = 0; j < r.N; ) {
+    if (r.status[j] !== STATUS.bridged) {
+      j++;
+      continue;
+    }
+    let e = j;
+    while (e + 1 < r.N && r.status[e + 1] === STATUS.bridged && r.segment[e + 1] === r.segment[j]) e++;
+    const a = j > 0 && r.segment[j - 1] === r.segment[j] ? j - 1 : j;
+    const b = e + 1 < r.N && r.segment[e + 1] === r.segment[j] ? e + 1 : e;
+    bridgedSpans.push([r.tSec[a]!, r.tSec[b]!]);
+    bridgedSec += r.tSec[b]! - r.tSec[a]!;
+    j = e + 1;
+  }
+  // ellipses at regular epoch intervals over the whole session, plus the worst one
+  const all = new Int32Array(r.N);
+  for (let j = 0; j < r.N; j++) all[j] = j;
+  const ellIdx = Array.from(everyNth(all, ELLIPSES_PER_SESSION));
+  let worst = -1;
+  for (let j = 0; j < r.N; j++) if (worst < 0 || r.ell95MajorM[j]! > r.ell95MajorM[worst]!) worst = j;
+  if (worst >= 0 && !ellIdx.includes(worst)) ellIdx.push(worst);
+  const ellipses: EllipseMark[] = ellIdx
+    .filter((j) => Number.isFinite(r.ell95MajorM[j]!))
+    .map((j) => ({ tSec: r.tSec[j]!, east: r.posEnu[0][j]!, north: r.posEnu[1][j]!, majorM: r.ell95MajorM[j]!, minorM: r.ell95MinorM[j]!, azimuthDeg: r.ell95AzimuthDeg[j]! }));
+  // flagged fixes, with the status of their epoch
+  const epochOfFix = new Map<number, number>();
+  for (let j = 0; j < r.N; j++) if (r.fix[j]! >= 0) epochOfFix.set(r.fix[j]!, j);
+  const flagged: FlaggedRow[] = r.outliers.slice(0, LISTED_ROWS_MAX).map((o) => {
+    const j = epochOfFix.get(o.fix);
+    return {
+      tSec: o.tSec, line: o.line, reason: o.reason,
+      status: j === undefined ? 'not in track' : STATUS_NAMES[r.status[j]!]!,
+      statistic: o.statistic, threshold: o.threshold, offsetM: o.offsetM, detail: o.detail,
+    };
+  });
+  const decisions: DecisionRow[] = [];
+  let decisionCount = 0;
+  for (let j = 0; j < r.N; j++) {
+    const st = r.status[j]!;
+    if (st !== STATUS.userKept && st !== STATUS.userRejected) continue;
+    decisionCount++;
+    if (decisions.length < LISTED_ROWS_MAX)
+      decisions.push({ tSec: r.tSec[j]!, decision: st === STATUS.userKept ? 'keep' : 'reject', statistic: r.nis[j]!, threshold: r.nisThreshold[j]! });
+  }
+  return {
+    version: PAYLOAD_VERSION,
+    name: r.name,
+    file: r.file,
+    epochs: r.N,
+    hasHeight: r.hasHeight,
+    metrics: { ...r.metrics },
+    bridgedSec,
+    bridgedSpans,
+    calibratedNoise: calibratedNoise(r.info),
+    facts: facts(r),
+    warningCount: r.warnings.length,
+    warnings: r.warnings.slice(0, WARNINGS_MAX).map((w) => ({ ...w })),
+    plot,
+    ellipses,
+    flagged,
+    flaggedCount: r.outliers.length,
+    decisions,
+    decisionCount,
+    extensions: collectExtensions(r, idx),
+  };
+}

@@ -1,0 +1,39 @@
+/** Sessions for the output tests, from the seeded simulator (computed once per test file). */
+import { loadConfig } from '../../src/config/load.js';
+import type { HindcastConfig } from '../../src/config/schema.js';
+import { readFixCsv } from '../../src/input/csv-fixes.js';
+import type { FixSeries } from '../../src/input/fix-series.js';
+import { processSession } from '../../src/session/process-session.js';
+import type { SessionResult } from '../../src/session/result.js';
+import { buildSummary, okEntry, type BatchSummary } from '../../src/output/summary.js';
+import { defaultSpec, scenarioCsv, simulate, type ScenarioSpec } from '../../src/simulate/scenario.js';
+import { reportPayload, type ReportPayload } from '../../src/output/report/index.js';
+
+export interface Fixture {
+  cfg: HindcastConfig;
+  series: FixSeries;
+  result: SessionResult;
+}
+
+const cache = new Map<string, Fixture>();
+
+export function session(kind: 'walk' | 'vehicle' | 'drone', seed: number, over: Partial<ScenarioSpec> = {}, name = `${kind}-${seed}`): Fixture {
+  const key = JSON.stringify([kind, seed, over, name]);
+  const hit = cache.get(key);
+  if (hit) return hit;
+  const cfg = loadConfig();
+  const series = readFixCsv(scenarioCsv(simulate(defaultSpec(kind, seed, over))), `${name}.csv`, cfg);
+  const f = { cfg, series, result: processSession(series, cfg, name) };
+  cache.set(key, f);
+  return f;
+}
+
+/** A batch of three ok sessions (one long enough to be thinned) and one failed session. */
+export function batch(): { summary: BatchSummary; payloads: Map<string, ReportPayload>; results: SessionResult[] } {
+  const results = [session('vehicle', 7, { durationSec: 300 }).result, session('walk', 3, { durationSec: 420 }).result, session('drone', 5, { durationSec: 300 }).result];
+  const entries = results.map((r) => okEntry(r, `${r.name}.csv`, [`${r.name}.track.csv`], 0.1));
+  entries.push({ name: 'broken', input: 'broken.csv', status: 'failed', reason: 'broken.csv:1: no time column found', warnings: [] });
+  const summary = buildSummary('0.0.0-test', 'logs', 'default', entries);
+  const payloads = new Map(results.map((r) => [r.name, reportPayload(r)] as const));
+  return { summary, payloads, results };
+}
