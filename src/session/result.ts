@@ -82,6 +82,17 @@ export interface SessionResult {
    * bridged epochs and invalid fixes (up NaN without height). For residual plots in the report.
    */
   rawEnu?: [Float64Array, Float64Array, Float64Array];
+  /** IMU-aided sessions: smoothed roll, pitch (body x forward, y left, z up) and heading clockwise from grid north, degrees. */
+  attitudeDeg?: { roll: Float64Array; pitch: Float64Array; heading: Float64Array };
+  /** IMU-aided sessions: their 1-sigma (degrees). */
+  attitudeSdDeg?: { roll: Float64Array; pitch: Float64Array; heading: Float64Array };
+  /** IMU-aided sessions: smoothed sensor biases per epoch (body axes) and their 1-sigma. */
+  biasEstimates?: {
+    accelMps2: [Float64Array, Float64Array, Float64Array];
+    accelSdMps2: [Float64Array, Float64Array, Float64Array];
+    gyroRadps: [Float64Array, Float64Array, Float64Array];
+    gyroSdRadps: [Float64Array, Float64Array, Float64Array];
+  };
   hasHeight: boolean;
   outliers: OutlierRecord[];
   metrics: SessionMetrics;
