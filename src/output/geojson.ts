@@ -1,24 +1,37 @@
 /**
  * <stem>.geojson per RFC 7946 (Butler et al., 2016): a FeatureCollection with the smoothed track as
- * one LineString per segment (a MultiLineString where it crosses the antimeridian, §3.1.9) and the
- * flagged fixes as Points. Positions are [lon, lat, height] (§3.1.1), WGS84, no "crs" member (§4),
- * bbox = [west, south, east, north] (§5); coordinate decimals configurable (§11.2).
+ * one LineString per segment (a MultiLineString where it crosses the antimeridian, §3.1.9), the
+ * flagged fixes as Points, and optionally every epoch as a Point carrying its sd and 95% ellipse for
+ * styling in a GIS. Positions are [lon, lat(, ellipsoidal height)] (§3.1.1), WGS84, no "crs" member
+ * (§4); bbox = [west, south, (min height,) east, north(, max height)] with 2·n values for n
+ * dimensions (§5), west > east when the box crosses the antimeridian (§5.2); coordinate decimals
+ * configurable (§11.2). Property names carry their units (_m, _s, _mps, _deg).
  */
+import type { HindcastConfig } from '../config/schema.js';
 import { formatIsoUtc } from '../time/parse-time.js';
-import { STATUS, type SessionResult } from '../session/result.js';
+import { STATUS, STATUS_NAMES, type SessionResult } from '../session/result.js';
 
 type Position = number[];
+
+/** Decimals of heights (m) and of metric properties: 1 mm. */
+const METRE_DECIMALS = 3;
 
 function round(v: number, d: number): number {
   const f = 10 ** d;
   return Math.round(v * f) / f;
 }
 
+/** A rounded number, or null for a missing value (JSON has no NaN). */
+function val(v: number, d: number): number | null {
+  return Number.isFinite(v) ? round(v, d) : null;
+}
+
 /**
  * Split a line of positions where consecutive longitudes jump by more than 180°, inserting the
- * interpolated crossing point at ±180 on both sides (RFC 7946 §3.1.9).
+ * interpolated crossing point at ±180 on both sides (RFC 7946 §3.1.9). `decimals` rounds the
+ * interpolated latitude and height like the other positions.
  */
-export function cutAtAntimeridian(line: Position[]): Position[][] {
+export function cutAtAntimeridian(line: Position[], decimals = 12): Position[][] {
   const parts: Position[][] = [];
   let cur: Position[] = [];
   for (let i = 0; i < line.length; i++) {
@@ -31,14 +44,14 @@ export function cutAtAntimeridian(line: Position[]): Position[][] {
         const edge = d < 0 ? 180 : -180;
         const pLonUnwrapped = p[0]! + (d < 0 ? 360 : -360);
         const f = (edge - q[0]!) / (pLonUnwrapped - q[0]!);
-        const lat = q[1]! + f * (p[1]! - q[1]!);
+        const lat = round(q[1]! + f * (p[1]! - q[1]!), decimals);
         const mid: Position = [edge, lat];
-        if (q.length > 2 && p.length > 2) mid.push(q[2]! + f * (p[2]! - q[2]!));
-        cur.push(mid);
-        parts.push(cur);
+        if (q.length > 2 && p.length > 2) mid.push(round(q[2]! + f * (p[2]! - q[2]!), METRE_DECIMALS));
+        if (q[0] !== edge) cur.push(mid);
+        if (cur.length >= 2) parts.push(cur);
         const other = mid.slice();
         other[0] = -edge;
-        cur = [other];
+        cur = p[0] === -edge ? [] : [other];
       }
     }
     cur.push(p);
@@ -47,39 +60,86 @@ export function cutAtAntimeridian(line: Position[]): Position[][] {
   return parts.filter((pt) => pt.length >= 2);
 }
 
+/**
+ * West and east of the smallest longitude interval holding all the given longitudes: the
+ * complement of the largest gap between them on the circle. West > east when the interval crosses
+ * the antimeridian (RFC 7946 §5.2).
+ */
+export function longitudeExtent(lons: ArrayLike<number>): [number, number] | null {
+  const a = Float64Array.from(lons).filter((v) => Number.isFinite(v));
+  if (a.length === 0) return null;
+  a.sort();
+  // the gap across the antimeridian, from the easternmost round to the westernmost
+  let gap = a[0]! + 360 - a[a.length - 1]!;
+  let west = a[0]!, east = a[a.length - 1]!;
+  for (let i = 1; i < a.length; i++) {
+    const g = a[i]! - a[i - 1]!;
+    if (g > gap) {
+      gap = g;
+      west = a[i]!;
+      east = a[i - 1]!;
+    }
+  }
+  return [west, east];
+}
+
 export interface GeoJsonOptions {
+  /** Decimal places of degrees (7 ≈ 1 cm, 6 ≈ 10 cm). */
   decimals: number;
+  /** Also one Point per epoch with sd and ellipse properties. */
+  points?: boolean;
+}
+
+export function geoJsonOptions(cfg: HindcastConfig): GeoJsonOptions {
+  return { decimals: cfg.output.geojsonDecimals, points: cfg.output.points };
 }
 
 export function sessionGeoJson(r: SessionResult, opt: GeoJsonOptions): object {
   const d = opt.decimals;
   const features: object[] = [];
-  let west = Infinity, east = -Infinity, south = Infinity, north = -Infinity;
+  const lons: number[] = [];
+  let south = Infinity, north = -Infinity, zMin = Infinity, zMax = -Infinity;
+  let threeD = false;
+  const extend = (p: Position) => {
+    lons.push(p[0]!);
+    south = Math.min(south, p[1]!);
+    north = Math.max(north, p[1]!);
+    if (p.length > 2) {
+      threeD = true;
+      zMin = Math.min(zMin, p[2]!);
+      zMax = Math.max(zMax, p[2]!);
+    }
+  };
+  const position = (lon: number, lat: number, h: number): Position | null => {
+    if (!(Math.abs(lat) <= 90 && Math.abs(lon) <= 180)) return null;
+    const p: Position = [round(lon, d), round(lat, d)];
+    if (r.hasHeight && Number.isFinite(h)) p.push(round(h, METRE_DECIMALS));
+    return p;
+  };
   const nSeg = r.N > 0 ? r.segment[r.N - 1]! + 1 : 0;
   let j = 0;
   for (let s = 0; s < nSeg; s++) {
     const line: Position[] = [];
     const j0 = j;
     let sumSd = 0;
-    let nSd = 0;
     let bridged = 0;
-    let outl = 0;
+    let flagged = 0;
+    let lengthM = 0;
     while (j < r.N && r.segment[j] === s) {
-      const p: Position = [round(r.lonDeg[j]!, d), round(r.latDeg[j]!, d)];
-      if (r.hasHeight) p.push(round(r.heightM[j]!, 3));
-      line.push(p);
-      west = Math.min(west, p[0]!);
-      east = Math.max(east, p[0]!);
-      south = Math.min(south, p[1]!);
-      north = Math.max(north, p[1]!);
+      const p = position(r.lonDeg[j]!, r.latDeg[j]!, r.heightM[j]!);
+      if (p) {
+        line.push(p);
+        extend(p);
+      }
       sumSd += Math.hypot(r.sdEnu[0][j]!, r.sdEnu[1][j]!);
-      nSd++;
       if (r.status[j] === STATUS.bridged) bridged++;
-      if (r.status[j] === STATUS.outlier) outl++;
+      if (r.status[j] === STATUS.outlier || r.status[j] === STATUS.userRejected) flagged++;
+      if (j > j0) lengthM += Math.hypot(r.posEnu[0][j]! - r.posEnu[0][j - 1]!, r.posEnu[1][j]! - r.posEnu[1][j - 1]!);
       j++;
     }
+    if (line.length === 0) continue;
     if (line.length === 1) line.push(line[0]!.slice());
-    const parts = cutAtAntimeridian(line);
+    const parts = cutAtAntimeridian(line, d);
     const geometry = parts.length === 1 ? { type: 'LineString', coordinates: parts[0] } : { type: 'MultiLineString', coordinates: parts };
     features.push({
       type: 'Feature',
@@ -90,17 +150,19 @@ export function sessionGeoJson(r: SessionResult, opt: GeoJsonOptions): object {
         segment: s + 1,
         start_time: formatIsoUtc(r.tSec[j0]!),
         end_time: formatIsoUtc(r.tSec[j - 1]!),
+        duration_s: val(r.tSec[j - 1]! - r.tSec[j0]!, 3),
+        length_m: val(lengthM, METRE_DECIMALS),
         epochs: j - j0,
         bridged_epochs: bridged,
-        flagged_epochs: outl,
-        mean_sd_horizontal_m: round(sumSd / Math.max(nSd, 1), 3),
+        flagged_epochs: flagged,
+        mean_sd_horizontal_m: val(sumSd / Math.max(j - j0, 1), METRE_DECIMALS),
       },
     });
   }
   for (const o of r.outliers) {
-    const p: Position = [round(o.lonDeg, d), round(o.latDeg, d)];
-    if (r.hasHeight && Number.isFinite(o.heightM)) p.push(round(o.heightM, 3));
-    if (!(Math.abs(o.latDeg) <= 90 && Math.abs(o.lonDeg) <= 180)) continue;
+    const p = position(o.lonDeg, o.latDeg, o.heightM);
+    if (!p) continue;
+    extend(p);
     features.push({
       type: 'Feature',
       geometry: { type: 'Point', coordinates: p },
@@ -110,15 +172,47 @@ export function sessionGeoJson(r: SessionResult, opt: GeoJsonOptions): object {
         time: formatIsoUtc(o.tSec),
         source_line: o.line,
         reason: o.reason,
-        statistic: Number.isFinite(o.statistic) ? round(o.statistic, 3) : null,
-        threshold: Number.isFinite(o.threshold) ? round(o.threshold, 3) : null,
-        offset_m: Number.isFinite(o.offsetM) ? round(o.offsetM, 3) : null,
+        decided_by: o.reason === 'user' ? 'user' : 'hindcast',
+        statistic: val(o.statistic, 3),
+        threshold: val(o.threshold, 3),
+        offset_m: val(o.offsetM, METRE_DECIMALS),
+        offset_up_m: val(o.offsetUpM, METRE_DECIMALS),
         detail: o.detail,
       },
     });
   }
+  if (opt.points)
+    for (let k = 0; k < r.N; k++) {
+      const p = position(r.lonDeg[k]!, r.latDeg[k]!, r.heightM[k]!);
+      if (!p) continue;
+      features.push({
+        type: 'Feature',
+        geometry: { type: 'Point', coordinates: p },
+        properties: {
+          kind: 'epoch',
+          session: r.name,
+          time: formatIsoUtc(r.tSec[k]!),
+          status: STATUS_NAMES[r.status[k]!],
+          segment: r.segment[k]! + 1,
+          sd_east_m: val(r.sdEnu[0][k]!, METRE_DECIMALS),
+          sd_north_m: val(r.sdEnu[1][k]!, METRE_DECIMALS),
+          sd_up_m: r.hasHeight ? val(r.sdEnu[2][k]!, METRE_DECIMALS) : null,
+          sd_horizontal_m: val(Math.hypot(r.sdEnu[0][k]!, r.sdEnu[1][k]!), METRE_DECIMALS),
+          ell95_major_m: val(r.ell95MajorM[k]!, METRE_DECIMALS),
+          ell95_minor_m: val(r.ell95MinorM[k]!, METRE_DECIMALS),
+          ell95_azimuth_deg: val(r.ell95AzimuthDeg[k]!, 1),
+          speed_mps: val(Math.hypot(r.velEnu[0][k]!, r.velEnu[1][k]!), METRE_DECIMALS),
+        },
+      });
+    }
   const fc: Record<string, unknown> = { type: 'FeatureCollection' };
-  if (Number.isFinite(west)) fc.bbox = [west, south, east, north];
+  const we = longitudeExtent(lons);
+  if (we) fc.bbox = threeD ? [we[0], south, zMin, we[1], north, zMax] : [we[0], south, we[1], north];
   fc.features = features;
   return fc;
+}
+
+/** The GeoJSON text of a session, as written to <stem>.geojson. */
+export function sessionGeoJsonText(r: SessionResult, opt: GeoJsonOptions): string {
+  return JSON.stringify(sessionGeoJson(r, opt)) + '\n';
 }
