@@ -12,10 +12,18 @@ export const TRACK_COLUMNS = [
 ] as const;
 
 /** The CSV text, produced in chunks so million-epoch tracks do not build one giant string at once. */
+/** Columns added after TRACK_COLUMNS when the session carries attitude (IMU-aided sessions). */
+export const ATTITUDE_COLUMNS = ['roll_deg', 'pitch_deg', 'heading_deg', 'sd_roll_deg', 'sd_pitch_deg', 'sd_heading_deg'] as const;
+
 export function* trackCsvChunks(r: SessionResult, rowsPerChunk = 20000): Generator<string> {
-  let buf: string[] = [TRACK_COLUMNS.join(',')];
+  const att = r.attitudeDeg;
+  const attSd = r.attitudeSdDeg;
+  let buf: string[] = [att ? [...TRACK_COLUMNS, ...ATTITUDE_COLUMNS].join(',') : TRACK_COLUMNS.join(',')];
   const h = r.hasHeight;
   for (let j = 0; j < r.N; j++) {
+    const attCells = att
+      ? [fmt(att.roll[j]!, 2), fmt(att.pitch[j]!, 2), fmt(att.heading[j]!, 2), attSd ? fmt(attSd.roll[j]!, 2) : '', attSd ? fmt(attSd.pitch[j]!, 2) : '', attSd ? fmt(attSd.heading[j]!, 2) : '']
+      : [];
     buf.push(
       [
         formatIsoUtc(r.tSec[j]!),
@@ -33,6 +41,7 @@ export function* trackCsvChunks(r: SessionResult, rowsPerChunk = 20000): Generat
         fmt(r.ell95AzimuthDeg[j]!, 1),
         STATUS_NAMES[r.status[j]!],
         String(r.segment[j]! + 1),
+        ...attCells,
       ].join(','),
     );
     if (buf.length >= rowsPerChunk) {
