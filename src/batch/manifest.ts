@@ -4,12 +4,14 @@
  * content hashes (SHA-256) of the session's input files, the effective configuration and its hash,
  * the tool version, and the outputs with their sizes, so a rerun can tell a current session from a
  * stale one without reading its outputs. Per-session report payloads sit beside it under
- * `<out>/.hindcast/payloads/`.
+ * `<out>/.hindcast/payloads/`, in the structured-clone serialization of node:v8 (the same
+ * algorithm that carries them from the worker threads), so typed arrays and NaN survive a resume.
  */
 import { createHash } from 'node:crypto';
 import { createReadStream } from 'node:fs';
 import { readFile, rm, stat } from 'node:fs/promises';
 import { join } from 'node:path';
+import { deserialize, serialize } from 'node:v8';
 import type { HindcastConfig } from '../config/schema.js';
 import type { SessionSummary } from '../output/summary.js';
 import { writeFileAtomic } from './atomic-write.js';
@@ -75,12 +77,12 @@ export function configHash(cfg: HindcastConfig): string {
   return createHash('sha256').update(canonicalJson(cfg)).digest('hex');
 }
 
-function stateFile(out: string, kind: 'manifest' | 'payloads', name: string): string {
-  return join(out, STATE_DIR, kind, ...`${name}.json`.split('/'));
+function stateFile(out: string, kind: 'manifest' | 'payloads', name: string, ext: string): string {
+  return join(out, STATE_DIR, kind, ...`${name}${ext}`.split('/'));
 }
 
-export const manifestPath = (out: string, name: string): string => stateFile(out, 'manifest', name);
-export const payloadPath = (out: string, name: string): string => stateFile(out, 'payloads', name);
+export const manifestPath = (out: string, name: string): string => stateFile(out, 'manifest', name, '.json');
+export const payloadPath = (out: string, name: string): string => stateFile(out, 'payloads', name, '.v8');
 
 export async function readEntry(out: string, name: string): Promise<ManifestEntry | null> {
   try {
@@ -100,11 +102,11 @@ export async function removeEntry(out: string, name: string): Promise<void> {
 }
 
 export async function writePayload(out: string, name: string, payload: unknown): Promise<void> {
-  await writeFileAtomic(payloadPath(out, name), JSON.stringify(payload) + '\n');
+  await writeFileAtomic(payloadPath(out, name), serialize(payload));
 }
 
 export async function readPayload(out: string, name: string): Promise<unknown> {
-  return JSON.parse(await readFile(payloadPath(out, name), 'utf8')) as unknown;
+  return deserialize(await readFile(payloadPath(out, name))) as unknown;
 }
 
 export async function removePayload(out: string, name: string): Promise<void> {

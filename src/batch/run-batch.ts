@@ -120,7 +120,7 @@ export async function checkFolders(input: string, out: string): Promise<void> {
 export function ownerOfOutput(rel: string): string | null {
   const parts = rel.split('/');
   if (parts[0] === STATE_DIR && (parts[1] === 'manifest' || parts[1] === 'payloads') && parts.length > 2)
-    return parts.slice(2).join('/').replace(/\.json$/, '');
+    return parts.slice(2).join('/').replace(/\.(json|v8)$/, '');
   if (parts[0] === STATE_DIR) return null;
   if (parts.length === 1 && /^summary(\.shard-\d+-of-\d+)?\.json$/.test(rel)) return null;
   const base = parts[parts.length - 1]!;
