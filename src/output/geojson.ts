@@ -1,7 +1,7 @@
 /**
  * <stem>.geojson per RFC 7946 (Butler et al., 2016): a FeatureCollection with the smoothed track as
  * one LineString per segment (a MultiLineString where it crosses the antimeridian, §3.1.9), the
- * flagged fixes as Points, and optionally every epoch as a Point carrying its sd and 95% ellipse for
+ * flagged fixes (not the invalid ones, which have no position) as Points, and optionally every epoch as a Point carrying its sd and 95% ellipse for
  * styling in a GIS. Positions are [lon, lat(, ellipsoidal height)] (§3.1.1), WGS84, no "crs" member
  * (§4); bbox = [west, south, (min height,) east, north(, max height)] with 2·n values for n
  * dimensions (§5), west > east when the box crosses the antimeridian (§5.2); coordinate decimals
@@ -160,6 +160,8 @@ export function sessionGeoJson(r: SessionResult, opt: GeoJsonOptions): object {
     });
   }
   for (const o of r.outliers) {
+    // an invalid fix has no position worth mapping (a (0, 0) placeholder, out of range): outliers.csv lists it
+    if (o.reason === 'invalid') continue;
     const p = position(o.lonDeg, o.latDeg, o.heightM);
     if (!p) continue;
     extend(p);

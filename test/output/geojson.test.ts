@@ -1,0 +1,185 @@
+import { describe, expect, test, beforeAll } from 'vitest';
+import { mkdtempSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { getIssues } from '@placemarkio/check-geojson';
+import { cutAtAntimeridian, longitudeExtent, sessionGeoJson, sessionGeoJsonText, geoJsonOptions } from '../../src/output/geojson.js';
+import { sessionGpx } from '../../src/output/gpx.js';
+import { loadConfig } from '../../src/config/load.js';
+import type { SessionResult } from '../../src/session/result.js';
+import { session } from './fixtures.js';
+import { requireGdal, run, SKIP_SYSTEM_TOOLS } from './system-tools.js';
+
+type FC = { type: string; bbox?: number[]; features: Array<{ geometry: { type: string; coordinates: any }; properties: Record<string, unknown> }> };
+
+function positions(fc: FC): number[][] {
+  const out: number[][] = [];
+  for (const f of fc.features) {
+    const g = f.geometry;
+    if (g.type === 'Point') out.push(g.coordinates);
+    else if (g.type === 'LineString') out.push(...g.coordinates);
+    else if (g.type === 'MultiLineString') for (const l of g.coordinates) out.push(...l);
+  }
+  return out;
+}
+
+/** A vehicle session on the antimeridian (Fiji, Taveuni: 16.8° S, 180°), driving across it. */
+const crossing = () => session('vehicle', 7, { durationSec: 300, origin: [-16.8, 179.9999, 20] }, 'dateline');
+const plain = () => session('vehicle', 7, { durationSec: 300 });
+
+describe('cutAtAntimeridian (RFC 7946 §3.1.9)', () => {
+  // expected values worked by hand: the crossing latitude is linear in unwrapped longitude
+  test.each([
+    { name: 'no crossing', line: [[10, 1], [11, 2], [12, 3]], parts: [[[10, 1], [11, 2], [12, 3]]] },
+    { name: 'east to west', line: [[179, 0], [-179, 2]], parts: [[[179, 0], [180, 1]], [[-180, 1], [-179, 2]]] },
+    { name: 'west to east', line: [[-179.5, 10], [179.5, 11]], parts: [[[-179.5, 10], [-180, 10.5]], [[180, 10.5], [179.5, 11]]] },
+    { name: 'with height', line: [[179, 0, 100], [-179, 2, 200]], parts: [[[179, 0, 100], [180, 1, 150]], [[-180, 1, 150], [-179, 2, 200]]] },
+    { name: 'there and back', line: [[179, 0], [-179, 0], [179, 0]], parts: [[[179, 0], [180, 0]], [[-180, 0], [-179, 0], [-180, 0]], [[180, 0], [179, 0]]] },
+    { name: 'a vertex on the meridian', line: [[179, 0], [180, 1], [-179, 2]], parts: [[[179, 0], [180, 1]], [[-180, 1], [-179, 2]]] },
+  ])('$name', ({ line, parts }) => {
+    expect(cutAtAntimeridian(line)).toEqual(parts);
+  });
+});
+
+describe('longitudeExtent (bbox west/east, RFC 7946 §5.2)', () => {
+  test.each([
+    { lons: [10, 12, 11], we: [10, 12] },
+    { lons: [179.5, -179.5, 179.9], we: [179.5, -179.5] },
+    { lons: [-170, 170], we: [170, -170] },
+    { lons: [-10, 10], we: [-10, 10] },
+    { lons: [5], we: [5, 5] },
+  ])('$lons → $we', ({ lons, we }) => {
+    expect(longitudeExtent(lons)).toEqual(we);
+  });
+  test('no finite longitudes', () => expect(longitudeExtent([NaN])).toBeNull());
+});
+
+describe('session GeoJSON', () => {
+  test('segments as LineStrings with units in property names, flagged fixes as Points, 3-D bbox holding every position', () => {
+    const r = plain().result;
+    const fc = sessionGeoJson(r, { decimals: 7 }) as FC;
+    const lines = fc.features.filter((f) => f.properties.kind === 'track-segment');
+    expect(lines.length).toBe(r.metrics.segmentCount);
+    expect(lines.every((f) => f.geometry.type === 'LineString')).toBe(true);
+    const flagged = fc.features.filter((f) => f.properties.kind === 'flagged-fix');
+    // invalid fixes ((0, 0) placeholders) have no position to map
+    expect(r.outliers.some((o) => o.reason === 'invalid')).toBe(true);
+    expect(flagged.length).toBe(r.outliers.filter((o) => o.reason !== 'invalid').length);
+    expect(flagged.every((f) => Math.abs(f.geometry.coordinates[0]) > 1)).toBe(true);
+    for (const f of lines) for (const k of ['duration_s', 'length_m', 'mean_sd_horizontal_m']) expect(typeof f.properties[k]).toBe('number');
+    expect(fc.bbox).toHaveLength(6);
+    const [w, s, z0, e, n, z1] = fc.bbox!;
+    expect(w).toBeLessThanOrEqual(e!);
+    for (const p of positions(fc)) {
+      expect(p[0]).toBeGreaterThanOrEqual(w!);
+      expect(p[0]).toBeLessThanOrEqual(e!);
+      expect(p[1]).toBeGreaterThanOrEqual(s!);
+      expect(p[1]).toBeLessThanOrEqual(n!);
+      if (p.length > 2) {
+        expect(p[2]).toBeGreaterThanOrEqual(z0!);
+        expect(p[2]).toBeLessThanOrEqual(z1!);
+      }
+    }
+  });
+
+  test.each([3, 6, 9])('coordinates carry at most %i decimals', (d) => {
+    const fc = sessionGeoJson(plain().result, { decimals: d }) as FC;
+    for (const p of positions(fc).slice(0, 500)) for (const v of p.slice(0, 2)) expect(Math.abs(v * 10 ** d - Math.round(v * 10 ** d))).toBeLessThan(1e-6);
+  });
+
+  test('the default precision comes from output.geojsonDecimals (7 ≈ 1 cm) and points from output.points', () => {
+    const cfg = loadConfig();
+    expect(geoJsonOptions(cfg)).toEqual({ decimals: 7, points: false });
+    expect(geoJsonOptions(loadConfig({ overrides: { output: { geojsonDecimals: 6, points: true } } }))).toEqual({ decimals: 6, points: true });
+  });
+
+  test('per-epoch points carry sd and the 95% ellipse', () => {
+    const r = plain().result;
+    const fc = sessionGeoJson(r, { decimals: 7, points: true }) as FC;
+    const pts = fc.features.filter((f) => f.properties.kind === 'epoch');
+    expect(pts.length).toBe(r.N);
+    const j = 40;
+    const p = pts[j]!.properties;
+    expect(p.sd_east_m).toBeCloseTo(r.sdEnu[0][j]!, 3);
+    expect(p.ell95_major_m).toBeCloseTo(r.ell95MajorM[j]!, 3);
+    expect(p.ell95_azimuth_deg).toBeCloseTo(r.ell95AzimuthDeg[j]!, 1);
+    expect(typeof p.speed_mps).toBe('number');
+    expect(new Set(pts.map((f) => f.properties.status))).toContain('bridged');
+  });
+
+  test('a track across the antimeridian is cut there and its bbox has west > east', () => {
+    const r = crossing().result;
+    let minLon = Infinity, maxLon = -Infinity;
+    for (const v of r.lonDeg) {
+      minLon = Math.min(minLon, v);
+      maxLon = Math.max(maxLon, v);
+    }
+    // the scenario really crosses: longitudes on both sides
+    expect(minLon).toBeLessThan(-179);
+    expect(maxLon).toBeGreaterThan(179);
+    const fc = sessionGeoJson(r, { decimals: 7 }) as FC;
+    const multi = fc.features.filter((f) => f.geometry.type === 'MultiLineString');
+    expect(multi.length).toBeGreaterThan(0);
+    for (const f of multi) {
+      for (const part of f.geometry.coordinates as number[][][]) {
+        for (let i = 1; i < part.length; i++) expect(Math.abs(part[i]![0]! - part[i - 1]![0]!)).toBeLessThan(180);
+        const ends = [part[0]![0]!, part[part.length - 1]![0]!];
+        expect(ends.some((x) => Math.abs(x) === 180)).toBe(true);
+      }
+    }
+    const [w, , , e] = fc.bbox!;
+    expect(w).toBeGreaterThan(e!);
+    expect(w).toBeGreaterThan(179);
+    expect(e).toBeLessThan(-179);
+  });
+
+  test.each([
+    ['plain', plain, false],
+    ['plain with points', plain, true],
+    ['antimeridian', crossing, false],
+  ] as const)('%s passes the GeoJSON validator', (_n, f, points) => {
+    const issues = getIssues(sessionGeoJsonText(f().result, { decimals: 7, points }));
+    expect(issues).toEqual([]);
+  });
+});
+
+describe.skipIf(SKIP_SYSTEM_TOOLS)('GDAL opens and converts every output', () => {
+  let dir: string;
+  beforeAll(() => {
+    requireGdal();
+    dir = mkdtempSync(join(tmpdir(), 'hindcast-gdal-'));
+  });
+
+  const cases: Array<[string, () => SessionResult, boolean]> = [
+    ['plain', () => plain().result, false],
+    ['points', () => plain().result, true],
+    ['antimeridian', () => crossing().result, true],
+  ];
+  test.each(cases)('GeoJSON %s: ogrinfo reads every feature, ogr2ogr writes a GeoPackage', (name, get, points) => {
+    const r = get();
+    const text = sessionGeoJsonText(r, { decimals: 7, points });
+    const n = (JSON.parse(text) as FC).features.length;
+    const path = join(dir, `${name}.geojson`);
+    writeFileSync(path, text);
+    const info = run('ogrinfo', ['-ro', '-al', '-so', path]);
+    expect(info).toMatch(new RegExp(`Feature Count: ${n}\\b`));
+    expect(info).toMatch(/WGS 84/);
+    const gpkg = join(dir, `${name}.gpkg`);
+    run('ogr2ogr', ['-f', 'GPKG', gpkg, path]);
+    expect(run('ogrinfo', ['-ro', '-al', '-so', gpkg])).toMatch(new RegExp(`Feature Count: ${n}\\b`));
+  });
+
+  test('GPX: ogrinfo reads one track point per epoch and one track segment per segment', () => {
+    const r = plain().result;
+    const path = join(dir, 'plain.gpx');
+    writeFileSync(path, sessionGpx(r));
+    const pts = run('ogrinfo', ['-ro', '-so', path, 'track_points']);
+    expect(pts).toMatch(new RegExp(`Feature Count: ${r.N}\\b`));
+    const trk = run('ogrinfo', ['-ro', '-al', '-q', path, 'tracks']);
+    expect((trk.match(/MULTILINESTRING/g) ?? []).length).toBe(1);
+    expect((trk.match(/\(\(/g) ?? []).length).toBe(r.metrics.segmentCount);
+    const gpkg = join(dir, 'plain-gpx.gpkg');
+    run('ogr2ogr', ['-f', 'GPKG', gpkg, path, 'track_points']);
+    expect(run('ogrinfo', ['-ro', '-so', gpkg, 'track_points'])).toMatch(new RegExp(`Feature Count: ${r.N}\\b`));
+  });
+});
