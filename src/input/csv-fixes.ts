@@ -237,7 +237,8 @@ export function readFixCsv(text: string, file: string, cfg: HindcastConfig): Fix
         }
         t = ms ? v / 1000 : v;
       } else {
-        const iso = rawT.replace(/(\d{2}:\d{2}:\d{2}),(\d)/, '$1.$2');
+        // ISO 8601 allows "," before the fraction; spreadsheets write a space for the "T"
+        const iso = rawT.replace(/(\d{2}:\d{2}:\d{2}),(\d)/, '$1.$2').replace(/^(\d{4}-\d{2}-\d{2}) (\d{2}:)/, '$1T$2');
         t = parseIsoToUnix(iso, zone);
         if (Number.isNaN(t)) {
           w.add('row-skipped', `time "${rawT.slice(0, 40)}" is not ISO 8601 with a zone or offset, nor Unix seconds${zone ? '' : ' (set input.timeZone for local times)'}`, line);

@@ -14,7 +14,8 @@
  *   a point with a bad <ele> keeps its position without a height.
  * - <fix>none</fix> gives fix quality 0 (kept, flagged invalid by the session); 2d/3d 1, dgps 2, pps 3.
  * - the markup is read leniently (a small tokenizer, not a validating parser): a file cut short keeps
- *   the points completed before the cut, with a warning; a file without a <gpx> element fails.
+ *   the points completed before the cut (an unclosed last point is dropped), with a warning; a file
+ *   without a <gpx> element fails.
  */
 import type { HindcastConfig } from '../config/schema.js';
 import { InputError } from '../errors.js';
@@ -247,7 +248,7 @@ export function readGpx(text: string, file: string, cfg: HindcastConfig): FixSer
     b.warn('height-reference', 'GPX <ele> read as height above mean sea level (the usual GPX meaning); set input.heightReference to "ellipsoidal" if the device wrote ellipsoidal heights');
   if (version !== undefined && version !== '1.1' && version !== '1.0') b.warn('format', `GPX version "${version}" read as GPX 1.1`);
   if (cut !== null) w.add('truncated', 'the file ends inside markup (cut short?): points completed before this line were read', cut);
-  if (unfinishedPoint !== null) w.add('truncated', 'the last track point is not closed (file cut short?); it was read as far as it goes', unfinishedPoint);
+  if (unfinishedPoint !== null) w.add('truncated', 'the last track point is not closed (file cut short?): dropped, its values may be cut', unfinishedPoint);
   let noTime = 0;
   const qv = new Float64Array(cols.length);
   for (const p of points) {
