@@ -70,13 +70,14 @@ describe('resume', () => {
     expect((await runBatch({ input, out, config: other, force: true })).processed).toEqual(names);
   });
 
-  it('a missing or altered output redoes its session', async () => {
+  it('a missing or altered output redoes its session; the report is rebuilt the same from saved and new data', async () => {
     const names = await writeSessions(input, 3);
-    await runBatch({ input, out, config: cfg });
+    await runBatch({ input, out, config: withReport });
     const before = await comparableOutputs(out);
+    expect(before.has('report.html')).toBe(true);
     await rm(join(out, 'log00.geojson'));
     await appendFile(join(out, 'log02.track.csv'), 'junk\n');
-    const r = await runBatch({ input, out, config: cfg });
+    const r = await runBatch({ input, out, config: withReport });
     expect(r.processed).toEqual([names[0], names[2]]);
     expect(differingFiles(await comparableOutputs(out), before)).toEqual([]);
   });
