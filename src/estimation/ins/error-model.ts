@@ -1,0 +1,222 @@
+/**
+ * The 18-state error model of the IMU-aided filter (indirect, error-state EKF):
+ *   δx = [δp^n (3), δv^n (3), φ (3, attitude error in the nav frame), δb_a (3), δb_g (3), b_GNSS (3)]
+ * with C_nb,true = (I + [φ×]) Ĉ_nb, δ(·) = true − estimate, b_GNSS the first-order Gauss–Markov
+ * fix error of the fixes-only model (the fix measures antenna position + b_GNSS + white noise).
+ * Continuous error dynamics (local-level frame, flat-Earth, biases as random walks):
+ *   δṗ = δv
+ *   δv̇ = −2[ω_ie×] δv − [f^n×] φ − Ĉ_nb δb_a + (∂g/∂h) δp_u ê_u − Ĉ_nb w_a
+ *   φ̇  = −[ω_ie×] φ − Ĉ_nb δb_g − Ĉ_nb w_g
+ *   δḃ_a = w_ba,  δḃ_g = w_bg,  ḃ_GNSS = −b_GNSS/τ + w_b
+ * Sources: Groves (2013) §14.2 (local-navigation-frame error equations, psi-angle form) and §14.2.4
+ * (propagation at a lower rate than the mechanization); Titterton & Weston (2004) §12.3; Shin,
+ * "Estimation Techniques for Low-Cost Inertial Navigation", UCGE report 20219 (2005), ch. 3 —
+ * from memory. Discretization: Φ = I + FΔt + ½F²Δt², Qd = QcΔt + ½(FQc + QcFᵀ)Δt² + ⅓FQcFᵀΔt³
+ * (series of the Van Loan integral), the Gauss–Markov block exactly (Brown & Hwang 2012 §2.9).
+ */
+import { FREE_AIR_GRADIENT_PER_M } from '../../models/ins/gravity.js';
+import { gmPhi, gmQ } from '../../models/gauss-markov.js';
+
+export const E_P = 0;
+export const E_V = 3;
+export const E_A = 6;
+export const E_BA = 9;
+export const E_BG = 12;
+export const E_GM = 15;
+export const NE = 18;
+/** Packed symmetric size n(n+1)/2. */
+export const NE_PACKED = (NE * (NE + 1)) / 2;
+/** Compact Φ: rows 0..8 × cols 0..14, then the diagonal of rows 9..17. */
+export const PHI_COMPACT = 9 * 15 + 9;
+
+export interface ErrorModelParams {
+  /** White-noise densities: accelerometer (m/s²/√Hz), gyro (rad/s/√Hz). */
+  accelNoiseDensity: number;
+  gyroNoiseDensity: number;
+  /** Bias random-walk densities (m/s²/√s, rad/s/√s). */
+  accelBiasWalk: number;
+  gyroBiasWalk: number;
+  /** GNSS Gauss–Markov error: 1-sigma horizontal and vertical (m), correlation time (s). */
+  gmSigmaHM: number;
+  gmSigmaVM: number;
+  gmTauSec: number;
+  earthRateEnu: Float64Array;
+}
+
+/** Continuous-time error dynamics F (18×18, row-major, fully overwritten) about the nominal. */
+export function fillErrorF(F: Float64Array, Cnb: Float64Array, fNav: Float64Array, mp: ErrorModelParams): void {
+  F.fill(0);
+  const n = NE;
+  const w = mp.earthRateEnu;
+  for (let i = 0; i < 3; i++) {
+    // δṗ = δv
+    F[(E_P + i) * n + E_V + i] = 1;
+    for (let j = 0; j < 3; j++) {
+      // δv̇ ∋ −Ĉ δb_a ;  φ̇ ∋ −Ĉ δb_g
+      F[(E_V + i) * n + E_BA + j] = -Cnb[i * 3 + j]!;
+      F[(E_A + i) * n + E_BG + j] = -Cnb[i * 3 + j]!;
+    }
+  }
+  // δv̇ ∋ −[f^n×] φ, with −[a×] = [[0, a_z, −a_y], [−a_z, 0, a_x], [a_y, −a_x, 0]]
+  const fe = fNav[0]!, fn = fNav[1]!, fu = fNav[2]!;
+  F[(E_V + 0) * n + E_A + 1] = fu;
+  F[(E_V + 0) * n + E_A + 2] = -fn;
+  F[(E_V + 1) * n + E_A + 0] = -fu;
+  F[(E_V + 1) * n + E_A + 2] = fe;
+  F[(E_V + 2) * n + E_A + 0] = fn;
+  F[(E_V + 2) * n + E_A + 1] = -fe;
+  // δv̇ ∋ −2[ω_ie×] δv and φ̇ ∋ −[ω_ie×] φ
+  const we = w[0]!, wn = w[1]!, wu = w[2]!;
+  const skewNeg = [0, wu, -wn, -wu, 0, we, wn, -we, 0];
+  for (let i = 0; i < 3; i++)
+    for (let j = 0; j < 3; j++) {
+      F[(E_V + i) * n + E_V + j] = 2 * skewNeg[i * 3 + j]!;
+      F[(E_A + i) * n + E_A + j] = skewNeg[i * 3 + j]!;
+    }
+  // vertical channel: g_u = −(γ0 − 3.086e-6 h)  ⇒  ∂g_u/∂h = +3.086e-6 s⁻²
+  F[(E_V + 2) * n + E_P + 2] = FREE_AIR_GRADIENT_PER_M;
+  // Gauss–Markov fix error: ḃ = −b/τ
+  for (let i = 0; i < 3; i++) F[(E_GM + i) * n + E_GM + i] = -1 / mp.gmTauSec;
+}
+
+export interface DiscScratch {
+  F2: Float64Array;
+  FQ: Float64Array;
+  qc: Float64Array;
+}
+
+export function makeDiscScratch(): DiscScratch {
+  return { F2: new Float64Array(NE * NE), FQ: new Float64Array(NE * NE), qc: new Float64Array(NE) };
+}
+
+/** Diagonal of the continuous noise Qc (the accelerometer/gyro white noise maps through Ĉ, which leaves an isotropic density unchanged). */
+function fillQcDiag(qc: Float64Array, mp: ErrorModelParams): void {
+  for (let i = 0; i < 3; i++) {
+    qc[E_P + i] = 0;
+    qc[E_V + i] = mp.accelNoiseDensity ** 2;
+    qc[E_A + i] = mp.gyroNoiseDensity ** 2;
+    qc[E_BA + i] = mp.accelBiasWalk ** 2;
+    qc[E_BG + i] = mp.gyroBiasWalk ** 2;
+    qc[E_GM + i] = 0;
+  }
+}
+
+/** Φ and Qd (18×18 each, fully overwritten) for a step Δt with the continuous F. */
+export function discretize(F: Float64Array, dtSec: number, mp: ErrorModelParams, Phi: Float64Array, Qd: Float64Array, s: DiscScratch): void {
+  const n = NE;
+  const t = dtSec, t2 = t * t, t3 = t2 * t;
+  const F2 = s.F2;
+  // F² (F is sparse: skip zeros)
+  F2.fill(0);
+  for (let i = 0; i < n; i++)
+    for (let k = 0; k < n; k++) {
+      const f = F[i * n + k]!;
+      if (f === 0) continue;
+      for (let j = 0; j < n; j++) F2[i * n + j] += f * F[k * n + j]!;
+    }
+  // Φ = I + FΔt + ½F²Δt²
+  for (let i = 0; i < n * n; i++) Phi[i] = F[i]! * t + 0.5 * F2[i]! * t2;
+  for (let i = 0; i < n; i++) Phi[i * n + i] += 1;
+  const qc = s.qc;
+  fillQcDiag(qc, mp);
+  const FQ = s.FQ;
+  // F Qc (Qc diagonal)
+  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) FQ[i * n + j] = F[i * n + j]! * qc[j]!;
+  // Qd = QcΔt + ½(FQc + QcFᵀ)Δt² + ⅓ F Qc Fᵀ Δt³
+  for (let i = 0; i < n; i++)
+    for (let j = i; j < n; j++) {
+      let fqf = 0;
+      for (let k = 0; k < n; k++) {
+        const a = FQ[i * n + k]!;
+        if (a !== 0) fqf += a * F[j * n + k]!;
+      }
+      let v = 0.5 * (FQ[i * n + j]! + FQ[j * n + i]!) * t2 + (fqf * t3) / 3;
+      if (i === j) v += qc[i]! * t;
+      Qd[i * n + j] = v;
+      Qd[j * n + i] = v;
+    }
+  // Gauss–Markov block exactly: φ = e^{−Δt/τ}, q = σ²(1 − e^{−2Δt/τ}); it is decoupled from the rest
+  for (let i = 0; i < 3; i++) {
+    const ii = E_GM + i;
+    const sigma = i < 2 ? mp.gmSigmaHM : mp.gmSigmaVM;
+    for (let j = 0; j < n; j++) {
+      Phi[ii * n + j] = 0;
+      Phi[j * n + ii] = 0;
+      Qd[ii * n + j] = 0;
+      Qd[j * n + ii] = 0;
+    }
+    Phi[ii * n + ii] = gmPhi(dtSec, mp.gmTauSec);
+    // a tiny floor keeps the smoother's predicted covariance positive definite when σ = 0
+    Qd[ii * n + ii] = Math.max(gmQ(dtSec, { sigmaM: sigma, tauSec: mp.gmTauSec }), 1e-12);
+  }
+}
+
+/** P ← Φ P Φᵀ + Qd in place (18×18), skipping the many zeros of Φ; symmetrized from the upper triangle. */
+export function propagateCovariance(Phi: Float64Array, Qd: Float64Array, P: Float64Array, tmp: Float64Array): void {
+  const n = NE;
+  // tmp = Φ P
+  tmp.fill(0);
+  for (let i = 0; i < n; i++)
+    for (let k = 0; k < n; k++) {
+      const f = Phi[i * n + k]!;
+      if (f === 0) continue;
+      for (let j = 0; j < n; j++) tmp[i * n + j] += f * P[k * n + j]!;
+    }
+  // P = (Φ P) Φᵀ + Qd; upper triangle mirrored, since rounding would otherwise drift P from symmetry
+  for (let i = 0; i < n; i++)
+    for (let j = i; j < n; j++) {
+      let acc = Qd[i * n + j]!;
+      for (let k = 0; k < n; k++) {
+        const f = Phi[j * n + k]!;
+        if (f !== 0) acc += tmp[i * n + k]! * f;
+      }
+      P[i * n + j] = acc;
+      P[j * n + i] = acc;
+    }
+}
+
+/** A ← Φ A (18×18), for the transition accumulated between epochs. */
+export function leftMultiply(Phi: Float64Array, A: Float64Array, tmp: Float64Array): void {
+  const n = NE;
+  tmp.fill(0);
+  for (let i = 0; i < n; i++)
+    for (let k = 0; k < n; k++) {
+      const f = Phi[i * n + k]!;
+      if (f === 0) continue;
+      for (let j = 0; j < n; j++) tmp[i * n + j] += f * A[k * n + j]!;
+    }
+  A.set(tmp);
+}
+
+/** Pack the upper triangle of a symmetric 18×18 into out[off..off+171). */
+export function packSym(P: Float64Array, out: Float64Array, off: number): void {
+  let m = off;
+  for (let i = 0; i < NE; i++) for (let j = i; j < NE; j++) out[m++] = P[i * NE + j]!;
+}
+
+export function unpackSym(src: Float64Array, off: number, P: Float64Array): void {
+  let m = off;
+  for (let i = 0; i < NE; i++)
+    for (let j = i; j < NE; j++) {
+      const v = src[m++]!;
+      P[i * NE + j] = v;
+      P[j * NE + i] = v;
+    }
+}
+
+/**
+ * Pack Φ compactly: the error model only couples rows p, v, φ (0..8) to columns 0..14; the bias and
+ * Gauss–Markov rows are diagonal, and so are all products of such matrices.
+ */
+export function packPhi(Phi: Float64Array, out: Float64Array, off: number): void {
+  let m = off;
+  for (let i = 0; i < 9; i++) for (let j = 0; j < 15; j++) out[m++] = Phi[i * NE + j]!;
+  for (let i = 9; i < NE; i++) out[m++] = Phi[i * NE + i]!;
+}
+
+export function unpackPhi(src: Float64Array, off: number, Phi: Float64Array): void {
+  Phi.fill(0);
+  let m = off;
+  for (let i = 0; i < 9; i++) for (let j = 0; j < 15; j++) Phi[i * NE + j] = src[m++]!;
+  for (let i = 9; i < NE; i++) Phi[i * NE + i] = src[m++]!;
+}

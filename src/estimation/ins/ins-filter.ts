@@ -1,0 +1,730 @@
+/**
+ * The IMU-aided forward filter and its smoother over an epoch grid (fix epochs and bridged epochs).
+ * IMU samples arrive one at a time (a stream); the strapdown mechanization runs at the IMU rate, the
+ * 18-state error covariance is propagated in steps of at most `propagationStepSec` (Groves 2013
+ * §14.2.4), and at each grid epoch the filter applies, in turn, the GNSS position update (joint
+ * chi-square gate as in src/estimation/track-filter.ts; re-acquisition by covariance inflation after a
+ * run of rejections, since a stream cannot be rewound), zero-velocity and zero-angular-rate updates
+ * when the IMU shows the vehicle stationary, or the non-holonomic constraint. Each epoch stores the
+ * corrected nominal state, P⁺, P⁻, the transition Φ accumulated since the previous epoch and the
+ * applied correction: memory per epoch (about 4 kB), none per IMU sample. The backward pass runs
+ * the error-state RTS step (./rts.ts) and turns smoothed states into per-epoch products.
+ * Initial alignment: roll and pitch from the accelerometer mean while static (Groves 2013 §5.6.2,
+ * "levelling"), heading from the first motion of the GNSS track (given by the caller).
+ * Scalar updates use the Joseph form (kalman.ts): the many small, highly correlated pseudo-measurements
+ * would drive the standard form's P − KHP to indefinite under rounding.
+ */
+import { chiSquareQuantile } from '../chi-square.js';
+import { cholesky } from '../cholesky.js';
+import { innovation, makeScratch, updateJoseph, type KalmanScratch } from '../kalman.js';
+import { quatFromEuler, quatRotateNav, quatToDcm, dcmToEuler } from '../../models/ins/attitude.js';
+import { makeMechScratch, mechanize, NAV_BA, NAV_BG, NAV_GM, NAV_LEN, NAV_P, NAV_Q, NAV_V, type MechParams, type MechScratch } from '../../models/ins/mechanization.js';
+import { gmPhi } from '../../models/gauss-markov.js';
+import {
+  discretize, E_A, E_BA, E_BG, E_GM, E_P, E_V, fillErrorF, leftMultiply, makeDiscScratch, NE, NE_PACKED, packPhi, packSym,
+  PHI_COMPACT, propagateCovariance, unpackPhi, unpackSym, type DiscScratch, type ErrorModelParams,
+} from './error-model.js';
+import { bodyVelocityRow, gnssRow, gyroBiasRow, velocityRow } from './measurements.js';
+import { insRtsStep, makeInsRtsScratch } from './rts.js';
+
+/** The epoch grid and its GNSS measurements (antenna position in the local frame). */
+export interface InsEpochs {
+  N: number;
+  tSec: Float64Array;
+  /** Per axis e, n, u: measured antenna coordinate (m), NaN where none; variance (m²). */
+  z: [Float64Array, Float64Array, Float64Array];
+  r: [Float64Array, Float64Array, Float64Array];
+  /** 0 no fix, 1 gated fix, 2 fix accepted without gate (user-kept). */
+  use: Uint8Array;
+  /** 1 at the first epoch of a segment (the chain of the smoother restarts there). */
+  segStart: Uint8Array;
+}
+
+/** Caller-provided initial values at an epoch (from the fixes-only track). */
+export interface InsInit {
+  /** Velocity (m/s, ENU) and its 1-sigma per axis. */
+  velocity(k: number, out: Float64Array): number;
+  /** Yaw (rad, counter-clockwise from east) and its 1-sigma (rad), from the first motion after epoch k. */
+  yaw(k: number): { yawRad: number; sigmaRad: number };
+}
+
+export interface InsOptions {
+  mech: MechParams;
+  err: ErrorModelParams;
+  leverArmBody: [number, number, number];
+  gateProbability: number;
+  reacquireAfter: number;
+  accelBiasSigmaMps2: number;
+  gyroBiasSigmaRadps: number;
+  zupt: boolean;
+  nhc: boolean;
+  zuptSigmaMps: number;
+  nhcSigmaMps: number;
+  staticWindowSec: number;
+  staticAccelSdMps2: number;
+  staticGyroRadps: number;
+  staticMaxSpeedMps: number;
+  alignSec: number;
+  propagationStepSec: number;
+  /** Heights measured (3-axis fixes); without them a weak height hold keeps the vertical channel bounded. */
+  hasHeight: boolean;
+}
+
+/** Per-epoch products of the smoother (NaN / 0 where an epoch is not covered by the IMU). */
+export interface InsProducts {
+  covered: Uint8Array;
+  /** Antenna position (m, local frame) and velocity (m/s). */
+  pos: [Float64Array, Float64Array, Float64Array];
+  vel: [Float64Array, Float64Array, Float64Array];
+  /** Antenna position covariance: ee, en, eu, nn, nu, uu (6 per epoch). */
+  covPos: Float64Array;
+  /** Roll, pitch, yaw (rad) and their 1-sigma (rad). */
+  att: [Float64Array, Float64Array, Float64Array];
+  attSd: [Float64Array, Float64Array, Float64Array];
+  accelBias: [Float64Array, Float64Array, Float64Array];
+  accelBiasSd: [Float64Array, Float64Array, Float64Array];
+  gyroBias: [Float64Array, Float64Array, Float64Array];
+  gyroBiasSd: [Float64Array, Float64Array, Float64Array];
+  /** Forward NIS of the GNSS fix, its threshold, and 1 where it was used. */
+  nis: Float64Array;
+  threshold: Float64Array;
+  accepted: Uint8Array;
+  /** 1 where a zero-velocity update was applied. */
+  stationary: Uint8Array;
+}
+
+export interface InsStats {
+  samples: number;
+  samplesSkipped: number;
+  imuGaps: number;
+  firstSampleSec: number;
+  lastSampleSec: number;
+  alignments: Array<{ epoch: number; tSec: number; static: boolean; rollDeg: number; pitchDeg: number; headingDeg: number; headingSigmaDeg: number }>;
+  zuptEpochs: number;
+  nhcEpochs: number;
+  gnssRejected: number;
+  reacquisitions: number;
+  smootherFallbacks: number;
+}
+
+export class InsSmoother {
+  readonly stats: InsStats = { samples: 0, samplesSkipped: 0, imuGaps: 0, firstSampleSec: NaN, lastSampleSec: NaN, alignments: [], zuptEpochs: 0, nhcEpochs: 0, gnssRejected: 0, reacquisitions: 0, smootherFallbacks: 0 };
+  readonly products: InsProducts;
+  // ---- per-epoch history ----
+  private readonly hNav: Float64Array;
+  private readonly hPplus: Float64Array;
+  private readonly hPminus: Float64Array;
+  private readonly hPhi: Float64Array;
+  private readonly hDx: Float64Array;
+  private readonly chainStart: Uint8Array;
+  // ---- working state ----
+  private mode: 0 | 1 | 2 = 0; // idle, aligning, running
+  private ke = 0;
+  private alignEpoch = -1;
+  private tNav = NaN;
+  private readonly nav = new Float64Array(NAV_LEN);
+  private readonly P = new Float64Array(NE * NE);
+  private readonly PhiAcc = new Float64Array(NE * NE);
+  private readonly F = new Float64Array(NE * NE);
+  private readonly Phi = new Float64Array(NE * NE);
+  private readonly Qd = new Float64Array(NE * NE);
+  private readonly tmp = new Float64Array(NE * NE);
+  private readonly disc: DiscScratch = makeDiscScratch();
+  private readonly ks: KalmanScratch = makeScratch(NE);
+  private readonly ms: MechScratch = makeMechScratch();
+  private readonly h = new Float64Array(NE);
+  private readonly dx = new Float64Array(NE);
+  private readonly C = new Float64Array(9);
+  private readonly v3 = new Float64Array(3);
+  private readonly out1 = new Float64Array(1);
+  private readonly nu = new Float64Array(3);
+  private readonly Hm = new Float64Array(3 * NE);
+  private readonly S3 = new Float64Array(9);
+  private readonly L3 = new Float64Array(9);
+  private readonly sumC = new Float64Array(9);
+  private readonly sumF = new Float64Array(3);
+  private sumDt = 0;
+  private readonly zaruSum = new Float64Array(3);
+  private zaruDt = 0;
+  private prevT = NaN;
+  private readonly prevF = new Float64Array(3);
+  private readonly prevW = new Float64Array(3);
+  private readonly thresholds: number[];
+  private runCount = 0;
+  private runStartT = NaN;
+  // alignment buffer (bounded by alignSec) and the stationary-detector ring
+  private alignBuf = new Float64Array(7 * 1024);
+  private alignCount = 0;
+  private ring: Float64Array | null = null;
+  private ringCap = 0;
+  private ringHead = 0;
+  private ringCount = 0;
+
+  constructor(private readonly ep: InsEpochs, private readonly init: InsInit, private readonly opt: InsOptions) {
+    const N = ep.N;
+    this.hNav = new Float64Array(N * NAV_LEN);
+    this.hPplus = new Float64Array(N * NE_PACKED);
+    this.hPminus = new Float64Array(N * NE_PACKED);
+    this.hPhi = new Float64Array(N * PHI_COMPACT);
+    this.hDx = new Float64Array(N * NE);
+    this.chainStart = new Uint8Array(N);
+    const mk = () => new Float64Array(N).fill(NaN);
+    const m3 = (): [Float64Array, Float64Array, Float64Array] => [mk(), mk(), mk()];
+    this.products = {
+      covered: new Uint8Array(N), pos: m3(), vel: m3(), covPos: new Float64Array(N * 6).fill(NaN), att: m3(), attSd: m3(),
+      accelBias: m3(), accelBiasSd: m3(), gyroBias: m3(), gyroBiasSd: m3(),
+      nis: mk(), threshold: mk(), accepted: new Uint8Array(N), stationary: new Uint8Array(N),
+    };
+    this.thresholds = [Infinity, 1, 2, 3].map((d, i) => (i === 0 ? Infinity : chiSquareQuantile(opt.gateProbability, d)));
+  }
+
+  /** One IMU sample: time (UTC Unix s), specific force (m/s²) and angular rate (rad/s), body frame. */
+  addSample(tSec: number, fx: number, fy: number, fz: number, wx: number, wy: number, wz: number): void {
+    if (!(tSec > this.prevT) && Number.isFinite(this.prevT)) {
+      this.stats.samplesSkipped++;
+      return;
+    }
+    const st = this.stats;
+    if (st.samples === 0) st.firstSampleSec = tSec;
+    st.samples++;
+    st.lastSampleSec = tSec;
+    if (this.ring === null && Number.isFinite(this.prevT)) {
+      // detector window sized from the first interval (bounded)
+      this.ringCap = Math.max(5, Math.min(8192, Math.round(this.opt.staticWindowSec / (tSec - this.prevT))));
+      this.ring = new Float64Array(6 * this.ringCap);
+    }
+    const ep = this.ep;
+    if (this.mode === 0) {
+      // idle: epochs before this sample cannot be covered; start at the next epoch with a fix
+      while (this.ke < ep.N && (ep.tSec[this.ke]! < tSec || !this.hasFix(this.ke))) this.ke++;
+      if (this.ke < ep.N) {
+        this.mode = 1;
+        this.alignEpoch = this.ke;
+        this.alignCount = 0;
+      }
+    }
+    if (this.mode === 1) {
+      if (tSec < ep.tSec[this.alignEpoch]!) {
+        this.remember(tSec, fx, fy, fz, wx, wy, wz);
+        return;
+      }
+      this.bufferSample(tSec, fx, fy, fz, wx, wy, wz);
+      if (tSec - ep.tSec[this.alignEpoch]! >= this.opt.alignSec) this.alignAndReplay();
+      return;
+    }
+    if (this.mode === 2) this.runSample(tSec, fx, fy, fz, wx, wy, wz);
+    else this.remember(tSec, fx, fy, fz, wx, wy, wz);
+  }
+
+  /** End of the IMU stream: finish a pending alignment; epochs after the last sample stay uncovered. */
+  finishStream(): void {
+    if (this.mode === 1 && this.alignCount > 0) this.alignAndReplay();
+  }
+
+  private hasFix(k: number): boolean {
+    return this.ep.use[k]! > 0 && Number.isFinite(this.ep.z[0][k]!) && Number.isFinite(this.ep.z[1][k]!);
+  }
+
+  private remember(t: number, fx: number, fy: number, fz: number, wx: number, wy: number, wz: number): void {
+    this.prevT = t;
+    this.prevF[0] = fx;
+    this.prevF[1] = fy;
+    this.prevF[2] = fz;
+    this.prevW[0] = wx;
+    this.prevW[1] = wy;
+    this.prevW[2] = wz;
+    this.pushRing(fx, fy, fz, wx, wy, wz);
+  }
+
+  private pushRing(fx: number, fy: number, fz: number, wx: number, wy: number, wz: number): void {
+    const r = this.ring;
+    if (!r) return;
+    const o = 6 * this.ringHead;
+    r[o] = fx;
+    r[o + 1] = fy;
+    r[o + 2] = fz;
+    r[o + 3] = wx;
+    r[o + 4] = wy;
+    r[o + 5] = wz;
+    this.ringHead = (this.ringHead + 1) % this.ringCap;
+    if (this.ringCount < this.ringCap) this.ringCount++;
+  }
+
+  private bufferSample(t: number, fx: number, fy: number, fz: number, wx: number, wy: number, wz: number): void {
+    if (7 * (this.alignCount + 1) > this.alignBuf.length) {
+      const b = new Float64Array(this.alignBuf.length * 2);
+      b.set(this.alignBuf);
+      this.alignBuf = b;
+    }
+    const o = 7 * this.alignCount++;
+    const a = this.alignBuf;
+    a[o] = t;
+    a[o + 1] = fx;
+    a[o + 2] = fy;
+    a[o + 3] = fz;
+    a[o + 4] = wx;
+    a[o + 5] = wy;
+    a[o + 6] = wz;
+  }
+
+  /** Levelling from the buffered accelerometer mean, heading from the caller; then replay the buffer. */
+  private alignAndReplay(): void {
+    const a = this.alignBuf;
+    const n = this.alignCount;
+    const opt = this.opt;
+    let mf0 = 0, mf1 = 0, mf2 = 0, mw0 = 0, mw1 = 0, mw2 = 0;
+    for (let i = 0; i < n; i++) {
+      mf0 += a[7 * i + 1]!;
+      mf1 += a[7 * i + 2]!;
+      mf2 += a[7 * i + 3]!;
+      mw0 += a[7 * i + 4]!;
+      mw1 += a[7 * i + 5]!;
+      mw2 += a[7 * i + 6]!;
+    }
+    mf0 /= n; mf1 /= n; mf2 /= n; mw0 /= n; mw1 /= n; mw2 /= n;
+    let vf = 0, vw = 0;
+    for (let i = 0; i < n; i++) {
+      vf += (a[7 * i + 1]! - mf0) ** 2 + (a[7 * i + 2]! - mf1) ** 2 + (a[7 * i + 3]! - mf2) ** 2;
+      vw += (a[7 * i + 4]! - mw0) ** 2 + (a[7 * i + 5]! - mw1) ** 2 + (a[7 * i + 6]! - mw2) ** 2;
+    }
+    const sdF = Math.sqrt(vf / Math.max(1, n - 1));
+    const sdW = Math.sqrt(vw / Math.max(1, n - 1));
+    const isStatic = n >= 3 && sdF < opt.staticAccelSdMps2 && sdW < opt.staticGyroRadps && Math.hypot(mw0, mw1, mw2) < opt.staticGyroRadps;
+    // levelling: f^b = g·[sin θ, cos θ sin φ, cos θ cos φ]  ⇒  φ = atan2(f_y, f_z), θ = atan2(f_x, √(f_y² + f_z²))
+    const roll = Math.atan2(mf1, mf2);
+    const pitch = Math.atan2(mf0, Math.hypot(mf1, mf2));
+    const k = this.alignEpoch;
+    const { yawRad, sigmaRad } = this.init.yaw(k);
+    const x = this.nav;
+    x.fill(0);
+    quatFromEuler(roll, pitch, yawRad, x, NAV_Q);
+    // tilt error of levelling: accelerometer bias / g, plus a static allowance (moving: 5°)
+    const g = opt.mech.gamma0Mps2;
+    const tiltSigma = isStatic ? Math.hypot(opt.accelBiasSigmaMps2 / g, 0.1 * (Math.PI / 180)) : 5 * (Math.PI / 180);
+    this.initPositionVelocity(k, isStatic);
+    const P = this.P;
+    for (let i = 0; i < 2; i++) P[(E_A + i) * NE + E_A + i] = tiltSigma ** 2;
+    P[(E_A + 2) * NE + E_A + 2] = sigmaRad ** 2;
+    for (let i = 0; i < 3; i++) {
+      P[(E_BA + i) * NE + E_BA + i] = opt.accelBiasSigmaMps2 ** 2;
+      P[(E_BG + i) * NE + E_BG + i] = opt.gyroBiasSigmaRadps ** 2;
+    }
+    this.stats.alignments.push({ epoch: k, tSec: this.ep.tSec[k]!, static: isStatic, rollDeg: (roll * 180) / Math.PI, pitchDeg: (pitch * 180) / Math.PI, headingDeg: ((((90 - (yawRad * 180) / Math.PI) % 360) + 360) % 360), headingSigmaDeg: (sigmaRad * 180) / Math.PI });
+    this.tNav = this.ep.tSec[k]!;
+    this.mode = 2;
+    this.chainStart[k] = 1;
+    this.ke = k;
+    // the first buffered sample stands for the interval from the epoch to it
+    this.prevT = this.tNav;
+    this.prevF[0] = a[1]!;
+    this.prevF[1] = a[2]!;
+    this.prevF[2] = a[3]!;
+    this.prevW[0] = a[4]!;
+    this.prevW[1] = a[5]!;
+    this.prevW[2] = a[6]!;
+    this.processEpoch(k);
+    this.ke = k + 1;
+    for (let i = 0; i < n; i++) {
+      const o = 7 * i;
+      if (a[o]! <= this.prevT) continue;
+      this.runSample(a[o]!, a[o + 1]!, a[o + 2]!, a[o + 3]!, a[o + 4]!, a[o + 5]!, a[o + 6]!);
+    }
+    this.alignCount = 0;
+  }
+
+  /** Position from the fix (antenna minus lever arm), velocity from the caller; diffuse position prior, GNSS error at its stationary variance. */
+  private initPositionVelocity(k: number, isStatic: boolean): void {
+    const x = this.nav;
+    const P = this.P;
+    const opt = this.opt;
+    // clear the position, velocity and GNSS-error rows and columns
+    for (const base of [E_P, E_V, E_GM])
+      for (let i = base; i < base + 3; i++)
+        for (let j = 0; j < NE; j++) {
+          P[i * NE + j] = 0;
+          P[j * NE + i] = 0;
+        }
+    quatToDcm(x, NAV_Q, this.C);
+    const l = opt.leverArmBody;
+    const C = this.C;
+    for (let i = 0; i < 3; i++) {
+      const li = C[i * 3]! * l[0] + C[i * 3 + 1]! * l[1] + C[i * 3 + 2]! * l[2];
+      const z = this.ep.z[i]![k]!;
+      x[NAV_P + i] = Number.isFinite(z) ? z - li : 0;
+      x[NAV_GM + i] = 0;
+      // diffuse position prior (100 m): the fix update at this epoch then sets position and GNSS error jointly
+      P[(E_P + i) * NE + E_P + i] = 1e4;
+      const gs = i < 2 ? opt.err.gmSigmaHM : opt.err.gmSigmaVM;
+      P[(E_GM + i) * NE + E_GM + i] = Math.max(gs * gs, 1e-12);
+    }
+    const sv = this.init.velocity(k, this.v3);
+    for (let i = 0; i < 3; i++) {
+      x[NAV_V + i] = isStatic ? 0 : this.v3[i]!;
+      P[(E_V + i) * NE + E_V + i] = isStatic ? 0.2 ** 2 : Math.max(sv, 0.5) ** 2;
+    }
+    this.PhiAcc.fill(0);
+    for (let i = 0; i < NE; i++) this.PhiAcc[i * NE + i] = 1;
+    this.sumDt = 0;
+    this.sumC.fill(0);
+    this.sumF.fill(0);
+    this.zaruSum.fill(0);
+    this.zaruDt = 0;
+    this.runCount = 0;
+  }
+
+  private runSample(t: number, fx: number, fy: number, fz: number, wx: number, wy: number, wz: number): void {
+    // interval mean of the rates (trapezoid between consecutive samples)
+    const mf0 = 0.5 * (this.prevF[0]! + fx), mf1 = 0.5 * (this.prevF[1]! + fy), mf2 = 0.5 * (this.prevF[2]! + fz);
+    const mw0 = 0.5 * (this.prevW[0]! + wx), mw1 = 0.5 * (this.prevW[1]! + wy), mw2 = 0.5 * (this.prevW[2]! + wz);
+    if (t - this.tNav > 1) this.stats.imuGaps++;
+    const ep = this.ep;
+    while (this.ke < ep.N && ep.tSec[this.ke]! <= t) {
+      this.advance(ep.tSec[this.ke]! - this.tNav, mf0, mf1, mf2, mw0, mw1, mw2);
+      this.processEpoch(this.ke);
+      this.ke++;
+    }
+    this.advance(t - this.tNav, mf0, mf1, mf2, mw0, mw1, mw2);
+    this.remember(t, fx, fy, fz, wx, wy, wz);
+  }
+
+  private advance(dt: number, f0: number, f1: number, f2: number, w0: number, w1: number, w2: number): void {
+    if (!(dt > 0)) return;
+    const ms = this.ms;
+    mechanize(this.nav, f0, f1, f2, w0, w1, w2, dt, this.opt.mech, ms);
+    for (let i = 0; i < 9; i++) this.sumC[i] += ms.C[i]! * dt;
+    for (let i = 0; i < 3; i++) this.sumF[i] += ms.fNav[i]! * dt;
+    this.sumDt += dt;
+    this.zaruSum[0] += w0 * dt;
+    this.zaruSum[1] += w1 * dt;
+    this.zaruSum[2] += w2 * dt;
+    this.zaruDt += dt;
+    this.tNav += dt;
+    if (this.sumDt >= this.opt.propagationStepSec) this.propagate();
+  }
+
+  /** Covariance step over the time accumulated since the last one, with F at the interval means of C_nb and f^n. */
+  private propagate(): void {
+    const T = this.sumDt;
+    if (!(T > 0)) return;
+    const inv = 1 / T;
+    for (let i = 0; i < 9; i++) this.C[i] = this.sumC[i]! * inv;
+    for (let i = 0; i < 3; i++) this.v3[i] = this.sumF[i]! * inv;
+    fillErrorF(this.F, this.C, this.v3, this.opt.err);
+    discretize(this.F, T, this.opt.err, this.Phi, this.Qd, this.disc);
+    propagateCovariance(this.Phi, this.Qd, this.P, this.tmp);
+    leftMultiply(this.Phi, this.PhiAcc, this.tmp);
+    // mean of the Gauss–Markov fix error decays: b ← e^{−Δt/τ} b
+    const phiGm = gmPhi(T, this.opt.err.gmTauSec);
+    for (let i = 0; i < 3; i++) this.nav[NAV_GM + i] *= phiGm;
+    this.sumDt = 0;
+    this.sumC.fill(0);
+    this.sumF.fill(0);
+  }
+
+  /** Scalar update of the accumulated correction dx with innovation ν (w.r.t. the predicted nominal) and row h. */
+  private scalarUpdate(nu: number, r: number): void {
+    innovation(NE, this.h, nu, r, this.dx, 0, this.P, 0, this.ks, this.out1);
+    const S = this.out1[0]!;
+    const nuRes = nu - this.dotH(this.dx);
+    updateJoseph(NE, this.h, nuRes, S, r, this.dx, 0, this.P, 0, this.ks);
+  }
+
+  private dotH(v: Float64Array): number {
+    let s = 0;
+    for (let i = 0; i < NE; i++) s += this.h[i]! * v[i]!;
+    return s;
+  }
+
+  private processEpoch(k: number): void {
+    this.propagate();
+    const ep = this.ep;
+    const opt = this.opt;
+    const P = this.P;
+    const x = this.nav;
+    const pr = this.products;
+    if (ep.segStart[k] && !this.chainStart[k]) {
+      // a new segment after a long gap: keep attitude and biases, restart position and velocity from GNSS
+      this.initPositionVelocity(k, false);
+      this.chainStart[k] = 1;
+    }
+    quatToDcm(x, NAV_Q, this.C);
+    const C = this.C;
+    const l = opt.leverArmBody;
+    const leverNav = this.v3;
+    for (let i = 0; i < 3; i++) leverNav[i] = C[i * 3]! * l[0] + C[i * 3 + 1]! * l[1] + C[i * 3 + 2]! * l[2];
+    // ---- GNSS: innovation, joint gate ----
+    let m = 0;
+    let pass = false;
+    const axes = [0, 0, 0];
+    if (this.hasFix(k)) {
+      for (let a = 0; a < 3; a++) {
+        const z = ep.z[a]![k]!;
+        if (!Number.isFinite(z)) continue;
+        axes[m] = a;
+        // ν = z − (p̂ + Ĉ l + b̂)
+        this.nu[m] = z - (x[NAV_P + a]! + leverNav[a]! + x[NAV_GM + a]!);
+        gnssRow(a, leverNav, this.h);
+        this.Hm.set(this.h, m * NE);
+        m++;
+      }
+      let nis = this.gnssNis(m, axes, k);
+      const thr = this.thresholds[m]!;
+      pass = ep.use[k] === 2 || nis <= thr;
+      if (!pass) {
+        this.stats.gnssRejected++;
+        if (this.runCount === 0) this.runStartT = ep.tSec[k]!;
+        this.runCount++;
+        if (this.runCount >= opt.reacquireAfter) {
+          // re-acquire: the run of misses says the solution drifted; inflate position and velocity by the miss
+          const span = Math.max(ep.tSec[k]! - this.runStartT, 1);
+          for (let j = 0; j < m; j++) {
+            const a = axes[j]!;
+            const miss2 = this.nu[j]! ** 2;
+            P[(E_P + a) * NE + E_P + a] += miss2;
+            P[(E_V + a) * NE + E_V + a] += (4 * miss2) / (span * span);
+          }
+          this.stats.reacquisitions++;
+          pass = true;
+          nis = this.gnssNis(m, axes, k);
+        }
+      }
+      if (pass) this.runCount = 0;
+      pr.nis[k] = nis;
+      pr.threshold[k] = thr;
+    }
+    // ---- store the prediction (after any inflation) and the accumulated transition ----
+    if (!this.chainStart[k]) {
+      packSym(P, this.hPminus, k * NE_PACKED);
+      packPhi(this.PhiAcc, this.hPhi, k * PHI_COMPACT);
+    }
+    this.PhiAcc.fill(0);
+    for (let i = 0; i < NE; i++) this.PhiAcc[i * NE + i] = 1;
+    const dx = this.dx;
+    dx.fill(0);
+    if (pass) {
+      for (let j = 0; j < m; j++) {
+        this.h.set(this.Hm.subarray(j * NE, (j + 1) * NE));
+        this.scalarUpdate(this.nu[j]!, ep.r[axes[j]!]![k]!);
+      }
+      if (!opt.hasHeight) {
+        // weak height hold (no heights in the log): up ≈ 0 within 30 m
+        this.h.fill(0);
+        this.h[E_P + 2] = 1;
+        this.scalarUpdate(-x[NAV_P + 2]!, 900);
+      }
+      pr.accepted[k] = 1;
+    }
+    // ---- stationary: zero velocity and zero angular rate; otherwise the non-holonomic constraint ----
+    const stationary = opt.zupt && this.isStationary();
+    if (stationary) {
+      const r = opt.zuptSigmaMps ** 2;
+      for (let a = 0; a < 3; a++) {
+        velocityRow(a, this.h);
+        this.scalarUpdate(-x[NAV_V + a]!, r);
+      }
+      if (this.zaruDt > 0) {
+        const we = opt.mech.earthRateEnu;
+        // gyro mean over the epoch interval ≈ b_g + C_bn ω_ie + noise of variance N²/T
+        const rz = opt.err.gyroNoiseDensity ** 2 / this.zaruDt + 1e-10;
+        for (let a = 0; a < 3; a++) {
+          const earth = C[a]! * we[0]! + C[3 + a]! * we[1]! + C[6 + a]! * we[2]!;
+          gyroBiasRow(a, this.h);
+          this.scalarUpdate(this.zaruSum[a]! / this.zaruDt - earth - x[NAV_BG + a]!, rz);
+        }
+      }
+      pr.stationary[k] = 1;
+      this.stats.zuptEpochs++;
+    } else if (opt.nhc) {
+      const r = opt.nhcSigmaMps ** 2;
+      for (let b = 1; b < 3; b++) {
+        const vb = bodyVelocityRow(b, C, x, NAV_V, this.h);
+        this.scalarUpdate(-vb, r);
+      }
+      this.stats.nhcEpochs++;
+    }
+    this.zaruSum.fill(0);
+    this.zaruDt = 0;
+    // ---- closed-loop reset: fold the correction into the nominal state ----
+    applyCorrection(x, dx);
+    this.hDx.set(dx, k * NE);
+    this.hNav.set(x, k * NAV_LEN);
+    packSym(P, this.hPplus, k * NE_PACKED);
+    pr.covered[k] = 1;
+  }
+
+  /** NIS of the GNSS innovation: νᵀ S⁻¹ ν with S = H P Hᵀ + R, by Cholesky (S is at most 3×3). */
+  private gnssNis(m: number, axes: number[], k: number): number {
+    const P = this.P;
+    const H = this.Hm;
+    const S = this.S3;
+    for (let i = 0; i < m; i++)
+      for (let j = i; j < m; j++) {
+        let acc = i === j ? this.ep.r[axes[i]!]![k]! : 0;
+        for (let p = 0; p < NE; p++) {
+          const hp = H[i * NE + p]!;
+          if (hp === 0) continue;
+          for (let q = 0; q < NE; q++) acc += hp * P[p * NE + q]! * H[j * NE + q]!;
+        }
+        S[i * m + j] = acc;
+        S[j * m + i] = acc;
+      }
+    if (!cholesky(m, S, 0, this.L3)) return Infinity;
+    // NIS = |L⁻¹ ν|²
+    let nis = 0;
+    const y = [0, 0, 0];
+    for (let i = 0; i < m; i++) {
+      let s = this.nu[i]!;
+      for (let j = 0; j < i; j++) s -= this.L3[i * m + j]! * y[j]!;
+      y[i] = s / this.L3[i * m + i]!;
+      nis += y[i]! * y[i]!;
+    }
+    return nis;
+  }
+
+  /** The IMU shows the vehicle stationary (window statistics) and the estimated speed is low. */
+  private isStationary(): boolean {
+    const r = this.ring;
+    const n = this.ringCount;
+    if (!r || n < Math.max(3, this.ringCap >> 1)) return false;
+    const x = this.nav;
+    if (Math.hypot(x[NAV_V]!, x[NAV_V + 1]!, x[NAV_V + 2]!) > this.opt.staticMaxSpeedMps) return false;
+    const mean = [0, 0, 0, 0, 0, 0];
+    for (let i = 0; i < n; i++) for (let c = 0; c < 6; c++) mean[c] += r[6 * i + c]!;
+    for (let c = 0; c < 6; c++) mean[c] /= n;
+    let vf = 0, vw = 0;
+    for (let i = 0; i < n; i++) {
+      for (let c = 0; c < 3; c++) vf += (r[6 * i + c]! - mean[c]!) ** 2;
+      for (let c = 3; c < 6; c++) vw += (r[6 * i + c]! - mean[c]!) ** 2;
+    }
+    const sdF = Math.sqrt(vf / (n - 1));
+    const sdW = Math.sqrt(vw / (n - 1));
+    const rate = Math.hypot(mean[3]! - x[NAV_BG]!, mean[4]! - x[NAV_BG + 1]!, mean[5]! - x[NAV_BG + 2]!);
+    return sdF < this.opt.staticAccelSdMps2 && sdW < this.opt.staticGyroRadps && rate < this.opt.staticGyroRadps;
+  }
+
+  /** Backward RTS over every chain of covered epochs, then the per-epoch products. */
+  smooth(): void {
+    const N = this.ep.N;
+    const pr = this.products;
+    const Pf = new Float64Array(NE * NE);
+    const Pm = new Float64Array(NE * NE);
+    const Phi = new Float64Array(NE * NE);
+    const Ps = new Float64Array(NE * NE);
+    const dxs = new Float64Array(NE);
+    const dNext = new Float64Array(NE);
+    const navS = new Float64Array(NAV_LEN);
+    const rs = makeInsRtsScratch();
+    const ex = makeExtractScratch();
+    let linked = false;
+    for (let k = N - 1; k >= 0; k--) {
+      if (!pr.covered[k]) {
+        linked = false;
+        continue;
+      }
+      unpackSym(this.hPplus, k * NE_PACKED, Pf);
+      if (!linked) {
+        Ps.set(Pf);
+        dxs.fill(0);
+      } else {
+        unpackSym(this.hPminus, (k + 1) * NE_PACKED, Pm);
+        unpackPhi(this.hPhi, (k + 1) * PHI_COMPACT, Phi);
+        for (let i = 0; i < NE; i++) dNext[i] = dxs[i]! + this.hDx[(k + 1) * NE + i]!;
+        if (!insRtsStep(Pf, Pm, Phi, Ps, dNext, dxs, Ps, rs)) {
+          // not positive definite: keep the filtered estimate here and restart the chain
+          this.stats.smootherFallbacks++;
+          Ps.set(Pf);
+          dxs.fill(0);
+        }
+      }
+      navS.set(this.hNav.subarray(k * NAV_LEN, (k + 1) * NAV_LEN));
+      applyCorrection(navS, dxs);
+      extractProducts(k, navS, Ps, this.opt.leverArmBody, pr, ex);
+      linked = !this.chainStart[k];
+    }
+  }
+}
+
+/** x ← x ⊕ δx: additive for position, velocity, biases and fix error; attitude by C ← (I + [φ×]) C. */
+export function applyCorrection(x: Float64Array, dx: Float64Array): void {
+  for (let i = 0; i < 3; i++) {
+    x[NAV_P + i] += dx[E_P + i]!;
+    x[NAV_V + i] += dx[E_V + i]!;
+    x[NAV_BA + i] += dx[E_BA + i]!;
+    x[NAV_BG + i] += dx[E_BG + i]!;
+    x[NAV_GM + i] += dx[E_GM + i]!;
+  }
+  quatRotateNav(x, NAV_Q, dx[E_A]!, dx[E_A + 1]!, dx[E_A + 2]!);
+}
+
+interface ExtractScratch {
+  C: Float64Array;
+  C2: Float64Array;
+  q: Float64Array;
+  e0: Float64Array;
+  e1: Float64Array;
+  J: Float64Array;
+  A: Float64Array;
+}
+
+function makeExtractScratch(): ExtractScratch {
+  return { C: new Float64Array(9), C2: new Float64Array(9), q: new Float64Array(4), e0: new Float64Array(3), e1: new Float64Array(3), J: new Float64Array(9), A: new Float64Array(9) };
+}
+
+/** Products of one epoch: antenna position and its covariance, velocity, attitude and biases with sigmas. */
+export function extractProducts(k: number, x: Float64Array, P: Float64Array, l: [number, number, number], pr: InsProducts, s: ExtractScratch): void {
+  const C = s.C;
+  quatToDcm(x, NAV_Q, C);
+  const u = [0, 0, 0];
+  for (let i = 0; i < 3; i++) u[i] = C[i * 3]! * l[0] + C[i * 3 + 1]! * l[1] + C[i * 3 + 2]! * l[2];
+  for (let i = 0; i < 3; i++) {
+    pr.pos[i]![k] = x[NAV_P + i]! + u[i]!;
+    pr.vel[i]![k] = x[NAV_V + i]!;
+    pr.accelBias[i]![k] = x[NAV_BA + i]!;
+    pr.gyroBias[i]![k] = x[NAV_BG + i]!;
+    pr.accelBiasSd[i]![k] = Math.sqrt(P[(E_BA + i) * NE + E_BA + i]!);
+    pr.gyroBiasSd[i]![k] = Math.sqrt(P[(E_BG + i) * NE + E_BG + i]!);
+  }
+  // antenna error = δp + A φ with A = −[u×]: Σ = Ppp + Ppφ Aᵀ + A Pφp + A Pφφ Aᵀ
+  const A = s.A;
+  A[0] = 0; A[1] = u[2]!; A[2] = -u[1]!;
+  A[3] = -u[2]!; A[4] = 0; A[5] = u[0]!;
+  A[6] = u[1]!; A[7] = -u[0]!; A[8] = 0;
+  const cov = (i: number, j: number): number => {
+    let v = P[(E_P + i) * NE + E_P + j]!;
+    for (let a = 0; a < 3; a++) {
+      v += P[(E_P + i) * NE + E_A + a]! * A[j * 3 + a]! + A[i * 3 + a]! * P[(E_A + a) * NE + E_P + j]!;
+      for (let b = 0; b < 3; b++) v += A[i * 3 + a]! * P[(E_A + a) * NE + E_A + b]! * A[j * 3 + b]!;
+    }
+    return v;
+  };
+  const o = 6 * k;
+  pr.covPos[o] = cov(0, 0);
+  pr.covPos[o + 1] = cov(0, 1);
+  pr.covPos[o + 2] = cov(0, 2);
+  pr.covPos[o + 3] = cov(1, 1);
+  pr.covPos[o + 4] = cov(1, 2);
+  pr.covPos[o + 5] = cov(2, 2);
+  // Euler angles and their sigmas through a numerical Jacobian d(roll, pitch, yaw)/dφ
+  dcmToEuler(C, s.e0);
+  pr.att[0]![k] = s.e0[0]!;
+  pr.att[1]![k] = s.e0[1]!;
+  pr.att[2]![k] = s.e0[2]!;
+  const eps = 1e-6;
+  for (let j = 0; j < 3; j++) {
+    s.q.set(x.subarray(NAV_Q, NAV_Q + 4));
+    quatRotateNav(s.q, 0, j === 0 ? eps : 0, j === 1 ? eps : 0, j === 2 ? eps : 0);
+    quatToDcm(s.q, 0, s.C2);
+    dcmToEuler(s.C2, s.e1);
+    for (let i = 0; i < 3; i++) {
+      let d = s.e1[i]! - s.e0[i]!;
+      if (d > Math.PI) d -= 2 * Math.PI;
+      if (d < -Math.PI) d += 2 * Math.PI;
+      s.J[i * 3 + j] = d / eps;
+    }
+  }
+  for (let i = 0; i < 3; i++) {
+    let v = 0;
+    for (let a = 0; a < 3; a++) for (let b = 0; b < 3; b++) v += s.J[i * 3 + a]! * P[(E_A + a) * NE + E_A + b]! * s.J[i * 3 + b]!;
+    pr.attSd[i]![k] = Math.sqrt(Math.max(v, 0));
+  }
+}
