@@ -95,25 +95,31 @@ function isGzip(buf: Uint8Array): boolean {
   return buf.length >= 2 && buf[0] === 0x1f && buf[1] === 0x8b;
 }
 
-function gzipReason(e: unknown): string {
+function gzipReason(e: unknown, maxBytes: number): string {
   const err = e as NodeJS.ErrnoException;
   if (err.code === 'ERR_BUFFER_TOO_LARGE' || err.code === 'ERR_OUT_OF_RANGE' || err instanceof RangeError)
-    return `decompressed size exceeds ${MAX_LOG_BYTES / 1048576} MiB`;
+    return `decompressed size exceeds ${maxBytes / 1048576} MiB`;
   if (err.code === 'Z_BUF_ERROR') return 'gzip data is truncated (unexpected end of file)';
   return `not readable as gzip: ${err.message}`;
 }
 
-/** Read a log held in memory (plain or gzip bytes). */
-export function readFixBytes(buf: Uint8Array, file: string, cfg: HindcastConfig): FixSeries {
+export interface ReadOptions {
+  /** Bound on the (decompressed) size in bytes; default MAX_LOG_BYTES. */
+  maxBytes?: number;
+}
+
+/** Read a log held in memory (plain or gzip bytes); `file` names it and decides the format. */
+export function readFixBytes(buf: Uint8Array, file: string, cfg: HindcastConfig, opt: ReadOptions = {}): FixSeries {
+  const max = opt.maxBytes ?? MAX_LOG_BYTES;
   let bytes = buf;
   if (isGzip(buf)) {
     try {
-      bytes = gunzipSync(buf, { maxOutputLength: MAX_LOG_BYTES });
+      bytes = gunzipSync(buf, { maxOutputLength: max });
     } catch (e) {
-      throw new InputError({ file }, gzipReason(e));
+      throw new InputError({ file }, gzipReason(e, max));
     }
     if (bytes.length === 0) throw new InputError({ file }, 'empty file (gzip holds no data)');
-  } else if (bytes.length > MAX_LOG_BYTES) throw new InputError({ file }, `file larger than ${MAX_LOG_BYTES / 1048576} MiB`);
+  } else if (bytes.length > max) throw new InputError({ file }, `file larger than ${max / 1048576} MiB`);
   const { text } = decodeLogBytes(bytes, file);
   return applyStrict(readFixText(text, file, cfg, formatFromName(file)), cfg);
 }
@@ -127,7 +133,7 @@ async function collect(stream: Readable, max: number, file: string): Promise<Buf
     n += b.length;
     if (n > max) {
       stream.destroy();
-      throw new InputError({ file }, `larger than ${max / 1048576} MiB (after decompression): not read`);
+      throw new InputError({ file }, `size exceeds ${max / 1048576} MiB (after decompression): not read`);
     }
     chunks.push(b);
   }
@@ -135,7 +141,7 @@ async function collect(stream: Readable, max: number, file: string): Promise<Buf
 }
 
 /** Read the bytes of a file, decompressing gzip as a stream. */
-export async function readLogBytes(path: string, displayName: string): Promise<Buffer> {
+export async function readLogBytes(path: string, displayName: string, maxBytes = MAX_LOG_BYTES): Promise<Buffer> {
   let head: Buffer;
   try {
     head = await collectHead(path);
@@ -145,7 +151,7 @@ export async function readLogBytes(path: string, displayName: string): Promise<B
   if (head.length === 0) throw new InputError({ file: displayName }, 'empty file');
   if (!isGzip(head)) {
     try {
-      return await collect(createReadStream(path), MAX_LOG_BYTES, displayName);
+      return await collect(createReadStream(path), maxBytes, displayName);
     } catch (e) {
       if (e instanceof InputError) throw e;
       throw new InputError({ file: displayName }, `cannot read: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`);
@@ -156,13 +162,13 @@ export async function readLogBytes(path: string, displayName: string): Promise<B
   src.on('error', (e) => gunzip.destroy(e));
   src.pipe(gunzip);
   try {
-    const out = await collect(gunzip, MAX_LOG_BYTES, displayName);
+    const out = await collect(gunzip, maxBytes, displayName);
     if (out.length === 0) throw new InputError({ file: displayName }, 'empty file (gzip holds no data)');
     return out;
   } catch (e) {
     src.destroy();
     if (e instanceof InputError) throw e;
-    throw new InputError({ file: displayName }, gzipReason(e));
+    throw new InputError({ file: displayName }, gzipReason(e, maxBytes));
   }
 }
 
@@ -178,8 +184,8 @@ export function decodeText(buf: Buffer, file: string): string {
   return decodeLogBytes(buf, file).text;
 }
 
-export async function readFixLog(path: string, displayName: string, cfg: HindcastConfig): Promise<FixSeries> {
-  const buf = await readLogBytes(path, displayName);
+export async function readFixLog(path: string, displayName: string, cfg: HindcastConfig, opt: ReadOptions = {}): Promise<FixSeries> {
+  const buf = await readLogBytes(path, displayName, opt.maxBytes);
   const { text } = decodeLogBytes(buf, displayName);
   return applyStrict(readFixText(text, displayName, cfg, formatFromName(path)), cfg);
 }
