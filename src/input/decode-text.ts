@@ -5,7 +5,8 @@
  * - UTF-16 little or big endian with its BOM (FF FE / FE FF), or without a BOM when every other byte
  *   of the start is NUL (plain ASCII text saved as UTF-16);
  * - UTF-32 is refused (BOM 00 00 FE FF / FF FE 00 00), and so is binary content: NUL bytes in text
- *   that is not UTF-16, or more than 5 % control characters in the first 64 KiB.
+ *   that is not UTF-16, more than 5 % control characters or more than 30 % invalid UTF-8 in the
+ *   first 64 Ki characters.
  */
 import { InputError } from '../errors.js';
 
@@ -35,16 +36,21 @@ function sniffUtf16(buf: Uint8Array): TextEncodingName | null {
   return null;
 }
 
-/** Count of characters that text logs never hold (C0 controls other than tab, LF, CR, FF; NUL; U+FFFD). */
-function controlShare(text: string): number {
+/**
+ * Shares of the first 64 Ki characters that text logs never hold: C0 controls other than tab, LF,
+ * CR, FF (and DEL), and U+FFFD (bytes that were not UTF-8).
+ */
+function oddShares(text: string): { control: number; replacement: number } {
   const n = Math.min(text.length, PROBE_BYTES);
-  if (n === 0) return 0;
-  let bad = 0;
+  if (n === 0) return { control: 0, replacement: 0 };
+  let control = 0;
+  let replacement = 0;
   for (let i = 0; i < n; i++) {
     const c = text.charCodeAt(i);
-    if ((c < 0x20 && c !== 9 && c !== 10 && c !== 13 && c !== 12) || c === 0xfffd || c === 0x7f) bad++;
+    if ((c < 0x20 && c !== 9 && c !== 10 && c !== 13 && c !== 12) || c === 0x7f) control++;
+    else if (c === 0xfffd) replacement++;
   }
-  return bad / n;
+  return { control: control / n, replacement: replacement / n };
 }
 
 export function decodeLogBytes(buf: Uint8Array, file: string): DecodedText {
@@ -82,6 +88,7 @@ export function decodeLogBytes(buf: Uint8Array, file: string): DecodedText {
   }
   if (encoding !== 'utf-8' && text.slice(0, PROBE_BYTES).includes('\u0000'))
     throw new InputError({ file }, `binary content (NUL characters after decoding as ${encoding.toUpperCase()}): not a text log`);
-  if (controlShare(text) > 0.05) throw new InputError({ file }, 'binary content (control characters or invalid UTF-8): not a text log');
+  const odd = oddShares(text);
+  if (odd.control > 0.05 || odd.replacement > 0.3) throw new InputError({ file }, 'binary content (control characters or invalid UTF-8): not a text log');
   return { text, encoding, bom };
 }
