@@ -132,9 +132,11 @@ describe('input.strict', () => {
     ['bad-checksums.nmea', true],
     ['track.gpx.gz', false],
     ['unix-ms.csv', false],
+    ['gga-only.nmea', false], // the date taken from input.date is a note, not a problem
+    ['truncated-last-line.csv', true],
   ];
   test.each(table)('%s fails: %s', async (file, fails) => {
-    const p = readFixLog(join(DIR, file), file, cfg({ strict: true }));
+    const p = readFixLog(join(DIR, file), file, cfg({ strict: true, ...(file === 'gga-only.nmea' ? { date: '2024-12-31' } : {}) }));
     if (fails) await expect(p).rejects.toThrow(/strict mode: \d+ warning/);
     else await expect(p).resolves.toBeDefined();
   });
