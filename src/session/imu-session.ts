@@ -19,7 +19,7 @@ import { yawToHeadingDeg } from '../models/ins/attitude.js';
 import { InsSmoother, type InsEpochs, type InsInit, type InsOptions } from '../estimation/ins/ins-filter.js';
 import { errorEllipse } from '../output/ellipse.js';
 import { InputError } from '../errors.js';
-import { axisParamsFromConfig, prepareSession, processSession, segmentData, type PreparedSession } from './process-session.js';
+import { axisParamsFromConfig, prepareSession, runPrepared, segmentData, type PreparedSession } from './process-session.js';
 import { STATUS, type OutlierRecord, type SessionResult } from './result.js';
 
 const DEG = 180 / Math.PI;
@@ -118,8 +118,9 @@ function median(v: number[]): number {
  * same SessionResult as processSession, plus attitudeDeg, attitudeSdDeg and biasEstimates.
  */
 export async function processImuSession(series: FixSeries, imuPath: string, cfg: HindcastConfig, name: string, userDecisions?: Map<number, 'keep' | 'reject'>): Promise<SessionResult> {
-  const base = processSession(series, cfg, name, userDecisions);
   const ps = prepareSession(series, cfg, userDecisions);
+  // fixes-only solution on the same grid with the configured noise (initial values, uncovered epochs)
+  const base = runPrepared(ps, cfg, axisParamsFromConfig(cfg, !!ps.factors.reported), name);
   const ep = insEpochs(ps, cfg);
   if (ep.N !== base.N) throw new Error(`IMU session: epoch grid (${ep.N}) differs from the fixes-only grid (${base.N})`);
   const engine = new InsSmoother(ep, initFromTrack(base, cfg), insOptions(ps, cfg));

@@ -11,7 +11,7 @@
  * Sources: Groves (2013) §14.2 (local-navigation-frame error equations, psi-angle form) and §14.2.4
  * (propagation at a lower rate than the mechanization); Titterton & Weston (2004) §12.3; Shin,
  * "Estimation Techniques for Low-Cost Inertial Navigation", UCGE report 20219 (2005), ch. 3 —
- * from memory. Discretization: Φ = I + FΔt + ½F²Δt², Qd = QcΔt + ½(FQc + QcFᵀ)Δt² + ⅓FQcFᵀΔt³
+ * from memory. Discretization: Φ = I + FΔt + ½F²Δt² + ⅙F³Δt³, Qd = QcΔt + ½(FQc + QcFᵀ)Δt² + ⅓FQcFᵀΔt³
  * (series of the Van Loan integral), the Gauss–Markov block exactly (Brown & Hwang 2012 §2.9).
  */
 import { FREE_AIR_GRADIENT_PER_M } from '../../models/ins/gravity.js';
@@ -81,12 +81,13 @@ export function fillErrorF(F: Float64Array, Cnb: Float64Array, fNav: Float64Arra
 
 export interface DiscScratch {
   F2: Float64Array;
+  F3: Float64Array;
   FQ: Float64Array;
   qc: Float64Array;
 }
 
 export function makeDiscScratch(): DiscScratch {
-  return { F2: new Float64Array(NE * NE), FQ: new Float64Array(NE * NE), qc: new Float64Array(NE) };
+  return { F2: new Float64Array(NE * NE), F3: new Float64Array(NE * NE), FQ: new Float64Array(NE * NE), qc: new Float64Array(NE) };
 }
 
 /** Diagonal of the continuous noise Qc (the accelerometer/gyro white noise maps through Ĉ, which leaves an isotropic density unchanged). */
@@ -114,8 +115,17 @@ export function discretize(F: Float64Array, dtSec: number, mp: ErrorModelParams,
       if (f === 0) continue;
       for (let j = 0; j < n; j++) F2[i * n + j] += f * F[k * n + j]!;
     }
-  // Φ = I + FΔt + ½F²Δt²
-  for (let i = 0; i < n * n; i++) Phi[i] = F[i]! * t + 0.5 * F2[i]! * t2;
+  // F³ = F² F (the third hop carries gyro bias → attitude → velocity → position)
+  const F3 = s.F3;
+  F3.fill(0);
+  for (let i = 0; i < n; i++)
+    for (let k = 0; k < n; k++) {
+      const f = F2[i * n + k]!;
+      if (f === 0) continue;
+      for (let j = 0; j < n; j++) F3[i * n + j] += f * F[k * n + j]!;
+    }
+  // Φ = I + FΔt + ½F²Δt² + ⅙F³Δt³
+  for (let i = 0; i < n * n; i++) Phi[i] = F[i]! * t + 0.5 * F2[i]! * t2 + (F3[i]! * t3) / 6;
   for (let i = 0; i < n; i++) Phi[i * n + i] += 1;
   const qc = s.qc;
   fillQcDiag(qc, mp);

@@ -11,12 +11,12 @@
  * the error-state RTS step (./rts.ts) and turns smoothed states into per-epoch products.
  * Initial alignment: roll and pitch from the accelerometer mean while static (Groves 2013 §5.6.2,
  * "levelling"), heading from the first motion of the GNSS track (given by the caller).
- * Scalar updates use the Joseph form (kalman.ts): the many small, highly correlated pseudo-measurements
- * would drive the standard form's P − KHP to indefinite under rounding.
+ * Scalar updates use the Joseph form (./scalar-update.ts): the many small, highly correlated
+ * pseudo-measurements would drive the standard form's P − KHP to indefinite under rounding.
  */
 import { chiSquareQuantile } from '../chi-square.js';
 import { cholesky } from '../cholesky.js';
-import { innovation, makeScratch, updateJoseph, type KalmanScratch } from '../kalman.js';
+import { makeScalarScratch, scalarJosephUpdate, type ScalarScratch } from './scalar-update.js';
 import { quatFromEuler, quatRotateNav, quatToDcm, dcmToEuler } from '../../models/ins/attitude.js';
 import { makeMechScratch, mechanize, NAV_BA, NAV_BG, NAV_GM, NAV_LEN, NAV_P, NAV_Q, NAV_V, type MechParams, type MechScratch } from '../../models/ins/mechanization.js';
 import { gmPhi } from '../../models/gauss-markov.js';
@@ -130,13 +130,12 @@ export class InsSmoother {
   private readonly Qd = new Float64Array(NE * NE);
   private readonly tmp = new Float64Array(NE * NE);
   private readonly disc: DiscScratch = makeDiscScratch();
-  private readonly ks: KalmanScratch = makeScratch(NE);
+  private readonly ss: ScalarScratch = makeScalarScratch(NE);
   private readonly ms: MechScratch = makeMechScratch();
   private readonly h = new Float64Array(NE);
   private readonly dx = new Float64Array(NE);
   private readonly C = new Float64Array(9);
   private readonly v3 = new Float64Array(3);
-  private readonly out1 = new Float64Array(1);
   private readonly nu = new Float64Array(3);
   private readonly Hm = new Float64Array(3 * NE);
   private readonly S3 = new Float64Array(9);
@@ -423,16 +422,9 @@ export class InsSmoother {
 
   /** Scalar update of the accumulated correction dx with innovation ν (w.r.t. the predicted nominal) and row h. */
   private scalarUpdate(nu: number, r: number): void {
-    innovation(NE, this.h, nu, r, this.dx, 0, this.P, 0, this.ks, this.out1);
-    const S = this.out1[0]!;
-    const nuRes = nu - this.dotH(this.dx);
-    updateJoseph(NE, this.h, nuRes, S, r, this.dx, 0, this.P, 0, this.ks);
-  }
-
-  private dotH(v: Float64Array): number {
-    let s = 0;
-    for (let i = 0; i < NE; i++) s += this.h[i]! * v[i]!;
-    return s;
+    let hx = 0;
+    for (let i = 0; i < NE; i++) hx += this.h[i]! * this.dx[i]!;
+    scalarJosephUpdate(NE, this.h, nu - hx, r, this.dx, this.P, this.ss);
   }
 
   private processEpoch(k: number): void {
@@ -503,7 +495,7 @@ export class InsSmoother {
     dx.fill(0);
     if (pass) {
       for (let j = 0; j < m; j++) {
-        this.h.set(this.Hm.subarray(j * NE, (j + 1) * NE));
+        for (let i = 0; i < NE; i++) this.h[i] = this.Hm[j * NE + i]!;
         this.scalarUpdate(this.nu[j]!, ep.r[axes[j]!]![k]!);
       }
       if (!opt.hasHeight) {
