@@ -1,0 +1,60 @@
+/**
+ * Batch engine benchmark: a batch of 24 equal sessions (one seeded simulated log, copied) on one
+ * worker thread and on two; target: two workers at least 1.6× faster than one (issue 6). The two
+ * settings are timed in turn REPEAT times (every session redone, report off) and the best time of
+ * each is kept, so a moment of load from other programs on the machine counts less. The figure
+ * means something only on an otherwise idle machine with at least two cores.
+ */
+import { availableParallelism, tmpdir } from 'node:os';
+import { mkdtemp, mkdir, rm, writeFile } from 'node:fs/promises';
+import { join } from 'node:path';
+import { loadConfig } from '../src/config/load.js';
+import { runBatch } from '../src/batch/run-batch.js';
+import { defaultSpec, scenarioCsv, simulate } from '../src/simulate/scenario.js';
+import type { BenchPart } from './part.js';
+
+const SESSIONS = 24;
+const DURATION_SEC = 200;
+const REPEAT = 3;
+const TARGET = 1.6;
+
+async function timeBatch(input: string, out: string, jobs: number): Promise<number> {
+  const config = loadConfig({ overrides: { output: { report: false } } });
+  const t0 = performance.now();
+  const r = await runBatch({ input, out, config, jobs, inProcess: false, force: true });
+  const sec = (performance.now() - t0) / 1000;
+  if (r.summary.totals.ok !== SESSIONS) throw new Error(`benchmark batch failed: ${r.summary.totals.failed} session(s)`);
+  return sec;
+}
+
+export const batchBench: BenchPart = {
+  name: `batch: ${SESSIONS} equal sessions, 1 vs 2 worker threads`,
+  async run() {
+    const root = await mkdtemp(join(tmpdir(), 'hindcast-bench-'));
+    try {
+      const input = join(root, 'in');
+      await mkdir(input);
+      const sc = simulate(defaultSpec('vehicle', 4242, { durationSec: DURATION_SEC }));
+      const csv = scenarioCsv(sc);
+      for (let i = 0; i < SESSIONS; i++) await writeFile(join(input, `run${String(i).padStart(2, '0')}.csv`), csv);
+      let one = Infinity;
+      let two = Infinity;
+      for (let i = 0; i < REPEAT; i++) {
+        one = Math.min(one, await timeBatch(input, join(root, 'out1'), 1));
+        two = Math.min(two, await timeBatch(input, join(root, 'out2'), 2));
+      }
+      const speedup = one / two;
+      return {
+        ok: speedup >= TARGET,
+        lines: [
+          `machine: ${availableParallelism()} cores; ${SESSIONS} sessions × ${sc.fixes.length} fixes; best of ${REPEAT}`,
+          `1 worker:  ${one.toFixed(2)} s (${(SESSIONS / one).toFixed(2)} sessions/s)`,
+          `2 workers: ${two.toFixed(2)} s (${(SESSIONS / two).toFixed(2)} sessions/s)`,
+          `speed-up:  ${speedup.toFixed(2)}× (target ≥ ${TARGET}×)`,
+        ],
+      };
+    } finally {
+      await rm(root, { recursive: true, force: true });
+    }
+  },
+};

@@ -1,0 +1,12 @@
+/** The shape of one part of `npm run bench` (see bench/run.ts). */
+export interface BenchResult {
+  /** Lines to print (figures and the target). */
+  lines: string[];
+  /** The part's target was met. */
+  ok: boolean;
+}
+
+export interface BenchPart {
+  name: string;
+  run(): Promise<BenchResult>;
+}
