@@ -5,7 +5,12 @@
  */
 import type { BatchSummary, SessionSummary } from '../summary.js';
 import { esc, duration, num, sessionAnchor, sortKey } from './html-text.js';
-import { calibratedNoise, type ReportPayload } from './payload.js';
+import { calibratedNoise, type CalibratedNoise, type ReportPayload } from './payload.js';
+
+/** "1.25 / 2.40 m" */
+export function noiseText(c: CalibratedNoise): string {
+  return `${num(c.horizontal, 2)} / ${num(c.vertical, 2)} ${c.unit}`;
+}
 
 interface Column {
   head: string;
@@ -60,10 +65,10 @@ const COLUMNS: Column[] = [
   { head: 'median 95% ellipse (m)', type: 'num', cell: (s) => ({ text: num(s.metrics?.medianEll95MajorM, 2), sort: sortKey(s.metrics?.medianEll95MajorM) }) },
   { head: 'worst 95% ellipse (m)', type: 'num', cell: (s) => ({ text: num(s.metrics?.worstEll95MajorM, 2), sort: sortKey(s.metrics?.worstEll95MajorM) }) },
   {
-    head: 'calibrated noise h / v (m)', type: 'num',
+    head: 'calibrated noise h / v', type: 'num',
     cell: (s, p) => {
       const c = p?.calibratedNoise ?? calibratedNoise(s.info);
-      return c ? { text: `${num(c.horizontalSigmaM, 2)} / ${num(c.verticalSigmaM, 2)}`, sort: sortKey(c.horizontalSigmaM) } : { text: 'not calibrated', sort: '' };
+      return c ? { text: noiseText(c), sort: sortKey(c.horizontal) } : { text: 'not calibrated', sort: '' };
     },
   },
   { head: 'your decisions', type: 'num', cell: (_s, p) => ({ text: p ? String(p.decisionCount) : '–', sort: sortKey(p?.decisionCount) }) },

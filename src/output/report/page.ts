@@ -8,7 +8,7 @@ import type { BatchSummary } from '../summary.js';
 import { REPORT_EXTENSIONS, type ReportExtension } from './extensions.js';
 import { esc } from './html-text.js';
 import { overviewTable } from './overview-table.js';
-import type { ReportPayload } from './payload.js';
+import { PAYLOAD_VERSION, type ReportPayload } from './payload.js';
 import { sessionSection } from './session-section.js';
 import { SORT_SCRIPT } from './sort-script.js';
 
@@ -45,7 +45,9 @@ export async function reportHtml(summary: BatchSummary, payloads: Map<string, Re
   const sections: string[] = [];
   for (let i = 0; i < summary.sessions.length; i++) {
     const s = summary.sessions[i]!;
-    sections.push(await sessionSection(s, payloads.get(s.name), i, extensions));
+    // a payload saved by another version of the report (a resumed batch) is not drawn
+    const p = payloads.get(s.name);
+    sections.push(await sessionSection(s, p && p.version === PAYLOAD_VERSION ? p : undefined, i, extensions));
   }
   const t = summary.totals;
   const caution = `<p class="caution" role="note"><strong>Caution.</strong> ${esc(CAUTION)}</p>`;

@@ -67,6 +67,13 @@ export interface DecisionRow {
   threshold: number;
 }
 
+export interface CalibratedNoise {
+  /** White fix noise, 1-sigma per horizontal axis, and vertical: metres, or a scale of the reported sd. */
+  horizontal: number;
+  vertical: number;
+  unit: 'm' | '× reported sd';
+}
+
 export interface ReportPayload {
   version: number;
   name: string;
@@ -79,7 +86,7 @@ export interface ReportPayload {
   /** [start, end] (UTC Unix s) of each run of bridged epochs, extended to the fixes on each side. */
   bridgedSpans: Array<[number, number]>;
   /** Calibrated fix noise when the session was calibrated (from SessionResult.info), else null. */
-  calibratedNoise: { horizontalSigmaM: number; verticalSigmaM: number } | null;
+  calibratedNoise: CalibratedNoise | null;
   /** Facts worth showing (frame, model), as short text pairs. */
   facts: Array<[string, string]>;
   warningCount: number;
@@ -103,15 +110,27 @@ function num(v: unknown): number | undefined {
   return typeof v === 'number' && Number.isFinite(v) ? v : undefined;
 }
 
-/** Calibrated white fix noise, when a calibration step recorded it in info.calibration. */
-export function calibratedNoise(info: Record<string, unknown> | undefined): ReportPayload['calibratedNoise'] {
+/** A value of the calibration record: a number, or an estimate { value, se }. */
+function estimate(v: unknown): number | undefined {
+  if (typeof v === 'number') return num(v);
+  if (v && typeof v === 'object') return num((v as { value?: unknown }).value);
+  return undefined;
+}
+
+/**
+ * Calibrated white fix noise, when a calibration step recorded it in info.calibration (as
+ * `estimates` of sigmaHorizontalM / sigmaVerticalM, or plain numbers); null when the session was not
+ * calibrated or the calibration fell back to the profile's values. With reported per-fix sigmas the
+ * estimates are scales of those, not metres.
+ */
+export function calibratedNoise(info: Record<string, unknown> | undefined): CalibratedNoise | null {
   const cal = info?.calibration as Record<string, unknown> | undefined;
-  if (!cal || typeof cal !== 'object') return null;
-  const p = ((cal.params as Record<string, unknown> | undefined) ?? cal) as Record<string, unknown>;
-  const h = num(p.sigmaHorizontalM) ?? num(p.horizontalSigmaM);
-  const v = num(p.sigmaVerticalM) ?? num(p.verticalSigmaM);
+  if (!cal || typeof cal !== 'object' || cal.status === 'fallback') return null;
+  const p = ((cal.estimates ?? cal.params ?? cal) as Record<string, unknown>) ?? {};
+  const h = estimate(p.sigmaHorizontalM) ?? estimate(p.horizontalSigmaM);
+  const v = estimate(p.sigmaVerticalM) ?? estimate(p.verticalSigmaM);
   if (h === undefined && v === undefined) return null;
-  return { horizontalSigmaM: h ?? NaN, verticalSigmaM: v ?? NaN };
+  return { horizontal: h ?? NaN, vertical: v ?? NaN, unit: cal.reportedSigmaScale === true ? '× reported sd' : 'm' };
 }
 
 function facts(r: SessionResult): Array<[string, string]> {

@@ -10,6 +10,7 @@ import { nisChart, residualChart, sdChart, speedChart } from './chart-time.js';
 import { REPORT_EXTENSIONS, type ExtensionChart, type ReportExtension } from './extensions.js';
 import { esc, duration, isoTime, num, sessionAnchor } from './html-text.js';
 import type { ReportPayload } from './payload.js';
+import { noiseText } from './overview-table.js';
 import { renderSvg } from './render-svg.js';
 
 const SYMBOL_TEXT = FLAG_MARKS.map((m) => `${m.shape.replace('-', ' ')}: ${m.label}`).join('; ');
@@ -70,7 +71,7 @@ function figures(p: ReportPayload): string {
     ['95% ellipse major, median / worst (m)', `${num(m.medianEll95MajorM, 2)} / ${num(m.worstEll95MajorM, 2)}`],
     ['rms residual horizontal / up (m)', `${num(m.rmsResidualHorizontalM, 2)} / ${num(m.rmsResidualUpM, 2)}`],
     ['re-acquisitions', String(m.reacquisitions)],
-    ['calibrated noise h / v (m)', p.calibratedNoise ? `${num(p.calibratedNoise.horizontalSigmaM, 2)} / ${num(p.calibratedNoise.verticalSigmaM, 2)}` : 'not calibrated'],
+    ['calibrated fix noise h / v', p.calibratedNoise ? noiseText(p.calibratedNoise) : 'not calibrated (profile values)'],
     ...p.facts,
   ];
   return `<dl class="figures">${rows.map(([k, v]) => `<dt>${esc(k)}</dt><dd>${esc(v)}</dd>`).join('')}</dl>`;
@@ -118,7 +119,7 @@ export async function sessionSection(s: SessionSummary, p: ReportPayload | undef
   const head = `<h2>${esc(s.name)} <span class="status">${esc(s.status)}</span></h2>`;
   if (s.status === 'failed')
     return `<section class="session failed" id="${id}" data-session="${esc(s.name)}">${head}<p class="reason">Failed: ${esc(s.reason ?? 'unknown reason')}</p>${warningsList(s.warnings, s.warnings.length)}</section>`;
-  if (!p) return `<section class="session" id="${id}" data-session="${esc(s.name)}">${head}<p>No plot data was kept for this session.</p>${warningsList(s.warnings, s.warnings.length)}</section>`;
+  if (!p) return `<section class="session" id="${id}" data-session="${esc(s.name)}">${head}<p>No plot data of this version of Hindcast was kept for this session; run the batch again with --force to draw it.</p>${warningsList(s.warnings, s.warnings.length)}</section>`;
   const charts = sessionCharts(p, extensions);
   const figs: string[] = [];
   let group: string | undefined;
