@@ -22,6 +22,7 @@ table { border-collapse: collapse; margin: .8rem 0; font-size: .86rem; }
 caption { text-align: left; font-weight: 600; padding: .3rem 0; }
 th, td { border: 1px solid #bbb; padding: .2rem .45rem; text-align: left; vertical-align: top; }
 td { font-variant-numeric: tabular-nums; }
+td code { white-space: nowrap; }
 thead th { background: #eef1f4; }
 thead th button { font: inherit; font-weight: 600; border: 0; background: none; cursor: pointer; padding: 0; text-align: left; }
 thead th[aria-sort="ascending"] button::after { content: " ▲"; }
