@@ -32,8 +32,10 @@ export interface FilterOptions {
   reacquireAfter: number;
   /** Prior variances for the first epoch, per kinematic derivative (position, velocity, acceleration), m², (m/s)², (m/s²)². */
   priorVar: [number, number, number];
-  /** Optional per-epoch multiplier of the kinematic process noise of the step ending at that epoch. */
-  qScale?: Float64Array | null;
+  /** Optional per-axis, per-epoch multiplier of the kinematic process noise of the step ending at that epoch. */
+  qScale?: Float64Array[] | null;
+  /** Optional multiplier of the measurement variances per axis (used by calibration). */
+  rScale?: number[] | null;
 }
 
 /** Forward history of one segment; x/P hold filtered values (later overwritten by the smoother). */
@@ -98,14 +100,13 @@ export function allocateHistory(N: number, models: AxisModel[]): FilterHistory {
 }
 
 /** Fill F and Q (with any recorded extra noise) of every axis for the step ending at epoch k. */
-export function stepMatrices(models: AxisModel[], data: SegmentData, h: FilterHistory, k: number, qScale: Float64Array | null | undefined, F: Float64Array[], Q: Float64Array[]): void {
+export function stepMatrices(models: AxisModel[], data: SegmentData, h: FilterHistory, k: number, qScale: Float64Array[] | null | undefined, F: Float64Array[], Q: Float64Array[]): void {
   const dt = data.tSec[k]! - data.tSec[k - 1]!;
-  const qs = qScale ? qScale[k]! : 1;
   const extra = h.extraQ.get(k);
   for (let a = 0; a < models.length; a++) {
     const m = models[a]!;
     m.fillF(dt, F[a]!);
-    m.fillQ(dt, Q[a]!, qs);
+    m.fillQ(dt, Q[a]!, qScale ? qScale[a]![k]! : 1);
     if (extra) {
       const e = extra[a]!;
       for (let i = 0; i < m.n; i++) Q[a]![i * m.n + i] += e[i]!;
@@ -123,6 +124,7 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
   const nAx = models.length;
   const thresholds = [0, 0, 0, 0].map((_, d) => (d === 0 ? Infinity : chiSquareQuantile(opt.gateProbability, d)));
   const rewound = new Set<number>();
+  const rScale = opt.rScale ?? models.map(() => 1);
 
   let runStart = -1;
   let runCount = 0;
@@ -173,7 +175,7 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
       }
       const m = models[a]!;
       const n = m.n;
-      const nu = innovation(n, m.h, z, data.r[a]![k]!, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!, w.out1);
+      const nu = innovation(n, m.h, z, data.r[a]![k]! * rScale[a]!, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!, w.out1);
       const S = w.out1[0]!;
       w.nu[a] = nu;
       w.S[a] = S;
@@ -197,8 +199,9 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
         const m = models[a]!;
         const n = m.n;
         // innovation() left P hᵀ in the scratch; recompute to be safe after other axes used theirs
-        innovation(n, m.h, data.z[a]![k]!, data.r[a]![k]!, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!, w.out1);
-        updateJoseph(n, m.h, w.nu[a]!, w.S[a]!, data.r[a]![k]!, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!);
+        const r = data.r[a]![k]! * rScale[a]!;
+        innovation(n, m.h, data.z[a]![k]!, r, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!, w.out1);
+        updateJoseph(n, m.h, w.nu[a]!, w.S[a]!, r, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!);
       }
       h.accepted[k] = 1;
       h.logLik[k] = -0.5 * (ll + nis);
@@ -226,7 +229,7 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
           const z = data.z[a]![j]!;
           if (Number.isFinite(z) && data.use[j]) miss = Math.max(miss, Math.abs(z - h.x[a]![j * m.n]! - (m.iBias >= 0 ? h.x[a]![j * m.n + m.iBias]! : 0)));
         }
-        e[0] = miss * miss + opt.priorVar[0] * 0;
+        e[0] = miss * miss;
         if (m.nMotion > 1) e[1] = Math.max((miss / span) ** 2 * 4, 1);
         if (m.nMotion > 2) e[2] = Math.max((miss / (span * span)) ** 2 * 4, 0.1);
         extra.push(e);

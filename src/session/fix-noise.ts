@@ -34,11 +34,14 @@ function mode(a: Float64Array | undefined): number {
 }
 
 export interface FixSigmaFactors {
-  /** Relative factor on the horizontal sigma per fix (NaN where a reported sigma is used instead). */
-  horizontal: Float64Array;
-  vertical: Float64Array;
-  /** Reported absolute sigmas (m) per axis, or null. */
-  reported: [Float64Array, Float64Array, Float64Array] | null;
+  /**
+   * Per-fix factor on the base sigma of each axis (east, north, up). With reported sigmas the factor
+   * is the reported sigma itself (m) and the base is a dimensionless scale; otherwise it is a relative
+   * factor (1 at the session's median quality) and the base is the white sigma (m).
+   */
+  perAxis: [Float64Array, Float64Array, Float64Array];
+  /** True when the factors are reported sigmas (the base is then a scale). */
+  reported: boolean;
   /** Which columns were used. */
   used: string[];
 }
@@ -74,11 +77,23 @@ export function fixSigmaFactors(s: FixSeries): FixSigmaFactors {
     fh[i] = h;
     fv[i] = v;
   }
-  let reported: FixSigmaFactors['reported'] = null;
   if (q.sdEast && q.sdNorth) {
-    reported = [q.sdEast, q.sdNorth, q.sdUp ?? new Float64Array(n).fill(NaN)];
+    // reported sigmas: absolute per fix; a row without them gets the session median times its relative factor
     used.push('sd_east', 'sd_north');
     if (q.sdUp) used.push('sd_up');
+    const src = [q.sdEast, q.sdNorth, q.sdUp];
+    const med = src.map((a) => median(a));
+    const out = [0, 1, 2].map((a) => {
+      const f = new Float64Array(n);
+      const arr = src[a];
+      const m = Number.isFinite(med[a]!) ? med[a]! : a < 2 ? 1 : 2 * (Number.isFinite(med[0]!) ? med[0]! : 1);
+      for (let i = 0; i < n; i++) {
+        const v = arr ? arr[i]! : NaN;
+        f[i] = Number.isFinite(v) && v > 0 ? v : m * (a < 2 ? fh[i]! : fv[i]!);
+      }
+      return f;
+    }) as [Float64Array, Float64Array, Float64Array];
+    return { perAxis: out, reported: true, used };
   }
-  return { horizontal: fh, vertical: fv, reported, used };
+  return { perAxis: [fh, fh, fv], reported: false, used };
 }

@@ -7,11 +7,13 @@ import type { FixSeries } from '../input/fix-series.js';
 import { makeLocalFrame, sessionCentre } from '../geodesy/local-frame.js';
 import { geodesicLengthM } from '../geodesy/geodesic.js';
 import { makeAxisModel, type AxisModel } from '../models/axis-model.js';
-import { forwardFilter, type SegmentData, type FilterOptions } from '../estimation/track-filter.js';
-import { smoothInPlace } from '../estimation/track-smoother.js';
+import type { SegmentData, FilterOptions } from '../estimation/track-filter.js';
 import { errorEllipse } from '../output/ellipse.js';
 import { epochGrid, nominalIntervalSec, splitSegments } from './segments.js';
 import { fixSigmaFactors } from './fix-noise.js';
+import { calibrateSession } from './calibrate.js';
+import { adaptProcessNoise } from './adapt-process-noise.js';
+import { reviewSegment, type ReviewOptions } from './review.js';
 import { STATUS, type OutlierRecord, type SessionResult } from './result.js';
 
 /** Validity of each fix before filtering: finite, in range, not the (0, 0) "null island" placeholder. */
@@ -39,13 +41,14 @@ export interface AxisParams {
   gmTauSec: number;
 }
 
-export function axisParamsFromConfig(cfg: HindcastConfig): AxisParams {
+/** Model parameters from the configuration; with reported per-fix sigmas the white "sigma" is their scale. */
+export function axisParamsFromConfig(cfg: HindcastConfig, reportedSigmas = false): AxisParams {
   return {
     motion: cfg.model.motion,
     qHorizontal: cfg.model.qHorizontal,
     qVertical: cfg.model.qVertical,
-    sigmaHorizontalM: cfg.noise.horizontalSigmaM,
-    sigmaVerticalM: cfg.noise.verticalSigmaM,
+    sigmaHorizontalM: reportedSigmas ? cfg.noise.reportedSigmaScale : cfg.noise.horizontalSigmaM,
+    sigmaVerticalM: reportedSigmas ? cfg.noise.reportedSigmaScale : cfg.noise.verticalSigmaM,
     gmHorizontalSigmaM: cfg.noise.correlatedHorizontalSigmaM,
     gmVerticalSigmaM: cfg.noise.correlatedVerticalSigmaM,
     gmTauSec: cfg.noise.correlationTimeSec,
@@ -78,7 +81,6 @@ export interface PreparedSession {
   u: Float64Array;
   factors: ReturnType<typeof fixSigmaFactors>;
   intervalSec: number;
-  reportedSigmaScale: number;
   segments: Array<[number, number]>;
 }
 
@@ -114,7 +116,7 @@ export function prepareSession(s: FixSeries, cfg: HindcastConfig, userDecisions?
   }
   const intervalSec = nominalIntervalSec(s.tSec, offered);
   const segments = splitSegments(s.tSec, offered, cfg.segments.maxGapSec);
-  return { series: s, valid, invalidWhy: why, offered, forced, userRejected, frame, heightRefM, hasHeight, e, n, u, factors: fixSigmaFactors(s), intervalSec, reportedSigmaScale: cfg.noise.reportedSigmaScale, segments };
+  return { series: s, valid, invalidWhy: why, offered, forced, userRejected, frame, heightRefM, hasHeight, e, n, u, factors: fixSigmaFactors(s), intervalSec, segments };
 }
 
 /** Build the filter inputs of one segment. */
@@ -133,12 +135,9 @@ export function segmentData(ps: PreparedSession, seg: [number, number], p: AxisP
     z[0]![k] = ps.e[i]!;
     z[1]![k] = ps.n[i]!;
     if (nAx === 3) z[2]![k] = ps.u[i]!;
-    const rep = f.reported;
     for (let a = 0; a < nAx; a++) {
-      let sigma: number;
-      const reported = rep ? rep[a]![i]! : NaN;
-      if (Number.isFinite(reported) && reported > 0) sigma = reported * ps.reportedSigmaScale;
-      else sigma = a < 2 ? p.sigmaHorizontalM * f.horizontal[i]! : p.sigmaVerticalM * f.vertical[i]!;
+      // σ = base · factor (base: white sigma in m, or the scale of reported sigmas)
+      const sigma = (a < 2 ? p.sigmaHorizontalM : p.sigmaVerticalM) * f.perAxis[a]![i]!;
       r[a]![k] = sigma * sigma;
     }
   }
@@ -159,27 +158,86 @@ function median(v: number[]): number {
   return a[a.length >> 1]!;
 }
 
-/** Run the whole pipeline on one FixSeries. */
-export function processSession(series: FixSeries, cfg: HindcastConfig, name: string, userDecisions?: Map<number, 'keep' | 'reject'>): SessionResult {
-  const ps = prepareSession(series, cfg, userDecisions);
-  const p = axisParamsFromConfig(cfg);
-  return runPrepared(ps, cfg, p, name);
+/** Review settings from the configuration. */
+export function reviewOptions(cfg: HindcastConfig, intervalSec = 1): ReviewOptions {
+  return { probability: cfg.gate.probability, maxPasses: 10, guardSec: Math.max(5 * intervalSec, 5) };
 }
 
-export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisParams, name: string): SessionResult {
+/** Per-segment state carried between the stages of processSession. */
+interface SegmentPlan {
+  offered: Uint8Array;
+  qScale: Float64Array[] | null;
+  decisions?: { kept: Uint8Array; gateRejected: Uint8Array };
+}
+
+/**
+ * Run the whole pipeline on one FixSeries:
+ * 1. calibrate all noise parameters with one process-noise level (robust likelihood);
+ * 2. classify the fixes (forward gate + two-sided review) under that model;
+ * 3. estimate the manoeuvre-adapted process noise with those decisions held fixed;
+ * 4. calibrate the fix noise again under the adapted process noise;
+ * 5. review again under the final model and smooth.
+ */
+export function processSession(series: FixSeries, cfg: HindcastConfig, name: string, userDecisions?: Map<number, 'keep' | 'reject'>): SessionResult {
+  const ps = prepareSession(series, cfg, userDecisions);
+  const prior = axisParamsFromConfig(cfg, ps.factors.reported);
+  const ro = reviewOptions(cfg, ps.intervalSec);
+  const cal1 = calibrateSession(ps, cfg, prior);
+  let params = cal1.params;
+  let info = cal1.info;
+  const warnings = cal1.warnings;
+  // stage 2: classification under the single-level model, then the adapted process noise (stage 3)
+  let plans = classifyAndAdapt(ps, cfg, params, ro);
+  if (cal1.info.status === 'estimated') {
+    // stage 4: fix noise under the adapted process noise, decisions held fixed
+    const qs = new Map<number, Float64Array[]>();
+    const uses = new Map<number, Uint8Array>();
+    plans.forEach((pl, si) => {
+      if (pl.qScale) qs.set(si, pl.qScale);
+      uses.set(si, Uint8Array.from(pl.offered, (u, k) => (u === 0 ? 0 : pl.decisions!.kept[k] ? 2 : 0)));
+    });
+    const cal2 = calibrateSession(ps, cfg, prior, undefined, qs, params, true, uses);
+    params = cal2.params;
+    info = { ...cal2.info, estimates: { ...cal1.info.estimates, ...cal2.info.estimates }, evaluations: cal1.info.evaluations + cal2.info.evaluations };
+    // classify once more under the calibrated, adapted model (its lower base level makes bursts stand out)
+    plans = classifyAndAdapt(ps, cfg, params, ro, plans);
+  }
+  const r = runPrepared(ps, cfg, params, name, plans);
+  for (const w of warnings) r.warnings.push({ file: series.file, code: 'calibration', message: w });
+  r.info.calibration = info;
+  return r;
+}
+
+/** Classification (two-way gate + review) and the manoeuvre-adapted process noise of every segment. */
+function classifyAndAdapt(ps: PreparedSession, cfg: HindcastConfig, params: AxisParams, ro: ReviewOptions, previous?: SegmentPlan[]): SegmentPlan[] {
+  const opt = filterOptions(cfg, params);
+  const models = buildAxisModels(params, ps.hasHeight);
+  return ps.segments.map((seg, si) => {
+    const { data } = segmentData(ps, seg, params, cfg.segments.bridgeFactor);
+    const offered = data.use.slice();
+    const rev = reviewSegment(models, data, offered, opt, previous?.[si]?.qScale ?? null, ro);
+    const { qScale } = adaptProcessNoise(models, rev.data, opt);
+    return { offered, qScale, decisions: { kept: rev.kept, gateRejected: rev.gateRejected } };
+  });
+}
+
+/** Stage 5 and the products: final review and smoothing of every segment, then the SessionResult. */
+export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisParams, name: string, plans?: SegmentPlan[]): SessionResult {
   const s = ps.series;
   const models = buildAxisModels(p, ps.hasHeight);
   const opt = filterOptions(cfg, p);
+  const ro = reviewOptions(cfg, ps.intervalSec);
   const nAx = models.length;
-  // run every segment, collecting epochs
-  type SegOut = { data: SegmentData; fix: Int32Array; x: Float64Array[]; P: Float64Array[]; accepted: Uint8Array; nis: Float64Array; thr: Float64Array; dof: Uint8Array; reacq: number };
+  type SegOut = { data: SegmentData; fix: Int32Array; x: Float64Array[]; P: Float64Array[]; kept: Uint8Array; gateRejected: Uint8Array; T: Float64Array; thr: Float64Array; reacq: number };
   const segOuts: SegOut[] = [];
-  for (const seg of ps.segments) {
+  ps.segments.forEach((seg, si) => {
     const { data, fix } = segmentData(ps, seg, p, cfg.segments.bridgeFactor);
-    const h = forwardFilter(models, data, opt);
-    smoothInPlace(models, data, h, opt.qScale);
-    segOuts.push({ data, fix, x: h.x, P: h.P, accepted: h.accepted, nis: h.nis, thr: h.threshold, dof: h.dof, reacq: h.reacquired.length });
-  }
+    const plan = plans?.[si];
+    const offered = plan?.offered ?? data.use.slice();
+    const rev = reviewSegment(models, data, offered, opt, plan?.qScale ?? null, ro, plan?.decisions);
+    const h = rev.history;
+    segOuts.push({ data, fix, x: h.x, P: h.P, kept: rev.kept, gateRejected: rev.gateRejected, T: rev.T, thr: rev.threshold, reacq: h.reacquired.length });
+  });
   const N = segOuts.reduce((a, o) => a + o.data.N, 0);
   const mk = () => new Float64Array(N).fill(NaN);
   const res: SessionResult = {
@@ -205,6 +263,7 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
   const ellMaj: number[] = [];
   let sumR2 = 0, nR = 0, sumU2 = 0, nU = 0;
   const fixEpoch = new Int32Array(s.n).fill(-1);
+  const gateRejectedFix = new Uint8Array(s.n);
   segOuts.forEach((o, si) => {
     reacq += o.reacq;
     for (let k = 0; k < o.data.N; k++) {
@@ -213,7 +272,10 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
       res.segment[j] = si;
       const i = o.fix[k]!;
       res.fix[j] = i;
-      if (i >= 0) fixEpoch[i] = j;
+      if (i >= 0) {
+        fixEpoch[i] = j;
+        gateRejectedFix[i] = o.gateRejected[k]!;
+      }
       for (let a = 0; a < nAx; a++) {
         const n = models[a]!.n;
         res.posEnu[a]![j] = o.x[a]![k * n]!;
@@ -233,13 +295,13 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
       res.lonDeg[j] = ll[0]!;
       res.latDeg[j] = ll[1]!;
       if (ps.hasHeight) res.heightM[j] = res.posEnu[2]![j]! + ps.heightRefM;
-      res.nis[j] = o.nis[k]!;
+      res.nis[j] = o.T[k]!;
       res.nisThreshold[j] = o.thr[k]!;
       if (i < 0) res.status[j] = STATUS.bridged;
       else if (ps.userRejected[i]) res.status[j] = STATUS.userRejected;
       else if (!ps.offered[i]) res.status[j] = STATUS.outlier;
       else if (ps.forced[i]) res.status[j] = STATUS.userKept;
-      else res.status[j] = o.accepted[k] ? STATUS.kept : STATUS.outlier;
+      else res.status[j] = o.kept[k] ? STATUS.kept : STATUS.outlier;
       if (i >= 0 && (res.status[j] === STATUS.kept || res.status[j] === STATUS.userKept)) {
         const de = ps.e[i]! - res.posEnu[0]![j]!, dn = ps.n[i]! - res.posEnu[1]![j]!;
         sumR2 += de * de + dn * dn;
@@ -284,13 +346,19 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
       latDeg: s.latDeg[i]!,
       lonDeg: s.lonDeg[i]!,
       heightM: s.heightM ? s.heightM[i]! : NaN,
-      reason: isInvalid ? 'invalid' : byUser ? 'user' : 'innovation',
+      reason: isInvalid ? 'invalid' : byUser ? 'user' : gateRejectedFix[i] ? 'innovation' : 'review',
       statistic: isInvalid || byUser ? NaN : res.nis[j]!,
       threshold: isInvalid || byUser ? NaN : res.nisThreshold[j]!,
       dof: 0,
       offsetM,
       offsetUpM,
-      detail: isInvalid ? ps.invalidWhy[i]! : byUser ? 'rejected by the user (decisions file)' : 'normalized innovation squared above the chi-square gate',
+      detail: isInvalid
+        ? ps.invalidWhy[i]!
+        : byUser
+          ? 'rejected by the user (decisions file)'
+          : gateRejectedFix[i]
+            ? 'failed the forward chi-square gate and the two-sided review against the smoothed track'
+            : 'passed the forward gate but failed the two-sided review against the smoothed track',
     });
   }
   let kept = 0, outl = 0, bridged = 0;

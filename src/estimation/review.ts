@@ -1,0 +1,60 @@
+/**
+ * Two-sided review of a fix against the smoothed track.
+ * For a fix used by the smoother, the residual ν = z − H xˢ has covariance R − H Pˢ Hᵀ (the
+ * smoothed estimate already contains the fix); for a fix left out it is R + H Pˢ Hᵀ (the estimate
+ * is independent of it). T = Σ ν²/var over the measured axes is then χ²(m) under the model, a
+ * deletion-residual test in the sense of regression diagnostics.
+ * Source: de Jong, "The likelihood for a state space model", Biometrika 75:165–169 (1988) and
+ * de Jong & Penzer, "Diagnosing shocks in time series", JASA 93:796–806 (1998) (smoothed
+ * measurement disturbances and their variances); Teunissen, "Testing Theory" (2006), for the
+ * two-sided (detection, identification) use.
+ */
+import type { AxisModel } from '../models/axis-model.js';
+
+/** Smallest share of R kept in the kept-fix residual variance, so a fix that alone determines the track cannot produce an infinite statistic. */
+export const MIN_RESIDUAL_SHARE = 0.02;
+
+/**
+ * Statistic of epoch k. x and P hold smoothed states (N×n and N×n×n per axis). Returns T and writes
+ * the per-axis residuals into nuOut; dof through the return of countAxes.
+ */
+export function reviewStatistic(
+  models: AxisModel[],
+  x: Float64Array[],
+  P: Float64Array[],
+  k: number,
+  z: Float64Array[],
+  r: Float64Array[],
+  used: boolean,
+  nuOut: Float64Array,
+): { T: number; dof: number } {
+  let T = 0;
+  let dof = 0;
+  for (let a = 0; a < models.length; a++) {
+    const zk = z[a]![k]!;
+    if (!Number.isFinite(zk)) {
+      nuOut[a] = NaN;
+      continue;
+    }
+    const m = models[a]!;
+    const n = m.n;
+    const h = m.h;
+    let hx = 0;
+    let hph = 0;
+    for (let i = 0; i < n; i++) {
+      hx += h[i]! * x[a]![k * n + i]!;
+      let acc = 0;
+      for (let j = 0; j < n; j++) acc += P[a]![k * n * n + i * n + j]! * h[j]!;
+      hph += h[i]! * acc;
+    }
+    const rk = r[a]![k]!;
+    // ν = z − H xˢ
+    const nu = zk - hx;
+    // var(ν) = R ∓ H Pˢ Hᵀ
+    const v = used ? Math.max(rk - hph, MIN_RESIDUAL_SHARE * rk) : rk + hph;
+    nuOut[a] = nu;
+    T += (nu * nu) / v;
+    dof++;
+  }
+  return { T, dof };
+}

@@ -1,0 +1,231 @@
+/**
+ * Per-session noise calibration by maximum likelihood of the filter innovations (prediction-error
+ * decomposition of the Gaussian likelihood; Schweppe, "Evaluation of likelihood functions for
+ * Gaussian signals", IEEE Trans. IT-11:61–70, 1965; Harvey, "Forecasting, Structural Time Series
+ * Models and the Kalman Filter", 1989, §3.4). Parameters, in log space: white fix noise (horizontal,
+ * vertical; or the scale of reported sigmas), the sigma and correlation time of the Gauss–Markov fix
+ * error, and the process-noise densities. Maximized by Nelder–Mead; standard errors from the
+ * numerical Hessian (observed information).
+ * Robustness: fixes that fail the gate contribute a capped term (the gate threshold instead of their
+ * NIS), so outliers cannot inflate the noise; a weak log-normal prior (a factor of 10 at one sigma)
+ * around the profile keeps unidentifiable parameters physical on short logs; hard bounds keep
+ * every parameter physical. Too short a log falls back to the profile with a warning.
+ */
+import { Matrix, inverse } from 'ml-matrix';
+import type { HindcastConfig } from '../config/schema.js';
+import { nelderMead, numericalHessian } from '../estimation/nelder-mead.js';
+import { allocateHistory, forwardFilter, totalLogLik, type FilterHistory, type SegmentData } from '../estimation/track-filter.js';
+import { buildAxisModels, filterOptions, segmentData, type AxisParams, type PreparedSession } from './process-session.js';
+
+type ParamName = 'sigmaHorizontalM' | 'sigmaVerticalM' | 'gmHorizontalSigmaM' | 'gmVerticalSigmaM' | 'gmTauSec' | 'qHorizontal' | 'qVertical';
+
+/** Physical bounds of each parameter. */
+export const PARAM_BOUNDS: Record<ParamName, [number, number]> = {
+  sigmaHorizontalM: [0.005, 200],
+  sigmaVerticalM: [0.005, 400],
+  gmHorizontalSigmaM: [0.01, 100],
+  gmVerticalSigmaM: [0.01, 200],
+  gmTauSec: [2, 3600],
+  qHorizontal: [1e-6, 1e3],
+  qVertical: [1e-7, 1e3],
+};
+
+export interface ParamEstimate {
+  value: number;
+  /** Standard error (same unit); NaN where the information matrix was not positive definite. */
+  se: number;
+  /** True when the estimate sits at a bound (the standard error is then not meaningful). */
+  atBound: boolean;
+}
+
+export interface CalibrationInfo {
+  method: string;
+  status: 'estimated' | 'fallback';
+  reason?: string;
+  epochsUsed: number;
+  logLikelihood: number;
+  evaluations: number;
+  estimates: Partial<Record<ParamName, ParamEstimate>>;
+  /** Whether the white sigmas are a scale of the log's reported sigmas. */
+  reportedSigmaScale: boolean;
+}
+
+export interface CalibrationOptions {
+  maxEpochs: number;
+  minFixes: number;
+  minDurationSec: number;
+  maxEvaluations: number;
+}
+
+export const DEFAULT_CALIBRATION: CalibrationOptions = { maxEpochs: 20000, minFixes: 120, minDurationSec: 180, maxEvaluations: 900 };
+
+/**
+ * Prior spread (log space) per parameter. White noise and process noise are well identified by the
+ * data (the high-frequency scatter and the manoeuvres); the slow correlated error is hard to tell
+ * from slow motion with a single receiver, so its sigma and time constant lean on the profile unless
+ * a long log says otherwise.
+ */
+const PRIOR_LOG_SD: Record<ParamName, number> = {
+  sigmaHorizontalM: Math.log(10),
+  sigmaVerticalM: Math.log(10),
+  gmHorizontalSigmaM: Math.log(2),
+  gmVerticalSigmaM: Math.log(2),
+  gmTauSec: Math.log(2),
+  qHorizontal: Math.log(10),
+  qVertical: Math.log(10),
+};
+
+/** Segment data of the calibration subset: segments in order, the last one truncated, with their index. */
+function calibrationSubset(ps: PreparedSession, base: AxisParams, bridgeFactor: number, maxEpochs: number): Array<{ seg: number; data: SegmentData }> {
+  const out: Array<{ seg: number; data: SegmentData }> = [];
+  let total = 0;
+  // unit white sigma: the objective scales the variances per evaluation
+  const unit = { ...base, sigmaHorizontalM: 1, sigmaVerticalM: 1 };
+  for (let si = 0; si < ps.segments.length && total < maxEpochs; si++) {
+    const { data } = segmentData(ps, ps.segments[si]!, unit, bridgeFactor);
+    const N = Math.min(data.N, maxEpochs - total);
+    if (N < 3) continue;
+    out.push({ seg: si, data: N === data.N ? data : { N, tSec: data.tSec.subarray(0, N), z: data.z.map((a) => a.subarray(0, N)), r: data.r.map((a) => a.subarray(0, N)), use: data.use.subarray(0, N) } });
+    total += N;
+  }
+  return out;
+}
+
+/** Robust spread (m) of the horizontal fixes: the larger of the 5–95 % ranges of east and north. */
+function horizontalExtentM(ps: PreparedSession): number {
+  const ext = (a: Float64Array) => {
+    const v = Array.from(a).filter((x, i) => ps.offered[i] && Number.isFinite(x)).sort((x, y) => x - y);
+    if (v.length < 2) return 0;
+    return v[Math.floor(0.95 * (v.length - 1))]! - v[Math.floor(0.05 * (v.length - 1))]!;
+  };
+  return Math.max(ext(ps.e), ext(ps.n));
+}
+
+/**
+ * Estimate the session's parameters. With `qScale` (per segment, from the manoeuvre adaptation) the
+ * process noise is held at the given time-varying level and only the fix-noise parameters are
+ * estimated; without it the global process-noise densities are estimated too.
+ */
+export function calibrateSession(
+  ps: PreparedSession,
+  cfg: HindcastConfig,
+  prior: AxisParams,
+  opt: CalibrationOptions = DEFAULT_CALIBRATION,
+  qScale?: Map<number, Float64Array[]>,
+  start?: AxisParams,
+  estimateQ = !qScale,
+  useOverride?: Map<number, Uint8Array>,
+): { params: AxisParams; info: CalibrationInfo; warnings: string[] } {
+  const warnings: string[] = [];
+  const fallback = (reason: string): { params: AxisParams; info: CalibrationInfo; warnings: string[] } => {
+    warnings.push(`noise calibration skipped: ${reason}; the profile's values are used`);
+    return { params: prior, info: { method: 'profile values', status: 'fallback', reason, epochsUsed: 0, logLikelihood: NaN, evaluations: 0, estimates: {}, reportedSigmaScale: ps.factors.reported }, warnings };
+  };
+  let offered = 0;
+  let t0 = Infinity, t1 = -Infinity;
+  for (let i = 0; i < ps.series.n; i++)
+    if (ps.offered[i]) {
+      offered++;
+      t0 = Math.min(t0, ps.series.tSec[i]!);
+      t1 = Math.max(t1, ps.series.tSec[i]!);
+    }
+  if (offered < opt.minFixes) return fallback(`only ${offered} usable fixes (needs ${opt.minFixes})`);
+  if (t1 - t0 < opt.minDurationSec) return fallback(`only ${Math.round(t1 - t0)} s of fixes (needs ${opt.minDurationSec} s)`);
+
+  const names: ParamName[] = ['sigmaHorizontalM', 'gmHorizontalSigmaM', 'gmTauSec'];
+  if (ps.hasHeight) names.splice(1, 0, 'sigmaVerticalM'), names.push('gmVerticalSigmaM');
+  const staticLog = horizontalExtentM(ps) < 6 * prior.sigmaHorizontalM;
+  if (staticLog) warnings.push('the log looks static (fixes spread less than a few sigmas): process noise kept at the profile values');
+  else if (estimateQ) {
+    names.push('qHorizontal');
+    if (ps.hasHeight) names.push('qVertical');
+  }
+  const subset = calibrationSubset(ps, prior, cfg.segments.bridgeFactor, opt.maxEpochs);
+  // held-fixed outlier decisions (2 kept without gate, 0 rejected) replace the gate when given
+  if (useOverride)
+    for (const item of subset) {
+      const u = useOverride.get(item.seg);
+      if (u) item.data = { ...item.data, use: u.subarray(0, item.data.N) };
+    }
+  const epochsUsed = subset.reduce((a, d) => a + d.data.N, 0);
+  const clampLog = (nm: ParamName, v: number) => Math.log(Math.min(Math.max(v, PARAM_BOUNDS[nm][0]), PARAM_BOUNDS[nm][1]));
+  // the prior is centred on the profile; the search starts from `start` (an earlier round) when given
+  const xPrior = names.map((nm) => clampLog(nm, prior[nm]));
+  const x0 = names.map((nm) => clampLog(nm, (start ?? prior)[nm]));
+  const base = start ?? prior;
+  const histories = new Map<SegmentData, FilterHistory>();
+  const fopt = filterOptions(cfg, prior);
+
+  const toParams = (x: number[]): AxisParams => {
+    const p = { ...base };
+    names.forEach((nm, i) => (p[nm] = Math.exp(x[i]!)));
+    return p;
+  };
+  const negLogLik = (x: number[]): number => {
+    for (let i = 0; i < names.length; i++) {
+      const [lo, hi] = PARAM_BOUNDS[names[i]!];
+      if (x[i]! < Math.log(lo) || x[i]! > Math.log(hi)) return Infinity;
+    }
+    const p = toParams(x);
+    const models = buildAxisModels(p, ps.hasHeight);
+    const rScale = [p.sigmaHorizontalM ** 2, p.sigmaHorizontalM ** 2, p.sigmaVerticalM ** 2];
+    let ll = 0;
+    for (const { seg, data: d } of subset) {
+      let h = histories.get(d);
+      if (!h || h.x[0]!.length !== d.N * models[0]!.n) {
+        h = allocateHistory(d.N, models);
+        histories.set(d, h);
+      }
+      h.extraQ.clear();
+      h.reacquired.length = 0;
+      // no re-acquisition here: its covariance inflation would explain manoeuvres for free
+      forwardFilter(models, d, { ...fopt, rScale, reacquireAfter: Number.MAX_SAFE_INTEGER, qScale: qScale?.get(seg) ?? null }, h);
+      ll += totalLogLik(h);
+    }
+    // weak log-normal prior around the profile
+    let pen = 0;
+    for (let i = 0; i < names.length; i++) pen += 0.5 * ((x[i]! - xPrior[i]!) / PRIOR_LOG_SD[names[i]!]) ** 2;
+    return -ll + pen;
+  };
+  // two restarts: the second from the first optimum, which escapes early simplex collapse
+  let res = nelderMead(negLogLik, x0, { step: names.map(() => 0.7), maxEvaluations: Math.floor(opt.maxEvaluations * 0.6), fTolerance: 1e-4, xTolerance: 1e-3 });
+  const res2 = nelderMead(negLogLik, res.x, { step: names.map(() => 0.25), maxEvaluations: Math.floor(opt.maxEvaluations * 0.4), fTolerance: 1e-5, xTolerance: 1e-4 });
+  const evaluations = res.evaluations + res2.evaluations;
+  if (res2.f <= res.f) res = res2;
+  const params = toParams(res.x);
+  // standard errors from the observed information (Hessian of −log L in log space)
+  const estimates: CalibrationInfo['estimates'] = {};
+  let seLog: number[] = names.map(() => NaN);
+  try {
+    const H = numericalHessian(negLogLik, res.x, names.map(() => 0.02));
+    if (H.every((row) => row.every(Number.isFinite))) {
+      const C = inverse(new Matrix(H));
+      seLog = names.map((_, i) => {
+        const v = C.get(i, i);
+        return v > 0 ? Math.sqrt(v) : NaN;
+      });
+    }
+  } catch {
+    /* singular information matrix: standard errors stay NaN */
+  }
+  names.forEach((nm, i) => {
+    const v = params[nm];
+    const [lo, hi] = PARAM_BOUNDS[nm];
+    const atBound = v <= lo * 1.05 || v >= hi / 1.05;
+    // delta method: se(θ) ≈ θ · se(log θ)
+    estimates[nm] = { value: v, se: v * seLog[i]!, atBound };
+  });
+  return {
+    params,
+    info: {
+      method: 'maximum likelihood of the filter innovations (Nelder–Mead), capped outlier terms, weak prior',
+      status: 'estimated',
+      epochsUsed,
+      logLikelihood: -res.f,
+      evaluations,
+      estimates,
+      reportedSigmaScale: ps.factors.reported,
+    },
+    warnings,
+  };
+}

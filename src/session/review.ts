@@ -1,0 +1,149 @@
+/**
+ * The outlier review loop of one segment: forward gate first, then repeated smoothing in which every
+ * fix is tested against the smoothed track (estimation/review.ts). Kept fixes that fail are
+ * rejected (reason "review"), rejected fixes that pass are re-admitted, and the decisions are fed
+ * back as fixed (no forward gate) until nothing changes or maxPasses is reached. Re-admission is
+ * what undoes a cascade of rejections after a manoeuvre or a gap; rejection catches bursts that the
+ * forward gate let through.
+ * To avoid swamping, only the worst failing fix within a guard time is rejected per pass (its
+ * neighbours are judged again once it no longer pulls the track).
+ */
+import type { AxisModel } from '../models/axis-model.js';
+import { chiSquareQuantile } from '../estimation/chi-square.js';
+import { forwardFilter, type FilterHistory, type FilterOptions, type SegmentData } from '../estimation/track-filter.js';
+import { smoothInPlace } from '../estimation/track-smoother.js';
+import { reviewStatistic } from '../estimation/review.js';
+
+export interface ReviewOutcome {
+  history: FilterHistory;
+  /** Data with the final decisions in `use` (2 kept, 0 rejected or no fix). */
+  data: SegmentData;
+  /** Final decision per epoch: 1 kept, 0 not used. */
+  kept: Uint8Array;
+  /** Rejected by the forward gate in the first pass. */
+  gateRejected: Uint8Array;
+  /** Review statistic, its dof and threshold per epoch (NaN where no fix). */
+  T: Float64Array;
+  dof: Uint8Array;
+  threshold: Float64Array;
+  passes: number;
+}
+
+export interface ReviewOptions {
+  probability: number;
+  maxPasses: number;
+  /** Only one fix is rejected per pass within this many seconds (masking guard). */
+  guardSec: number;
+}
+
+/**
+ * @param offered the original use flags (0 none/user-rejected, 1 fix, 2 user-kept)
+ * @param initial optional starting decisions (1 kept / 0 rejected per epoch) instead of the forward gate
+ */
+export function reviewSegment(
+  models: AxisModel[],
+  data: SegmentData,
+  offered: Uint8Array,
+  opt: FilterOptions,
+  qScale: Float64Array[] | null,
+  ro: ReviewOptions,
+  initial?: { kept: Uint8Array; gateRejected: Uint8Array },
+): ReviewOutcome {
+  const N = data.N;
+  const work: SegmentData = { ...data, use: offered.slice() };
+  let h: FilterHistory;
+  const gateRejected = new Uint8Array(N);
+  const kept = new Uint8Array(N);
+  if (initial) {
+    for (let k = 0; k < N; k++) {
+      kept[k] = offered[k] === 2 ? 1 : offered[k] ? initial.kept[k]! : 0;
+      gateRejected[k] = initial.gateRejected[k]!;
+    }
+  } else {
+    // gate both ways: a burst that opens the forward gate (the prediction's covariance grows while
+    // its first fixes are rejected) is met from the other side by the time-reversed filter
+    h = forwardFilter(models, work, { ...opt, qScale });
+    const back = forwardFilter(models, reversed(work), { ...opt, qScale: qScale ? qScale.map(reverseShift) : null });
+    for (let k = 0; k < N; k++) {
+      const both = h.accepted[k]! && back.accepted[N - 1 - k]!;
+      kept[k] = offered[k] === 2 ? 1 : offered[k] ? both : 0;
+      if (offered[k] === 1 && !both) gateRejected[k] = 1;
+    }
+  }
+  const thr = [Infinity, 1, 2, 3].map((d) => (d === 0 ? Infinity : chiSquareQuantile(ro.probability, d)));
+  // hysteresis: a rejected fix comes back only when clearly consistent (ten times the false-alarm rate)
+  const readmitP = Math.max(0.5, 1 - 10 * (1 - ro.probability));
+  const thrIn = [Infinity, 1, 2, 3].map((d) => (d === 0 ? Infinity : chiSquareQuantile(readmitP, d)));
+  const T = new Float64Array(N).fill(NaN);
+  const dof = new Uint8Array(N);
+  const threshold = new Float64Array(N).fill(NaN);
+  const nu = new Float64Array(models.length);
+  let passes = 0;
+  let histBuf: FilterHistory | undefined;
+  for (;;) {
+    passes++;
+    for (let k = 0; k < N; k++) work.use[k] = offered[k] === 0 ? 0 : kept[k] ? 2 : 0;
+    if (histBuf) {
+      histBuf.extraQ.clear();
+      histBuf.reacquired.length = 0;
+    }
+    h = forwardFilter(models, work, { ...opt, qScale }, histBuf);
+    histBuf = h;
+    smoothInPlace(models, work, h, qScale);
+    if (passes > ro.maxPasses) break;
+    // test every offered fix
+    const fail = new Uint8Array(N);
+    for (let k = 0; k < N; k++) {
+      if (offered[k] !== 1) continue;
+      const s = reviewStatistic(models, h.x, h.P, k, data.z, data.r, kept[k] === 1, nu);
+      T[k] = s.T;
+      dof[k] = s.dof;
+      threshold[k] = thr[s.dof]!;
+      if (s.dof > 0 && s.T > thr[s.dof]!) fail[k] = 1;
+    }
+    let changed = false;
+    // re-admit every rejected fix that now passes clearly
+    for (let k = 0; k < N; k++)
+      if (offered[k] === 1 && !kept[k] && dof[k] > 0 && T[k]! <= thrIn[dof[k]!]!) {
+        kept[k] = 1;
+        changed = true;
+      }
+    // reject failing kept fixes that are the worst within ±guard of each other (local maxima of
+    // T/threshold): a burst pulls the track toward itself and makes its good neighbours fail too, so
+    // removing only the worst one per neighbourhood per pass avoids swamping them
+    const cand: number[] = [];
+    for (let k = 0; k < N; k++) if (fail[k] && kept[k] && offered[k] === 1) cand.push(k);
+    cand.sort((p, q) => T[q]! / threshold[q]! - T[p]! / threshold[p]!);
+    const taken: number[] = [];
+    for (const k of cand) {
+      const tk = data.tSec[k]!;
+      if (taken.some((j) => Math.abs(data.tSec[j]! - tk) <= ro.guardSec)) continue;
+      taken.push(k);
+      kept[k] = 0;
+      changed = true;
+    }
+    if (!changed) break;
+  }
+  for (let k = 0; k < N; k++) work.use[k] = offered[k] === 0 ? 0 : kept[k] ? 2 : 0;
+  return { history: h!, data: work, kept, gateRejected, T, dof, threshold, passes };
+}
+
+/** The segment in reverse time order (t → −t), for the time-reversed filter; the models are time-symmetric. */
+export function reversed(d: SegmentData): SegmentData {
+  const N = d.N;
+  const rev = (a: Float64Array) => Float64Array.from({ length: N }, (_, i) => a[N - 1 - i]!);
+  return {
+    N,
+    tSec: Float64Array.from({ length: N }, (_, i) => -d.tSec[N - 1 - i]!),
+    z: d.z.map(rev),
+    r: d.r.map(rev),
+    use: Uint8Array.from({ length: N }, (_, i) => d.use[N - 1 - i]!),
+  };
+}
+
+/** A per-step array (entry k belongs to the step k−1 → k) in reverse order. */
+function reverseShift(a: Float64Array): Float64Array {
+  const N = a.length;
+  // reversed index i is original N−1−i; the reversed step i−1 → i is the original step N−i → N−1−i, stored at N−i
+  return Float64Array.from({ length: N }, (_, i) => (i === 0 ? 1 : a[N - i]!));
+}
