@@ -10,7 +10,6 @@ import { buildSummary, toJson, type BatchSummary } from '../output/summary.js';
 import { cleanTemporaries, writeFileAtomic } from './atomic-write.js';
 import { bySessionName } from './discover.js';
 import { readEntry } from './manifest.js';
-import { loadReportModule } from './optional.js';
 import { buildReport } from './run-batch.js';
 import { SHARD_SUMMARY_RE } from './shard.js';
 
@@ -85,9 +84,8 @@ export async function joinShards(outDir: string): Promise<JoinResult> {
   const res: JoinResult = { summary, exitCode: summary.totals.failed > 0 ? 1 : 0, summaryPath };
   const okName = sessions.find((s) => s.status === 'ok')?.name;
   const reportWanted = okName === undefined || (await readEntry(out, okName))?.config.output.report !== false;
-  const report = reportWanted ? await loadReportModule() : null;
-  if (report) {
-    const err = await buildReport(out, summary, report);
+  if (reportWanted) {
+    const err = await buildReport(out, summary);
     if (err) {
       res.reportError = err;
       res.exitCode = 1;

@@ -73,8 +73,14 @@ export function canonicalJson(v: unknown): string {
   });
 }
 
+/**
+ * Hash of the settings a session's outputs depend on: the whole effective configuration except
+ * `output.report` (whether report.html is drawn at the end; a session that lacks the report's data
+ * is redone anyway when the report is switched on).
+ */
 export function configHash(cfg: HindcastConfig): string {
-  return createHash('sha256').update(canonicalJson(cfg)).digest('hex');
+  const { report: _report, ...output } = cfg.output;
+  return createHash('sha256').update(canonicalJson({ ...cfg, output })).digest('hex');
 }
 
 function stateFile(out: string, kind: 'manifest' | 'payloads', name: string, ext: string): string {

@@ -14,6 +14,7 @@ import pLimit from 'p-limit';
 import type { HindcastConfig } from '../config/schema.js';
 import { UsageError } from '../errors.js';
 import { buildSummary, toJson, type BatchSummary, type SessionSummary } from '../output/summary.js';
+import type { ReportPayload } from '../output/report/payload.js';
 import { VERSION } from '../version.js';
 import { cleanTemporaries, writeFileAtomic } from './atomic-write.js';
 import { discover, type SessionInput } from './discover.js';
@@ -31,7 +32,6 @@ import {
   type InputHash,
   type ManifestEntry,
 } from './manifest.js';
-import { loadReportModule } from './optional.js';
 import { inProcessRunner, threadRunner, type SessionRunner } from './runner.js';
 import { failedEntry, outputNames, outputPaths, removeSessionOutputs, type SessionTask } from './session-task.js';
 import { inShard, shardOf, shardSummaryName, SHARD_SUMMARY_RE, type Shard } from './shard.js';
@@ -176,7 +176,7 @@ export async function runBatch(opt: BatchOptions): Promise<BatchResult> {
   const inputIsFolder = (await stat(opt.input)).isDirectory();
   const inputFiles = new Set(found.sessions.flatMap((s) => [s.path, ...s.companions.map((c) => c.path)]));
   const cfgHash = configHash(opt.config);
-  const report = opt.config.output.report === false ? null : await loadReportModule();
+  const report = opt.config.output.report;
 
   // plan: hash inputs, compare with the manifest
   const firstOfName = new Map<string, string>();
@@ -207,7 +207,7 @@ export async function runBatch(opt: BatchOptions): Promise<BatchResult> {
         }
         p.inputs = await hashInputs(p.si);
         p.entry = await readEntry(out, p.si.name);
-        p.stale = opt.force ? 'forced' : await staleReason(out, p.entry, { version: VERSION, configHash: cfgHash, inputs: p.inputs, needPayload: report !== null });
+        p.stale = opt.force ? 'forced' : await staleReason(out, p.entry, { version: VERSION, configHash: cfgHash, inputs: p.inputs, needPayload: report });
       }),
     ),
   );
@@ -237,14 +237,16 @@ export async function runBatch(opt: BatchOptions): Promise<BatchResult> {
           await removePayload(out, name);
           opt.onEvent?.({ type: 'start', name, input: p.si.relPath });
           const decisions = p.si.companions.find((c) => c.suffix === '.decisions.csv');
+          const imu = p.si.companions.find((c) => c.suffix === '.imu.csv');
           const task: SessionTask = {
             name,
             path: p.si.path,
             relPath: p.si.relPath,
             ...(decisions ? { decisionsPath: decisions.path } : {}),
+            ...(imu ? { imuPath: imu.path } : {}),
             out,
             config: opt.config,
-            withPayload: report !== null,
+            withPayload: report,
           };
           const r = await runner!.run(task);
           if (r.summary.status === 'failed') await removeSessionOutputs(out, name);
@@ -290,7 +292,7 @@ export async function runBatch(opt: BatchOptions): Promise<BatchResult> {
     summaryPath,
   };
   if (report && !shard) {
-    const err = await buildReport(out, summary, report);
+    const err = await buildReport(out, summary);
     if (err) {
       res.reportError = err;
       res.exitCode = 1;
@@ -301,18 +303,20 @@ export async function runBatch(opt: BatchOptions): Promise<BatchResult> {
 }
 
 /** Load the saved payloads of the ok sessions and write the report; returns an error message or null. */
-export async function buildReport(out: string, summary: BatchSummary, report: NonNullable<Awaited<ReturnType<typeof loadReportModule>>>): Promise<string | null> {
+export async function buildReport(out: string, summary: BatchSummary): Promise<string | null> {
   try {
-    const payloads = new Map<string, unknown>();
+    // loaded on demand: the chart library is large, and runs without a report never need it
+    const { writeReport } = await import('../output/report/write-report.js');
+    const payloads = new Map<string, ReportPayload>();
     for (const s of summary.sessions) {
       if (s.status !== 'ok') continue;
       try {
-        payloads.set(s.name, await readPayload(out, s.name));
+        payloads.set(s.name, (await readPayload(out, s.name)) as ReportPayload);
       } catch {
         /* a session without report data is left out of the report */
       }
     }
-    await report.writeReport(out, summary, payloads);
+    await writeReport(out, summary, payloads);
     return null;
   } catch (e) {
     return (e as Error)?.message ?? String(e);

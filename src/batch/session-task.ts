@@ -1,25 +1,28 @@
 /**
- * One session from log to outputs: read, (user decisions), process, write every output atomically,
- * and compute the report payload. Runs inside a worker thread (worker.ts) or in-process; it takes
- * and returns only structured-clone-safe data, and returns the summary entry and the small
- * payload instead of the SessionResult, so the batch's memory does not grow with its size.
+ * One session from log to outputs: read, user decisions (`<stem>.decisions.csv`), process (with
+ * the IMU when `<stem>.imu.csv` lies beside the log), write every output atomically, and compute
+ * the report payload. Runs inside a worker thread (worker.ts) or in-process; it takes and returns
+ * only structured-clone-safe data, and returns the summary entry and the small payload instead of
+ * the SessionResult, so the batch's memory does not grow with its size.
  */
-import { rm } from 'node:fs/promises';
+import { rm, stat } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { HindcastConfig } from '../config/schema.js';
 import { ConfigError, InputError, NumericalError } from '../errors.js';
 import type { InputWarning } from '../errors.js';
 import { readFixLog } from '../input/read-log.js';
+import { readDecisions } from '../input/decisions-csv.js';
 import { processSession } from '../session/process-session.js';
+import { processImuSession } from '../session/imu-session.js';
 import type { SessionResult } from '../session/result.js';
 import { trackCsvChunks } from '../output/track-csv.js';
 import { outliersCsv } from '../output/outliers-csv.js';
-import { sessionGeoJson } from '../output/geojson.js';
+import { geoJsonOptions, sessionGeoJsonText } from '../output/geojson.js';
+import { sessionGpx } from '../output/gpx.js';
+import { reportPayload } from '../output/report/payload.js';
 import { okEntry, type SessionSummary } from '../output/summary.js';
 import { writeChunksAtomic, writeFileAtomic } from './atomic-write.js';
-import { loadDecisionsReader, loadReportModule } from './optional.js';
 import type { OutputFile } from './manifest.js';
-import { stat } from 'node:fs/promises';
 
 export interface SessionTask {
   name: string;
@@ -29,10 +32,12 @@ export interface SessionTask {
   relPath: string;
   /** Absolute path of `<stem>.decisions.csv`, when there is one. */
   decisionsPath?: string;
+  /** Absolute path of `<stem>.imu.csv`, when there is one. */
+  imuPath?: string;
   /** Absolute output folder. */
   out: string;
   config: HindcastConfig;
-  /** Compute a report payload (the report module is present and the report is on). */
+  /** Compute a report payload (the report is on). */
   withPayload: boolean;
 }
 
@@ -44,16 +49,23 @@ export interface SessionOutcome {
   settled: boolean;
 }
 
-/** Output files of a session, relative to the output folder ("/"-separated). */
-export function outputNames(name: string): { track: string; outliers: string; geojson: string } {
-  return { track: `${name}.track.csv`, outliers: `${name}.outliers.csv`, geojson: `${name}.geojson` };
+export interface SessionFiles {
+  track: string;
+  outliers: string;
+  geojson: string;
+  gpx: string;
 }
 
-/** Output file paths of a session. */
-export function outputPaths(out: string, name: string): { track: string; outliers: string; geojson: string } {
+/** Every output a session may have (the GPX only with output.gpx), relative to the output folder ("/"-separated). */
+export function outputNames(name: string): SessionFiles {
+  return { track: `${name}.track.csv`, outliers: `${name}.outliers.csv`, geojson: `${name}.geojson`, gpx: `${name}.gpx` };
+}
+
+/** The same as absolute paths. */
+export function outputPaths(out: string, name: string): SessionFiles {
   const n = outputNames(name);
   const abs = (rel: string): string => join(out, ...rel.split('/'));
-  return { track: abs(n.track), outliers: abs(n.outliers), geojson: abs(n.geojson) };
+  return { track: abs(n.track), outliers: abs(n.outliers), geojson: abs(n.geojson), gpx: abs(n.gpx) };
 }
 
 /** Write the outputs of one session (each atomically); returns them relative to `out` with sizes. */
@@ -62,10 +74,14 @@ export async function writeSessionOutputs(out: string, r: SessionResult, cfg: Hi
   const p = outputPaths(out, r.name);
   await writeChunksAtomic(p.track, trackCsvChunks(r));
   await writeFileAtomic(p.outliers, outliersCsv(r));
-  await writeFileAtomic(p.geojson, JSON.stringify(sessionGeoJson(r, { decimals: cfg.output.geojsonDecimals })) + '\n');
+  await writeFileAtomic(p.geojson, sessionGeoJsonText(r, geoJsonOptions(cfg)));
+  const written: Array<keyof SessionFiles> = ['track', 'outliers', 'geojson'];
+  if (cfg.output.gpx) {
+    await writeFileAtomic(p.gpx, sessionGpx(r, { decimals: cfg.output.geojsonDecimals }));
+    written.push('gpx');
+  } else await rm(p.gpx, { force: true }); // from an earlier run with output.gpx
   const files: OutputFile[] = [];
-  for (const [rel, abs] of [[n.track, p.track], [n.outliers, p.outliers], [n.geojson, p.geojson]] as const)
-    files.push({ file: rel, size: (await stat(abs)).size });
+  for (const k of written) files.push({ file: n[k], size: (await stat(p[k])).size });
   return files;
 }
 
@@ -89,19 +105,11 @@ export async function runSessionTask(t: SessionTask): Promise<SessionOutcome> {
   const t0 = performance.now();
   try {
     const series = await readFixLog(t.path, t.relPath, t.config);
-    let decisions: Map<number, 'keep' | 'reject'> | undefined;
-    if (t.decisionsPath) {
-      const readDecisions = await loadDecisionsReader();
-      if (readDecisions) decisions = await readDecisions(t.decisionsPath, series);
-      else
-        series.warnings.push({
-          file: t.relPath,
-          code: 'decisions-unsupported',
-          message: 'a decisions file lies beside this log but this build cannot read decisions files; it was ignored',
-        });
-    }
-    const r = processSession(series, t.config, t.name, decisions);
-    const payload = t.withPayload ? (await loadReportModule())?.reportPayload(r) : undefined;
+    const decisions = t.decisionsPath ? readDecisions(t.decisionsPath, series) : undefined;
+    const r = t.imuPath
+      ? await processImuSession(series, t.imuPath, t.config, t.name, decisions)
+      : processSession(series, t.config, t.name, decisions);
+    const payload = t.withPayload ? reportPayload(r, { maxPoints: t.config.output.reportMaxPoints }) : undefined;
     const outputs = await writeSessionOutputs(t.out, r, t.config);
     const summary = okEntry(r, t.relPath, outputs.map((o) => o.file), round3((performance.now() - t0) / 1000));
     return { summary, outputs, payload, settled: false };
