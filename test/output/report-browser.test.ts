@@ -67,12 +67,13 @@ describe.skipIf(SKIP_SYSTEM_TOOLS)('report.html in headless Chromium', () => {
   });
 
   test('every session section has all its plots drawn, with visible size', async () => {
-    const counts = await page.$$eval('section.session', (secs) =>
+    // (runs in the page; typed loosely since the tests compile without the DOM library)
+    const counts = await page.$$eval('section.session', (secs: any[]) =>
       secs.map((s) => ({
         name: s.getAttribute('data-session'),
         failed: s.classList.contains('failed'),
         svgs: s.querySelectorAll('figure.plot svg').length,
-        drawn: Array.from(s.querySelectorAll('figure.plot svg')).filter((svg) => {
+        drawn: Array.from(s.querySelectorAll('figure.plot svg') as any[]).filter((svg) => {
           const r = svg.getBoundingClientRect();
           return r.width > 300 && r.height > 100 && svg.querySelectorAll('path').length > 5;
         }).length,
@@ -94,7 +95,7 @@ describe.skipIf(SKIP_SYSTEM_TOOLS)('report.html in headless Chromium', () => {
   test('the overview sorts by a column, both ways', async () => {
     const col = await page.$$eval('#overview thead th', (ths) => ths.findIndex((th) => th.textContent?.trim() === 'flagged'));
     expect(col).toBeGreaterThan(0);
-    const values = () => page.$$eval('#overview tbody tr', (rows, c) => rows.map((r) => (r as HTMLTableRowElement).cells[c as number]!.getAttribute('data-sort') ?? ''), col);
+    const values = () => page.$$eval('#overview tbody tr', (rows, c) => rows.map((r) => r.children[c as number]!.getAttribute('data-sort') ?? ''), col);
     const btn = page.locator('#overview thead th').nth(col).locator('button');
     await btn.click();
     const asc = await values();
