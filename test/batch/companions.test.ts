@@ -79,3 +79,19 @@ describe('spreadsheet formulas', () => {
     }
   });
 });
+
+describe('IMU beside a log', () => {
+  it('<stem>.imu.csv makes that session IMU-aided; the log without one stays fixes-only', async () => {
+    const { defaultImuSpec, imuScenarioFixCsv, simulateImuScenario, writeImuCsv } = await import('../../src/simulate/imu.js');
+    const input = join(root, 'in');
+    await writeSessions(input, 1);
+    const sc = simulateImuScenario(defaultImuSpec(77, { durationSec: 60 }));
+    await writeFile(join(input, 'drive.csv'), imuScenarioFixCsv(sc));
+    writeImuCsv(sc, join(input, 'drive.imu.csv'));
+    const r = await runBatch({ input, out: join(root, 'out'), config: loadConfig({ profile: 'vehicle', overrides: { output: { report: false } } }) });
+    const byName = new Map(r.summary.sessions.map((s) => [s.name, s]));
+    expect(byName.get('drive')!.status).toBe('ok');
+    expect(byName.get('drive')!.info).toHaveProperty('imu');
+    expect(byName.get('log00')!.info).not.toHaveProperty('imu');
+  });
+});
