@@ -83,6 +83,14 @@ export async function main(argv: string[]): Promise<number> {
       if (o.strict) overrides.input = { strict: true };
       const config = loadConfig({ profile: o.profile, configFile: o.config, overrides });
       const progress = makeProgress({ quiet: !!o.quiet, tty: !!process.stderr.isTTY, out: process.stdout, err: process.stderr });
+      // Ctrl-C / a scheduler's TERM: every output so far is complete (atomic writes), so stop at once
+      const interrupted = (signal: NodeJS.Signals): void => {
+        progress.stop();
+        process.stderr.write(`\nhindcast: interrupted (${signal}); run the same command again to resume\n`);
+        process.exit(signal === 'SIGINT' ? 130 : 143);
+      };
+      process.once('SIGINT', interrupted);
+      process.once('SIGTERM', interrupted);
       let res;
       try {
         res = await runBatch({
@@ -98,6 +106,8 @@ export async function main(argv: string[]): Promise<number> {
         });
       } finally {
         progress.stop();
+        process.off('SIGINT', interrupted);
+        process.off('SIGTERM', interrupted);
       }
       if (res.reportError) process.stderr.write(`hindcast: the report could not be written: ${res.reportError}\n`);
       if (o.quiet) for (const s of res.summary.sessions) if (s.status === 'failed') process.stderr.write(`${s.name}: ${s.reason}\n`);
