@@ -28,9 +28,33 @@ export function session(kind: 'walk' | 'vehicle' | 'drone', seed: number, over: 
   return f;
 }
 
-/** A batch of three ok sessions (one long enough to be thinned) and one failed session. */
+/**
+ * A result with the optional IMU fields filled with smooth made-up values (the report only draws
+ * them; the IMU pipeline has its own tests).
+ */
+export function withImu(r: SessionResult, name = `${r.name}-imu`): SessionResult {
+  const N = r.N;
+  const wave = (amp: number, periodSec: number, off = 0) => Float64Array.from(r.tSec, (t) => off + amp * Math.sin((2 * Math.PI * (t - r.tSec[0]!)) / periodSec));
+  const heading = Float64Array.from(r.tSec, (t) => (((t - r.tSec[0]!) * 1.7) % 360 + 360) % 360);
+  const c = (v: number) => new Float64Array(N).fill(v);
+  return {
+    ...r,
+    name,
+    attitudeDeg: { roll: wave(2, 40), pitch: wave(1, 55), heading },
+    attitudeSdDeg: { roll: c(0.2), pitch: c(0.2), heading: wave(0.3, 90, 0.8) },
+    biasEstimates: {
+      accelMps2: [wave(0.01, 200, 0.05), wave(0.01, 250, -0.02), c(0.03)],
+      accelSdMps2: [c(0.005), c(0.005), c(0.005)],
+      gyroRadps: [c(1e-4), wave(2e-5, 300, -5e-5), c(2e-5)],
+      gyroSdRadps: [c(1e-5), c(1e-5), c(1e-5)],
+    },
+  };
+}
+
+/** A batch of four ok sessions (one long enough to be thinned, one IMU-aided) and one failed session. */
 export function batch(): { summary: BatchSummary; payloads: Map<string, ReportPayload>; results: SessionResult[] } {
-  const results = [session('vehicle', 7, { durationSec: 300 }).result, session('walk', 3, { durationSec: 420 }).result, session('drone', 5, { durationSec: 300 }).result];
+  const v = session('vehicle', 7, { durationSec: 300 }).result;
+  const results = [v, session('walk', 3, { durationSec: 420 }).result, session('drone', 5, { durationSec: 300 }).result, withImu(v)];
   const entries = results.map((r) => okEntry(r, `${r.name}.csv`, [`${r.name}.track.csv`], 0.1));
   entries.push({ name: 'broken', input: 'broken.csv', status: 'failed', reason: 'broken.csv:1: no time column found', warnings: [] });
   const summary = buildSummary('0.0.0-test', 'logs', 'default', entries);

@@ -81,7 +81,7 @@ describe.skipIf(SKIP_SYSTEM_TOOLS)('report.html in headless Chromium', () => {
     );
     expect(counts).toHaveLength(b.summary.sessions.length);
     for (const c of counts) {
-      const want = c.failed ? 0 : 5;
+      const want = c.failed ? 0 : c.name!.endsWith('-imu') ? 10 : 5;
       expect(c, `${c.name}`).toEqual({ name: c.name, failed: c.failed, svgs: want, drawn: want });
     }
   });

@@ -11,6 +11,8 @@ import { esc } from '../../src/output/report/html-text.js';
 import { batch, session } from './fixtures.js';
 
 const PLOTS_PER_SESSION = 5;
+/** roll/pitch, heading, attitude sd, accelerometer bias, gyroscope bias */
+const IMU_PLOTS = 5;
 
 let html: string;
 let b: ReturnType<typeof batch>;
@@ -64,7 +66,7 @@ describe('report.html', () => {
     for (const [i, s] of b.summary.sessions.entries()) {
       const svgs = (secs[i]!.match(/<svg\b/g) ?? []).length;
       if (s.status === 'ok') {
-        expect(svgs).toBe(PLOTS_PER_SESSION);
+        expect(svgs).toBe(s.name.endsWith('-imu') ? PLOTS_PER_SESSION + IMU_PLOTS : PLOTS_PER_SESSION);
         // drawn from the data: lines and symbols, not empty frames
         expect((secs[i]!.match(/role-mark/g) ?? []).length).toBeGreaterThanOrEqual(PLOTS_PER_SESSION * 2);
       } else {
@@ -112,6 +114,16 @@ describe('report.html', () => {
     const sec = sections(h)[0]!;
     expect((sec.match(/<svg\b/g) ?? []).length).toBe(PLOTS_PER_SESSION + 1);
     expect(sec).toContain('<h3>Attitude (test extension)</h3>');
+  });
+
+  test('an IMU-aided session gets its attitude and bias plots (the IMU extension)', () => {
+    const i = b.summary.sessions.findIndex((s) => s.name.endsWith('-imu'));
+    const sec = sections(html)[i]!;
+    expect(sec).toContain('<h3>IMU: attitude and sensor biases</h3>');
+    for (const t of ['Roll and pitch over time', 'Heading over time', 'Attitude standard deviation over time', 'Accelerometer bias over time', 'Gyroscope bias over time'])
+      expect(sec).toContain(`<strong>${t}.</strong>`);
+    // sessions without IMU fields have none of it
+    expect(sections(html)[0]).not.toContain('IMU: attitude');
   });
 
   test('a payload of another version is not drawn', async () => {

@@ -5,7 +5,7 @@ import { calibratedNoise } from '../../src/output/report/payload.js';
 import { plotEpochs } from '../../src/output/report/decimate.js';
 import { collectExtensions, type ReportExtension } from '../../src/output/report/extensions.js';
 import { STATUS } from '../../src/session/result.js';
-import { session } from './fixtures.js';
+import { session, withImu } from './fixtures.js';
 
 const drone = () => session('drone', 5, { durationSec: 300 }).result;
 const vehicle = () => session('vehicle', 7, { durationSec: 300 }).result;
@@ -91,6 +91,18 @@ describe('report payload', () => {
     [{ calibration: { status: 'estimated', estimates: { sigmaHorizontalM: { value: 0.9 } }, reportedSigmaScale: true } }, { horizontal: 0.9, vertical: NaN, unit: '× reported sd' }],
     [{ calibration: { params: { sigmaHorizontalM: 1.1, sigmaVerticalM: 2 } } }, { horizontal: 1.1, vertical: 2, unit: 'm' }],
   ])('calibrated noise from info %j', (info, want) => expect(calibratedNoise(info)).toEqual(want));
+
+  test('the IMU extension picks the plotted epochs of attitude and biases (gyro in deg/h)', () => {
+    const r = withImu(vehicle());
+    const p = reportPayload(r);
+    expect(reportPayload(vehicle()).extensions).toEqual({});
+    const d = p.extensions.imu!;
+    const k = 77, j = p.plot.epoch[k]!;
+    expect((d.rollDeg as Float32Array)[k]).toBeCloseTo(r.attitudeDeg!.roll[j]!, 4);
+    expect((d.headingDeg as Float32Array)[k]).toBeCloseTo(r.attitudeDeg!.heading[j]!, 3);
+    expect((d.gyroxDegph as Float32Array)[k]).toBeCloseTo(1e-4 * (180 / Math.PI) * 3600, 3);
+    expect(structuredClone(p)).toEqual(p);
+  });
 
   test('extensions: data is collected only when the optional fields are there', () => {
     const r = vehicle();

@@ -23,6 +23,8 @@ export interface SeriesChartOptions {
   yScale?: Record<string, unknown>;
   /** Flagged epochs: their y value at plotted point k (non-finite: not drawn). */
   flaggedY?: (k: number) => number;
+  /** Break a line where consecutive values jump by more than this (e.g. 180 for a heading wrapping at 360°). */
+  breakJump?: number;
 }
 
 /** Lines over time, one per series (dash and colour by series), broken between segments. */
@@ -32,15 +34,18 @@ export function seriesChart(p: PlotSeries, series: SeriesSpec[], bridged: Array<
   let run = 0;
   for (const s of series) {
     let open = false;
+    let last = NaN;
     for (let k = 0; k < p.tSec.length; k++) {
       const v = s.values[k]!;
-      if (open && (!Number.isFinite(v) || p.segment[k] !== p.segment[k - 1])) {
+      const jump = opt.breakJump !== undefined && Math.abs(v - last) > opt.breakJump;
+      if (open && (!Number.isFinite(v) || p.segment[k] !== p.segment[k - 1] || jump)) {
         run++;
         open = false;
       }
       if (!Number.isFinite(v)) continue;
       rows.push({ t: p.tSec[k]! * 1000, v: r4(v), s: s.name, run });
       open = true;
+      last = v;
     }
     run++;
   }

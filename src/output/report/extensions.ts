@@ -14,6 +14,7 @@
 import type { TopLevelSpec } from 'vega-lite';
 import type { SessionResult } from '../../session/result.js';
 import type { PlotSeries } from './payload.js';
+import { IMU_EXTENSION } from './imu-extension.js';
 
 /** Structured-clone-safe data of one extension for one session. */
 export type ExtensionData = Record<string, Float64Array | Float32Array | Int32Array | Uint8Array | number | string | boolean | null>;
@@ -37,8 +38,8 @@ export interface ReportExtension {
   charts(data: ExtensionData, plot: PlotSeries, bridgedSpans: Array<[number, number]>): ExtensionChart[];
 }
 
-/** The registered extensions, in the order their groups appear. None yet (IMU comes later). */
-export const REPORT_EXTENSIONS: readonly ReportExtension[] = [];
+/** The registered extensions, in the order their groups appear. */
+export const REPORT_EXTENSIONS: readonly ReportExtension[] = [IMU_EXTENSION];
 
 export function collectExtensions(r: SessionResult, epochs: Int32Array, list: readonly ReportExtension[] = REPORT_EXTENSIONS): Record<string, ExtensionData> {
   const out: Record<string, ExtensionData> = {};
