@@ -154,7 +154,8 @@ async function hashInputs(si: SessionInput): Promise<InputHash[]> {
 export async function runBatch(opt: BatchOptions): Promise<BatchResult> {
   const t0 = performance.now();
   await checkFolders(opt.input, opt.out);
-  const out = resolve(opt.out);
+  // the real path, so that output paths compare with the (real) input paths
+  const out = await realpath(resolve(opt.out));
   const note = (message: string): void => opt.onEvent?.({ type: 'note', message });
   const shard = opt.shard;
   const mySummary = shard ? shardSummaryName(shard) : 'summary.json';

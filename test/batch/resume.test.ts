@@ -4,7 +4,7 @@
  * In-process runs (the thread pool has its own tests).
  */
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
-import { appendFile, readFile, rm, writeFile } from 'node:fs/promises';
+import { appendFile, mkdir, readdir, readFile, rm, symlink, writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import { loadConfig } from '../../src/config/load.js';
 import { runBatch } from '../../src/batch/run-batch.js';
@@ -68,6 +68,15 @@ describe('resume', () => {
     expect((await runBatch({ input, out, config: other })).processed).toEqual(names);
     expect((await runBatch({ input, out, config: other })).processed).toEqual([]);
     expect((await runBatch({ input, out, config: other, force: true })).processed).toEqual(names);
+  });
+
+  it('switching the report off keeps every session; switching it on redoes those without report data', async () => {
+    const names = await writeSessions(input, 2);
+    await runBatch({ input, out, config: cfg });
+    const on = await runBatch({ input, out, config: withReport });
+    expect(on.processed).toEqual(names);
+    expect((await runBatch({ input, out, config: cfg })).processed).toEqual([]);
+    expect((await runBatch({ input, out, config: withReport })).processed).toEqual([]);
   });
 
   it('a missing or altered output redoes its session; the report is rebuilt the same from saved and new data', async () => {
@@ -144,6 +153,20 @@ describe('failures and safety', () => {
     expect(r.exitCode).toBe(1);
     expect(r.summary.sessions[0]!.reason).toMatch(/replace an input file/);
     expect(await readFile(join(root, 'a.track.csv'), 'utf8')).toBe(before);
+  });
+
+  it('a folder of the output that links back into the input is refused per session, the input untouched', async () => {
+    await writeSessions(input, 1);
+    await writeSessions(input, 1, { sub: 'day2', seed0: 50 });
+    await mkdir(out, { recursive: true });
+    await symlink(join(input, 'day2'), join(out, 'day2'));
+    const r = await runBatch({ input, out, config: cfg });
+    expect(r.summary.sessions.map((s) => [s.name, s.status])).toEqual([
+      ['day2/log00', 'failed'],
+      ['log00', 'ok'],
+    ]);
+    expect(r.summary.sessions[0]!.reason).toMatch(/inside the input folder/);
+    expect((await readdir(join(input, 'day2'))).sort()).toEqual(['log00.csv']);
   });
 
   it('two logs with the same stem: the first is processed, the second refused with the reason', async () => {
