@@ -71,8 +71,8 @@ export function reviewSegment(
     }
   }
   const thr = [Infinity, 1, 2, 3].map((d) => (d === 0 ? Infinity : chiSquareQuantile(ro.probability, d)));
-  // hysteresis: a rejected fix comes back only when clearly consistent (ten times the false-alarm rate)
-  const readmitP = Math.max(0.5, 1 - 10 * (1 - ro.probability));
+  // hysteresis: a rejected fix comes back only when clearly consistent (four times the false-alarm rate)
+  const readmitP = Math.max(0.5, 1 - 4 * (1 - ro.probability));
   const thrIn = [Infinity, 1, 2, 3].map((d) => (d === 0 ? Infinity : chiSquareQuantile(readmitP, d)));
   const T = new Float64Array(N).fill(NaN);
   const dof = new Uint8Array(N);

@@ -22,6 +22,10 @@ export interface Score {
   epochs: number;
   bridgedRmseH: number;
   bridgedCoverH95: number;
+  /** Outlier counts: injected and flagged, injected and missed, flagged but clean. */
+  tp: number;
+  fn: number;
+  fp: number;
 }
 
 export function scoreAgainstTruth(sc: Scenario, r: SessionResult): Score {
@@ -90,6 +94,9 @@ export function scoreAgainstTruth(sc: Scenario, r: SessionResult): Score {
     epochs: n,
     bridgedRmseH: nb ? Math.sqrt(sb / nb) : NaN,
     bridgedCoverH95: nb ? inB / nb : NaN,
+    tp,
+    fn,
+    fp,
   };
 }
 
