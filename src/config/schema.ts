@@ -101,12 +101,12 @@ export const configSchema = z
     gate: z
       .object({
         /** Probability of the chi-square gate on the normalized innovation squared. */
-        probability: z.number().gt(0.5).lt(1).default(0.999),
+        probability: z.number().gt(0.5).lt(1).default(0.9995),
         /** Consecutive rejections after which the filter re-acquires the track. */
         reacquireAfter: z.number().int().min(2).default(6),
       })
       .strict()
-      .default({ probability: 0.999, reacquireAfter: 6 }),
+      .default({ probability: 0.9995, reacquireAfter: 6 }),
     segments: z
       .object({
         /** Gaps longer than this (s) split the track into segments; shorter gaps are bridged. */
