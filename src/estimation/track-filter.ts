@@ -68,6 +68,7 @@ interface Work {
   F: Float64Array[];
   Q: Float64Array[];
   s: KalmanScratch[];
+  cache: StepCache;
   nu: Float64Array;
   S: Float64Array;
   out1: Float64Array;
@@ -78,6 +79,7 @@ function makeWork(models: AxisModel[]): Work {
     F: models.map((m) => new Float64Array(m.n * m.n)),
     Q: models.map((m) => new Float64Array(m.n * m.n)),
     s: models.map((m) => makeScratch(m.n)),
+    cache: makeStepCache(models.length),
     nu: new Float64Array(models.length),
     S: new Float64Array(models.length),
     out1: new Float64Array(1),
@@ -100,13 +102,30 @@ export function allocateHistory(N: number, models: AxisModel[]): FilterHistory {
 }
 
 /** Fill F and Q (with any recorded extra noise) of every axis for the step ending at epoch k. */
-export function stepMatrices(models: AxisModel[], data: SegmentData, h: FilterHistory, k: number, qScale: Float64Array[] | null | undefined, F: Float64Array[], Q: Float64Array[]): void {
+/** Remembers the step last written into F and Q, so regular sampling does not recompute them every epoch. */
+export interface StepCache {
+  dt: Float64Array;
+  qs: Float64Array;
+}
+
+export function makeStepCache(nAxes: number): StepCache {
+  return { dt: new Float64Array(nAxes).fill(NaN), qs: new Float64Array(nAxes).fill(NaN) };
+}
+
+export function stepMatrices(models: AxisModel[], data: SegmentData, h: FilterHistory, k: number, qScale: Float64Array[] | null | undefined, F: Float64Array[], Q: Float64Array[], cache?: StepCache): void {
   const dt = data.tSec[k]! - data.tSec[k - 1]!;
   const extra = h.extraQ.get(k);
   for (let a = 0; a < models.length; a++) {
     const m = models[a]!;
+    const qs = qScale ? qScale[a]![k]! : 1;
+    if (cache) {
+      if (!extra && cache.dt[a] === dt && cache.qs[a] === qs) continue;
+      // an epoch with extra noise leaves Q dirty: force a rewrite at the next step
+      cache.dt[a] = extra ? NaN : dt;
+      cache.qs[a] = qs;
+    }
     m.fillF(dt, F[a]!);
-    m.fillQ(dt, Q[a]!, qScale ? qScale[a]![k]! : 1);
+    m.fillQ(dt, Q[a]!, qs);
     if (extra) {
       const e = extra[a]!;
       for (let i = 0; i < m.n; i++) Q[a]![i * m.n + i] += e[i]!;
@@ -147,7 +166,7 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
       }
     }
     if (k > 0) {
-      stepMatrices(models, data, h, k, opt.qScale, w.F, w.Q);
+      stepMatrices(models, data, h, k, opt.qScale, w.F, w.Q, w.cache);
       for (let a = 0; a < nAx; a++) {
         const n = models[a]!.n;
         predict(n, w.F[a]!, w.Q[a]!, h.x[a]!, (k - 1) * n, h.P[a]!, (k - 1) * n * n, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!);
@@ -198,9 +217,8 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
         if (!Number.isFinite(w.S[a]!)) continue;
         const m = models[a]!;
         const n = m.n;
-        // innovation() left P hᵀ in the scratch; recompute to be safe after other axes used theirs
+        // innovation() left P hᵀ in this axis's own scratch
         const r = data.r[a]![k]! * rScale[a]!;
-        innovation(n, m.h, data.z[a]![k]!, r, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!, w.out1);
         updateJoseph(n, m.h, w.nu[a]!, w.S[a]!, r, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!);
       }
       h.accepted[k] = 1;

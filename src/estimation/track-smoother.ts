@@ -16,7 +16,7 @@ import { NumericalError } from '../errors.js';
 import { cholesky, choleskySolve } from './cholesky.js';
 import { makeScratch } from './kalman.js';
 import { makeRtsScratch, rtsStep } from './rts.js';
-import { stepMatrices, type FilterHistory, type SegmentData } from './track-filter.js';
+import { makeStepCache, stepMatrices, type FilterHistory, type SegmentData } from './track-filter.js';
 
 export function smoothInPlace(models: AxisModel[], data: SegmentData, h: FilterHistory, qScale?: Float64Array[] | null, qStat?: Float64Array[]): void {
   const F = models.map((m) => new Float64Array(m.n * m.n));
@@ -27,8 +27,9 @@ export function smoothInPlace(models: AxisModel[], data: SegmentData, h: FilterH
   const Ew = models.map((m) => new Float64Array(m.n * m.n));
   const FG = models.map((m) => new Float64Array(m.n * m.n));
   const Qm = models.map((m) => new Float64Array(m.n * m.n));
+  const cache = makeStepCache(models.length);
   for (let k = h.N - 2; k >= 0; k--) {
-    stepMatrices(models, data, h, k + 1, qScale, F, Q);
+    stepMatrices(models, data, h, k + 1, qScale, F, Q, cache);
     for (let a = 0; a < models.length; a++) {
       const n = models[a]!.n;
       // keep the smoothed k+1 state before the step (it is not changed by the step)

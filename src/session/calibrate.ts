@@ -57,7 +57,7 @@ export interface CalibrationOptions {
   maxEvaluations: number;
 }
 
-export const DEFAULT_CALIBRATION: CalibrationOptions = { maxEpochs: 20000, minFixes: 120, minDurationSec: 180, maxEvaluations: 900 };
+export const DEFAULT_CALIBRATION: CalibrationOptions = { maxEpochs: 10000, minFixes: 120, minDurationSec: 180, maxEvaluations: 500 };
 
 /**
  * Prior spread (log space) per parameter. White noise and process noise are well identified by the
@@ -188,8 +188,8 @@ export function calibrateSession(
     return -ll + pen;
   };
   // two restarts: the second from the first optimum, which escapes early simplex collapse
-  let res = nelderMead(negLogLik, x0, { step: names.map(() => 0.7), maxEvaluations: Math.floor(opt.maxEvaluations * 0.6), fTolerance: 1e-4, xTolerance: 1e-3 });
-  const res2 = nelderMead(negLogLik, res.x, { step: names.map(() => 0.25), maxEvaluations: Math.floor(opt.maxEvaluations * 0.4), fTolerance: 1e-5, xTolerance: 1e-4 });
+  let res = nelderMead(negLogLik, x0, { step: names.map(() => 0.7), maxEvaluations: Math.floor(opt.maxEvaluations * 0.6), fTolerance: 1e-2, xTolerance: 1e-2 });
+  const res2 = nelderMead(negLogLik, res.x, { step: names.map(() => 0.25), maxEvaluations: Math.floor(opt.maxEvaluations * 0.4), fTolerance: 1e-3, xTolerance: 5e-3 });
   const evaluations = res.evaluations + res2.evaluations;
   if (res2.f <= res.f) res = res2;
   const params = toParams(res.x);
