@@ -92,7 +92,7 @@ export function chiSquareQuantile(p: number, k: number): number {
     const pdf = Math.exp((k / 2 - 1) * Math.log(x) - x / 2 - (k / 2) * Math.LN2 - logGamma(k / 2));
     let next = x - f / pdf;
     if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
-    if (Math.abs(next - x) < 1e-13 * Math.max(1, x)) {
+    if (Math.abs(next - x) < 1e-13 * x) {
       x = next;
       break;
     }
