@@ -20,14 +20,14 @@ import { readFixCsv } from '../../src/input/csv-fixes.js';
 import { DEFAULT_ERRORS, defaultSpec, scenarioCsv, simulate } from '../../src/simulate/scenario.js';
 
 /**
- * A drive without outlier bursts and with two planted outliers well apart (fix 100 displaced 15 m
+ * A drive without outlier bursts and with two planted outliers well apart (fix 100 displaced 8 m
  * north: just above the gate; fix 180 displaced 40 m east), so each decision's effect stands alone.
  */
 let cached: ReturnType<typeof make> | undefined;
 function make() {
   const sc = simulate(defaultSpec('vehicle', 7, { durationSec: 300, errors: { ...DEFAULT_ERRORS.vehicle, burstsPer100: 0, gaps: [[250, 25]] } }));
   const f100 = sc.fixes[100]!, f180 = sc.fixes[180]!;
-  f100.latDeg += 15 / 111_320;
+  f100.latDeg += 8 / 111_320;
   f180.lonDeg += 40 / (111_320 * Math.cos((f180.latDeg * Math.PI) / 180));
   const cfg = loadConfig();
   const series = readFixCsv(scenarioCsv(sc), 'vehicle-7.csv', cfg);
@@ -88,6 +88,7 @@ describe('decisions fed back on a rerun', () => {
     const r0 = base().result;
     const rejectKept = pick(r0, STATUS.kept, 30);
     const keepFlagged = gated(r0, true)[0]!; // a single fix just above the gate
+    expect(r0.fix[keepFlagged]).toBe(100); // the planted 8 m one
     const { before, after, named } = rerun([[rejectKept, 'reject'], [keepFlagged, 'keep']]);
     const changed: number[] = [];
     for (let j = 0; j < before.N; j++) if (after.status[j] !== before.status[j]) changed.push(j);
