@@ -102,18 +102,16 @@ function horizontalExtentM(ps: PreparedSession): number {
 }
 
 /**
- * Estimate the session's parameters. With `qScale` (per segment, from the manoeuvre adaptation) the
- * process noise is held at the given time-varying level and only the fix-noise parameters are
- * estimated; without it the global process-noise densities are estimated too.
+ * Estimate the session's parameters. `start` (an earlier round's estimate) is where the search
+ * begins; the prior stays centred on the profile. `useOverride` (per segment) holds outlier decisions
+ * fixed (2 kept without gate, 0 rejected) instead of the gate.
  */
 export function calibrateSession(
   ps: PreparedSession,
   cfg: HindcastConfig,
   prior: AxisParams,
   opt: CalibrationOptions = DEFAULT_CALIBRATION,
-  qScale?: Map<number, Float64Array[]>,
   start?: AxisParams,
-  estimateQ = !qScale,
   useOverride?: Map<number, Uint8Array>,
 ): { params: AxisParams; info: CalibrationInfo; warnings: string[] } {
   const warnings: string[] = [];
@@ -136,7 +134,7 @@ export function calibrateSession(
   if (ps.hasHeight) names.splice(1, 0, 'sigmaVerticalM'), names.push('gmVerticalSigmaM');
   const staticLog = horizontalExtentM(ps) < 6 * prior.sigmaHorizontalM;
   if (staticLog) warnings.push('the log looks static (fixes spread less than a few sigmas): process noise kept at the profile values');
-  else if (estimateQ) {
+  else {
     names.push('qHorizontal');
     if (ps.hasHeight) names.push('qVertical');
   }
@@ -170,7 +168,7 @@ export function calibrateSession(
     const models = buildAxisModels(p, ps.hasHeight);
     const rScale = [p.sigmaHorizontalM ** 2, p.sigmaHorizontalM ** 2, p.sigmaVerticalM ** 2];
     let ll = 0;
-    for (const { seg, data: d } of subset) {
+    for (const { data: d } of subset) {
       let h = histories.get(d);
       if (!h || h.x[0]!.length !== d.N * models[0]!.n) {
         h = allocateHistory(d.N, models);
@@ -179,7 +177,7 @@ export function calibrateSession(
       h.extraQ.clear();
       h.reacquired.length = 0;
       // no re-acquisition here: its covariance inflation would explain manoeuvres for free
-      forwardFilter(models, d, { ...fopt, rScale, reacquireAfter: Number.MAX_SAFE_INTEGER, qScale: qScale?.get(seg) ?? null }, h);
+      forwardFilter(models, d, { ...fopt, rScale, reacquireAfter: Number.MAX_SAFE_INTEGER }, h);
       ll += totalLogLik(h);
     }
     // weak log-normal prior around the profile

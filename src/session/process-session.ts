@@ -12,7 +12,6 @@ import { errorEllipse } from '../output/ellipse.js';
 import { epochGrid, nominalIntervalSec, splitSegments } from './segments.js';
 import { fixSigmaFactors } from './fix-noise.js';
 import { calibrateSession } from './calibrate.js';
-import { adaptProcessNoise } from './adapt-process-noise.js';
 import { reviewSegment, type ReviewOptions } from './review.js';
 import { STATUS, type OutlierRecord, type SessionResult } from './result.js';
 
@@ -166,17 +165,18 @@ export function reviewOptions(cfg: HindcastConfig, intervalSec = 1): ReviewOptio
 /** Per-segment state carried between the stages of processSession. */
 interface SegmentPlan {
   offered: Uint8Array;
-  qScale: Float64Array[] | null;
   decisions?: { kept: Uint8Array; gateRejected: Uint8Array };
 }
 
 /**
  * Run the whole pipeline on one FixSeries:
- * 1. calibrate all noise parameters with one process-noise level (robust likelihood);
- * 2. classify the fixes (forward gate + two-sided review) under that model;
- * 3. estimate the manoeuvre-adapted process noise with those decisions held fixed;
- * 4. calibrate the fix noise again under the adapted process noise;
- * 5. review again under the final model and smooth.
+ * 1. calibrate the noise parameters by maximum likelihood with a robust (capped) likelihood;
+ * 2. classify the fixes: forward and time-reversed gates, then the two-sided review;
+ * 3. calibrate again with those decisions held fixed (outliers no longer distort the estimate);
+ * 4. classify again under the calibrated model, review, and smooth.
+ * Manoeuvres are absorbed by the calibrated process-noise level (estimated on the session's own
+ * turns and stops), by re-admission of fixes consistent with the smoothed track, and by
+ * re-acquisition in the forward pass; see DEVELOPERS.md ("Manoeuvres") for the measured choice.
  */
 export function processSession(series: FixSeries, cfg: HindcastConfig, name: string, userDecisions?: Map<number, 'keep' | 'reject'>): SessionResult {
   const ps = prepareSession(series, cfg, userDecisions);
@@ -186,21 +186,19 @@ export function processSession(series: FixSeries, cfg: HindcastConfig, name: str
   let params = cal1.params;
   let info = cal1.info;
   const warnings = cal1.warnings;
-  // stage 2: classification under the single-level model, then the adapted process noise (stage 3)
-  let plans = classifyAndAdapt(ps, cfg, params, ro);
+  // stage 2: classification under the first calibration
+  let plans = classify(ps, cfg, params, ro);
   if (cal1.info.status === 'estimated') {
-    // stage 4: fix noise under the adapted process noise, decisions held fixed
-    const qs = new Map<number, Float64Array[]>();
+    // stage 3: calibration with the decisions held fixed
     const uses = new Map<number, Uint8Array>();
     plans.forEach((pl, si) => {
-      if (pl.qScale) qs.set(si, pl.qScale);
       uses.set(si, Uint8Array.from(pl.offered, (u, k) => (u === 0 ? 0 : pl.decisions!.kept[k] ? 2 : 0)));
     });
-    const cal2 = calibrateSession(ps, cfg, prior, undefined, qs, params, true, uses);
+    const cal2 = calibrateSession(ps, cfg, prior, undefined, params, uses);
     params = cal2.params;
     info = { ...cal2.info, estimates: { ...cal1.info.estimates, ...cal2.info.estimates }, evaluations: cal1.info.evaluations + cal2.info.evaluations };
-    // classify once more under the calibrated, adapted model (its lower base level makes bursts stand out)
-    plans = classifyAndAdapt(ps, cfg, params, ro, plans);
+    // stage 4: classify once more under the model calibrated without the outliers
+    plans = classify(ps, cfg, params, ro);
   }
   const r = runPrepared(ps, cfg, params, name, plans);
   for (const w of warnings) r.warnings.push({ file: series.file, code: 'calibration', message: w });
@@ -208,16 +206,15 @@ export function processSession(series: FixSeries, cfg: HindcastConfig, name: str
   return r;
 }
 
-/** Classification (two-way gate + review) and the manoeuvre-adapted process noise of every segment. */
-function classifyAndAdapt(ps: PreparedSession, cfg: HindcastConfig, params: AxisParams, ro: ReviewOptions, previous?: SegmentPlan[]): SegmentPlan[] {
+/** Classification of every segment's fixes: two-way gate, then the two-sided review. */
+function classify(ps: PreparedSession, cfg: HindcastConfig, params: AxisParams, ro: ReviewOptions): SegmentPlan[] {
   const opt = filterOptions(cfg, params);
   const models = buildAxisModels(params, ps.hasHeight);
-  return ps.segments.map((seg, si) => {
+  return ps.segments.map((seg) => {
     const { data } = segmentData(ps, seg, params, cfg.segments.bridgeFactor);
     const offered = data.use.slice();
-    const rev = reviewSegment(models, data, offered, opt, previous?.[si]?.qScale ?? null, ro);
-    const { qScale } = adaptProcessNoise(models, rev.data, opt);
-    return { offered, qScale, decisions: { kept: rev.kept, gateRejected: rev.gateRejected } };
+    const rev = reviewSegment(models, data, offered, opt, ro);
+    return { offered, decisions: { kept: rev.kept, gateRejected: rev.gateRejected } };
   });
 }
 
@@ -234,7 +231,7 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
     const { data, fix } = segmentData(ps, seg, p, cfg.segments.bridgeFactor);
     const plan = plans?.[si];
     const offered = plan?.offered ?? data.use.slice();
-    const rev = reviewSegment(models, data, offered, opt, plan?.qScale ?? null, ro, plan?.decisions);
+    const rev = reviewSegment(models, data, offered, opt, ro, plan?.decisions);
     const h = rev.history;
     segOuts.push({ data, fix, x: h.x, P: h.P, kept: rev.kept, gateRejected: rev.gateRejected, T: rev.T, thr: rev.threshold, reacq: h.reacquired.length });
   });

@@ -45,7 +45,6 @@ export function reviewSegment(
   data: SegmentData,
   offered: Uint8Array,
   opt: FilterOptions,
-  qScale: Float64Array[] | null,
   ro: ReviewOptions,
   initial?: { kept: Uint8Array; gateRejected: Uint8Array },
 ): ReviewOutcome {
@@ -62,8 +61,8 @@ export function reviewSegment(
   } else {
     // gate both ways: a burst that opens the forward gate (the prediction's covariance grows while
     // its first fixes are rejected) is met from the other side by the time-reversed filter
-    h = forwardFilter(models, work, { ...opt, qScale });
-    const back = forwardFilter(models, reversed(work), { ...opt, qScale: qScale ? qScale.map(reverseShift) : null });
+    h = forwardFilter(models, work, opt);
+    const back = forwardFilter(models, reversed(work), opt);
     for (let k = 0; k < N; k++) {
       const both = h.accepted[k]! && back.accepted[N - 1 - k]!;
       kept[k] = offered[k] === 2 ? 1 : offered[k] ? both : 0;
@@ -87,9 +86,9 @@ export function reviewSegment(
       histBuf.extraQ.clear();
       histBuf.reacquired.length = 0;
     }
-    h = forwardFilter(models, work, { ...opt, qScale }, histBuf);
+    h = forwardFilter(models, work, opt, histBuf);
     histBuf = h;
-    smoothInPlace(models, work, h, qScale);
+    smoothInPlace(models, work, h, opt.qScale);
     if (passes > ro.maxPasses) break;
     // test every offered fix
     const fail = new Uint8Array(N);
@@ -139,11 +138,4 @@ export function reversed(d: SegmentData): SegmentData {
     r: d.r.map(rev),
     use: Uint8Array.from({ length: N }, (_, i) => d.use[N - 1 - i]!),
   };
-}
-
-/** A per-step array (entry k belongs to the step k−1 → k) in reverse order. */
-function reverseShift(a: Float64Array): Float64Array {
-  const N = a.length;
-  // reversed index i is original N−1−i; the reversed step i−1 → i is the original step N−i → N−1−i, stored at N−i
-  return Float64Array.from({ length: N }, (_, i) => (i === 0 ? 1 : a[N - i]!));
 }

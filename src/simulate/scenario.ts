@@ -63,12 +63,14 @@ export interface Scenario {
 export const DEFAULT_ERRORS: Record<ScenarioKind, ErrorModel> = {
   walk: { whiteSigmaHM: 2.0, whiteSigmaVM: 3.5, gmSigmaHM: 1.5, gmSigmaVM: 2.5, gmTauSec: 60, burstsPer100: 1.0, burstMinM: 15, burstMaxM: 80, burstMaxEpochs: 4, gaps: [[300, 20], [700, 90]], nullIslandRows: 2, varyHdop: true },
   vehicle: { whiteSigmaHM: 1.5, whiteSigmaVM: 3.0, gmSigmaHM: 1.5, gmSigmaVM: 2.5, gmTauSec: 45, burstsPer100: 1.0, burstMinM: 15, burstMaxM: 80, burstMaxEpochs: 4, gaps: [[250, 25], [650, 90]], nullIslandRows: 2, varyHdop: true },
+  model: { whiteSigmaHM: 1.5, whiteSigmaVM: 3.0, gmSigmaHM: 1.5, gmSigmaVM: 2.5, gmTauSec: 45, burstsPer100: 0, burstMinM: 15, burstMaxM: 80, burstMaxEpochs: 4, gaps: [], nullIslandRows: 0, varyHdop: false },
   drone: { whiteSigmaHM: 1.2, whiteSigmaVM: 2.5, gmSigmaHM: 1.0, gmSigmaVM: 2.0, gmTauSec: 30, burstsPer100: 0.3, burstMinM: 15, burstMaxM: 80, burstMaxEpochs: 4, gaps: [[200, 8]], nullIslandRows: 1, varyHdop: true },
 };
 
 export const DEFAULT_SPECS: Record<ScenarioKind, Omit<ScenarioSpec, 'seed' | 'errors'>> = {
   walk: { kind: 'walk', durationSec: 1200, rateHz: 1, origin: [47.3769, 8.5417, 420], startUnixSec: Date.UTC(2026, 4, 12, 8, 0, 0) / 1000 },
   vehicle: { kind: 'vehicle', durationSec: 1200, rateHz: 1, origin: [52.52, 13.405, 40], startUnixSec: Date.UTC(2026, 4, 13, 9, 30, 0) / 1000 },
+  model: { kind: 'model', durationSec: 1200, rateHz: 1, origin: [-33.87, 151.21, 30], startUnixSec: Date.UTC(2026, 4, 15, 7, 0, 0) / 1000 },
   drone: { kind: 'drone', durationSec: 600, rateHz: 5, origin: [45.0, 7.6, 250], startUnixSec: Date.UTC(2026, 4, 14, 10, 15, 0) / 1000 },
 };
 
@@ -76,9 +78,13 @@ export function defaultSpec(kind: ScenarioKind, seed: number, overrides: Partial
   return { ...DEFAULT_SPECS[kind], seed, errors: { ...DEFAULT_ERRORS[kind], gaps: DEFAULT_ERRORS[kind].gaps.slice() }, ...overrides };
 }
 
-export function simulate(spec: ScenarioSpec): Scenario {
+/**
+ * Simulate fixes along the scenario's invented truth, or along a given truth track (e.g. a recorded
+ * drive, simulate/recorded-truth.ts), whose frame origin is then spec.origin.
+ */
+export function simulate(spec: ScenarioSpec, givenTruth?: TruthTrack): Scenario {
   const rng = new Rng(spec.seed);
-  const truth = makeTruth(spec.kind, spec.seed, spec.durationSec);
+  const truth = givenTruth ?? makeTruth(spec.kind, spec.seed, spec.durationSec);
   const frame = new EnuFrame(...spec.origin);
   const E = spec.errors;
   const dt = 1 / spec.rateHz;

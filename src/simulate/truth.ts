@@ -5,7 +5,7 @@
  */
 import { Rng } from './rng.js';
 
-export type ScenarioKind = 'walk' | 'vehicle' | 'drone';
+export type ScenarioKind = 'walk' | 'vehicle' | 'drone' | 'model';
 
 export interface TruthTrack {
   dtSec: number;
@@ -73,7 +73,34 @@ function legsFor(kind: ScenarioKind, rng: Rng, durationSec: number): { legs: Leg
   return { legs, accel: 2.5, decel: 3 };
 }
 
+/**
+ * Truth that follows the filter's own model exactly: per axis, position and velocity driven by
+ * continuous white acceleration of density q (exact discretization, Bar-Shalom et al. 2001 §6.2),
+ * for consistency (NEES) and calibration-recovery tests.
+ */
+export function makeModelTruth(seed: number, durationSec: number, qHorizontal: number, qVertical: number, dtSec = 0.05): TruthTrack {
+  const rng = new Rng(seed * 104729 + 3);
+  const total = Math.ceil(durationSec / dtSec) + 1;
+  const out = [new Float64Array(total), new Float64Array(total), new Float64Array(total)];
+  for (let a = 0; a < 3; a++) {
+    const q = a < 2 ? qHorizontal : qVertical;
+    const t = dtSec;
+    // Q = q [[t³/3, t²/2], [t²/2, t]]; sample w = L ξ with L the Cholesky factor
+    const q11 = (q * t ** 3) / 3, q12 = (q * t * t) / 2, q22 = q * t;
+    const l11 = Math.sqrt(q11), l21 = q12 / l11, l22 = Math.sqrt(Math.max(q22 - l21 * l21, 0));
+    let p = 0, v = a < 2 ? rng.normal() * 3 : 0;
+    for (let k = 0; k < total; k++) {
+      out[a]![k] = p;
+      const x1 = rng.normal(), x2 = rng.normal();
+      p += v * t + l11 * x1;
+      v += l21 * x1 + l22 * x2;
+    }
+  }
+  return { dtSec, e: out[0]!, n: out[1]!, u: out[2]!, durationSec };
+}
+
 export function makeTruth(kind: ScenarioKind, seed: number, durationSec: number, dtSec = 0.05): TruthTrack {
+  if (kind === 'model') return makeModelTruth(seed, durationSec, 0.5, 0.05, dtSec);
   const rng = new Rng(seed * 7919 + 17);
   const { legs, accel, decel } = legsFor(kind, rng, durationSec);
   const total = Math.ceil(durationSec / dtSec) + 1;

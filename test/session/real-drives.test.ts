@@ -1,0 +1,57 @@
+/**
+ * Real vehicle dynamics: the smartLoc ground-truth drives (Reisdorf et al., TU Chemnitz, CC BY-SA
+ * 4.0; test/fixtures/smartloc) degraded with the simulator's error model (white + Gauss–Markov errors
+ * of a few metres, multipath-like bursts, 20–30 s gaps, 1 Hz fixes), smoothed with the default
+ * configuration, and scored against the untouched truth.
+ */
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { describe, expect, test } from 'vitest';
+import { parsePoint3Truth } from '../../src/simulate/recorded-truth.js';
+import { defaultSpec, simulate } from '../../src/simulate/scenario.js';
+import { runScenario, type Score } from '../helpers/score.js';
+
+const DIR = join(import.meta.dirname, '..', 'fixtures', 'smartloc');
+const DRIVES = ['Berlin_Potsdamer_Platz', 'Berlin_Gendarmenmarkt', 'Frankfurt_Westend_Tower', 'Frankfurt_Main_Tower'];
+
+const pooled: Score[] = [];
+
+describe('smartLoc drives, degraded', () => {
+  test.each(DRIVES.map((d, i) => [d, i] as const))('%s: RMSE ≤ 0.95 × raw, coverage, outliers', (drive, i) => {
+    const { truth, origin } = parsePoint3Truth(readFileSync(join(DIR, `${drive}_GT.txt`), 'utf8'));
+    const d = truth.durationSec;
+    const spec = defaultSpec('vehicle', 500 + i, {
+      durationSec: d,
+      rateHz: 1,
+      origin,
+      errors: {
+        whiteSigmaHM: 1.5, whiteSigmaVM: 3, gmSigmaHM: 1.5, gmSigmaVM: 2.5, gmTauSec: 45,
+        burstsPer100: 1, burstMinM: 15, burstMaxM: 80, burstMaxEpochs: 4,
+        gaps: [[d / 3, 20 + (i % 3) * 5], [(2 * d) / 3, 25 + (i % 2) * 5]],
+        nullIslandRows: 1, varyHdop: true,
+      },
+    });
+    const sc = simulate(spec, truth);
+    const { s } = runScenario(sc);
+    pooled.push(s);
+    console.log(
+      `${drive}: ${sc.fixes.length} fixes, RMSE smoothed/raw ${s.rmseSmoothH.toFixed(2)}/${s.rmseRawH.toFixed(2)} m (${(s.rmseSmoothH / s.rmseRawH).toFixed(3)}), ` +
+        `coverage H ${s.coverH95.toFixed(3)} V ${s.coverU95.toFixed(3)}, bridged RMSE ${s.bridgedRmseH.toFixed(1)} m, recall ${s.recall.toFixed(3)} (${s.tp}/${s.tp + s.fn}), precision ${s.precision.toFixed(3)}`,
+    );
+    expect(s.rmseSmoothH).toBeLessThanOrEqual(0.95 * s.rmseRawH);
+    // measured 0.74–0.98 (README): the 0.90–0.99 target band is not met on every drive yet — the
+    // slow correlated error is under-estimated at long stops; this guard catches regressions only
+    expect(s.coverH95).toBeGreaterThanOrEqual(0.7);
+    expect(s.coverH95).toBeLessThanOrEqual(0.999);
+  });
+
+  test('pooled over the drives: recall ≥ 0.85, precision ≥ 0.80', () => {
+    expect(pooled.length).toBe(DRIVES.length);
+    const tp = pooled.reduce((a, s) => a + s.tp, 0);
+    const fn = pooled.reduce((a, s) => a + s.fn, 0);
+    const fp = pooled.reduce((a, s) => a + s.fp, 0);
+    console.log(`smartLoc pooled: recall ${(tp / (tp + fn)).toFixed(3)}, precision ${(tp / (tp + fp)).toFixed(3)}`);
+    expect(tp / (tp + fn)).toBeGreaterThanOrEqual(0.85);
+    expect(tp / (tp + fp)).toBeGreaterThanOrEqual(0.8);
+  });
+});
