@@ -41,7 +41,7 @@ export function parseIsoToUnix(text: string, zone?: string): number {
   const dt = DateTime.fromISO(text, { zone: zone ?? 'UTC', setZone: false });
   if (!dt.isValid) return NaN;
   // without an explicit zone in the text and no zone configured, refuse
-  if (zone === undefined && !/(Z|[+-]\d{2}(:?\d{2})?)$/.test(text)) return NaN;
+  if (zone === undefined && !/T.*(Z|[+-]\d{2}(:?\d{2})?)$/.test(text)) return NaN;
   return dt.toMillis() / 1000;
 }
 
