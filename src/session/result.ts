@@ -74,7 +74,10 @@ export interface SessionResult {
   segment: Int32Array;
   /** Fix index of each epoch (−1 for bridged). */
   fix: Int32Array;
-  /** Forward NIS of the fix at each epoch and its gate threshold (NaN where none). */
+  /**
+   * Two-sided review statistic of the fix at each epoch against the smoothed track (χ², dof = measured
+   * axes; estimation/review.ts) and its threshold (NaN where there is no fix).
+   */
   nis: Float64Array;
   nisThreshold: Float64Array;
   /**

@@ -96,7 +96,7 @@ export function nisChart(p: PlotSeries, bridged: Array<[number, number]>): TopLe
       { name: 'gate threshold', values: p.nisThreshold },
     ],
     bridged,
-    { description: 'Normalized innovation squared of each fix and the chi-square gate threshold', yTitle: 'NIS (χ², symlog scale)', yScale: { type: 'symlog' }, flaggedY: (k) => p.nis[k]! },
+    { description: 'Two-sided test statistic of each fix against the smoothed track and its chi-square threshold', yTitle: 'test statistic (χ², symlog scale)', yScale: { type: 'symlog' }, flaggedY: (k) => p.nis[k]! },
   );
 }
 

@@ -31,7 +31,7 @@ export function sessionCharts(p: ReportPayload, extensions: readonly ReportExten
     },
     {
       title: 'Test statistic over time',
-      caption: `Normalized innovation squared of each fix in the forward pass, and the chi-square gate threshold (dashed): fixes above it are flagged. Symbols: ${SYMBOL_TEXT}.`,
+      caption: `Test statistic of each fix against the smoothed track (normalized squared residual, χ² with one degree of freedom per measured axis) and the chi-square threshold (dashed): fixes above it are flagged. Symbols: ${SYMBOL_TEXT}.`,
       spec: nisChart(p.plot, b),
     },
     {
