@@ -14,6 +14,7 @@ import { fixSigmaFactors } from './fix-noise.js';
 import { calibrateSession } from './calibrate.js';
 import { reviewSegment, type ReviewOptions } from './review.js';
 import { STATUS, type OutlierRecord, type SessionResult } from './result.js';
+import type { StageTimings } from './timings.js';
 
 /** Validity of each fix before filtering: finite, in range, not the (0, 0) "null island" placeholder. */
 export function validFixes(s: FixSeries): { valid: Uint8Array; why: string[] } {
@@ -178,48 +179,57 @@ interface SegmentPlan {
  * turns and stops), by re-admission of fixes consistent with the smoothed track, and by
  * re-acquisition in the forward pass; see DEVELOPERS.md ("Manoeuvres") for the measured choice.
  */
-export function processSession(series: FixSeries, cfg: HindcastConfig, name: string, userDecisions?: Map<number, 'keep' | 'reject'>): SessionResult {
+export function processSession(series: FixSeries, cfg: HindcastConfig, name: string, userDecisions?: Map<number, 'keep' | 'reject'>, timings?: StageTimings): SessionResult {
+  const tm = timings;
+  let t0 = tm ? performance.now() : 0;
   const ps = prepareSession(series, cfg, userDecisions);
+  if (tm) tm.project += performance.now() - t0;
   const prior = axisParamsFromConfig(cfg, ps.factors.reported);
   const ro = reviewOptions(cfg, ps.intervalSec);
+  if (tm) t0 = performance.now();
   const cal1 = calibrateSession(ps, cfg, prior);
+  if (tm) tm.calibrate += performance.now() - t0;
   let params = cal1.params;
   let info = cal1.info;
   const warnings = cal1.warnings;
   // stage 2: classification under the first calibration
-  let plans = classify(ps, cfg, params, ro);
+  let plans = classify(ps, cfg, params, ro, tm);
   if (cal1.info.status === 'estimated') {
     // stage 3: calibration with the decisions held fixed
     const uses = new Map<number, Uint8Array>();
     plans.forEach((pl, si) => {
       uses.set(si, Uint8Array.from(pl.offered, (u, k) => (u === 0 ? 0 : pl.decisions!.kept[k] ? 2 : 0)));
     });
+    if (tm) t0 = performance.now();
     const cal2 = calibrateSession(ps, cfg, prior, undefined, params, uses);
+    if (tm) tm.calibrate += performance.now() - t0;
     params = cal2.params;
     info = { ...cal2.info, estimates: { ...cal1.info.estimates, ...cal2.info.estimates }, evaluations: cal1.info.evaluations + cal2.info.evaluations };
     // stage 4: classify once more under the model calibrated without the outliers
-    plans = classify(ps, cfg, params, ro);
+    plans = classify(ps, cfg, params, ro, tm);
   }
-  const r = runPrepared(ps, cfg, params, name, plans);
+  const r = runPrepared(ps, cfg, params, name, plans, tm);
   for (const w of warnings) r.warnings.push({ file: series.file, code: 'calibration', message: w });
   r.info.calibration = info;
   return r;
 }
 
 /** Classification of every segment's fixes: two-way gate, then the two-sided review. */
-function classify(ps: PreparedSession, cfg: HindcastConfig, params: AxisParams, ro: ReviewOptions): SegmentPlan[] {
+function classify(ps: PreparedSession, cfg: HindcastConfig, params: AxisParams, ro: ReviewOptions, tm?: StageTimings): SegmentPlan[] {
   const opt = filterOptions(cfg, params);
   const models = buildAxisModels(params, ps.hasHeight);
   return ps.segments.map((seg) => {
+    const t0 = tm ? performance.now() : 0;
     const { data } = segmentData(ps, seg, params, cfg.segments.bridgeFactor);
+    if (tm) tm.review += performance.now() - t0;
     const offered = data.use.slice();
-    const rev = reviewSegment(models, data, offered, opt, ro);
+    const rev = reviewSegment(models, data, offered, opt, ro, undefined, tm);
     return { offered, decisions: { kept: rev.kept, gateRejected: rev.gateRejected } };
   });
 }
 
 /** Stage 5 and the products: final review and smoothing of every segment, then the SessionResult. */
-export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisParams, name: string, plans?: SegmentPlan[]): SessionResult {
+export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisParams, name: string, plans?: SegmentPlan[], tm?: StageTimings): SessionResult {
   const s = ps.series;
   const models = buildAxisModels(p, ps.hasHeight);
   const opt = filterOptions(cfg, p);
@@ -228,13 +238,16 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
   type SegOut = { data: SegmentData; fix: Int32Array; x: Float64Array[]; P: Float64Array[]; kept: Uint8Array; gateRejected: Uint8Array; T: Float64Array; thr: Float64Array; reacq: number };
   const segOuts: SegOut[] = [];
   ps.segments.forEach((seg, si) => {
+    const t0 = tm ? performance.now() : 0;
     const { data, fix } = segmentData(ps, seg, p, cfg.segments.bridgeFactor);
+    if (tm) tm.review += performance.now() - t0;
     const plan = plans?.[si];
     const offered = plan?.offered ?? data.use.slice();
-    const rev = reviewSegment(models, data, offered, opt, ro, plan?.decisions);
+    const rev = reviewSegment(models, data, offered, opt, ro, plan?.decisions, tm);
     const h = rev.history;
     segOuts.push({ data, fix, x: h.x, P: h.P, kept: rev.kept, gateRejected: rev.gateRejected, T: rev.T, thr: rev.threshold, reacq: h.reacquired.length });
   });
+  const tProducts = tm ? performance.now() : 0;
   const N = segOuts.reduce((a, o) => a + o.data.N, 0);
   const mk = () => new Float64Array(N).fill(NaN);
   const res: SessionResult = {
@@ -392,5 +405,6 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
     gateProbability: cfg.gate.probability,
     qualityColumnsUsed: ps.factors.used,
   };
+  if (tm) tm.products += performance.now() - tProducts;
   return res;
 }

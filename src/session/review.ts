@@ -13,6 +13,7 @@ import { chiSquareQuantile } from '../estimation/chi-square.js';
 import { forwardFilter, type FilterHistory, type FilterOptions, type SegmentData } from '../estimation/track-filter.js';
 import { smoothInPlace } from '../estimation/track-smoother.js';
 import { reviewStatistic } from '../estimation/review.js';
+import type { StageTimings } from './timings.js';
 
 export interface ReviewOutcome {
   history: FilterHistory;
@@ -47,7 +48,10 @@ export function reviewSegment(
   opt: FilterOptions,
   ro: ReviewOptions,
   initial?: { kept: Uint8Array; gateRejected: Uint8Array },
+  tm?: StageTimings,
 ): ReviewOutcome {
+  const tStart = tm ? performance.now() : 0;
+  let tKernel = 0;
   const N = data.N;
   const work: SegmentData = { ...data, use: offered.slice() };
   let h: FilterHistory;
@@ -61,8 +65,16 @@ export function reviewSegment(
   } else {
     // gate both ways: a burst that opens the forward gate (the prediction's covariance grows while
     // its first fixes are rejected) is met from the other side by the time-reversed filter
+    const t0 = tm ? performance.now() : 0;
     h = forwardFilter(models, work, opt);
     const back = forwardFilter(models, reversed(work), opt);
+    if (tm) {
+      const d = performance.now() - t0;
+      tm.filter += d;
+      tKernel += d;
+      tm.filterPasses += 2;
+      tm.filterEpochs += 2 * N;
+    }
     for (let k = 0; k < N; k++) {
       const both = h.accepted[k]! && back.accepted[N - 1 - k]!;
       kept[k] = offered[k] === 2 ? 1 : offered[k] ? both : 0;
@@ -86,9 +98,20 @@ export function reviewSegment(
       histBuf.extraQ.clear();
       histBuf.reacquired.length = 0;
     }
+    const t0 = tm ? performance.now() : 0;
     h = forwardFilter(models, work, opt, histBuf);
     histBuf = h;
+    const t1 = tm ? performance.now() : 0;
     smoothInPlace(models, work, h, opt.qScale);
+    if (tm) {
+      const t2 = performance.now();
+      tm.filter += t1 - t0;
+      tm.smooth += t2 - t1;
+      tKernel += t2 - t0;
+      tm.filterPasses++;
+      tm.smoothPasses++;
+      tm.filterEpochs += N;
+    }
     if (passes > ro.maxPasses) break;
     // test every offered fix
     const fail = new Uint8Array(N);
@@ -124,6 +147,7 @@ export function reviewSegment(
     if (!changed) break;
   }
   for (let k = 0; k < N; k++) work.use[k] = offered[k] === 0 ? 0 : kept[k] ? 2 : 0;
+  if (tm) tm.review += performance.now() - tStart - tKernel;
   return { history: h!, data: work, kept, gateRejected, T, dof, threshold, passes };
 }
 
