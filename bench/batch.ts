@@ -5,7 +5,7 @@
  * each is kept, so a moment of load from other programs on the machine counts less. The figure
  * means something only on an otherwise idle machine with at least two cores.
  */
-import { availableParallelism, tmpdir } from 'node:os';
+import { availableParallelism, loadavg, tmpdir } from 'node:os';
 import { mkdtemp, mkdir, rm, writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import { loadConfig } from '../src/config/load.js';
@@ -37,6 +37,7 @@ export const batchBench: BenchPart = {
       const sc = simulate(defaultSpec('vehicle', 4242, { durationSec: DURATION_SEC }));
       const csv = scenarioCsv(sc);
       for (let i = 0; i < SESSIONS; i++) await writeFile(join(input, `run${String(i).padStart(2, '0')}.csv`), csv);
+      const loadBefore = loadavg()[0]!;
       let one = Infinity;
       let two = Infinity;
       for (let i = 0; i < REPEAT; i++) {
@@ -47,7 +48,8 @@ export const batchBench: BenchPart = {
       return {
         ok: speedup >= TARGET,
         lines: [
-          `machine: ${availableParallelism()} cores; ${SESSIONS} sessions × ${sc.fixes.length} fixes; best of ${REPEAT}`,
+          `machine: ${availableParallelism()} cores, load average ${loadBefore.toFixed(2)} before / ${loadavg()[0]!.toFixed(2)} after (other programs' load lowers the speed-up)`,
+          `${SESSIONS} sessions × ${sc.fixes.length} fixes; best of ${REPEAT} runs each`,
           `1 worker:  ${one.toFixed(2)} s (${(SESSIONS / one).toFixed(2)} sessions/s)`,
           `2 workers: ${two.toFixed(2)} s (${(SESSIONS / two).toFixed(2)} sessions/s)`,
           `speed-up:  ${speedup.toFixed(2)}× (target ≥ ${TARGET}×)`,
