@@ -11,6 +11,7 @@
 import type { AxisModel } from '../models/axis-model.js';
 import { chiSquareQuantile } from './chi-square.js';
 import { innovation, makeScratch, predict, updateJoseph, type KalmanScratch } from './kalman.js';
+import { innovation3, predict3, updateJoseph3 } from './kalman3.js';
 
 /** Epoch-wise inputs of one segment, per axis arrays indexed by epoch. */
 export interface SegmentData {
@@ -79,7 +80,7 @@ function makeWork(models: AxisModel[]): Work {
     F: models.map((m) => new Float64Array(m.n * m.n)),
     Q: models.map((m) => new Float64Array(m.n * m.n)),
     s: models.map((m) => makeScratch(m.n)),
-    cache: makeStepCache(models.length),
+    cache: makeStepCache(models.length, models.map((m) => m.n)),
     nu: new Float64Array(models.length),
     S: new Float64Array(models.length),
     out1: new Float64Array(1),
@@ -101,35 +102,82 @@ export function allocateHistory(N: number, models: AxisModel[]): FilterHistory {
   };
 }
 
-/** Fill F and Q (with any recorded extra noise) of every axis for the step ending at epoch k. */
-/** Remembers the step last written into F and Q, so regular sampling does not recompute them every epoch. */
+/**
+ * Remembers the last few distinct steps (Δt, q scale) of every axis with their F and Q, so regular
+ * sampling does not recompute them every epoch. Several slots, since Unix times in seconds carry
+ * rounding of ~1e-7 s: a regular 10 Hz log has two or three distinct Δt values, not one.
+ * The slots hold exact copies, so results do not depend on the cache.
+ */
 export interface StepCache {
+  slots: number;
+  /** Per axis and slot: Δt and q scale of the step held (NaN: empty). */
   dt: Float64Array;
   qs: Float64Array;
+  /** Per axis and slot: F and Q (n×n each). */
+  F: Float64Array[];
+  Q: Float64Array[];
+  /** Per axis: the slot whose F, Q are in the caller's arrays now (−1: none). */
+  current: Int32Array;
+  /** Per axis: next slot to overwrite. */
+  next: Int32Array;
 }
 
-export function makeStepCache(nAxes: number): StepCache {
-  return { dt: new Float64Array(nAxes).fill(NaN), qs: new Float64Array(nAxes).fill(NaN) };
+const CACHE_SLOTS = 4;
+
+export function makeStepCache(nAxes: number, dims?: number[]): StepCache {
+  const nn = (a: number) => (dims ? dims[a]! * dims[a]! : 16);
+  return {
+    slots: CACHE_SLOTS,
+    dt: new Float64Array(nAxes * CACHE_SLOTS).fill(NaN),
+    qs: new Float64Array(nAxes * CACHE_SLOTS).fill(NaN),
+    F: Array.from({ length: nAxes * CACHE_SLOTS }, (_, i) => new Float64Array(nn(Math.floor(i / CACHE_SLOTS)))),
+    Q: Array.from({ length: nAxes * CACHE_SLOTS }, (_, i) => new Float64Array(nn(Math.floor(i / CACHE_SLOTS)))),
+    current: new Int32Array(nAxes).fill(-1),
+    next: new Int32Array(nAxes),
+  };
 }
 
+/** Fill F and Q (with any recorded extra noise) of every axis for the step ending at epoch k. */
 export function stepMatrices(models: AxisModel[], data: SegmentData, h: FilterHistory, k: number, qScale: Float64Array[] | null | undefined, F: Float64Array[], Q: Float64Array[], cache?: StepCache): void {
   const dt = data.tSec[k]! - data.tSec[k - 1]!;
-  const extra = h.extraQ.get(k);
+  const extra = h.extraQ.size > 0 ? h.extraQ.get(k) : undefined;
   for (let a = 0; a < models.length; a++) {
     const m = models[a]!;
     const qs = qScale ? qScale[a]![k]! : 1;
-    if (cache) {
-      if (!extra && cache.dt[a] === dt && cache.qs[a] === qs) continue;
-      // an epoch with extra noise leaves Q dirty: force a rewrite at the next step
-      cache.dt[a] = extra ? NaN : dt;
-      cache.qs[a] = qs;
+    if (cache && !extra) {
+      const base = a * cache.slots;
+      let hit = -1;
+      for (let s = 0; s < cache.slots; s++)
+        if (cache.dt[base + s] === dt && cache.qs[base + s] === qs) {
+          hit = s;
+          break;
+        }
+      if (hit >= 0) {
+        if (cache.current[a] !== hit) {
+          F[a]!.set(cache.F[base + hit]!);
+          Q[a]!.set(cache.Q[base + hit]!);
+          cache.current[a] = hit;
+        }
+        continue;
+      }
     }
     m.fillF(dt, F[a]!);
     m.fillQ(dt, Q[a]!, qs);
     if (extra) {
       const e = extra[a]!;
       for (let i = 0; i < m.n; i++) Q[a]![i * m.n + i] += e[i]!;
-    }
+      // an epoch with extra noise is not cached, and leaves F, Q matching no slot
+      if (cache) cache.current[a] = -1;
+    } else if (cache && F[a]!.length === cache.F[a * cache.slots]!.length) {
+      const s = cache.next[a]!;
+      const i = a * cache.slots + s;
+      cache.dt[i] = dt;
+      cache.qs[i] = qs;
+      cache.F[i]!.set(F[a]!);
+      cache.Q[i]!.set(Q[a]!);
+      cache.current[a] = s;
+      cache.next[a] = (s + 1) % cache.slots;
+    } else if (cache) cache.current[a] = -1;
   }
 }
 
@@ -169,7 +217,8 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
       stepMatrices(models, data, h, k, opt.qScale, w.F, w.Q, w.cache);
       for (let a = 0; a < nAx; a++) {
         const n = models[a]!.n;
-        predict(n, w.F[a]!, w.Q[a]!, h.x[a]!, (k - 1) * n, h.P[a]!, (k - 1) * n * n, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!);
+        if (n === 3) predict3(w.F[a]!, w.Q[a]!, h.x[a]!, (k - 1) * 3, h.P[a]!, (k - 1) * 9, h.x[a]!, k * 3, h.P[a]!, k * 9);
+        else predict(n, w.F[a]!, w.Q[a]!, h.x[a]!, (k - 1) * n, h.P[a]!, (k - 1) * n * n, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!);
       }
     }
     h.accepted[k] = 0;
@@ -194,7 +243,8 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
       }
       const m = models[a]!;
       const n = m.n;
-      const nu = innovation(n, m.h, z, data.r[a]![k]! * rScale[a]!, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!, w.out1);
+      const r = data.r[a]![k]! * rScale[a]!;
+      const nu = n === 3 ? innovation3(m.h, z, r, h.x[a]!, k * 3, h.P[a]!, k * 9, w.s[a]!.w, w.out1) : innovation(n, m.h, z, r, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!, w.out1);
       const S = w.out1[0]!;
       w.nu[a] = nu;
       w.S[a] = S;
@@ -219,7 +269,8 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
         const n = m.n;
         // innovation() left P hᵀ in this axis's own scratch
         const r = data.r[a]![k]! * rScale[a]!;
-        updateJoseph(n, m.h, w.nu[a]!, w.S[a]!, r, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!);
+        if (n === 3) updateJoseph3(m.h, w.nu[a]!, w.S[a]!, r, w.s[a]!.w, h.x[a]!, k * 3, h.P[a]!, k * 9);
+        else updateJoseph(n, m.h, w.nu[a]!, w.S[a]!, r, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!);
       }
       h.accepted[k] = 1;
       h.logLik[k] = -0.5 * (ll + nis);
