@@ -8,7 +8,7 @@
  * report payload → manifest entry. So an entry exists only for outputs that are complete and
  * belong to the inputs it names.
  */
-import { mkdir, realpath, stat } from 'node:fs/promises';
+import { mkdir, realpath, rm, stat } from 'node:fs/promises';
 import { dirname, join, resolve, sep } from 'node:path';
 import pLimit from 'p-limit';
 import type { HindcastConfig } from '../config/schema.js';
@@ -170,6 +170,10 @@ export async function runBatch(opt: BatchOptions): Promise<BatchResult> {
       : undefined,
   );
   if (removed > 0) note(`removed ${removed} temporary file(s) left by an interrupted run`);
+  // a summary is there only once its batch has finished: remove the last one now (a shard's run
+  // also makes the joined summary out of date)
+  await rm(join(out, mySummary), { force: true });
+  if (shard) await rm(join(out, 'summary.json'), { force: true });
 
   const found = await discover(opt.input);
   if (found.sessions.length === 0) throw new UsageError(`no fix logs found in ${opt.input}`);
