@@ -42,6 +42,9 @@ interface RunOpts {
   shard?: Shard;
   strict?: boolean;
   workerMemory?: number;
+  gpx?: boolean;
+  points?: boolean;
+  report?: boolean;
 }
 
 function shardArg(v: string): Shard {
@@ -75,12 +78,20 @@ export async function main(argv: string[]): Promise<number> {
     .option('--shard <K/N>', 'take only part K of N of the sessions (for array jobs; then run join-shards)', shardArg)
     .option('--strict', 'treat any reader warning (skipped row, duplicate time, …) as a failure of the file')
     .option('--worker-memory <MB>', 'heap limit of each worker thread; a session above it fails alone', positiveInt)
+    .option('--gpx', 'also write <stem>.gpx (GPX 1.1) with each smoothed track')
+    .option('--points', 'also write every epoch as a GeoJSON point with its uncertainty')
+    .option('--no-report', 'do not write report.html')
     .option('-q, --quiet', 'print nothing but errors')
     .action(async (input: string, o: RunOpts) => {
       const overrides: Record<string, unknown> = {};
       if (o.maxGap !== undefined) overrides.segments = { maxGapSec: o.maxGap };
       if (o.gateProbability !== undefined) overrides.gate = { probability: o.gateProbability };
       if (o.strict) overrides.input = { strict: true };
+      const output: Record<string, unknown> = {};
+      if (o.gpx) output.gpx = true;
+      if (o.points) output.points = true;
+      if (o.report === false) output.report = false;
+      if (Object.keys(output).length) overrides.output = output;
       const config = loadConfig({ profile: o.profile, configFile: o.config, overrides });
       const progress = makeProgress({ quiet: !!o.quiet, tty: !!process.stderr.isTTY, out: process.stdout, err: process.stderr });
       // Ctrl-C / a scheduler's TERM: every output so far is complete (atomic writes), so stop at once

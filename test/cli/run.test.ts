@@ -4,7 +4,7 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { spawnSync } from 'node:child_process';
-import { appendFile, readFile, writeFile } from 'node:fs/promises';
+import { appendFile, readdir, readFile, writeFile } from 'node:fs/promises';
 import { join, resolve } from 'node:path';
 import { removeDir, tempDir, writeSessions } from '../batch/batch-helpers.js';
 
@@ -73,6 +73,14 @@ describe('hindcast run', () => {
     expect(quiet.status).toBe(0);
     expect(quiet.stdout).toBe('');
     expect(quiet.stderr).toBe('');
+  });
+
+  it('--gpx adds the GPX files, --no-report leaves report.html out', async () => {
+    const out = join(root, 'gpx-out');
+    expect(hindcast('run', good, '--out', out, '--gpx', '--no-report', '--quiet').status).toBe(0);
+    const names = await readdir(out);
+    expect(names.filter((n) => n.endsWith('.gpx')).sort()).toEqual(['log00.gpx', 'log01.gpx', 'log02.gpx']);
+    expect(names).not.toContain('report.html');
   });
 
   it('--strict fails a log with a skipped row; without it the row is a warning', async () => {
