@@ -27,7 +27,43 @@ export function validFixes(s: FixSeries): { valid: Uint8Array; why: string[] } {
     else if (s.quality.fixQuality && s.quality.fixQuality[i] === 0) why[i] = 'fix quality 0 (no fix)';
     else valid[i] = 1;
   }
+  flagHeightJumps(s, valid, why);
   return { valid, why };
+}
+
+/** Largest vertical speed (m/s) any platform of the profiles reaches, and a slack for fix noise (m). */
+export const HEIGHT_JUMP_RATE_MPS = 30;
+export const HEIGHT_JUMP_SLACK_M = 150;
+
+/**
+ * Impossible jumps in height: a fix whose height differs from the median of its valid neighbours
+ * (up to five on each side) by more than the slack plus the fastest climb over the time to the
+ * farthest of them is invalid; the median of neighbours is robust to a burst of bad heights.
+ */
+export function flagHeightJumps(s: FixSeries, valid: Uint8Array, why: string[]): void {
+  const h = s.heightM;
+  if (!h) return;
+  const W = 5;
+  const nb: number[] = [];
+  for (let i = 0; i < s.n; i++) {
+    if (!valid[i] || !Number.isFinite(h[i]!)) continue;
+    nb.length = 0;
+    let span = 0;
+    for (let d = 1; d <= 3 * W && nb.length < 2 * W; d++)
+      for (const j of [i - d, i + d]) {
+        if (j < 0 || j >= s.n || !valid[j] || !Number.isFinite(h[j]!) || nb.length >= 2 * W) continue;
+        nb.push(h[j]!);
+        span = Math.max(span, Math.abs(s.tSec[j]! - s.tSec[i]!));
+      }
+    if (nb.length < 4) continue;
+    nb.sort((a, b) => a - b);
+    const med = nb[nb.length >> 1]!;
+    const jump = Math.abs(h[i]! - med);
+    if (jump > HEIGHT_JUMP_SLACK_M + HEIGHT_JUMP_RATE_MPS * span) {
+      valid[i] = 0;
+      why[i] = `impossible height jump: ${jump.toFixed(0)} m from its neighbours within ${span.toFixed(1)} s`;
+    }
+  }
 }
 
 export interface AxisParams {
