@@ -57,7 +57,7 @@ export interface CalibrationOptions {
   maxEvaluations: number;
 }
 
-export const DEFAULT_CALIBRATION: CalibrationOptions = { maxEpochs: 10000, minFixes: 120, minDurationSec: 180, maxEvaluations: 500 };
+export const DEFAULT_CALIBRATION: CalibrationOptions = { maxEpochs: 4000, minFixes: 120, minDurationSec: 180, maxEvaluations: 500 };
 
 /**
  * Prior spread (log space) per parameter. White noise and process noise are well identified by the
@@ -75,20 +75,52 @@ const PRIOR_LOG_SD: Record<ParamName, number> = {
   qVertical: Math.log(10),
 };
 
-/** Segment data of the calibration subset: segments in order, the last one truncated, with their index. */
-function calibrationSubset(ps: PreparedSession, base: AxisParams, bridgeFactor: number, maxEpochs: number): Array<{ seg: number; data: SegmentData }> {
-  const out: Array<{ seg: number; data: SegmentData }> = [];
-  let total = 0;
+/** Number of contiguous chunks the calibration subset of a long log is made of. */
+export const CALIBRATION_CHUNKS = 4;
+
+/**
+ * Segment data of the calibration subset, with each item's segment and first epoch in it. A log of
+ * at most maxEpochs epochs is used whole; a longer one contributes CALIBRATION_CHUNKS contiguous
+ * chunks of maxEpochs / CALIBRATION_CHUNKS epochs centred at equal steps through the log, so the
+ * cost of calibration does not grow with the log while it still sees its beginning, middle and end.
+ */
+function calibrationSubset(ps: PreparedSession, base: AxisParams, bridgeFactor: number, maxEpochs: number): Array<{ seg: number; start: number; data: SegmentData }> {
   // unit white sigma: the objective scales the variances per evaluation
   const unit = { ...base, sigmaHorizontalM: 1, sigmaVerticalM: 1 };
-  for (let si = 0; si < ps.segments.length && total < maxEpochs; si++) {
+  const segs: Array<{ seg: number; data: SegmentData }> = [];
+  let total = 0;
+  for (let si = 0; si < ps.segments.length; si++) {
     const { data } = segmentData(ps, ps.segments[si]!, unit, bridgeFactor);
-    const N = Math.min(data.N, maxEpochs - total);
-    if (N < 3) continue;
-    out.push({ seg: si, data: N === data.N ? data : { N, tSec: data.tSec.subarray(0, N), z: data.z.map((a) => a.subarray(0, N)), r: data.r.map((a) => a.subarray(0, N)), use: data.use.subarray(0, N) } });
-    total += N;
+    if (data.N < 3) continue;
+    segs.push({ seg: si, data });
+    total += data.N;
+  }
+  if (total <= maxEpochs) return segs.map((x) => ({ ...x, start: 0 }));
+  const L = Math.floor(maxEpochs / CALIBRATION_CHUNKS);
+  const out: Array<{ seg: number; start: number; data: SegmentData }> = [];
+  for (let c = 0; c < CALIBRATION_CHUNKS; c++) {
+    // chunk centred at (c + ½)/C of the concatenated epochs, kept inside its segment
+    let pos = Math.floor(((c + 0.5) / CALIBRATION_CHUNKS) * total);
+    let j = 0;
+    while (pos >= segs[j]!.data.N) pos -= segs[j++]!.data.N;
+    const { seg, data } = segs[j]!;
+    const len = Math.min(L, data.N);
+    const start = Math.max(0, Math.min(pos - (len >> 1), data.N - len));
+    out.push({ seg, start, data: sliceSegment(data, start, start + len) });
   }
   return out;
+}
+
+function sliceSegment(d: SegmentData, from: number, to: number): SegmentData {
+  return { N: to - from, tSec: d.tSec.subarray(from, to), z: d.z.map((a) => a.subarray(from, to)), r: d.r.map((a) => a.subarray(from, to)), use: d.use.subarray(from, to) };
+}
+
+/** The item from its first epoch that carries a fix (the forward filter starts on one), or null when fewer than 3 epochs remain. */
+function startOnFix(d: SegmentData): SegmentData | null {
+  let k = 0;
+  while (k < d.N && d.use[k] === 0) k++;
+  if (d.N - k < 3) return null;
+  return k === 0 ? d : sliceSegment(d, k, d.N);
 }
 
 /** Robust spread (m) of the horizontal fixes: the larger of the 5–95 % ranges of east and north. */
@@ -138,13 +170,19 @@ export function calibrateSession(
     names.push('qHorizontal');
     if (ps.hasHeight) names.push('qVertical');
   }
-  const subset = calibrationSubset(ps, prior, cfg.segments.bridgeFactor, opt.maxEpochs);
+  const chunks = calibrationSubset(ps, prior, cfg.segments.bridgeFactor, opt.maxEpochs);
   // held-fixed outlier decisions (2 kept without gate, 0 rejected) replace the gate when given
   if (useOverride)
-    for (const item of subset) {
+    for (const item of chunks) {
       const u = useOverride.get(item.seg);
-      if (u) item.data = { ...item.data, use: u.subarray(0, item.data.N) };
+      if (u) item.data = { ...item.data, use: u.subarray(item.start, item.start + item.data.N) };
     }
+  const subset: Array<{ data: SegmentData }> = [];
+  for (const item of chunks) {
+    // a whole segment starts on its first fix already (kept as it is, also under held-fixed decisions)
+    const d = item.start > 0 ? startOnFix(item.data) : item.data;
+    if (d) subset.push({ data: d });
+  }
   const epochsUsed = subset.reduce((a, d) => a + d.data.N, 0);
   const clampLog = (nm: ParamName, v: number) => Math.log(Math.min(Math.max(v, PARAM_BOUNDS[nm][0]), PARAM_BOUNDS[nm][1]));
   // the prior is centred on the profile; the search starts from `start` (an earlier round) when given

@@ -203,6 +203,8 @@ export function reviewOptions(cfg: HindcastConfig, intervalSec = 1): ReviewOptio
 interface SegmentPlan {
   offered: Uint8Array;
   decisions?: { kept: Uint8Array; gateRejected: Uint8Array };
+  /** The converged review behind the decisions and the parameters it ran under (reused when the final run has the same). */
+  outcome?: { params: AxisParams; rev: ReturnType<typeof reviewSegment> };
 }
 
 /**
@@ -234,6 +236,7 @@ export function processSession(series: FixSeries, cfg: HindcastConfig, name: str
     // stage 3: calibration with the decisions held fixed
     const uses = new Map<number, Uint8Array>();
     plans.forEach((pl, si) => {
+      pl.outcome = undefined; // its parameters change: free its history now
       uses.set(si, Uint8Array.from(pl.offered, (u, k) => (u === 0 ? 0 : pl.decisions!.kept[k] ? 2 : 0)));
     });
     if (tm) t0 = performance.now();
@@ -260,7 +263,7 @@ function classify(ps: PreparedSession, cfg: HindcastConfig, params: AxisParams, 
     if (tm) tm.review += performance.now() - t0;
     const offered = data.use.slice();
     const rev = reviewSegment(models, data, offered, opt, ro, undefined, tm);
-    return { offered, decisions: { kept: rev.kept, gateRejected: rev.gateRejected } };
+    return { offered, decisions: { kept: rev.kept, gateRejected: rev.gateRejected }, outcome: rev.converged ? { params, rev } : undefined };
   });
 }
 
@@ -279,7 +282,8 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
     if (tm) tm.review += performance.now() - t0;
     const plan = plans?.[si];
     const offered = plan?.offered ?? data.use.slice();
-    const rev = reviewSegment(models, data, offered, opt, ro, plan?.decisions, tm);
+    // a converged review under the same parameters would only repeat itself (same decisions, same history)
+    const rev = plan?.outcome && plan.outcome.params === p ? plan.outcome.rev : reviewSegment(models, data, offered, opt, ro, plan?.decisions, tm);
     const h = rev.history;
     segOuts.push({ data, fix, x: h.x, P: h.P, kept: rev.kept, gateRejected: rev.gateRejected, T: rev.T, thr: rev.threshold, reacq: h.reacquired.length });
   });

@@ -28,6 +28,8 @@ export interface ReviewOutcome {
   dof: Uint8Array;
   threshold: Float64Array;
   passes: number;
+  /** The loop ended because no decision changed (not at maxPasses): rerunning it from `kept` under the same model gives this outcome again. */
+  converged: boolean;
 }
 
 export interface ReviewOptions {
@@ -53,6 +55,7 @@ export function reviewSegment(
   const tStart = tm ? performance.now() : 0;
   let tKernel = 0;
   const N = data.N;
+  let histBuf: FilterHistory | undefined;
   const work: SegmentData = { ...data, use: offered.slice() };
   let h: FilterHistory;
   const gateRejected = new Uint8Array(N);
@@ -68,6 +71,8 @@ export function reviewSegment(
     const t0 = tm ? performance.now() : 0;
     h = forwardFilter(models, work, opt);
     const back = forwardFilter(models, reversed(work), opt);
+    // the first review pass reuses the forward history's buffers (every epoch is rewritten)
+    histBuf = h;
     if (tm) {
       const d = performance.now() - t0;
       tm.filter += d;
@@ -90,7 +95,7 @@ export function reviewSegment(
   const threshold = new Float64Array(N).fill(NaN);
   const nu = new Float64Array(models.length);
   let passes = 0;
-  let histBuf: FilterHistory | undefined;
+  let converged = false;
   for (;;) {
     passes++;
     for (let k = 0; k < N; k++) work.use[k] = offered[k] === 0 ? 0 : kept[k] ? 2 : 0;
@@ -113,6 +118,7 @@ export function reviewSegment(
       tm.filterEpochs += N;
     }
     if (passes > ro.maxPasses) break;
+    converged = false;
     // test every offered fix
     const fail = new Uint8Array(N);
     for (let k = 0; k < N; k++) {
@@ -144,11 +150,14 @@ export function reviewSegment(
       kept[k] = 0;
       changed = true;
     }
-    if (!changed) break;
+    if (!changed) {
+      converged = true;
+      break;
+    }
   }
   for (let k = 0; k < N; k++) work.use[k] = offered[k] === 0 ? 0 : kept[k] ? 2 : 0;
   if (tm) tm.review += performance.now() - tStart - tKernel;
-  return { history: h!, data: work, kept, gateRejected, T, dof, threshold, passes };
+  return { history: h!, data: work, kept, gateRejected, T, dof, threshold, passes, converged };
 }
 
 /** The segment in reverse time order (t → −t), for the time-reversed filter; the models are time-symmetric. */
