@@ -5,6 +5,12 @@
  * Epochs the IMU does not cover (before its first sample, after its last, before alignment) keep the
  * fixes-only solution, which is also the source of the initial velocity and of the first-motion
  * heading (no truth needed).
+ * GNSS noise as in processSession: the white and Gauss–Markov fix noise are the session's maximum-
+ * likelihood calibration (./calibrated-params.ts), also used for the fixes-only baseline. Outliers as
+ * in processSession: the filter's forward gate, then the two-sided review (./review-decisions.ts)
+ * of every fix against the smoothed antenna position plus the smoothed fix error, with the deletion-
+ * residual covariance R ∓ H Pˢ Hᵀ (src/estimation/ins/review.ts); the IMU log is streamed again
+ * with the decisions held fixed until they no longer change (at most IMU_REVIEW_MAX_PASSES streams).
  * Positions in the result are of the GNSS antenna (the point the fixes measure); heading is clockwise
  * from the grid north of the session's transverse Mercator frame (within a few tenths of a degree of
  * true north inside a session).
@@ -12,21 +18,42 @@
 import type { HindcastConfig } from '../config/schema.js';
 import type { FixSeries } from '../input/fix-series.js';
 import { streamImuCsv } from '../input/imu-csv.js';
-import { geodesicLengthM } from '../geodesy/geodesic.js';
 import { earthRateEnu } from '../models/ins/gravity.js';
 import { makeMechParams } from '../models/ins/mechanization.js';
 import { yawToHeadingDeg } from '../models/ins/attitude.js';
 import { InsSmoother, type InsEpochs, type InsInit, type InsOptions } from '../estimation/ins/ins-filter.js';
+import { gnssReviewStatistic, makeGnssReviewScratch } from '../estimation/ins/review.js';
 import { errorEllipse } from '../output/ellipse.js';
 import { InputError } from '../errors.js';
-import { axisParamsFromConfig, prepareSession, runPrepared, segmentData, type PreparedSession } from './process-session.js';
-import { STATUS, type OutlierRecord, type SessionResult } from './result.js';
+import { axisParamsFromConfig, prepareSession, reviewOptions, segmentData, type AxisParams, type PreparedSession } from './process-session.js';
+import { calibratedFixesOnly } from './calibrated-params.js';
+import { applyReviewDecisions, reviewThresholds } from './review-decisions.js';
+import { buildOutliersAndMetrics } from './products.js';
+import { STATUS, type SessionResult } from './result.js';
 
 const DEG = 180 / Math.PI;
 
-/** The epoch grid of all segments, as the fixes-only pipeline builds it, with antenna fixes and variances. */
-export function insEpochs(ps: PreparedSession, cfg: HindcastConfig): InsEpochs {
-  const p = axisParamsFromConfig(cfg, !!ps.factors.reported);
+/**
+ * GNSS noise of the 18-state filter: the calibrated white noise and correlation time, and the
+ * calibrated sigma of the time-correlated fix error but not below the profile's. Measured
+ * (test/imu/acceptance.test.ts, four seeds): the fixes-only calibration puts that sigma at 0.77–0.94 m
+ * where the simulator has 1.5 m (it is weakly identified next to slow motion, README "Known
+ * shortfall"); the IMU-aided track is otherwise so precise that its 95% coverage then fell to
+ * 0.53–0.77 at fix epochs and 0.81–0.88 in outages. With the floor: 0.81–1.00 and 0.92–1.00.
+ */
+export function imuGnssParams(calibrated: AxisParams, profile: AxisParams): AxisParams {
+  return {
+    ...calibrated,
+    gmHorizontalSigmaM: Math.max(calibrated.gmHorizontalSigmaM, profile.gmHorizontalSigmaM),
+    gmVerticalSigmaM: Math.max(calibrated.gmVerticalSigmaM, profile.gmVerticalSigmaM),
+  };
+}
+
+/** Most IMU streams (filter + smoother passes) of the review loop. */
+export const IMU_REVIEW_MAX_PASSES = 5;
+
+/** The epoch grid of all segments, as the fixes-only pipeline builds it, with antenna fixes and variances (white noise of `p`). */
+export function insEpochs(ps: PreparedSession, cfg: HindcastConfig, p: AxisParams = axisParamsFromConfig(cfg, !!ps.factors.reported)): InsEpochs {
   const parts = ps.segments.map((seg) => segmentData(ps, seg, p, cfg.segments.bridgeFactor).data);
   const N = parts.reduce((a, d) => a + d.N, 0);
   const nan = () => new Float64Array(N).fill(NaN);
@@ -72,7 +99,8 @@ export function initFromTrack(base: SessionResult, cfg: HindcastConfig): InsInit
   };
 }
 
-export function insOptions(ps: PreparedSession, cfg: HindcastConfig): InsOptions {
+/** Filter options; the Gauss–Markov fix error of `p` (the session's calibration in processImuSession). */
+export function insOptions(ps: PreparedSession, cfg: HindcastConfig, p: AxisParams = axisParamsFromConfig(cfg, !!ps.factors.reported)): InsOptions {
   const imu = cfg.imu;
   const we = earthRateEnu(ps.frame.lat0Deg, new Float64Array(3));
   const mech = makeMechParams(ps.frame.lat0Deg, ps.heightRefM, imu.earthRotation, we);
@@ -83,9 +111,9 @@ export function insOptions(ps: PreparedSession, cfg: HindcastConfig): InsOptions
       gyroNoiseDensity: imu.gyroNoiseDensity,
       accelBiasWalk: imu.accelBiasWalk,
       gyroBiasWalk: imu.gyroBiasWalk,
-      gmSigmaHM: cfg.noise.correlatedHorizontalSigmaM,
-      gmSigmaVM: cfg.noise.correlatedVerticalSigmaM,
-      gmTauSec: cfg.noise.correlationTimeSec,
+      gmSigmaHM: p.gmHorizontalSigmaM,
+      gmSigmaVM: p.gmVerticalSigmaM,
+      gmTauSec: p.gmTauSec,
       earthRateEnu: mech.earthRateEnu,
     },
     leverArmBody: [imu.leverArmM[0], imu.leverArmM[1], imu.leverArmM[2]],
@@ -107,10 +135,46 @@ export function insOptions(ps: PreparedSession, cfg: HindcastConfig): InsOptions
   };
 }
 
-function median(v: number[]): number {
-  if (v.length === 0) return NaN;
-  const a = v.slice().sort((x, y) => x - y);
-  return a[a.length >> 1]!;
+/** Outcome of the IMU review loop: final decisions and statistics per epoch. */
+export interface ImuReview {
+  /** 1 kept, 0 rejected (offered gated fixes of covered epochs; others as offered). */
+  kept: Uint8Array;
+  /** 1 where the fix failed the forward gate of the first pass. */
+  gateRejected: Uint8Array;
+  T: Float64Array;
+  dof: Uint8Array;
+  threshold: Float64Array;
+  passes: number;
+  converged: boolean;
+  /** Forward-gate rejections and re-acquisitions of the first pass. */
+  gnssRejected: number;
+  reacquisitions: number;
+}
+
+/**
+ * Review statistic of every offered gated fix at a covered epoch against the smoothed track of
+ * `engine`: ν = z − ẑˢ with var R − H Pˢ Hᵀ where the smoother used the fix, R + H Pˢ Hᵀ otherwise.
+ */
+export function reviewImuFixes(ep: InsEpochs, offered: Uint8Array, engine: InsSmoother, th: number[], T: Float64Array, dof: Uint8Array, threshold: Float64Array): void {
+  const pr = engine.products;
+  const s = makeGnssReviewScratch();
+  const axes = [0, 0, 0], nu = [0, 0, 0], r = [0, 0, 0];
+  for (let k = 0; k < ep.N; k++) {
+    if (offered[k] !== 1 || !pr.covered[k]) continue;
+    let m = 0;
+    for (let a = 0; a < 3; a++) {
+      const z = ep.z[a]![k]!;
+      if (!Number.isFinite(z)) continue;
+      axes[m] = a;
+      // ν = z − (p̂ˢ + Ĉˢ l + b̂ˢ)
+      nu[m] = z - pr.zPred[a]![k]!;
+      r[m] = ep.r[a]![k]!;
+      m++;
+    }
+    T[k] = m > 0 ? gnssReviewStatistic(m, axes, nu, r, pr.zCov, 6 * k, pr.accepted[k] === 1, s) : NaN;
+    dof[k] = m;
+    threshold[k] = th[m]!;
+  }
 }
 
 /**
@@ -119,21 +183,63 @@ function median(v: number[]): number {
  */
 export async function processImuSession(series: FixSeries, imuPath: string, cfg: HindcastConfig, name: string, userDecisions?: Map<number, 'keep' | 'reject'>): Promise<SessionResult> {
   const ps = prepareSession(series, cfg, userDecisions);
-  // fixes-only solution on the same grid with the configured noise (initial values, uncovered epochs)
-  const base = runPrepared(ps, cfg, axisParamsFromConfig(cfg, !!ps.factors.reported), name);
-  const ep = insEpochs(ps, cfg);
+  // fixes-only solution with the session's calibrated noise (initial values, uncovered epochs)
+  const { result: base, cal } = calibratedFixesOnly(ps, cfg, name);
+  const ep = insEpochs(ps, cfg, cal.params);
   if (ep.N !== base.N) throw new Error(`IMU session: epoch grid (${ep.N}) differs from the fixes-only grid (${base.N})`);
-  const engine = new InsSmoother(ep, initFromTrack(base, cfg), insOptions(ps, cfg));
+  const init = initFromTrack(base, cfg);
+  const gp = imuGnssParams(cal.params, axisParamsFromConfig(cfg, ps.factors.reported));
+  const opt = insOptions(ps, cfg, gp);
   const display = imuPath.replace(/^.*[\\/]/, '');
-  const read = await streamImuCsv(imuPath, display, cfg, (t, fx, fy, fz, wx, wy, wz) => engine.addSample(t, fx, fy, fz, wx, wy, wz));
-  engine.finishStream();
-  if (read.samples === 0) throw new InputError({ file: display }, 'no IMU samples');
-  engine.smooth();
-  return assembleImuResult(base, ps, engine, read.warnings);
+  let imuWarnings: SessionResult['warnings'] = [];
+  const runPass = async (epochs: InsEpochs): Promise<InsSmoother> => {
+    const engine = new InsSmoother(epochs, init, opt);
+    const read = await streamImuCsv(imuPath, display, cfg, (t, fx, fy, fz, wx, wy, wz) => engine.addSample(t, fx, fy, fz, wx, wy, wz));
+    engine.finishStream();
+    if (read.samples === 0) throw new InputError({ file: display }, 'no IMU samples');
+    engine.smooth();
+    imuWarnings = read.warnings;
+    return engine;
+  };
+  // pass 1: the forward gate decides; then the two-sided review until the decisions are stable
+  const N = ep.N;
+  const offered = ep.use.slice();
+  let engine = await runPass(ep);
+  const gateRejected = new Uint8Array(N);
+  const kept = new Uint8Array(N);
+  for (let k = 0; k < N; k++) {
+    const gated = offered[k] === 1 && engine.products.covered[k] === 1;
+    kept[k] = offered[k] === 2 ? 1 : offered[k] === 0 ? 0 : gated ? engine.products.accepted[k]! : 1;
+    if (gated && !engine.products.accepted[k]) gateRejected[k] = 1;
+  }
+  const ro = reviewOptions(cfg, ps.intervalSec);
+  const th = reviewThresholds(ro.probability);
+  const T = new Float64Array(N).fill(NaN);
+  const dof = new Uint8Array(N);
+  const threshold = new Float64Array(N).fill(NaN);
+  const gatedFix = Uint8Array.from(offered, (u, k) => (u === 1 && engine.products.covered[k] ? 1 : 0));
+  const gateStats = { gnssRejected: engine.stats.gnssRejected, reacquisitions: engine.stats.reacquisitions };
+  let passes = 1;
+  let converged = false;
+  const fixed: InsEpochs = { ...ep, use: ep.use.slice() };
+  for (;;) {
+    reviewImuFixes(ep, gatedFix, engine, th.reject, T, dof, threshold);
+    if (passes >= IMU_REVIEW_MAX_PASSES) break;
+    if (!applyReviewDecisions(N, gatedFix, kept, T, dof, threshold, ep.tSec, th, ro.guardSec)) {
+      converged = true;
+      break;
+    }
+    // decisions held fixed: kept fixes without gate, rejected ones left out
+    for (let k = 0; k < N; k++) fixed.use[k] = gatedFix[k] ? (kept[k] ? 2 : 0) : offered[k]!;
+    engine = await runPass(fixed);
+    passes++;
+  }
+  const review: ImuReview = { kept, gateRejected, T, dof, threshold, passes, converged, ...gateStats };
+  return assembleImuResult(base, ps, engine, imuWarnings, review, gp);
 }
 
-/** Merge the smoother's products into a copy of the fixes-only result and recompute statuses, outliers and metrics. */
-export function assembleImuResult(base: SessionResult, ps: PreparedSession, engine: InsSmoother, imuWarnings: SessionResult['warnings']): SessionResult {
+/** Merge the smoother's products and the review's decisions into a copy of the fixes-only result and recompute statuses, outliers and metrics. */
+export function assembleImuResult(base: SessionResult, ps: PreparedSession, engine: InsSmoother, imuWarnings: SessionResult['warnings'], review: ImuReview, gnss?: AxisParams): SessionResult {
   const pr = engine.products;
   const N = base.N;
   const c = (a: Float64Array) => a.slice();
@@ -190,15 +296,25 @@ export function assembleImuResult(base: SessionResult, ps: PreparedSession, engi
     res.attitudeSdDeg!.pitch[j] = pr.attSd[1][j]! * DEG;
     res.attitudeSdDeg!.heading[j] = pr.attSd[2][j]! * DEG;
     const i = res.fix[j]!;
-    res.nis[j] = pr.nis[j]!;
-    res.nisThreshold[j] = pr.threshold[j]!;
+    res.nis[j] = review.T[j]!;
+    res.nisThreshold[j] = review.threshold[j]!;
     if (i < 0) res.status[j] = STATUS.bridged;
     else if (ps.userRejected[i]) res.status[j] = STATUS.userRejected;
     else if (!ps.offered[i]) res.status[j] = STATUS.outlier;
     else if (ps.forced[i]) res.status[j] = STATUS.userKept;
-    else res.status[j] = pr.accepted[j] ? STATUS.kept : STATUS.outlier;
+    else res.status[j] = review.kept[j] ? STATUS.kept : STATUS.outlier;
   }
-  finishOutliersAndMetrics(res, ps);
+  // gate of the first pass per fix: the IMU filter's where it covers the epoch, else the fixes-only one
+  const gateRejectedFix = new Uint8Array(ps.series.n);
+  for (const o of base.outliers) if (o.reason === 'innovation') gateRejectedFix[o.fix] = 1;
+  const dofAt = new Uint8Array(N);
+  for (let j = 0; j < N; j++) {
+    const i = res.fix[j]!;
+    if (i < 0 || !pr.covered[j]) continue;
+    gateRejectedFix[i] = review.gateRejected[j]!;
+    dofAt[j] = review.dof[j]!;
+  }
+  buildOutliersAndMetrics(res, ps, gateRejectedFix, review.reacquisitions, dofAt);
   const st = engine.stats;
   res.info = {
     ...base.info,
@@ -212,80 +328,14 @@ export function assembleImuResult(base: SessionResult, ps: PreparedSession, engi
       alignments: st.alignments,
       zuptEpochs: st.zuptEpochs,
       nhcEpochs: st.nhcEpochs,
-      gnssRejected: st.gnssRejected,
-      reacquisitions: st.reacquisitions,
+      gnssRejected: review.gnssRejected,
+      reacquisitions: review.reacquisitions,
+      gnssNoise: gnss,
+      reviewPasses: review.passes,
+      reviewConverged: review.converged,
       smootherFallbacks: st.smootherFallbacks,
     },
   };
   if (covered < N) res.warnings.push({ file: base.file, code: 'imu-coverage', message: `${N - covered} of ${N} epochs lie outside the IMU log (or before its alignment) and keep the fixes-only solution` });
   return res;
-}
-
-/** Outlier records and metrics from the final statuses (the rules of runPrepared). */
-function finishOutliersAndMetrics(res: SessionResult, ps: PreparedSession): void {
-  const s = ps.series;
-  const N = res.N;
-  const fixEpoch = new Int32Array(s.n).fill(-1);
-  for (let j = 0; j < N; j++) if (res.fix[j]! >= 0) fixEpoch[res.fix[j]!] = j;
-  const out: OutlierRecord[] = [];
-  for (let i = 0; i < s.n; i++) {
-    const j = fixEpoch[i]!;
-    const isInvalid = !ps.valid[i];
-    const byUser = ps.userRejected[i] === 1 && !isInvalid;
-    const rejected = j >= 0 && ps.offered[i] && res.status[j] === STATUS.outlier;
-    if (!isInvalid && !rejected && !byUser) continue;
-    let offsetM = NaN, offsetUpM = NaN;
-    if (j >= 0 && !isInvalid) {
-      offsetM = Math.hypot(ps.e[i]! - res.posEnu[0][j]!, ps.n[i]! - res.posEnu[1][j]!);
-      if (ps.hasHeight) offsetUpM = ps.u[i]! - res.posEnu[2][j]!;
-    }
-    out.push({
-      fix: i, line: s.line[i]!, tSec: s.tSec[i]!, latDeg: s.latDeg[i]!, lonDeg: s.lonDeg[i]!, heightM: s.heightM ? s.heightM[i]! : NaN,
-      reason: isInvalid ? 'invalid' : byUser ? 'user' : 'innovation',
-      statistic: isInvalid || byUser ? NaN : res.nis[j]!,
-      threshold: isInvalid || byUser ? NaN : res.nisThreshold[j]!,
-      dof: 0, offsetM, offsetUpM,
-      detail: isInvalid ? ps.invalidWhy[i]! : byUser ? 'rejected by the user (decisions file)' : 'normalized innovation squared above the chi-square gate',
-    });
-  }
-  res.outliers = out;
-  let kept = 0, bridged = 0;
-  const sdH: number[] = [];
-  const ellMaj: number[] = [];
-  let sumR2 = 0, nR = 0, sumU2 = 0, nU = 0;
-  for (let j = 0; j < N; j++) {
-    const st = res.status[j]!;
-    if (st === STATUS.kept || st === STATUS.userKept) kept++;
-    else if (st === STATUS.bridged) bridged++;
-    sdH.push(Math.hypot(res.sdEnu[0][j]!, res.sdEnu[1][j]!));
-    ellMaj.push(res.ell95MajorM[j]!);
-    const i = res.fix[j]!;
-    if (i >= 0 && (st === STATUS.kept || st === STATUS.userKept)) {
-      sumR2 += (ps.e[i]! - res.posEnu[0][j]!) ** 2 + (ps.n[i]! - res.posEnu[1][j]!) ** 2;
-      nR++;
-      if (ps.hasHeight && Number.isFinite(ps.u[i]!)) {
-        sumU2 += (ps.u[i]! - res.posEnu[2][j]!) ** 2;
-        nU++;
-      }
-    }
-  }
-  let lengthM = 0;
-  let j0 = 0;
-  for (let j = 1; j <= N; j++)
-    if (j === N || res.segment[j] !== res.segment[j0]) {
-      lengthM += geodesicLengthM(res.latDeg, res.lonDeg, j0, j);
-      j0 = j;
-    }
-  res.metrics = {
-    ...res.metrics,
-    keptCount: kept,
-    outlierCount: out.length,
-    bridgedCount: bridged,
-    lengthM,
-    medianSdHorizontalM: median(sdH),
-    worstEll95MajorM: ellMaj.length ? ellMaj.reduce((m, v) => (v > m ? v : m), -Infinity) : NaN,
-    medianEll95MajorM: median(ellMaj),
-    rmsResidualHorizontalM: nR ? Math.sqrt(sumR2 / nR) : NaN,
-    rmsResidualUpM: nU ? Math.sqrt(sumU2 / nU) : NaN,
-  };
 }

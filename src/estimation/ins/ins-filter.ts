@@ -78,6 +78,13 @@ export interface InsProducts {
   vel: [Float64Array, Float64Array, Float64Array];
   /** Antenna position covariance: ee, en, eu, nn, nu, uu (6 per epoch). */
   covPos: Float64Array;
+  /**
+   * Smoothed GNSS measurement prediction ẑˢ = p̂ˢ + Ĉˢ l + b̂ˢ (antenna position plus the smoothed
+   * Gauss–Markov fix error, m) and the covariance H Pˢ Hᵀ of its error (ee, en, eu, nn, nu, uu), for
+   * the two-sided review (./review.ts).
+   */
+  zPred: [Float64Array, Float64Array, Float64Array];
+  zCov: Float64Array;
   /** Roll, pitch, yaw (rad) and their 1-sigma (rad). */
   att: [Float64Array, Float64Array, Float64Array];
   attSd: [Float64Array, Float64Array, Float64Array];
@@ -170,7 +177,7 @@ export class InsSmoother {
     const mk = () => new Float64Array(N).fill(NaN);
     const m3 = (): [Float64Array, Float64Array, Float64Array] => [mk(), mk(), mk()];
     this.products = {
-      covered: new Uint8Array(N), pos: m3(), vel: m3(), covPos: new Float64Array(N * 6).fill(NaN), att: m3(), attSd: m3(),
+      covered: new Uint8Array(N), pos: m3(), vel: m3(), covPos: new Float64Array(N * 6).fill(NaN), zPred: m3(), zCov: new Float64Array(N * 6).fill(NaN), att: m3(), attSd: m3(),
       accelBias: m3(), accelBiasSd: m3(), gyroBias: m3(), gyroBiasSd: m3(),
       nis: mk(), threshold: mk(), accepted: new Uint8Array(N), stationary: new Uint8Array(N),
     };
@@ -676,26 +683,14 @@ export function extractProducts(k: number, x: Float64Array, P: Float64Array, l: 
     pr.accelBiasSd[i]![k] = Math.sqrt(P[(E_BA + i) * NE + E_BA + i]!);
     pr.gyroBiasSd[i]![k] = Math.sqrt(P[(E_BG + i) * NE + E_BG + i]!);
   }
-  // antenna error = δp + A φ with A = −[u×]: Σ = Ppp + Ppφ Aᵀ + A Pφp + A Pφφ Aᵀ
+  // antenna error = δp + A φ with A = −[u×]; the GNSS measurement error adds b_GNSS (H = [I, 0, A, 0, 0, I])
   const A = s.A;
   A[0] = 0; A[1] = u[2]!; A[2] = -u[1]!;
   A[3] = -u[2]!; A[4] = 0; A[5] = u[0]!;
   A[6] = u[1]!; A[7] = -u[0]!; A[8] = 0;
-  const cov = (i: number, j: number): number => {
-    let v = P[(E_P + i) * NE + E_P + j]!;
-    for (let a = 0; a < 3; a++) {
-      v += P[(E_P + i) * NE + E_A + a]! * A[j * 3 + a]! + A[i * 3 + a]! * P[(E_A + a) * NE + E_P + j]!;
-      for (let b = 0; b < 3; b++) v += A[i * 3 + a]! * P[(E_A + a) * NE + E_A + b]! * A[j * 3 + b]!;
-    }
-    return v;
-  };
-  const o = 6 * k;
-  pr.covPos[o] = cov(0, 0);
-  pr.covPos[o + 1] = cov(0, 1);
-  pr.covPos[o + 2] = cov(0, 2);
-  pr.covPos[o + 3] = cov(1, 1);
-  pr.covPos[o + 4] = cov(1, 2);
-  pr.covPos[o + 5] = cov(2, 2);
+  antennaCov(P, A, false, pr.covPos, 6 * k);
+  antennaCov(P, A, true, pr.zCov, 6 * k);
+  for (let i = 0; i < 3; i++) pr.zPred[i]![k] = pr.pos[i]![k]! + x[NAV_GM + i]!;
   // Euler angles and their sigmas through a numerical Jacobian d(roll, pitch, yaw)/dφ
   dcmToEuler(C, s.e0);
   pr.att[0]![k] = s.e0[0]!;
@@ -719,4 +714,26 @@ export function extractProducts(k: number, x: Float64Array, P: Float64Array, l: 
     for (let a = 0; a < 3; a++) for (let b = 0; b < 3; b++) v += s.J[i * 3 + a]! * P[(E_A + a) * NE + E_A + b]! * s.J[i * 3 + b]!;
     pr.attSd[i]![k] = Math.sqrt(Math.max(v, 0));
   }
+}
+
+/**
+ * Covariance of M δx with M = [I, 0, A, 0, 0, g·I] (rows δp, φ and, with g = 1, b_GNSS), written packed
+ * (ee, en, eu, nn, nu, uu) at out[off..off+6):
+ *   Σ = Ppp + Ppφ Aᵀ + A Pφp + A Pφφ Aᵀ  (+ Ppb + Pbp + A Pφb + Pbφ Aᵀ + Pbb with the fix error)
+ */
+function antennaCov(P: Float64Array, A: Float64Array, withGm: boolean, out: Float64Array, off: number): void {
+  let m = off;
+  for (let i = 0; i < 3; i++)
+    for (let j = i; j < 3; j++) {
+      let v = P[(E_P + i) * NE + E_P + j]!;
+      for (let a = 0; a < 3; a++) {
+        v += P[(E_P + i) * NE + E_A + a]! * A[j * 3 + a]! + A[i * 3 + a]! * P[(E_A + a) * NE + E_P + j]!;
+        for (let b = 0; b < 3; b++) v += A[i * 3 + a]! * P[(E_A + a) * NE + E_A + b]! * A[j * 3 + b]!;
+      }
+      if (withGm) {
+        v += P[(E_P + i) * NE + E_GM + j]! + P[(E_GM + i) * NE + E_P + j]! + P[(E_GM + i) * NE + E_GM + j]!;
+        for (let a = 0; a < 3; a++) v += A[i * 3 + a]! * P[(E_A + a) * NE + E_GM + j]! + P[(E_GM + i) * NE + E_A + a]! * A[j * 3 + a]!;
+      }
+      out[m++] = v;
+    }
 }

@@ -1,0 +1,68 @@
+/**
+ * The calibrated noise of a session, obtained exactly as processSession obtains it (process-session.ts,
+ * stages 1–4): maximum-likelihood calibration under a capped likelihood (calibrate.ts), classification
+ * of the fixes (two-way gate and two-sided review, review.ts), calibration again with those decisions
+ * held fixed, and classification once more. Returned with the decisions, so that
+ * runPrepared(ps, cfg, params, name, plans) reproduces processSession's result; used by the IMU-aided
+ * session for its fixes-only baseline and its GNSS noise. Keep in step with processSession (a test in
+ * test/imu/calibrated-params.test.ts compares the two).
+ * Sources: as in calibrate.ts (Schweppe 1965; Harvey 1989 §3.4) and review.ts.
+ */
+import type { HindcastConfig } from '../config/schema.js';
+import { axisParamsFromConfig, buildAxisModels, filterOptions, reviewOptions, runPrepared, segmentData, type AxisParams, type PreparedSession } from './process-session.js';
+import { calibrateSession, type CalibrationInfo } from './calibrate.js';
+import { reviewSegment, type ReviewOptions } from './review.js';
+import type { SessionResult } from './result.js';
+
+/** Per-segment decisions of the classification (the shape runPrepared takes as plans). */
+export interface CalibrationPlan {
+  offered: Uint8Array;
+  decisions: { kept: Uint8Array; gateRejected: Uint8Array };
+}
+
+export interface CalibratedSession {
+  params: AxisParams;
+  info: CalibrationInfo;
+  warnings: string[];
+  plans: CalibrationPlan[];
+}
+
+/** Classification of every segment's fixes under `params`: two-way gate, then the two-sided review. */
+function classify(ps: PreparedSession, cfg: HindcastConfig, params: AxisParams, ro: ReviewOptions): CalibrationPlan[] {
+  const opt = filterOptions(cfg, params);
+  const models = buildAxisModels(params, ps.hasHeight);
+  return ps.segments.map((seg) => {
+    const { data } = segmentData(ps, seg, params, cfg.segments.bridgeFactor);
+    const offered = data.use.slice();
+    const rev = reviewSegment(models, data, offered, opt, ro);
+    return { offered, decisions: { kept: rev.kept, gateRejected: rev.gateRejected } };
+  });
+}
+
+/** Stages 1–4 of processSession: calibrate, classify, calibrate with the decisions held fixed, classify. */
+export function calibratedParams(ps: PreparedSession, cfg: HindcastConfig): CalibratedSession {
+  const prior = axisParamsFromConfig(cfg, ps.factors.reported);
+  const ro = reviewOptions(cfg, ps.intervalSec);
+  const cal1 = calibrateSession(ps, cfg, prior);
+  let params = cal1.params;
+  let info = cal1.info;
+  let plans = classify(ps, cfg, params, ro);
+  if (cal1.info.status === 'estimated') {
+    const uses = new Map<number, Uint8Array>();
+    plans.forEach((pl, si) => uses.set(si, Uint8Array.from(pl.offered, (u, k) => (u === 0 ? 0 : pl.decisions.kept[k] ? 2 : 0))));
+    const cal2 = calibrateSession(ps, cfg, prior, undefined, params, uses);
+    params = cal2.params;
+    info = { ...cal2.info, estimates: { ...cal1.info.estimates, ...cal2.info.estimates }, evaluations: cal1.info.evaluations + cal2.info.evaluations };
+    plans = classify(ps, cfg, params, ro);
+  }
+  return { params, info, warnings: cal1.warnings, plans };
+}
+
+/** The fixes-only result of processSession on a prepared session, with its calibrated parameters. */
+export function calibratedFixesOnly(ps: PreparedSession, cfg: HindcastConfig, name: string): { result: SessionResult; cal: CalibratedSession } {
+  const cal = calibratedParams(ps, cfg);
+  const result = runPrepared(ps, cfg, cal.params, name, cal.plans);
+  for (const w of cal.warnings) result.warnings.push({ file: ps.series.file, code: 'calibration', message: w });
+  result.info.calibration = cal.info;
+  return { result, cal };
+}

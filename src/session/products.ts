@@ -1,0 +1,129 @@
+/**
+ * The session products that follow from the final per-epoch track and statuses, shared by the
+ * fixes-only pipeline (process-session.ts, runPrepared) and the IMU-aided one (imu-session.ts):
+ * the raw fix positions per epoch (report residuals), the outlier records in time order (reason
+ * `innovation`: failed the gate and the review; `review`: passed the gate, failed the review;
+ * `invalid`; `user`) with their test statistic, and the metrics. Pure; no file system.
+ */
+import { geodesicLengthM } from '../geodesy/geodesic.js';
+import type { PreparedSession } from './process-session.js';
+import { STATUS, type OutlierRecord, type SessionResult } from './result.js';
+
+function median(v: number[]): number {
+  if (v.length === 0) return NaN;
+  const a = v.slice().sort((x, y) => x - y);
+  return a[a.length >> 1]!;
+}
+
+/**
+ * Fill res.rawEnu, res.outliers and res.metrics from res's final epochs (tSec, fix, segment,
+ * posEnu, sdEnu, ell95MajorM, latDeg/lonDeg, status, nis, nisThreshold, all already set).
+ * @param gateRejectedFix per fix of the series: 1 where the fix failed the gate of the first pass
+ *   (an outlier of it is then `innovation`, otherwise `review`)
+ * @param reacquisitions re-acquisitions of the forward filter, reported in the metrics
+ * @param dofAt optional degrees of freedom of the statistic per epoch (0 when absent)
+ */
+export function buildOutliersAndMetrics(res: SessionResult, ps: PreparedSession, gateRejectedFix: Uint8Array, reacquisitions: number, dofAt?: Uint8Array): void {
+  const s = ps.series;
+  const N = res.N;
+  const fixEpoch = new Int32Array(s.n).fill(-1);
+  for (let j = 0; j < N; j++) if (res.fix[j]! >= 0) fixEpoch[res.fix[j]!] = j;
+  // raw fix position per epoch in the local frame (report residuals); NaN where there is no valid fix
+  const mk = () => new Float64Array(N).fill(NaN);
+  const rawEnu: [Float64Array, Float64Array, Float64Array] = [mk(), mk(), mk()];
+  for (let j = 0; j < N; j++) {
+    const i = res.fix[j]!;
+    if (i < 0 || !ps.valid[i]) continue;
+    rawEnu[0][j] = ps.e[i]!;
+    rawEnu[1][j] = ps.n[i]!;
+    rawEnu[2][j] = ps.u[i]!;
+  }
+  res.rawEnu = rawEnu;
+  // outlier records, in time order
+  const out: OutlierRecord[] = [];
+  for (let i = 0; i < s.n; i++) {
+    const j = fixEpoch[i]!;
+    const isInvalid = !ps.valid[i];
+    const byUser = ps.userRejected[i] === 1 && !isInvalid;
+    const rejectedByFilter = j >= 0 && ps.offered[i] && res.status[j] === STATUS.outlier;
+    if (!isInvalid && !rejectedByFilter && !byUser) continue;
+    let offsetM = NaN, offsetUpM = NaN;
+    if (j >= 0 && !isInvalid) {
+      // offset from the smoothed track at this epoch
+      offsetM = Math.hypot(ps.e[i]! - res.posEnu[0]![j]!, ps.n[i]! - res.posEnu[1]![j]!);
+      if (ps.hasHeight) offsetUpM = ps.u[i]! - res.posEnu[2]![j]!;
+    }
+    out.push({
+      fix: i,
+      line: s.line[i]!,
+      tSec: s.tSec[i]!,
+      latDeg: s.latDeg[i]!,
+      lonDeg: s.lonDeg[i]!,
+      heightM: s.heightM ? s.heightM[i]! : NaN,
+      reason: isInvalid ? 'invalid' : byUser ? 'user' : gateRejectedFix[i] ? 'innovation' : 'review',
+      statistic: isInvalid || byUser ? NaN : res.nis[j]!,
+      threshold: isInvalid || byUser ? NaN : res.nisThreshold[j]!,
+      dof: dofAt && j >= 0 && !isInvalid && !byUser ? dofAt[j]! : 0,
+      offsetM,
+      offsetUpM,
+      detail: isInvalid
+        ? ps.invalidWhy[i]!
+        : byUser
+          ? 'rejected by the user (decisions file)'
+          : gateRejectedFix[i]
+            ? 'failed the forward chi-square gate and the two-sided review against the smoothed track'
+            : 'passed the forward gate but failed the two-sided review against the smoothed track',
+    });
+  }
+  res.outliers = out;
+  let kept = 0, bridged = 0;
+  const sdH: number[] = [];
+  const ellMaj: number[] = [];
+  let sumR2 = 0, nR = 0, sumU2 = 0, nU = 0;
+  for (let j = 0; j < N; j++) {
+    const st = res.status[j]!;
+    if (st === STATUS.kept || st === STATUS.userKept) kept++;
+    else if (st === STATUS.bridged) bridged++;
+    sdH.push(Math.sqrt(res.sdEnu[0]![j]! ** 2 + res.sdEnu[1]![j]! ** 2));
+    ellMaj.push(res.ell95MajorM[j]!);
+    const i = res.fix[j]!;
+    if (i >= 0 && (st === STATUS.kept || st === STATUS.userKept)) {
+      const de = ps.e[i]! - res.posEnu[0]![j]!, dn = ps.n[i]! - res.posEnu[1]![j]!;
+      sumR2 += de * de + dn * dn;
+      nR++;
+      if (ps.hasHeight && Number.isFinite(ps.u[i]!)) {
+        const du = ps.u[i]! - res.posEnu[2]![j]!;
+        sumU2 += du * du;
+        nU++;
+      }
+    }
+  }
+  // geodesic length per segment (the epochs of a segment are contiguous)
+  let lengthM = 0;
+  let j0 = 0;
+  for (let j = 1; j <= N; j++)
+    if (j === N || res.segment[j] !== res.segment[j0]) {
+      lengthM += geodesicLengthM(res.latDeg, res.lonDeg, j0, j);
+      j0 = j;
+    }
+  let invalid = 0;
+  for (let i = 0; i < s.n; i++) if (!ps.valid[i]) invalid++;
+  res.metrics = {
+    fixCount: s.n,
+    epochCount: N,
+    keptCount: kept,
+    outlierCount: out.length,
+    invalidCount: invalid,
+    bridgedCount: bridged,
+    segmentCount: ps.segments.length,
+    durationSec: s.n > 0 ? s.tSec[s.n - 1]! - s.tSec[0]! : 0,
+    nominalIntervalSec: ps.intervalSec,
+    lengthM,
+    medianSdHorizontalM: median(sdH),
+    worstEll95MajorM: ellMaj.length ? ellMaj.reduce((m, v) => (v > m ? v : m), -Infinity) : NaN,
+    medianEll95MajorM: median(ellMaj),
+    rmsResidualHorizontalM: nR ? Math.sqrt(sumR2 / nR) : NaN,
+    rmsResidualUpM: nU ? Math.sqrt(sumU2 / nU) : NaN,
+    reacquisitions,
+  };
+}
