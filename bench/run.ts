@@ -6,6 +6,7 @@
  */
 import { batchBench } from './batch.js';
 import { runImuBench } from './imu.js';
+import { pipelineBench } from './pipeline.js';
 import type { BenchPart } from './part.js';
 
 const imuBench: BenchPart = {
@@ -23,7 +24,7 @@ const imuBench: BenchPart = {
   },
 };
 
-const PARTS: BenchPart[] = [imuBench, batchBench];
+const PARTS: BenchPart[] = [imuBench, pipelineBench, batchBench];
 
 let failed = 0;
 for (const part of PARTS) {
