@@ -126,7 +126,8 @@ function startOnFix(d: SegmentData): SegmentData | null {
 /** Robust spread (m) of the horizontal fixes: the larger of the 5–95 % ranges of east and north. */
 function horizontalExtentM(ps: PreparedSession): number {
   const ext = (a: Float64Array) => {
-    const v = Array.from(a).filter((x, i) => ps.offered[i] && Number.isFinite(x)).sort((x, y) => x - y);
+    // typed-array sort (numeric, no comparator calls): same order, a fraction of the time on long logs
+    const v = a.filter((x, i) => ps.offered[i] !== 0 && Number.isFinite(x)).sort();
     if (v.length < 2) return 0;
     return v[Math.floor(0.95 * (v.length - 1))]! - v[Math.floor(0.05 * (v.length - 1))]!;
   };
