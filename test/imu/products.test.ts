@@ -1,0 +1,26 @@
+/**
+ * The shared products (src/session/products.ts) and the calibrated fixes-only baseline
+ * (src/session/calibrated-params.ts) reproduce processSession exactly on a simulated IMU drive's fixes.
+ */
+import { expect, it } from 'vitest';
+import { prepareSession, processSession } from '../../src/session/process-session.js';
+import { calibratedFixesOnly } from '../../src/session/calibrated-params.js';
+import { buildOutliersAndMetrics } from '../../src/session/products.js';
+import { makeImuCase } from './helpers.js';
+
+it('calibratedFixesOnly equals processSession, and buildOutliersAndMetrics rebuilds its outliers and metrics', () => {
+  const c = makeImuCase(11, {}, {}, 'vehicle');
+  const ref = processSession(c.series, c.cfg, 'drive');
+  const ps = prepareSession(c.series, c.cfg);
+  const { result } = calibratedFixesOnly(ps, c.cfg, 'drive');
+  expect(Array.from(result.posEnu[0])).toEqual(Array.from(ref.posEnu[0]));
+  expect(Array.from(result.status)).toEqual(Array.from(ref.status));
+  expect(result.info.calibration).toEqual(ref.info.calibration);
+  const gateRejectedFix = new Uint8Array(c.series.n);
+  for (const o of ref.outliers) if (o.reason === 'innovation') gateRejectedFix[o.fix] = 1;
+  const copy = { ...ref, outliers: [], rawEnu: undefined, metrics: undefined as unknown as typeof ref.metrics };
+  buildOutliersAndMetrics(copy, ps, gateRejectedFix, ref.metrics.reacquisitions);
+  expect(copy.outliers).toEqual(ref.outliers);
+  expect(copy.metrics).toEqual(ref.metrics);
+  expect(Array.from(copy.rawEnu![0])).toEqual(Array.from(ref.rawEnu![0]));
+});
