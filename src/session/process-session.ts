@@ -5,7 +5,6 @@
 import type { HindcastConfig } from '../config/schema.js';
 import type { FixSeries } from '../input/fix-series.js';
 import { makeLocalFrame, sessionCentre } from '../geodesy/local-frame.js';
-import { geodesicLengthM } from '../geodesy/geodesic.js';
 import { makeAxisModel, type AxisModel } from '../models/axis-model.js';
 import type { SegmentData, FilterOptions } from '../estimation/track-filter.js';
 import { errorEllipse } from '../output/ellipse.js';
@@ -13,6 +12,7 @@ import { epochGrid, nominalIntervalSec, splitSegments } from './segments.js';
 import { fixSigmaFactors } from './fix-noise.js';
 import { calibrateSession } from './calibrate.js';
 import { reviewSegment, type ReviewOptions } from './review.js';
+import { buildOutliersAndMetrics } from './products.js';
 import { STATUS, type OutlierRecord, type SessionResult } from './result.js';
 import type { StageTimings } from './timings.js';
 
@@ -188,12 +188,6 @@ export function filterOptions(cfg: HindcastConfig, p: AxisParams): FilterOptions
   };
 }
 
-function median(v: number[]): number {
-  if (v.length === 0) return NaN;
-  const a = v.slice().sort((x, y) => x - y);
-  return a[a.length >> 1]!;
-}
-
 /** Review settings from the configuration. */
 export function reviewOptions(cfg: HindcastConfig, intervalSec = 1): ReviewOptions {
   return { probability: cfg.gate.probability, maxPasses: 10, guardSec: Math.max(5 * intervalSec, 5) };
@@ -307,12 +301,7 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
   };
   const ll = [0, 0];
   let k0 = 0;
-  let lengthM = 0;
   let reacq = 0;
-  const sdH: number[] = [];
-  const ellMaj: number[] = [];
-  let sumR2 = 0, nR = 0, sumU2 = 0, nU = 0;
-  const fixEpoch = new Int32Array(s.n).fill(-1);
   const gateRejectedFix = new Uint8Array(s.n);
   segOuts.forEach((o, si) => {
     reacq += o.reacq;
@@ -322,10 +311,7 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
       res.segment[j] = si;
       const i = o.fix[k]!;
       res.fix[j] = i;
-      if (i >= 0) {
-        fixEpoch[i] = j;
-        gateRejectedFix[i] = o.gateRejected[k]!;
-      }
+      if (i >= 0) gateRejectedFix[i] = o.gateRejected[k]!;
       for (let a = 0; a < nAx; a++) {
         const n = models[a]!.n;
         res.posEnu[a]![j] = o.x[a]![k * n]!;
@@ -339,8 +325,6 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
       res.ell95MajorM[j] = el.majorM;
       res.ell95MinorM[j] = el.minorM;
       res.ell95AzimuthDeg[j] = el.azimuthDeg;
-      sdH.push(Math.sqrt(ve + vn));
-      ellMaj.push(el.majorM);
       ps.frame.inverse(res.posEnu[0]![j]!, res.posEnu[1]![j]!, ll);
       res.lonDeg[j] = ll[0]!;
       res.latDeg[j] = ll[1]!;
@@ -352,92 +336,11 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
       else if (!ps.offered[i]) res.status[j] = STATUS.outlier;
       else if (ps.forced[i]) res.status[j] = STATUS.userKept;
       else res.status[j] = o.kept[k] ? STATUS.kept : STATUS.outlier;
-      if (i >= 0 && (res.status[j] === STATUS.kept || res.status[j] === STATUS.userKept)) {
-        const de = ps.e[i]! - res.posEnu[0]![j]!, dn = ps.n[i]! - res.posEnu[1]![j]!;
-        sumR2 += de * de + dn * dn;
-        nR++;
-        if (ps.hasHeight && Number.isFinite(ps.u[i]!)) {
-          const du = ps.u[i]! - res.posEnu[2]![j]!;
-          sumU2 += du * du;
-          nU++;
-        }
-      }
     }
-    lengthM += geodesicLengthM(res.latDeg, res.lonDeg, k0, k0 + o.data.N);
     k0 += o.data.N;
   });
-  // raw fix position per epoch in the local frame (report residuals); NaN where there is no valid fix
-  const rawEnu: [Float64Array, Float64Array, Float64Array] = [mk(), mk(), mk()];
-  for (let j = 0; j < N; j++) {
-    const i = res.fix[j]!;
-    if (i < 0 || !ps.valid[i]) continue;
-    rawEnu[0][j] = ps.e[i]!;
-    rawEnu[1][j] = ps.n[i]!;
-    rawEnu[2][j] = ps.u[i]!;
-  }
-  res.rawEnu = rawEnu;
-  // outlier records, in time order
-  for (let i = 0; i < s.n; i++) {
-    const j = fixEpoch[i]!;
-    const isInvalid = !ps.valid[i];
-    const byUser = ps.userRejected[i] === 1 && !isInvalid;
-    const rejectedByFilter = j >= 0 && ps.offered[i] && res.status[j] === STATUS.outlier;
-    if (!isInvalid && !rejectedByFilter && !byUser) continue;
-    let offsetM = NaN, offsetUpM = NaN;
-    if (j >= 0 && !isInvalid) {
-      // offset from the smoothed track at this epoch
-      offsetM = Math.hypot(ps.e[i]! - res.posEnu[0]![j]!, ps.n[i]! - res.posEnu[1]![j]!);
-      if (ps.hasHeight) offsetUpM = ps.u[i]! - res.posEnu[2]![j]!;
-    }
-    res.outliers.push({
-      fix: i,
-      line: s.line[i]!,
-      tSec: s.tSec[i]!,
-      latDeg: s.latDeg[i]!,
-      lonDeg: s.lonDeg[i]!,
-      heightM: s.heightM ? s.heightM[i]! : NaN,
-      reason: isInvalid ? 'invalid' : byUser ? 'user' : gateRejectedFix[i] ? 'innovation' : 'review',
-      statistic: isInvalid || byUser ? NaN : res.nis[j]!,
-      threshold: isInvalid || byUser ? NaN : res.nisThreshold[j]!,
-      dof: 0,
-      offsetM,
-      offsetUpM,
-      detail: isInvalid
-        ? ps.invalidWhy[i]!
-        : byUser
-          ? 'rejected by the user (decisions file)'
-          : gateRejectedFix[i]
-            ? 'failed the forward chi-square gate and the two-sided review against the smoothed track'
-            : 'passed the forward gate but failed the two-sided review against the smoothed track',
-    });
-  }
-  let kept = 0, outl = 0, bridged = 0;
-  for (let j = 0; j < N; j++) {
-    const st = res.status[j]!;
-    if (st === STATUS.kept || st === STATUS.userKept) kept++;
-    else if (st === STATUS.bridged) bridged++;
-    else outl++;
-  }
-  let invalid = 0;
-  for (let i = 0; i < s.n; i++) if (!ps.valid[i]) invalid++;
-  res.metrics = {
-    fixCount: s.n,
-    epochCount: N,
-    keptCount: kept,
-    outlierCount: res.outliers.length,
-    invalidCount: invalid,
-    bridgedCount: bridged,
-    segmentCount: segOuts.length,
-    durationSec: s.n > 0 ? s.tSec[s.n - 1]! - s.tSec[0]! : 0,
-    nominalIntervalSec: ps.intervalSec,
-    lengthM,
-    medianSdHorizontalM: median(sdH),
-    worstEll95MajorM: ellMaj.length ? ellMaj.reduce((m, v) => (v > m ? v : m), -Infinity) : NaN,
-    medianEll95MajorM: median(ellMaj),
-    rmsResidualHorizontalM: nR ? Math.sqrt(sumR2 / nR) : NaN,
-    rmsResidualUpM: nU ? Math.sqrt(sumU2 / nU) : NaN,
-    reacquisitions: reacq,
-  };
+  // raw positions, outlier records and metrics follow from the final epochs (shared with the IMU path)
+  buildOutliersAndMetrics(res, ps, gateRejectedFix, reacq);
   res.info = {
     frame: ps.frame.definition,
     heightReferenceM: ps.heightRefM,

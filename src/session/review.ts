@@ -9,10 +9,10 @@
  * neighbours are judged again once it no longer pulls the track).
  */
 import type { AxisModel } from '../models/axis-model.js';
-import { chiSquareQuantile } from '../estimation/chi-square.js';
 import { forwardFilter, type FilterHistory, type FilterOptions, type SegmentData } from '../estimation/track-filter.js';
 import { smoothInPlace } from '../estimation/track-smoother.js';
 import { reviewStatistic } from '../estimation/review.js';
+import { applyReviewDecisions, reviewThresholds } from './review-decisions.js';
 import type { StageTimings } from './timings.js';
 
 export interface ReviewOutcome {
@@ -86,10 +86,8 @@ export function reviewSegment(
       if (offered[k] === 1 && !both) gateRejected[k] = 1;
     }
   }
-  const thr = [Infinity, 1, 2, 3].map((d) => (d === 0 ? Infinity : chiSquareQuantile(ro.probability, d)));
-  // hysteresis: a rejected fix comes back only when clearly consistent (four times the false-alarm rate)
-  const readmitP = Math.max(0.5, 1 - 4 * (1 - ro.probability));
-  const thrIn = [Infinity, 1, 2, 3].map((d) => (d === 0 ? Infinity : chiSquareQuantile(readmitP, d)));
+  const th = reviewThresholds(ro.probability);
+  const thr = th.reject;
   const T = new Float64Array(N).fill(NaN);
   const dof = new Uint8Array(N);
   const threshold = new Float64Array(N).fill(NaN);
@@ -120,36 +118,15 @@ export function reviewSegment(
     if (passes > ro.maxPasses) break;
     converged = false;
     // test every offered fix
-    const fail = new Uint8Array(N);
     for (let k = 0; k < N; k++) {
       if (offered[k] !== 1) continue;
-      const s = reviewStatistic(models, h.x, h.P, k, data.z, data.r, kept[k] === 1, nu);
-      T[k] = s.T;
-      dof[k] = s.dof;
-      threshold[k] = thr[s.dof]!;
-      if (s.dof > 0 && s.T > thr[s.dof]!) fail[k] = 1;
+      const st = reviewStatistic(models, h.x, h.P, k, data.z, data.r, kept[k] === 1, nu);
+      T[k] = st.T;
+      dof[k] = st.dof;
+      threshold[k] = thr[st.dof]!;
     }
-    let changed = false;
-    // re-admit every rejected fix that now passes clearly
-    for (let k = 0; k < N; k++)
-      if (offered[k] === 1 && !kept[k] && dof[k] > 0 && T[k]! <= thrIn[dof[k]!]!) {
-        kept[k] = 1;
-        changed = true;
-      }
-    // reject failing kept fixes that are the worst within ±guard of each other (local maxima of
-    // T/threshold): a burst pulls the track toward itself and makes its good neighbours fail too, so
-    // removing only the worst one per neighbourhood per pass avoids swamping them
-    const cand: number[] = [];
-    for (let k = 0; k < N; k++) if (fail[k] && kept[k] && offered[k] === 1) cand.push(k);
-    cand.sort((p, q) => T[q]! / threshold[q]! - T[p]! / threshold[p]!);
-    const taken: number[] = [];
-    for (const k of cand) {
-      const tk = data.tSec[k]!;
-      if (taken.some((j) => Math.abs(data.tSec[j]! - tk) <= ro.guardSec)) continue;
-      taken.push(k);
-      kept[k] = 0;
-      changed = true;
-    }
+    // re-admit the clearly consistent, reject the worst failing fix per guard window
+    const changed = applyReviewDecisions(N, offered, kept, T, dof, threshold, data.tSec, th, ro.guardSec);
     if (!changed) {
       converged = true;
       break;
