@@ -15,7 +15,7 @@ import { WGS84_OMEGA_E } from '../geodesy/wgs84.js';
 import { gravityAtHeightMps2 } from '../models/ins/gravity.js';
 import { rotationZyx } from '../models/ins/attitude.js';
 import { Rng } from './rng.js';
-import { DEFAULT_ERRORS, type ErrorModel, type SimulatedFix } from './scenario.js';
+import { DEFAULT_ERRORS, degradeAlong, type ErrorModel, type SimulatedFix } from './scenario.js';
 
 interface SpeedPiece {
   t0: number;
@@ -275,50 +275,15 @@ export function simulateImuScenario(spec: ImuScenarioSpec): ImuScenario {
     return [0, 1, 2].map((r) => tr.pos[r]! + C[r * 3]! * l[0] + C[r * 3 + 1]! * l[1] + C[r * 3 + 2]! * l[2]) as [number, number, number];
   };
 
-  // ---- GNSS fixes: the scenario error model at the antenna ----
-  const E = spec.errors;
-  const dtFix = 1 / spec.fixRateHz;
-  const count = Math.floor(spec.durationSec * spec.fixRateHz);
-  const gm = [0, 0, 0].map((_, a) => rng.normal() * (a < 2 ? E.gmSigmaHM : E.gmSigmaVM));
-  let hdop = 1.0;
-  let burstLeft = 0;
-  let burst: [number, number, number] = [0, 0, 0];
-  const fixes: SimulatedFix[] = [];
-  const phi = Math.exp(-dtFix / E.gmTauSec);
-  for (let k = 0; k < count; k++) {
-    const tRel = k * dtFix;
-    for (let a = 0; a < 3; a++) {
-      const s = a < 2 ? E.gmSigmaHM : E.gmSigmaVM;
-      gm[a] = phi * gm[a]! + Math.sqrt(1 - phi * phi) * s * rng.normal();
-    }
-    if (E.varyHdop) hdop = Math.min(3, Math.max(0.7, hdop + 0.03 * rng.normal() * Math.sqrt(dtFix) + 0.01 * (1.1 - hdop) * dtFix));
-    const inGap = E.gaps.some(([g0, len]) => tRel >= g0 && tRel < g0 + len);
-    if (burstLeft === 0 && rng.next() < (E.burstsPer100 / 100) * dtFix) {
-      burstLeft = rng.int(1, E.burstMaxEpochs);
-      const mag = rng.uniform(E.burstMinM, E.burstMaxM);
-      const az = rng.uniform(0, 2 * Math.PI);
-      burst = [mag * Math.sin(az), mag * Math.cos(az), rng.uniform(-0.5, 0.5) * mag];
-    }
-    const isOutlier = burstLeft > 0;
-    if (burstLeft > 0) burstLeft--;
-    if (inGap) continue;
-    const tSec = spec.startUnixSec + tRel;
-    const tr = antennaAt(tSec);
-    const wf = E.varyHdop ? hdop / 1.1 : 1;
-    const eM = tr[0] + gm[0]! + wf * E.whiteSigmaHM * rng.normal() + (isOutlier ? burst[0] : 0);
-    const nM = tr[1] + gm[1]! + wf * E.whiteSigmaHM * rng.normal() + (isOutlier ? burst[1] : 0);
-    const uM = tr[2] + gm[2]! + wf * E.whiteSigmaVM * rng.normal() + (isOutlier ? burst[2] : 0);
-    const [lat, lon, hgt] = frame.enuToGeodetic(eM, nM, uM);
-    fixes.push({ tSec, latDeg: lat, lonDeg: lon, heightM: hgt, hdop: Math.round(hdop * 10) / 10, sats: Math.max(4, Math.round(14 - 3 * hdop + rng.uniform(-1, 1))), truthEnu: tr, outlier: isOutlier, invalid: false });
-  }
-  for (let i = 0; i < E.nullIslandRows && fixes.length > 10; i++) {
-    const f = fixes[rng.int(5, fixes.length - 5)]!;
-    f.latDeg = 0;
-    f.lonDeg = 0;
-    f.heightM = 0;
-    f.invalid = true;
-    f.outlier = false;
-  }
+  // ---- GNSS fixes: the scenario error model at the antenna (bursts at a rate per second) ----
+  const fixes = degradeAlong(rng, spec.errors, {
+    count: Math.floor(spec.durationSec * spec.fixRateHz),
+    dtSec: 1 / spec.fixRateHz,
+    startUnixSec: spec.startUnixSec,
+    frame,
+    burstProbability: (spec.errors.burstsPer100 / 100) / spec.fixRateHz,
+    truthEnuAt: (tRel) => antennaAt(spec.startUnixSec + tRel),
+  });
 
   const forEachSample = (sink: (t: number, fx: number, fy: number, fz: number, wx: number, wy: number, wz: number) => void) => {
     const nr = new Rng(spec.seed * 104729 + 3);

@@ -86,17 +86,58 @@ export function simulate(spec: ScenarioSpec, givenTruth?: TruthTrack): Scenario 
   const rng = new Rng(spec.seed);
   const truth = givenTruth ?? makeTruth(spec.kind, spec.seed, spec.durationSec);
   const frame = new EnuFrame(...spec.origin);
-  const E = spec.errors;
-  const dt = 1 / spec.rateHz;
-  const count = Math.floor(spec.durationSec * spec.rateHz);
+  const fixes = degradeAlong(rng, spec.errors, {
+    count: Math.floor(spec.durationSec * spec.rateHz),
+    dtSec: 1 / spec.rateHz,
+    startUnixSec: spec.startUnixSec,
+    frame,
+    burstProbability: spec.errors.burstsPer100 / 100,
+    truthEnuAt: (tRel) => {
+      const tr = [0, 0, 0];
+      truthAt(truth, tRel, tr);
+      return [tr[0]!, tr[1]!, tr[2]!];
+    },
+  });
+  return {
+    spec,
+    frame,
+    truth,
+    fixes,
+    truthEnuAt(t: number) {
+      const o = [0, 0, 0];
+      truthAt(truth, t - spec.startUnixSec, o);
+      return [o[0]!, o[1]!, o[2]!];
+    },
+  };
+}
+
+export interface DegradeOptions {
+  /** Fix epochs (before gaps are cut) and their interval (s). */
+  count: number;
+  dtSec: number;
+  startUnixSec: number;
+  /** Frame of the truth, for the conversion of degraded positions to geodetic. */
+  frame: EnuFrame;
+  /** Probability that a burst starts at an epoch. */
+  burstProbability: number;
+  /** Truth ENU (m) at a time relative to the start (s). */
+  truthEnuAt: (tRelSec: number) => [number, number, number];
+}
+
+/**
+ * The receiver-like error model along a truth: HDOP-scaled white noise, a first-order Gauss–Markov
+ * error per axis (evolving through gaps too), multipath-like bursts, gaps and (0, 0) rows. Shared by
+ * this simulator and the IMU one (simulate/imu.ts), drawing from the caller's generator.
+ */
+export function degradeAlong(rng: Rng, E: ErrorModel, o: DegradeOptions): SimulatedFix[] {
   const gm = [0, 0, 0].map((_, a) => rng.normal() * (a < 2 ? E.gmSigmaHM : E.gmSigmaVM));
   let hdop = 1.0;
   let burstLeft = 0;
   let burst: [number, number, number] = [0, 0, 0];
   const fixes: SimulatedFix[] = [];
-  const tr = [0, 0, 0];
+  const dt = o.dtSec;
   const phi = Math.exp(-dt / E.gmTauSec);
-  for (let k = 0; k < count; k++) {
+  for (let k = 0; k < o.count; k++) {
     const tRel = k * dt;
     // time-correlated error evolves every epoch, also through gaps
     for (let a = 0; a < 3; a++) {
@@ -105,7 +146,7 @@ export function simulate(spec: ScenarioSpec, givenTruth?: TruthTrack): Scenario 
     }
     if (E.varyHdop) hdop = Math.min(3, Math.max(0.7, hdop + 0.03 * rng.normal() * Math.sqrt(dt) + 0.01 * (1.1 - hdop) * dt));
     const inGap = E.gaps.some(([g0, len]) => tRel >= g0 && tRel < g0 + len);
-    if (burstLeft === 0 && rng.next() < E.burstsPer100 / 100) {
+    if (burstLeft === 0 && rng.next() < o.burstProbability) {
       burstLeft = rng.int(1, E.burstMaxEpochs);
       const mag = rng.uniform(E.burstMinM, E.burstMaxM);
       const az = rng.uniform(0, 2 * Math.PI);
@@ -114,20 +155,20 @@ export function simulate(spec: ScenarioSpec, givenTruth?: TruthTrack): Scenario 
     const isOutlier = burstLeft > 0;
     if (burstLeft > 0) burstLeft--;
     if (inGap) continue;
-    truthAt(truth, tRel, tr);
+    const tr = o.truthEnuAt(tRel);
     const wf = E.varyHdop ? hdop / 1.1 : 1;
-    const eM = tr[0]! + gm[0]! + wf * E.whiteSigmaHM * rng.normal() + (isOutlier ? burst[0] : 0);
-    const nM = tr[1]! + gm[1]! + wf * E.whiteSigmaHM * rng.normal() + (isOutlier ? burst[1] : 0);
-    const uM = tr[2]! + gm[2]! + wf * E.whiteSigmaVM * rng.normal() + (isOutlier ? burst[2] : 0);
-    const [lat, lon, h] = frame.enuToGeodetic(eM, nM, uM);
+    const eM = tr[0] + gm[0]! + wf * E.whiteSigmaHM * rng.normal() + (isOutlier ? burst[0] : 0);
+    const nM = tr[1] + gm[1]! + wf * E.whiteSigmaHM * rng.normal() + (isOutlier ? burst[1] : 0);
+    const uM = tr[2] + gm[2]! + wf * E.whiteSigmaVM * rng.normal() + (isOutlier ? burst[2] : 0);
+    const [lat, lon, h] = o.frame.enuToGeodetic(eM, nM, uM);
     fixes.push({
-      tSec: spec.startUnixSec + tRel,
+      tSec: o.startUnixSec + tRel,
       latDeg: lat,
       lonDeg: lon,
       heightM: h,
       hdop: Math.round(hdop * 10) / 10,
       sats: Math.max(4, Math.round(14 - 3 * hdop + rng.uniform(-1, 1))),
-      truthEnu: [tr[0]!, tr[1]!, tr[2]!],
+      truthEnu: tr,
       outlier: isOutlier,
       invalid: false,
     });
@@ -141,17 +182,7 @@ export function simulate(spec: ScenarioSpec, givenTruth?: TruthTrack): Scenario 
     f.invalid = true;
     f.outlier = false;
   }
-  return {
-    spec,
-    frame,
-    truth,
-    fixes,
-    truthEnuAt(t: number) {
-      const o = [0, 0, 0];
-      truthAt(truth, t - spec.startUnixSec, o);
-      return [o[0]!, o[1]!, o[2]!];
-    },
-  };
+  return fixes;
 }
 
 /** The fixes as a fix CSV (ISO times, degrees, ellipsoidal height, hdop, sats). */
