@@ -49,11 +49,27 @@ export function applyReviewDecisions(
   const cand: number[] = [];
   for (let k = 0; k < N; k++) if (offered[k] === 1 && kept[k] && dof[k]! > 0 && T[k]! > th.reject[dof[k]!]!) cand.push(k);
   cand.sort((p, q) => T[q]! / threshold[q]! - T[p]! / threshold[p]!);
-  const taken: number[] = [];
+  if (cand.length === 0) return changed;
+  // a taken fix blocks every candidate within ±guard of it; tSec is ascending, so the epochs within
+  // the guard of k are a contiguous run around k and the check costs the guard window, not the
+  // number of fixes taken so far (same decisions, in the same order, as testing against every taken fix)
+  const taken = new Uint8Array(N);
   for (const k of cand) {
     const tk = tSec[k]!;
-    if (taken.some((j) => Math.abs(tSec[j]! - tk) <= guardSec)) continue;
-    taken.push(k);
+    let blocked = false;
+    for (let j = k; j >= 0 && tk - tSec[j]! <= guardSec; j--)
+      if (taken[j]) {
+        blocked = true;
+        break;
+      }
+    if (!blocked)
+      for (let j = k + 1; j < N && tSec[j]! - tk <= guardSec; j++)
+        if (taken[j]) {
+          blocked = true;
+          break;
+        }
+    if (blocked) continue;
+    taken[k] = 1;
     kept[k] = 0;
     changed = true;
   }
