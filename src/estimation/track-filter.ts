@@ -182,9 +182,38 @@ export function stepMatrices(models: AxisModel[], data: SegmentData, h: FilterHi
 }
 
 /**
- * Run the forward filter over a segment. The first epoch must carry a fix (use ≠ 0).
+ * Re-run of an ungated pass (every `use` 0 or 2: no gate rejections, hence no re-acquisition) over a
+ * history that holds the previous pass's filtered states, after the measurement use changed at the
+ * epochs `changed` (ascending). The filter is a recursion: epochs before the first change, and the
+ * epochs after a change once the new state equals the old one (|Δ| ≤ tol in every element; tol = 0:
+ * bit for bit) up to the next change, would come out the same, so they are not recomputed.
  */
-export function forwardFilter(models: AxisModel[], data: SegmentData, opt: FilterOptions, history?: FilterHistory): FilterHistory {
+export interface FilterResume {
+  changed: ArrayLike<number>;
+  tol: number;
+  /** Receives [first, last] epoch pairs (ascending, disjoint) of the epochs recomputed. */
+  windows: number[];
+}
+
+/** Whether epoch k of h equals the saved state within tol (every element of x and P, every axis). */
+function sameState(models: AxisModel[], h: FilterHistory, k: number, sx: Float64Array[], sP: Float64Array[], tol: number): boolean {
+  for (let a = 0; a < models.length; a++) {
+    const n = models[a]!.n;
+    const x = h.x[a]!;
+    const P = h.P[a]!;
+    const ox = sx[a]!;
+    const oP = sP[a]!;
+    for (let i = 0; i < n; i++) if (!(Math.abs(x[k * n + i]! - ox[i]!) <= tol)) return false;
+    for (let i = 0; i < n * n; i++) if (!(Math.abs(P[k * n * n + i]! - oP[i]!) <= tol)) return false;
+  }
+  return true;
+}
+
+/**
+ * Run the forward filter over a segment. The first epoch must carry a fix (use ≠ 0).
+ * With `resume`, only the epochs affected by a change of use are recomputed (see FilterResume).
+ */
+export function forwardFilter(models: AxisModel[], data: SegmentData, opt: FilterOptions, history?: FilterHistory, resume?: FilterResume): FilterHistory {
   const N = data.N;
   const h = history ?? allocateHistory(N, models);
   const w = makeWork(models);
@@ -196,7 +225,37 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
   let runStart = -1;
   let runCount = 0;
   let k = 0;
+  // resume: the old state of the epoch being recomputed, the next change not yet reached, the window's first epoch
+  const sx = resume ? models.map((m) => new Float64Array(m.n)) : [];
+  const sP = resume ? models.map((m) => new Float64Array(m.n * m.n)) : [];
+  let ci = 0;
+  let winStart = -1;
+  if (resume) {
+    if (!history) throw new Error('forwardFilter: resume needs the previous history');
+    if (resume.changed.length === 0) return h;
+    k = resume.changed[0]!;
+    winStart = k;
+  }
   while (k < N) {
+    if (resume) {
+      if (k > winStart && sameState(models, h, k - 1, sx, sP, resume.tol)) {
+        // same state, same inputs up to the next change: skip to it
+        resume.windows.push(winStart, k - 1);
+        if (ci >= resume.changed.length) {
+          winStart = -1;
+          break;
+        }
+        k = resume.changed[ci]!;
+        winStart = k;
+      }
+      while (ci < resume.changed.length && resume.changed[ci]! <= k) ci++;
+      if (data.use[k] === 1) throw new Error('forwardFilter: resume is for ungated passes (use 0 or 2)');
+      for (let a = 0; a < nAx; a++) {
+        const n = models[a]!.n;
+        for (let i = 0; i < n; i++) sx[a]![i] = h.x[a]![k * n + i]!;
+        for (let i = 0; i < n * n; i++) sP[a]![i] = h.P[a]![k * n * n + i]!;
+      }
+    }
     // ---- prediction (or prior at the first epoch) ----
     for (let a = 0; a < nAx; a++) {
       const m = models[a]!;
@@ -312,6 +371,7 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
     }
     k++;
   }
+  if (resume && winStart >= 0) resume.windows.push(winStart, N - 1);
   return h;
 }
 

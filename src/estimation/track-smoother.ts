@@ -27,3 +27,102 @@ export function smoothInPlace(models: AxisModel[], data: SegmentData, h: FilterH
     }
   }
 }
+
+/**
+ * Smoothed states of the filtered history `f` into `s` (out of place: `f` keeps the filtered values,
+ * for a later re-run with resmoothWindows). Same arithmetic as smoothInPlace on a copy.
+ */
+export function smoothInto(models: AxisModel[], data: SegmentData, f: FilterHistory, s: FilterHistory, qScale?: Float64Array[] | null): void {
+  for (let a = 0; a < models.length; a++) {
+    s.x[a]!.set(f.x[a]!);
+    s.P[a]!.set(f.P[a]!);
+  }
+  s.extraQ = f.extraQ;
+  smoothInPlace(models, data, s, qScale);
+}
+
+/**
+ * After forwardFilter re-ran the filter over `windows` ([first, last] pairs, ascending; the filtered
+ * states elsewhere are unchanged), update the smoothed states `s` of the previous pass. RTS:
+ * xˢₖ depends on the filtered epoch k and on xˢₖ₊₁ only, so the backward pass recomputes an epoch
+ * when it lies in a window or when the smoothed epoch after it changed, and skips the rest (an epoch
+ * counts as unchanged when every element of x and P is within tol of the old value; tol = 0: bit for
+ * bit, and then the result is the one of a full pass). `changedOut` receives [first, last] pairs
+ * (descending) of the epochs recomputed. Returns the number of epochs recomputed.
+ */
+export function resmoothWindows(
+  models: AxisModel[],
+  data: SegmentData,
+  f: FilterHistory,
+  s: FilterHistory,
+  windows: number[],
+  qScale: Float64Array[] | null | undefined,
+  tol: number,
+  changedOut: number[],
+): number {
+  const N = f.N;
+  const nAx = models.length;
+  const F = models.map((m) => new Float64Array(m.n * m.n));
+  const Q = models.map((m) => new Float64Array(m.n * m.n));
+  const rs = models.map((m) => makeRtsScratch(m.n, makeScratch(m.n)));
+  const cache = makeStepCache(nAx, models.map((m) => m.n));
+  const sx = models.map((m) => new Float64Array(m.n));
+  const sP = models.map((m) => new Float64Array(m.n * m.n));
+  s.extraQ = f.extraQ;
+  let wi = windows.length / 2 - 1;
+  let dirty = false;
+  let count = 0;
+  let runTop = -1;
+  let k = N - 1;
+  while (k >= 0) {
+    while (wi >= 0 && windows[2 * wi]! > k) wi--;
+    const inWin = wi >= 0 && k <= windows[2 * wi + 1]!;
+    if (!dirty && !inWin) {
+      if (runTop >= 0) changedOut.push(runTop, k + 1);
+      runTop = -1;
+      if (wi < 0) break;
+      // clean: jump to the last epoch of the next window below
+      k = windows[2 * wi + 1]!;
+      continue;
+    }
+    if (runTop < 0) runTop = k;
+    for (let a = 0; a < nAx; a++) {
+      const n = models[a]!.n;
+      const nn = n * n;
+      const x = s.x[a]!, P = s.P[a]!, fx = f.x[a]!, fP = f.P[a]!, ox = sx[a]!, oP = sP[a]!;
+      const xk = k * n, Pk = k * nn;
+      for (let i = 0; i < n; i++) {
+        ox[i] = x[xk + i]!;
+        x[xk + i] = fx[xk + i]!;
+      }
+      for (let i = 0; i < nn; i++) {
+        oP[i] = P[Pk + i]!;
+        P[Pk + i] = fP[Pk + i]!;
+      }
+    }
+    if (k < N - 1) {
+      stepMatrices(models, data, s, k + 1, qScale, F, Q, cache);
+      for (let a = 0; a < nAx; a++) {
+        const n = models[a]!.n;
+        const ok = n === 3
+          ? rtsStep3(F[a]!, Q[a]!, s.x[a]!, k * 3, (k + 1) * 3, s.P[a]!, k * 9, (k + 1) * 9)
+          : rtsStep(n, F[a]!, Q[a]!, s.x[a]!, k * n, (k + 1) * n, s.P[a]!, k * n * n, (k + 1) * n * n, rs[a]!);
+        if (!ok) throw new NumericalError(`smoother: predicted covariance not positive definite at epoch ${k + 1}`);
+      }
+    }
+    let same = true;
+    for (let a = 0; a < nAx && same; a++) {
+      const n = models[a]!.n;
+      const nn = n * n;
+      const x = s.x[a]!, P = s.P[a]!, ox = sx[a]!, oP = sP[a]!;
+      const xk = k * n, Pk = k * nn;
+      for (let i = 0; i < n; i++) if (!(Math.abs(x[xk + i]! - ox[i]!) <= tol)) same = false;
+      for (let i = 0; i < nn; i++) if (!(Math.abs(P[Pk + i]! - oP[i]!) <= tol)) same = false;
+    }
+    dirty = !same;
+    count++;
+    k--;
+  }
+  if (runTop >= 0) changedOut.push(runTop, Math.max(k + 1, 0));
+  return count;
+}

@@ -10,10 +10,14 @@
  */
 import type { AxisModel } from '../models/axis-model.js';
 import { forwardFilter, type FilterHistory, type FilterOptions, type SegmentData } from '../estimation/track-filter.js';
-import { smoothInPlace } from '../estimation/track-smoother.js';
+import { resmoothWindows, smoothInto } from '../estimation/track-smoother.js';
+import { allocateHistory } from '../estimation/track-filter.js';
 import { reviewStatistic } from '../estimation/review.js';
 import { applyReviewDecisions, reviewThresholds } from './review-decisions.js';
 import type { StageTimings } from './timings.js';
+
+/** Tolerance of the windowed re-runs (0: skipped epochs are bit for bit those of a full pass). */
+export const RERUN_TOL = 0;
 
 export interface ReviewOutcome {
   history: FilterHistory;
@@ -37,6 +41,8 @@ export interface ReviewOptions {
   maxPasses: number;
   /** Only one fix is rejected per pass within this many seconds (masking guard). */
   guardSec: number;
+  /** Re-run the filter and smoother only where decisions changed (default); false: full passes (the reference). */
+  windowed?: boolean;
 }
 
 /**
@@ -56,6 +62,9 @@ export function reviewSegment(
   let tKernel = 0;
   const N = data.N;
   let histBuf: FilterHistory | undefined;
+  // buffers of the smoothed history: the time-reversed gate pass's, when there is one (only its
+  // accepted flags are needed after the gate), so the review holds two full histories, not three
+  let smoothBuf: FilterHistory | undefined;
   const work: SegmentData = { ...data, use: offered.slice() };
   let h: FilterHistory;
   const gateRejected = new Uint8Array(N);
@@ -71,6 +80,7 @@ export function reviewSegment(
     const t0 = tm ? performance.now() : 0;
     h = forwardFilter(models, work, opt);
     const back = forwardFilter(models, reversed(work), opt);
+    smoothBuf = back;
     // the first review pass reuses the forward history's buffers (every epoch is rewritten)
     histBuf = h;
     if (tm) {
@@ -94,18 +104,50 @@ export function reviewSegment(
   const nu = new Float64Array(models.length);
   let passes = 0;
   let converged = false;
+  // after the first pass, the filter and smoother re-run only where a decision changed (FilterResume,
+  // resmoothWindows): hf keeps the filtered states, hs the smoothed ones; with RERUN_TOL = 0 the
+  // skipped epochs are bit for bit those of a full pass
+  let hf: FilterHistory | undefined;
+  let hs: FilterHistory | undefined;
+  const prevUse = new Uint8Array(N);
+  const changed: number[] = [];
+  const windows: number[] = [];
+  const smoothed: number[] = [];
   for (;;) {
     passes++;
-    for (let k = 0; k < N; k++) work.use[k] = offered[k] === 0 ? 0 : kept[k] ? 2 : 0;
-    if (histBuf) {
-      histBuf.extraQ.clear();
-      histBuf.reacquired.length = 0;
+    changed.length = 0;
+    for (let k = 0; k < N; k++) {
+      const u = offered[k] === 0 ? 0 : kept[k] ? 2 : 0;
+      if (hf && u !== prevUse[k]) changed.push(k);
+      work.use[k] = u;
+      prevUse[k] = u;
     }
     const t0 = tm ? performance.now() : 0;
-    h = forwardFilter(models, work, opt, histBuf);
-    histBuf = h;
+    let nf = N;
+    let ns = N;
+    smoothed.length = 0;
+    if (!hf || ro.windowed === false) {
+      if (histBuf) {
+        histBuf.extraQ.clear();
+        histBuf.reacquired.length = 0;
+      }
+      hf = forwardFilter(models, work, opt, histBuf);
+      histBuf = hf;
+    } else {
+      windows.length = 0;
+      forwardFilter(models, work, opt, hf, { changed, tol: RERUN_TOL, windows });
+      nf = 0;
+      for (let i = 0; i < windows.length; i += 2) nf += windows[i + 1]! - windows[i]! + 1;
+    }
     const t1 = tm ? performance.now() : 0;
-    smoothInPlace(models, work, h, opt.qScale);
+    if (!hs || ro.windowed === false) {
+      // the smoothed history shares the forward pass's per-epoch flags and statistics
+      const alloc = hs ?? smoothBuf ?? allocateHistory(N, models);
+      hs = { ...hf, x: alloc.x, P: alloc.P };
+      smoothInto(models, work, hf, hs, opt.qScale);
+      smoothed.push(N - 1, 0);
+    } else ns = resmoothWindows(models, work, hf, hs, windows, opt.qScale, RERUN_TOL, smoothed);
+    h = hs;
     if (tm) {
       const t2 = performance.now();
       tm.filter += t1 - t0;
@@ -113,21 +155,24 @@ export function reviewSegment(
       tKernel += t2 - t0;
       tm.filterPasses++;
       tm.smoothPasses++;
-      tm.filterEpochs += N;
+      tm.filterEpochs += nf;
+      tm.smoothEpochs += ns;
     }
     if (passes > ro.maxPasses) break;
     converged = false;
-    // test every offered fix
-    for (let k = 0; k < N; k++) {
-      if (offered[k] !== 1) continue;
+    // test every offered fix whose smoothed state or decision changed (the others keep their statistic)
+    const test = (k: number) => {
+      if (offered[k] !== 1) return;
       const st = reviewStatistic(models, h.x, h.P, k, data.z, data.r, kept[k] === 1, nu);
       T[k] = st.T;
       dof[k] = st.dof;
       threshold[k] = thr[st.dof]!;
-    }
+    };
+    for (let i = 0; i < smoothed.length; i += 2) for (let k = smoothed[i + 1]!; k <= smoothed[i]!; k++) test(k);
+    for (const k of changed) test(k);
     // re-admit the clearly consistent, reject the worst failing fix per guard window
-    const changed = applyReviewDecisions(N, offered, kept, T, dof, threshold, data.tSec, th, ro.guardSec);
-    if (!changed) {
+    const changedAny = applyReviewDecisions(N, offered, kept, T, dof, threshold, data.tSec, th, ro.guardSec);
+    if (!changedAny) {
       converged = true;
       break;
     }

@@ -20,8 +20,10 @@ export interface StageTimings {
   smoothPasses: number;
   /** Epochs run through a filter pass (outside calibration), summed over passes. */
   filterEpochs: number;
+  /** Epochs run through a smoother pass (outside calibration), summed over passes. */
+  smoothEpochs: number;
 }
 
 export function newStageTimings(): StageTimings {
-  return { project: 0, calibrate: 0, filter: 0, smooth: 0, review: 0, products: 0, filterPasses: 0, smoothPasses: 0, filterEpochs: 0 };
+  return { project: 0, calibrate: 0, filter: 0, smooth: 0, review: 0, products: 0, filterPasses: 0, smoothPasses: 0, filterEpochs: 0, smoothEpochs: 0 };
 }
