@@ -146,6 +146,10 @@ export function stepMatrices(models: AxisModel[], data: SegmentData, h: FilterHi
     const qs = qScale ? qScale[a]![k]! : 1;
     if (cache && !extra) {
       const base = a * cache.slots;
+      // the step of the last epoch again (regular sampling): F and Q are already in place; a slot is
+      // filled only on a miss, so no other slot holds the same step
+      const cur = cache.current[a]!;
+      if (cur >= 0 && cache.dt[base + cur] === dt && cache.qs[base + cur] === qs) continue;
       let hit = -1;
       for (let s = 0; s < cache.slots; s++)
         if (cache.dt[base + s] === dt && cache.qs[base + s] === qs) {
