@@ -3,14 +3,19 @@
  */
 export { loadConfig, validateConfig } from './config/load.js';
 export { configSchema, type HindcastConfig, type ConfigOverrides } from './config/schema.js';
-export { readFixLog } from './input/read-log.js';
+export { readFixLog, readFixBytes } from './input/read-log.js';
+export { readDecisions } from './input/decisions-csv.js';
 export { readFixCsv } from './input/csv-fixes.js';
 export { FixSeriesBuilder, type FixSeries } from './input/fix-series.js';
 export { processSession } from './session/process-session.js';
+export { processImuSession } from './session/imu-session.js';
 export type { SessionResult, OutlierRecord, SessionMetrics } from './session/result.js';
-export { runBatch, type BatchOptions, type BatchResult } from './batch/run-batch.js';
+export { runBatch, type BatchOptions, type BatchResult, type BatchEvent } from './batch/run-batch.js';
+export { joinShards } from './batch/join.js';
+export { parseShard, type Shard } from './batch/shard.js';
 export { trackCsv } from './output/track-csv.js';
 export { outliersCsv } from './output/outliers-csv.js';
 export { sessionGeoJson } from './output/geojson.js';
+export { sessionGpx } from './output/gpx.js';
 export { InputError, ConfigError, UsageError, NumericalError } from './errors.js';
 export { CAUTION } from './output/caution.js';
