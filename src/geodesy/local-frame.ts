@@ -24,27 +24,34 @@ export function localTmDefinition(lat0Deg: number, lon0Deg: number): string {
   return `+proj=tmerc +lat_0=${lat0Deg} +lon_0=${lon0Deg} +k=1 +x_0=0 +y_0=0 +ellps=WGS84 +units=m +no_defs`;
 }
 
+/** proj4's degree ↔ radian factors (lib/constants/values.js), so the direct calls below round alike. */
+const D2R = 0.01745329251994329577;
+const R2D = 57.29577951308232088;
+
 export function makeLocalFrame(lat0Deg: number, lon0Deg: number): LocalFrame {
   const definition = localTmDefinition(lat0Deg, lon0Deg);
-  const conv = proj4('WGS84', definition);
+  // the projection's own forward/inverse in radians: proj4('WGS84', definition) does exactly this
+  // arithmetic (degrees × D2R, same datum so no datum shift, units m so no scaling) but clones and
+  // checks every point, about half of its time per point; test/geodesy compares the two bit for bit
+  const proj = new proj4.Proj(definition) as unknown as { forward(p: { x: number; y: number }): { x: number; y: number }; inverse(p: { x: number; y: number }): { x: number; y: number } };
   const pt = { x: 0, y: 0 };
   return {
     lat0Deg,
     lon0Deg,
     definition,
     forward(lonDeg, latDeg, out) {
-      pt.x = lonDeg;
-      pt.y = latDeg;
-      const r = conv.forward(pt);
+      pt.x = lonDeg * D2R;
+      pt.y = latDeg * D2R;
+      const r = proj.forward(pt);
       out[0] = r.x;
       out[1] = r.y;
     },
     inverse(eM, nM, out) {
       pt.x = eM;
       pt.y = nM;
-      const r = conv.inverse(pt);
-      out[0] = r.x;
-      out[1] = r.y;
+      const r = proj.inverse(pt);
+      out[0] = r.x * R2D;
+      out[1] = r.y * R2D;
     },
   };
 }
@@ -71,8 +78,9 @@ export function sessionCentre(latDeg: Float64Array, lonDeg: Float64Array, valid?
     lons.push(ref + wrapLonDeg(lonDeg[i]! - ref));
   }
   if (lats.length === 0) return [0, 0];
-  const med = (a: number[]) => {
-    a.sort((x, y) => x - y);
+  const med = (v: number[]) => {
+    // a typed array sorts numerically without a comparator (same median, faster)
+    const a = Float64Array.from(v).sort();
     const m = a.length >> 1;
     return a.length % 2 ? a[m]! : 0.5 * (a[m - 1]! + a[m]!);
   };

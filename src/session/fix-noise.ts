@@ -14,9 +14,14 @@ export const FIX_QUALITY_FACTOR: Record<number, number> = { 1: 1, 2: 0.6, 3: 1, 
 
 function median(a: Float64Array | undefined): number {
   if (!a) return NaN;
-  const v = Array.from(a).filter((x) => Number.isFinite(x) && x > 0);
-  if (v.length === 0) return NaN;
-  v.sort((x, y) => x - y);
+  let c = 0;
+  for (let i = 0; i < a.length; i++) if (Number.isFinite(a[i]!) && a[i]! > 0) c++;
+  if (c === 0) return NaN;
+  // a typed array sorts numerically without a comparator (several times faster at a million fixes)
+  const v = new Float64Array(c);
+  c = 0;
+  for (let i = 0; i < a.length; i++) if (Number.isFinite(a[i]!) && a[i]! > 0) v[c++] = a[i]!;
+  v.sort();
   return v[v.length >> 1]!;
 }
 

@@ -139,9 +139,10 @@ export function prepareSession(s: FixSeries, cfg: HindcastConfig, userDecisions?
   const u = new Float64Array(s.n).fill(NaN);
   const hs: number[] = [];
   if (s.heightM) for (let i = 0; i < s.n; i++) if (valid[i] && Number.isFinite(s.heightM[i]!)) hs.push(s.heightM[i]!);
-  hs.sort((a, b) => a - b);
-  const hasHeight = hs.length > 0;
-  const heightRefM = hasHeight ? hs[hs.length >> 1]! : 0;
+  // a typed array sorts numerically without a comparator (same median, faster)
+  const hsSorted = Float64Array.from(hs).sort();
+  const hasHeight = hsSorted.length > 0;
+  const heightRefM = hasHeight ? hsSorted[hsSorted.length >> 1]! : 0;
   const out = [0, 0];
   for (let i = 0; i < s.n; i++) {
     if (!valid[i]) continue;

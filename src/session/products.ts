@@ -11,7 +11,8 @@ import { STATUS, type OutlierRecord, type SessionResult } from './result.js';
 
 function median(v: number[]): number {
   if (v.length === 0) return NaN;
-  const a = v.slice().sort((x, y) => x - y);
+  // a typed array sorts numerically without a comparator (same order statistic, faster)
+  const a = Float64Array.from(v).sort();
   return a[a.length >> 1]!;
 }
 

@@ -127,3 +127,30 @@ describe('sessionCentre', () => {
     expect(sessionCentre(new Float64Array(0), new Float64Array(0))).toEqual([0, 0]);
   });
 });
+
+describe('makeLocalFrame calls the projection directly', () => {
+  it('gives bit for bit the numbers of proj4("WGS84", definition), both ways', async () => {
+    const proj4 = (await import('proj4')).default;
+    const { Rng } = await import('../../src/simulate/rng.js');
+    const rng = new Rng(42);
+    const centres: Array<[number, number]> = [[52.5, 13.4], [-33.9, 151.2], [64.1, -21.9], [0.2, 179.9], [37.8, -122.4], [-77.8, 166.7]];
+    for (const [lat0, lon0] of centres) {
+      const frame = makeLocalFrame(lat0, lon0);
+      const conv = proj4('WGS84', frame.definition);
+      const out = new Float64Array(2);
+      for (let i = 0; i < 2000; i++) {
+        // within about ±100 km of the centre
+        const lat = lat0 + (rng.next() - 0.5) * 1.8;
+        const lon = lon0 + (rng.next() - 0.5) * 1.8 / Math.cos((lat0 * Math.PI) / 180);
+        frame.forward(lon, lat, out);
+        const r = conv.forward({ x: lon, y: lat });
+        expect(Object.is(out[0], r.x) && Object.is(out[1], r.y)).toBe(true);
+        const e = (rng.next() - 0.5) * 2e5;
+        const n = (rng.next() - 0.5) * 2e5;
+        frame.inverse(e, n, out);
+        const q = conv.inverse({ x: e, y: n });
+        expect(Object.is(out[0], q.x) && Object.is(out[1], q.y)).toBe(true);
+      }
+    }
+  });
+});
