@@ -11,7 +11,7 @@
 import type { AxisModel } from '../models/axis-model.js';
 import { forwardFilter, type FilterHistory, type FilterOptions, type SegmentData } from '../estimation/track-filter.js';
 import { resmoothWindows, smoothInto } from '../estimation/track-smoother.js';
-import { allocateHistory } from '../estimation/track-filter.js';
+import { allocateHistory, historyOf } from '../estimation/track-filter.js';
 import { reviewStatistic } from '../estimation/review.js';
 import { applyReviewDecisions, reviewThresholds } from './review-decisions.js';
 import type { StageTimings } from './timings.js';
@@ -143,7 +143,7 @@ export function reviewSegment(
     if (!hs || ro.windowed === false) {
       // the smoothed history shares the forward pass's per-epoch flags and statistics
       const alloc = hs ?? smoothBuf ?? allocateHistory(N, models);
-      hs = { ...hf, x: alloc.x, P: alloc.P };
+      hs = historyOf(hf, alloc.x, alloc.P);
       smoothInto(models, work, hf, hs, opt.qScale);
       smoothed.push(N - 1, 0);
     } else ns = resmoothWindows(models, work, hf, hs, windows, opt.qScale, RERUN_TOL, smoothed);
