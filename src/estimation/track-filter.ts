@@ -356,8 +356,8 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
       for (let a = 0; a < nAx; a++) {
         const m = models[a]!;
         const e = new Float64Array(m.n);
-        // largest miss of this axis over the run (innovations recomputed from the stored predictions are
-        // not available after the rewind, so use the gap between fix and predicted position now)
+        // largest miss of this axis over the run: rejected epochs hold only their prediction, so
+        // z − H x⁻ there is the innovation the gate rejected
         let miss = 0;
         for (let j = runStart; j <= k; j++) {
           const z = data.z[a]![j]!;
