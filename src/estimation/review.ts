@@ -10,12 +10,14 @@
  * two-sided (detection, identification) use.
  */
 import type { AxisModel } from '../models/axis-model.js';
+import { covIndex, covStride } from './track-filter.js';
 
 /** Smallest share of R kept in the kept-fix residual variance, so a fix that alone determines the track cannot produce an infinite statistic. */
 export const MIN_RESIDUAL_SHARE = 0.02;
 
 /**
- * Statistic of epoch k. x and P hold smoothed states (N×n and N×n×n per axis). Returns T and writes
+ * Statistic of epoch k. x and P hold smoothed states (N×n per axis, and N covariances in the
+ * history layout of covStride/covIndex). Returns T and writes
  * the per-axis residuals into nuOut; dof through the return of countAxes.
  */
 export function reviewStatistic(
@@ -41,10 +43,11 @@ export function reviewStatistic(
     const h = m.h;
     let hx = 0;
     let hph = 0;
+    const Pk = k * covStride(n);
     for (let i = 0; i < n; i++) {
       hx += h[i]! * x[a]![k * n + i]!;
       let acc = 0;
-      for (let j = 0; j < n; j++) acc += P[a]![k * n * n + i * n + j]! * h[j]!;
+      for (let j = 0; j < n; j++) acc += P[a]![Pk + covIndex(n, i, j)]! * h[j]!;
       hph += h[i]! * acc;
     }
     const rk = r[a]![k]!;

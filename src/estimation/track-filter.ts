@@ -11,7 +11,7 @@
 import type { AxisModel } from '../models/axis-model.js';
 import { chiSquareQuantile } from './chi-square.js';
 import { innovation, makeScratch, predict, updateJoseph, type KalmanScratch } from './kalman.js';
-import { innovation3, predict3, updateJoseph3 } from './kalman3.js';
+import { innovation3p, predict3p, updateJoseph3p } from './kalman3.js';
 
 /** Epoch-wise inputs of one segment, per axis arrays indexed by epoch. */
 export interface SegmentData {
@@ -44,7 +44,7 @@ export interface FilterHistory {
   N: number;
   /** Per axis: N×n states. */
   x: Float64Array[];
-  /** Per axis: N×n×n covariances. */
+  /** Per axis: N covariances of covStride(n) doubles each (n = 3: the upper triangle, see covIndex; otherwise n×n row-major). */
   P: Float64Array[];
   /** NIS of each offered fix against the prediction (NaN where none). */
   nis: Float64Array;
@@ -63,6 +63,22 @@ export interface FilterHistory {
 }
 
 const LOG_2PI = Math.log(2 * Math.PI);
+
+/**
+ * Doubles per epoch of an axis covariance in a history: for n = 3 the upper triangle
+ * [p00, p01, p02, p11, p12, p22] (the covariances are symmetric bit for bit: every kernel writes them
+ * mirrored), otherwise the full n×n matrix.
+ */
+export function covStride(n: number): number {
+  return n === 3 ? 6 : n * n;
+}
+
+/** Index of element (i, j) within one epoch's covariance of an axis with state dimension n (see covStride). */
+export function covIndex(n: number, i: number, j: number): number {
+  if (n !== 3) return i * n + j;
+  const r = i < j ? i : j, c = i < j ? j : i;
+  return r * 3 - (r * (r - 1)) / 2 + (c - r);
+}
 
 /** Buffers reused across epochs of one pass. */
 interface Work {
@@ -91,7 +107,7 @@ export function allocateHistory(N: number, models: AxisModel[]): FilterHistory {
   return historyOf(
     { N, nis: new Float64Array(N).fill(NaN), dof: new Uint8Array(N), threshold: new Float64Array(N).fill(NaN), accepted: new Uint8Array(N), extraQ: new Map(), logLik: new Float64Array(N), reacquired: [] },
     models.map((m) => new Float64Array(N * m.n)),
-    models.map((m) => new Float64Array(N * m.n * m.n)),
+    models.map((m) => new Float64Array(N * covStride(m.n))),
   );
 }
 
@@ -209,8 +225,9 @@ function sameState(models: AxisModel[], h: FilterHistory, k: number, sx: Float64
     const P = h.P[a]!;
     const ox = sx[a]!;
     const oP = sP[a]!;
+    const ps = covStride(n);
     for (let i = 0; i < n; i++) if (!(Math.abs(x[k * n + i]! - ox[i]!) <= tol)) return false;
-    for (let i = 0; i < n * n; i++) if (!(Math.abs(P[k * n * n + i]! - oP[i]!) <= tol)) return false;
+    for (let i = 0; i < ps; i++) if (!(Math.abs(P[k * ps + i]! - oP[i]!) <= tol)) return false;
   }
   return true;
 }
@@ -233,7 +250,7 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
   let k = 0;
   // resume: the old state of the epoch being recomputed, the next change not yet reached, the window's first epoch
   const sx = resume ? models.map((m) => new Float64Array(m.n)) : [];
-  const sP = resume ? models.map((m) => new Float64Array(m.n * m.n)) : [];
+  const sP = resume ? models.map((m) => new Float64Array(covStride(m.n))) : [];
   let ci = 0;
   let winStart = -1;
   if (resume) {
@@ -259,7 +276,8 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
       for (let a = 0; a < nAx; a++) {
         const n = models[a]!.n;
         for (let i = 0; i < n; i++) sx[a]![i] = h.x[a]![k * n + i]!;
-        for (let i = 0; i < n * n; i++) sP[a]![i] = h.P[a]![k * n * n + i]!;
+        const ps = covStride(n);
+        for (let i = 0; i < ps; i++) sP[a]![i] = h.P[a]![k * ps + i]!;
       }
     }
     // ---- prediction (or prior at the first epoch) ----
@@ -271,18 +289,18 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
       if (k === 0) {
         // prior: position at the first fix (or 0), diffuse kinematics, stationary GM error
         x.fill(0, 0, n);
-        P.fill(0, 0, n * n);
+        P.fill(0, 0, covStride(n));
         const z0 = data.z[a]![0]!;
         x[0] = Number.isFinite(z0) ? z0 : 0;
-        for (let i = 0; i < m.nMotion; i++) P[i * n + i] = opt.priorVar[i]!;
-        if (m.iBias >= 0) P[m.iBias * n + m.iBias] = m.params.gm!.sigmaM ** 2;
+        for (let i = 0; i < m.nMotion; i++) P[covIndex(n, i, i)] = opt.priorVar[i]!;
+        if (m.iBias >= 0) P[covIndex(n, m.iBias, m.iBias)] = m.params.gm!.sigmaM ** 2;
       }
     }
     if (k > 0) {
       stepMatrices(models, data, h, k, opt.qScale, w.F, w.Q, w.cache);
       for (let a = 0; a < nAx; a++) {
         const n = models[a]!.n;
-        if (n === 3) predict3(w.F[a]!, w.Q[a]!, h.x[a]!, (k - 1) * 3, h.P[a]!, (k - 1) * 9, h.x[a]!, k * 3, h.P[a]!, k * 9);
+        if (n === 3) predict3p(w.F[a]!, w.Q[a]!, h.x[a]!, (k - 1) * 3, h.P[a]!, (k - 1) * 6, h.x[a]!, k * 3, h.P[a]!, k * 6);
         else predict(n, w.F[a]!, w.Q[a]!, h.x[a]!, (k - 1) * n, h.P[a]!, (k - 1) * n * n, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!);
       }
     }
@@ -309,7 +327,7 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
       const m = models[a]!;
       const n = m.n;
       const r = data.r[a]![k]! * rScale[a]!;
-      const nu = n === 3 ? innovation3(m.h, z, r, h.x[a]!, k * 3, h.P[a]!, k * 9, w.s[a]!.w, w.out1) : innovation(n, m.h, z, r, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!, w.out1);
+      const nu = n === 3 ? innovation3p(m.h, z, r, h.x[a]!, k * 3, h.P[a]!, k * 6, w.s[a]!.w, w.out1) : innovation(n, m.h, z, r, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!, w.out1);
       const S = w.out1[0]!;
       w.nu[a] = nu;
       w.S[a] = S;
@@ -334,7 +352,7 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
         const n = m.n;
         // innovation() left P hᵀ in this axis's own scratch
         const r = data.r[a]![k]! * rScale[a]!;
-        if (n === 3) updateJoseph3(m.h, w.nu[a]!, w.S[a]!, r, w.s[a]!.w, h.x[a]!, k * 3, h.P[a]!, k * 9);
+        if (n === 3) updateJoseph3p(m.h, w.nu[a]!, w.S[a]!, r, w.s[a]!.w, h.x[a]!, k * 3, h.P[a]!, k * 6);
         else updateJoseph(n, m.h, w.nu[a]!, w.S[a]!, r, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!);
       }
       h.accepted[k] = 1;

@@ -8,8 +8,8 @@ import type { AxisModel } from '../models/axis-model.js';
 import { NumericalError } from '../errors.js';
 import { makeScratch } from './kalman.js';
 import { makeRtsScratch, rtsStep } from './rts.js';
-import { rtsStep3 } from './kalman3.js';
-import { makeStepCache, stepMatrices, type FilterHistory, type SegmentData } from './track-filter.js';
+import { rtsStep3p } from './kalman3.js';
+import { covStride, makeStepCache, stepMatrices, type FilterHistory, type SegmentData } from './track-filter.js';
 
 export function smoothInPlace(models: AxisModel[], data: SegmentData, h: FilterHistory, qScale?: Float64Array[] | null): void {
   const F = models.map((m) => new Float64Array(m.n * m.n));
@@ -21,7 +21,7 @@ export function smoothInPlace(models: AxisModel[], data: SegmentData, h: FilterH
     for (let a = 0; a < models.length; a++) {
       const n = models[a]!.n;
       const ok = n === 3
-        ? rtsStep3(F[a]!, Q[a]!, h.x[a]!, k * 3, (k + 1) * 3, h.P[a]!, k * 9, (k + 1) * 9)
+        ? rtsStep3p(F[a]!, Q[a]!, h.x[a]!, k * 3, (k + 1) * 3, h.P[a]!, k * 6, (k + 1) * 6)
         : rtsStep(n, F[a]!, Q[a]!, h.x[a]!, k * n, (k + 1) * n, h.P[a]!, k * n * n, (k + 1) * n * n, rs[a]!);
       if (!ok) throw new NumericalError(`smoother: predicted covariance not positive definite at epoch ${k + 1}`);
     }
@@ -67,7 +67,7 @@ export function resmoothWindows(
   const rs = models.map((m) => makeRtsScratch(m.n, makeScratch(m.n)));
   const cache = makeStepCache(nAx, models.map((m) => m.n));
   const sx = models.map((m) => new Float64Array(m.n));
-  const sP = models.map((m) => new Float64Array(m.n * m.n));
+  const sP = models.map((m) => new Float64Array(covStride(m.n)));
   s.extraQ = f.extraQ;
   let wi = windows.length / 2 - 1;
   let dirty = false;
@@ -88,7 +88,7 @@ export function resmoothWindows(
     if (runTop < 0) runTop = k;
     for (let a = 0; a < nAx; a++) {
       const n = models[a]!.n;
-      const nn = n * n;
+      const nn = covStride(n);
       const x = s.x[a]!, P = s.P[a]!, fx = f.x[a]!, fP = f.P[a]!, ox = sx[a]!, oP = sP[a]!;
       const xk = k * n, Pk = k * nn;
       for (let i = 0; i < n; i++) {
@@ -105,7 +105,7 @@ export function resmoothWindows(
       for (let a = 0; a < nAx; a++) {
         const n = models[a]!.n;
         const ok = n === 3
-          ? rtsStep3(F[a]!, Q[a]!, s.x[a]!, k * 3, (k + 1) * 3, s.P[a]!, k * 9, (k + 1) * 9)
+          ? rtsStep3p(F[a]!, Q[a]!, s.x[a]!, k * 3, (k + 1) * 3, s.P[a]!, k * 6, (k + 1) * 6)
           : rtsStep(n, F[a]!, Q[a]!, s.x[a]!, k * n, (k + 1) * n, s.P[a]!, k * n * n, (k + 1) * n * n, rs[a]!);
         if (!ok) throw new NumericalError(`smoother: predicted covariance not positive definite at epoch ${k + 1}`);
       }
@@ -113,7 +113,7 @@ export function resmoothWindows(
     let same = true;
     for (let a = 0; a < nAx && same; a++) {
       const n = models[a]!.n;
-      const nn = n * n;
+      const nn = covStride(n);
       const x = s.x[a]!, P = s.P[a]!, ox = sx[a]!, oP = sP[a]!;
       const xk = k * n, Pk = k * nn;
       for (let i = 0; i < n; i++) if (!(Math.abs(x[xk + i]! - ox[i]!) <= tol)) same = false;

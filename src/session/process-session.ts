@@ -7,6 +7,7 @@ import type { FixSeries } from '../input/fix-series.js';
 import { makeLocalFrame, sessionCentre } from '../geodesy/local-frame.js';
 import { makeAxisModel, type AxisModel } from '../models/axis-model.js';
 import type { SegmentData, FilterOptions } from '../estimation/track-filter.js';
+import { covStride } from '../estimation/track-filter.js';
 import { errorEllipse } from '../output/ellipse.js';
 import { epochGrid, nominalIntervalSec, splitSegments } from './segments.js';
 import { fixSigmaFactors } from './fix-noise.js';
@@ -317,7 +318,7 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
         const n = models[a]!.n;
         res.posEnu[a]![j] = o.x[a]![k * n]!;
         res.velEnu[a]![j] = o.x[a]![k * n + 1]!;
-        res.sdEnu[a]![j] = Math.sqrt(o.P[a]![k * n * n]!);
+        res.sdEnu[a]![j] = Math.sqrt(o.P[a]![k * covStride(n)]!);
       }
       // independent axes: no east–north covariance
       res.covEN[j] = 0;

@@ -12,7 +12,7 @@
 import { describe, expect, it } from 'vitest';
 import { CholeskyDecomposition, inverse, Matrix } from 'ml-matrix';
 import { makeAxisModel, type AxisModel, type AxisModelParams } from '../../src/models/axis-model.js';
-import { forwardFilter, type FilterOptions, type SegmentData } from '../../src/estimation/track-filter.js';
+import { covIndex, covStride, forwardFilter, type FilterOptions, type SegmentData } from '../../src/estimation/track-filter.js';
 import { smoothInPlace } from '../../src/estimation/track-smoother.js';
 import { Rng } from '../../src/simulate/rng.js';
 
@@ -192,7 +192,7 @@ function compare(models: AxisModel[], N: number, xAx: Float64Array[], PAx: Float
         ex = Math.max(ex, Math.abs(xAx[a]![k * n + i]! - X.get(gi, 0)) / Math.max(Math.abs(X.get(gi, 0)), sd(gi)));
         for (let j = 0; j < n; j++) {
           const gj = off[a]! + j;
-          eP = Math.max(eP, Math.abs(PAx[a]![k * n * n + i * n + j]! - P.get(gi, gj)) / (sd(gi) * sd(gj)));
+          eP = Math.max(eP, Math.abs(PAx[a]![k * covStride(n) + covIndex(n, i, j)]! - P.get(gi, gj)) / (sd(gi) * sd(gj)));
         }
       }
       models.forEach((mb, b) => {
