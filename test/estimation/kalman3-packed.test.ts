@@ -4,7 +4,8 @@
  * covariance is symmetric bit for bit) they must give identical states and covariances.
  */
 import { describe, expect, it } from 'vitest';
-import { innovation3, innovation3p, predict3, predict3p, rtsStep3, rtsStep3p, updateJoseph3, updateJoseph3p } from '../../src/estimation/kalman3.js';
+import { innovation3p, predict3p, rtsStep3p, updateJoseph3p } from '../../src/estimation/kalman3.js';
+import { innovation3, predict3, rtsStep3, updateJoseph3 } from '../helpers/kalman3-full.js';
 import { covIndex } from '../../src/estimation/track-filter.js';
 import { Rng } from '../../src/simulate/rng.js';
 

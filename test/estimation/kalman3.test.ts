@@ -1,5 +1,6 @@
 /**
- * The unrolled n = 3 kernels (kalman3.ts) against the generic ones (kalman.ts, rts.ts), which are
+ * The unrolled full-matrix n = 3 kernels (test/helpers/kalman3-full.ts, bit-identical to the packed
+ * ones the filter uses in kalman3.ts) against the generic ones (kalman.ts, rts.ts), which are
  * tested against textbook forms in kalman.test.ts and local-level.test.ts: seeded random
  * symmetric positive-definite covariances, random F (the CV + Gauss–Markov structure and dense),
  * both measurement rows in use (h = [1, 0, 1] and [1, 0, 0]). Only rounding may differ: the
@@ -9,7 +10,7 @@
 import { describe, expect, it } from 'vitest';
 import { innovation, makeScratch, predict, updateJoseph } from '../../src/estimation/kalman.js';
 import { makeRtsScratch, rtsStep } from '../../src/estimation/rts.js';
-import { innovation3, predict3, rtsStep3, updateJoseph3 } from '../../src/estimation/kalman3.js';
+import { innovation3, predict3, rtsStep3, updateJoseph3 } from '../helpers/kalman3-full.js';
 import { Rng } from '../../src/simulate/rng.js';
 
 function spd(rng: Rng, scale: number): Float64Array {
