@@ -15,7 +15,7 @@ import { Matrix, inverse } from 'ml-matrix';
 import type { HindcastConfig } from '../config/schema.js';
 import { nelderMead, numericalHessian } from '../estimation/nelder-mead.js';
 import { allocateHistory, forwardFilter, totalLogLik, type FilterHistory, type SegmentData } from '../estimation/track-filter.js';
-import { buildAxisModels, filterOptions, segmentData, type AxisParams, type PreparedSession } from './process-session.js';
+import { buildAxisModels, filterOptions, segmentData, segmentGrid, type AxisParams, type PreparedSession } from './process-session.js';
 
 type ParamName = 'sigmaHorizontalM' | 'sigmaVerticalM' | 'gmHorizontalSigmaM' | 'gmVerticalSigmaM' | 'gmTauSec' | 'qHorizontal' | 'qVertical';
 
@@ -83,39 +83,60 @@ const PRIOR_LOG_SD: Record<ParamName, number> = {
 export const CALIBRATION_CHUNKS = 4;
 
 /**
- * Segment data of the calibration subset, with each item's segment and first epoch in it. A log of
- * at most maxEpochs epochs is used whole; a longer one contributes CALIBRATION_CHUNKS contiguous
- * chunks of maxEpochs / CALIBRATION_CHUNKS epochs centred at equal steps through the log, so the
- * cost of calibration does not grow with the log while it still sees its beginning, middle and end.
+ * Where the calibration subset lies: null when the log (at most maxEpochs epochs over its segments
+ * of 3 epochs or more) is used whole; otherwise CALIBRATION_CHUNKS contiguous chunks of
+ * maxEpochs / CALIBRATION_CHUNKS epochs centred at equal steps through the log, each kept inside its
+ * segment, as [segment index, first epoch, epoch count]. So the cost of calibration does not grow
+ * with the log while it still sees its beginning, middle and end.
  */
-function calibrationSubset(ps: PreparedSession, base: AxisParams, bridgeFactor: number, maxEpochs: number): Array<{ seg: number; start: number; data: SegmentData }> {
-  // unit white sigma: the objective scales the variances per evaluation
-  const unit = { ...base, sigmaHorizontalM: 1, sigmaVerticalM: 1 };
-  const segs: Array<{ seg: number; data: SegmentData }> = [];
+export function calibrationWindows(ps: PreparedSession, bridgeFactor: number, maxEpochs: number): Array<{ seg: number; start: number; len: number }> | null {
+  const segs: Array<{ seg: number; N: number }> = [];
   let total = 0;
   for (let si = 0; si < ps.segments.length; si++) {
-    const { data } = segmentData(ps, ps.segments[si]!, unit, bridgeFactor);
-    if (data.N < 3) continue;
-    segs.push({ seg: si, data });
-    total += data.N;
+    const N = segmentGrid(ps, ps.segments[si]!, bridgeFactor).tSec.length;
+    if (N < 3) continue;
+    segs.push({ seg: si, N });
+    total += N;
   }
-  if (total <= maxEpochs) return segs.map((x) => ({ ...x, start: 0 }));
+  if (total <= maxEpochs) return null;
   const L = Math.floor(maxEpochs / CALIBRATION_CHUNKS);
-  const out: Array<{ seg: number; start: number; data: SegmentData }> = [];
+  const out: Array<{ seg: number; start: number; len: number }> = [];
   for (let c = 0; c < CALIBRATION_CHUNKS; c++) {
     // chunk centred at (c + ½)/C of the concatenated epochs, kept inside its segment
     let pos = Math.floor(((c + 0.5) / CALIBRATION_CHUNKS) * total);
     let j = 0;
-    while (pos >= segs[j]!.data.N) pos -= segs[j++]!.data.N;
-    const { seg, data } = segs[j]!;
-    const len = Math.min(L, data.N);
-    const start = Math.max(0, Math.min(pos - (len >> 1), data.N - len));
+    while (pos >= segs[j]!.N) pos -= segs[j++]!.N;
+    const { seg, N } = segs[j]!;
+    const len = Math.min(L, N);
+    const start = Math.max(0, Math.min(pos - (len >> 1), N - len));
+    out.push({ seg, start, len });
+  }
+  return out;
+}
+
+/** Segment data of the calibration subset (calibrationWindows), with each item's segment and first epoch in it. */
+function calibrationSubset(ps: PreparedSession, base: AxisParams, bridgeFactor: number, maxEpochs: number): Array<{ seg: number; start: number; data: SegmentData }> {
+  // unit white sigma: the objective scales the variances per evaluation
+  const unit = { ...base, sigmaHorizontalM: 1, sigmaVerticalM: 1 };
+  const windows = calibrationWindows(ps, bridgeFactor, maxEpochs);
+  const out: Array<{ seg: number; start: number; data: SegmentData }> = [];
+  if (!windows) {
+    for (let si = 0; si < ps.segments.length; si++) {
+      const { data } = segmentData(ps, ps.segments[si]!, unit, bridgeFactor);
+      if (data.N >= 3) out.push({ seg: si, start: 0, data });
+    }
+    return out;
+  }
+  const whole = new Map<number, SegmentData>();
+  for (const { seg, start, len } of windows) {
+    let data = whole.get(seg);
+    if (!data) whole.set(seg, (data = segmentData(ps, ps.segments[seg]!, unit, bridgeFactor).data));
     out.push({ seg, start, data: sliceSegment(data, start, start + len) });
   }
   return out;
 }
 
-function sliceSegment(d: SegmentData, from: number, to: number): SegmentData {
+export function sliceSegment(d: SegmentData, from: number, to: number): SegmentData {
   return { N: to - from, tSec: d.tSec.subarray(from, to), z: d.z.map((a) => a.subarray(from, to)), r: d.r.map((a) => a.subarray(from, to)), use: d.use.subarray(from, to) };
 }
 

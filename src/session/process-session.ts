@@ -11,7 +11,7 @@ import { covStride } from '../estimation/track-filter.js';
 import { errorEllipse } from '../output/ellipse.js';
 import { epochGrid, nominalIntervalSec, splitSegments } from './segments.js';
 import { fixSigmaFactors } from './fix-noise.js';
-import { calibrateSession } from './calibrate.js';
+import { DEFAULT_CALIBRATION, calibrateSession, calibrationWindows, sliceSegment } from './calibrate.js';
 import { reviewSegment, type ReviewOptions } from './review.js';
 import { buildOutliersAndMetrics } from './products.js';
 import { STATUS, type OutlierRecord, type SessionResult } from './result.js';
@@ -45,20 +45,27 @@ export function flagHeightJumps(s: FixSeries, valid: Uint8Array, why: string[]):
   const h = s.heightM;
   if (!h) return;
   const W = 5;
-  const nb: number[] = [];
+  // the neighbours' heights, insertion-sorted in place (at most 2W values: no allocation per fix)
+  const nb = new Float64Array(2 * W);
   for (let i = 0; i < s.n; i++) {
     if (!valid[i] || !Number.isFinite(h[i]!)) continue;
-    nb.length = 0;
+    let m = 0;
     let span = 0;
-    for (let d = 1; d <= 3 * W && nb.length < 2 * W; d++)
-      for (const j of [i - d, i + d]) {
-        if (j < 0 || j >= s.n || !valid[j] || !Number.isFinite(h[j]!) || nb.length >= 2 * W) continue;
-        nb.push(h[j]!);
+    for (let d = 1; d <= 3 * W && m < 2 * W; d++)
+      for (let side = 0; side < 2; side++) {
+        const j = side === 0 ? i - d : i + d;
+        if (j < 0 || j >= s.n || !valid[j] || !Number.isFinite(h[j]!) || m >= 2 * W) continue;
+        const v = h[j]!;
+        let q = m++;
+        while (q > 0 && nb[q - 1]! > v) {
+          nb[q] = nb[q - 1]!;
+          q--;
+        }
+        nb[q] = v;
         span = Math.max(span, Math.abs(s.tSec[j]! - s.tSec[i]!));
       }
-    if (nb.length < 4) continue;
-    nb.sort((a, b) => a - b);
-    const med = nb[nb.length >> 1]!;
+    if (m < 4) continue;
+    const med = nb[m >> 1]!;
     const jump = Math.abs(h[i]! - med);
     if (jump > HEIGHT_JUMP_SLACK_M + HEIGHT_JUMP_RATE_MPS * span) {
       valid[i] = 0;
@@ -119,6 +126,8 @@ export interface PreparedSession {
   factors: ReturnType<typeof fixSigmaFactors>;
   intervalSec: number;
   segments: Array<[number, number]>;
+  /** Epoch grid of each segment (filled on first use: the grid depends on the session and the bridge factor only). */
+  grids: Map<string, { tSec: Float64Array; fix: Int32Array }>;
 }
 
 export function prepareSession(s: FixSeries, cfg: HindcastConfig, userDecisions?: Map<number, 'keep' | 'reject'>): PreparedSession {
@@ -154,12 +163,23 @@ export function prepareSession(s: FixSeries, cfg: HindcastConfig, userDecisions?
   }
   const intervalSec = nominalIntervalSec(s.tSec, offered);
   const segments = splitSegments(s.tSec, offered, cfg.segments.maxGapSec);
-  return { series: s, valid, invalidWhy: why, offered, forced, userRejected, frame, heightRefM, hasHeight, e, n, u, factors: fixSigmaFactors(s), intervalSec, segments };
+  return { series: s, valid, invalidWhy: why, offered, forced, userRejected, frame, heightRefM, hasHeight, e, n, u, factors: fixSigmaFactors(s), intervalSec, segments, grids: new Map() };
+}
+
+/** The epoch grid of a segment (computed once per session and bridge factor). */
+export function segmentGrid(ps: PreparedSession, seg: [number, number], bridgeFactor: number): { tSec: Float64Array; fix: Int32Array } {
+  const key = `${seg[0]}:${seg[1]}:${bridgeFactor}`;
+  let grid = ps.grids.get(key);
+  if (!grid) {
+    grid = epochGrid(ps.series.tSec, seg[0], seg[1], ps.intervalSec, bridgeFactor);
+    ps.grids.set(key, grid);
+  }
+  return grid;
 }
 
 /** Build the filter inputs of one segment. */
 export function segmentData(ps: PreparedSession, seg: [number, number], p: AxisParams, bridgeFactor: number): { data: SegmentData; fix: Int32Array } {
-  const grid = epochGrid(ps.series.tSec, seg[0], seg[1], ps.intervalSec, bridgeFactor);
+  const grid = segmentGrid(ps, seg, bridgeFactor);
   const N = grid.tSec.length;
   const nAx = ps.hasHeight ? 3 : 2;
   const z = Array.from({ length: nAx }, () => new Float64Array(N).fill(NaN));
@@ -206,7 +226,8 @@ interface SegmentPlan {
 /**
  * Run the whole pipeline on one FixSeries:
  * 1. calibrate the noise parameters by maximum likelihood with a robust (capped) likelihood;
- * 2. classify the fixes: forward and time-reversed gates, then the two-sided review;
+ * 2. classify the fixes the second calibration reads (the whole log, or the calibration chunks of a
+ *    long one with margins): forward and time-reversed gates, then the two-sided review;
  * 3. calibrate again with those decisions held fixed (outliers no longer distort the estimate);
  * 4. classify again under the calibrated model, review, and smooth.
  * Manoeuvres are absorbed by the calibrated process-noise level (estimated on the session's own
@@ -226,23 +247,25 @@ export function processSession(series: FixSeries, cfg: HindcastConfig, name: str
   let params = cal1.params;
   let info = cal1.info;
   const warnings = cal1.warnings;
-  // stage 2: classification under the first calibration
-  let plans = classify(ps, cfg, params, ro, tm);
   if (cal1.info.status === 'estimated') {
-    // stage 3: calibration with the decisions held fixed
+    // stage 2: classification under the first calibration, where the second one will look (the
+    // whole log when it is used whole, else its calibration chunks with margins)
     const uses = new Map<number, Uint8Array>();
-    plans.forEach((pl, si) => {
-      pl.outcome = undefined; // its parameters change: free its history now
-      uses.set(si, Uint8Array.from(pl.offered, (u, k) => (u === 0 ? 0 : pl.decisions!.kept[k] ? 2 : 0)));
-    });
+    const windows = calibrationWindows(ps, cfg.segments.bridgeFactor, DEFAULT_CALIBRATION.maxEpochs);
+    if (windows) classifyWindows(ps, cfg, params, ro, windows, uses, tm);
+    else
+      classify(ps, cfg, params, ro, tm).forEach((pl, si) => {
+        uses.set(si, Uint8Array.from(pl.offered, (u, k) => (u === 0 ? 0 : pl.decisions!.kept[k] ? 2 : 0)));
+      });
+    // stage 3: calibration with the decisions held fixed
     if (tm) t0 = performance.now();
     const cal2 = calibrateSession(ps, cfg, prior, undefined, params, uses);
     if (tm) tm.calibrate += performance.now() - t0;
     params = cal2.params;
     info = { ...cal2.info, estimates: { ...cal1.info.estimates, ...cal2.info.estimates }, evaluations: cal1.info.evaluations + cal2.info.evaluations };
-    // stage 4: classify once more under the model calibrated without the outliers
-    plans = classify(ps, cfg, params, ro, tm);
   }
+  // stage 4 (stage 2 of a log the calibration fell back on): classify under the final model
+  const plans = classify(ps, cfg, params, ro, tm);
   const r = runPrepared(ps, cfg, params, name, plans, tm);
   for (const w of warnings) r.warnings.push({ file: series.file, code: 'calibration', message: w });
   r.info.calibration = info;
@@ -261,6 +284,37 @@ function classify(ps: PreparedSession, cfg: HindcastConfig, params: AxisParams, 
     const rev = reviewSegment(models, data, offered, opt, ro, undefined, tm);
     return { offered, decisions: { kept: rev.kept, gateRejected: rev.gateRejected }, outcome: rev.converged ? { params, rev } : undefined };
   });
+}
+
+/** Epochs added on each side of a calibration chunk when it is classified alone (the filter settles, the review sees the chunk's neighbours). */
+export const CHUNK_MARGIN_EPOCHS = 1000;
+
+/**
+ * Classification of the calibration chunks only (each with CHUNK_MARGIN_EPOCHS on both sides, cut
+ * to start and end on a fix): fills `uses` per segment with held-fixed decisions (2 kept, 0
+ * rejected) inside the chunks, which is all that the second calibration reads.
+ */
+function classifyWindows(ps: PreparedSession, cfg: HindcastConfig, params: AxisParams, ro: ReviewOptions, windows: Array<{ seg: number; start: number; len: number }>, uses: Map<number, Uint8Array>, tm?: StageTimings): void {
+  const opt = filterOptions(cfg, params);
+  const models = buildAxisModels(params, ps.hasHeight);
+  const whole = new Map<number, SegmentData>();
+  for (const w of windows) {
+    const t0 = tm ? performance.now() : 0;
+    let data = whole.get(w.seg);
+    if (!data) whole.set(w.seg, (data = segmentData(ps, ps.segments[w.seg]!, params, cfg.segments.bridgeFactor).data));
+    let u = uses.get(w.seg);
+    if (!u) uses.set(w.seg, (u = new Uint8Array(data.N)));
+    let a = Math.max(0, w.start - CHUNK_MARGIN_EPOCHS);
+    let b = Math.min(data.N, w.start + w.len + CHUNK_MARGIN_EPOCHS);
+    while (a < b && data.use[a] === 0) a++;
+    while (b > a && data.use[b - 1] === 0) b--;
+    if (tm) tm.review += performance.now() - t0;
+    if (b - a < 3) continue;
+    const part = sliceSegment(data, a, b);
+    const offered = part.use.slice();
+    const rev = reviewSegment(models, part, offered, opt, ro, undefined, tm);
+    for (let k = 0; k < part.N; k++) u[a + k] = offered[k] === 0 ? 0 : rev.kept[k] ? 2 : 0;
+  }
 }
 
 /** Stage 5 and the products: final review and smoothing of every segment, then the SessionResult. */

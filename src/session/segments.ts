@@ -41,21 +41,35 @@ export function splitSegments(tSec: Float64Array, offered: Uint8Array, maxGapSec
  * half an interval before the next fix.
  */
 export function epochGrid(tSec: Float64Array, i0: number, i1: number, intervalSec: number, bridgeFactor: number): { tSec: Float64Array; fix: Int32Array } {
-  const times: number[] = [];
-  const fix: number[] = [];
-  for (let i = i0; i <= i1; i++) {
-    if (i > i0) {
-      const t0 = tSec[i - 1]!;
-      const t1 = tSec[i]!;
-      if (t1 - t0 > bridgeFactor * intervalSec) {
-        for (let t = t0 + intervalSec; t < t1 - 0.5 * intervalSec; t += intervalSec) {
-          times.push(t);
-          fix.push(-1);
+  // two passes over the same loop (count, then fill) into typed arrays: no growing number arrays
+  let N = 0;
+  const fill = (times: Float64Array | null, fix: Int32Array | null) => {
+    let k = 0;
+    for (let i = i0; i <= i1; i++) {
+      if (i > i0) {
+        const t0 = tSec[i - 1]!;
+        const t1 = tSec[i]!;
+        if (t1 - t0 > bridgeFactor * intervalSec) {
+          for (let t = t0 + intervalSec; t < t1 - 0.5 * intervalSec; t += intervalSec) {
+            if (times) {
+              times[k] = t;
+              fix![k] = -1;
+            }
+            k++;
+          }
         }
       }
+      if (times) {
+        times[k] = tSec[i]!;
+        fix![k] = i;
+      }
+      k++;
     }
-    times.push(tSec[i]!);
-    fix.push(i);
-  }
-  return { tSec: Float64Array.from(times), fix: Int32Array.from(fix) };
+    return k;
+  };
+  N = fill(null, null);
+  const times = new Float64Array(N);
+  const fix = new Int32Array(N);
+  fill(times, fix);
+  return { tSec: times, fix };
 }

@@ -1,19 +1,34 @@
 /**
- * The windowed review loop (filter and smoother re-run only where a decision changed) against the
- * full re-run of every pass: same decisions, statistics and smoothed states, bit for bit.
+ * The windowed review loop (filter and smoother re-run only where a decision changed, until the
+ * states are back within RERUN_TOL of the previous pass) against the full re-run of every pass:
+ * the same decisions and passes; statistics, smoothed states and covariances within a small multiple
+ * of the tolerance (each pass can add up to RERUN_TOL where its windows end).
  */
 import { describe, expect, it } from 'vitest';
 import { loadConfig } from '../../src/config/load.js';
 import { readFixCsv } from '../../src/input/csv-fixes.js';
 import { axisParamsFromConfig, buildAxisModels, filterOptions, prepareSession, reviewOptions, segmentData } from '../../src/session/process-session.js';
-import { reviewSegment, type ReviewOutcome } from '../../src/session/review.js';
+import { RERUN_TOL, reviewSegment, type ReviewOutcome } from '../../src/session/review.js';
 import { defaultSpec, scenarioCsv, simulate, type ScenarioKind } from '../../src/simulate/scenario.js';
 
-function sameBits(a: Float64Array, b: Float64Array): number {
-  // index of the first element that differs (NaN equals NaN), −1 when none
-  for (let i = 0; i < a.length; i++) if (!Object.is(a[i], b[i])) return i;
-  return a.length === b.length ? -1 : a.length;
+/** Largest |a − b| over the elements (NaN must match NaN; a NaN against a number counts as Infinity). */
+function maxDiff(a: Float64Array, b: Float64Array): number {
+  if (a.length !== b.length) return Infinity;
+  let m = 0;
+  for (let i = 0; i < a.length; i++) {
+    const an = Number.isNaN(a[i]!), bn = Number.isNaN(b[i]!);
+    if (an || bn) {
+      if (an !== bn) return Infinity;
+      continue;
+    }
+    m = Math.max(m, Math.abs(a[i]! - b[i]!));
+  }
+  return m;
 }
+
+/** States and covariances: within 20 passes' worth of the tolerance; review statistics (dimensionless χ²) within 1e-3. */
+const STATE_TOL = 20 * RERUN_TOL;
+const STAT_TOL = 1e-3;
 
 function expectSame(w: ReviewOutcome, f: ReviewOutcome): void {
   expect(w.passes).toBe(f.passes);
@@ -21,13 +36,13 @@ function expectSame(w: ReviewOutcome, f: ReviewOutcome): void {
   expect(Array.from(w.kept)).toEqual(Array.from(f.kept));
   expect(Array.from(w.gateRejected)).toEqual(Array.from(f.gateRejected));
   expect(Array.from(w.data.use)).toEqual(Array.from(f.data.use));
-  expect(sameBits(w.T, f.T)).toBe(-1);
-  expect(sameBits(w.threshold, f.threshold)).toBe(-1);
+  expect(maxDiff(w.T, f.T)).toBeLessThanOrEqual(STAT_TOL);
+  expect(maxDiff(w.threshold, f.threshold)).toBe(0);
   for (let a = 0; a < w.history.x.length; a++) {
-    expect(sameBits(w.history.x[a]!, f.history.x[a]!)).toBe(-1);
-    expect(sameBits(w.history.P[a]!, f.history.P[a]!)).toBe(-1);
+    expect(maxDiff(w.history.x[a]!, f.history.x[a]!)).toBeLessThanOrEqual(STATE_TOL);
+    expect(maxDiff(w.history.P[a]!, f.history.P[a]!)).toBeLessThanOrEqual(STATE_TOL);
   }
-  expect(sameBits(w.history.nis, f.history.nis)).toBe(-1);
+  expect(maxDiff(w.history.nis, f.history.nis)).toBeLessThanOrEqual(STAT_TOL);
 }
 
 const CASES: Array<[ScenarioKind, number, number]> = [
@@ -38,7 +53,7 @@ const CASES: Array<[ScenarioKind, number, number]> = [
 ];
 
 describe('windowed review loop', () => {
-  it.each(CASES)('%s seed %i at %i Hz: identical to full passes', (kind, seed, rateHz) => {
+  it.each(CASES)('%s seed %i at %i Hz: same decisions as full passes, states within tolerance', (kind, seed, rateHz) => {
     const cfg = loadConfig({ profile: kind === 'walk' ? 'pedestrian' : kind });
     const sc = simulate(defaultSpec(kind, seed, { rateHz }));
     const series = readFixCsv(scenarioCsv(sc), 'w.csv', cfg);
