@@ -47,6 +47,26 @@ export function predict3p(
   POut[PoOff + 3] = m11; POut[PoOff + 4] = m12; POut[PoOff + 5] = m22;
 }
 
+/**
+ * The state half of predict3p (x⁻ = F x), for an axis whose covariance equals another axis's: same
+ * model, same measurement variances and use, so P⁻ is computed once and copied (see track-filter.ts).
+ */
+export function predictState3(F: Float64Array, x: Float64Array, xOff: number, xOut: Float64Array, xoOff: number): void {
+  const x0 = x[xOff]!, x1 = x[xOff + 1]!, x2 = x[xOff + 2]!;
+  // x⁻ = F x
+  xOut[xoOff] = F[0]! * x0 + F[1]! * x1 + F[2]! * x2;
+  xOut[xoOff + 1] = F[3]! * x0 + F[4]! * x1 + F[5]! * x2;
+  xOut[xoOff + 2] = F[6]! * x0 + F[7]! * x1 + F[8]! * x2;
+}
+
+/** The state half of updateJoseph3p (x ← x + K ν, K = P hᵀ S⁻¹ with w = P hᵀ), for an axis sharing another's covariance. */
+export function updateState3(nu: number, S: number, w: Float64Array, x: Float64Array, xOff: number): void {
+  // K = P hᵀ S⁻¹, x ← x + K ν (the same operations as updateJoseph3p's, so the same bits)
+  x[xOff] += (w[0]! / S) * nu;
+  x[xOff + 1] += (w[1]! / S) * nu;
+  x[xOff + 2] += (w[2]! / S) * nu;
+}
+
 export function updateJoseph3p(h: Float64Array, nu: number, S: number, r: number, w: Float64Array, x: Float64Array, xOff: number, P: Float64Array, POff: number): void {
   const w0 = w[0]!, w1 = w[1]!, w2 = w[2]!;
   // K = P hᵀ S⁻¹
@@ -83,7 +103,11 @@ export function innovation3p(h: Float64Array, z: number, r: number, x: Float64Ar
   return z - hx;
 }
 
-export function rtsStep3p(F: Float64Array, Q: Float64Array, x: Float64Array, xk: number, xk1: number, P: Float64Array, Pk: number, Pk1: number): boolean {
+/**
+ * One RTS step for n = 3. With `gOut` (9 doubles), the smoother gain is also written there as
+ * Gᵀ row-major (t00, t01, t02, t10, …), for rtsState3 on an axis that shares this axis's covariance.
+ */
+export function rtsStep3p(F: Float64Array, Q: Float64Array, x: Float64Array, xk: number, xk1: number, P: Float64Array, Pk: number, Pk1: number, gOut?: Float64Array): boolean {
   const f00 = F[0]!, f01 = F[1]!, f02 = F[2]!, f10 = F[3]!, f11 = F[4]!, f12 = F[5]!, f20 = F[6]!, f21 = F[7]!, f22 = F[8]!;
   const x0 = x[xk]!, x1 = x[xk + 1]!, x2 = x[xk + 2]!;
   const p00 = P[Pk]!, p01 = P[Pk + 1]!, p02 = P[Pk + 2]!, p11 = P[Pk + 3]!, p12 = P[Pk + 4]!, p22 = P[Pk + 5]!;
@@ -117,6 +141,11 @@ export function rtsStep3p(F: Float64Array, Q: Float64Array, x: Float64Array, xk:
   y0 = a02 / l00; y1 = (a12 - l10 * y0) / l11; y2 = (a22 - l20 * y0 - l21 * y1) / l22;
   const t22 = y2 / l22, t12 = (y1 - l21 * t22) / l11, t02 = (y0 - l10 * t12 - l20 * t22) / l00;
   // (t_ij = Gᵀ[i][j] = G[j][i])
+  if (gOut) {
+    gOut[0] = t00; gOut[1] = t01; gOut[2] = t02;
+    gOut[3] = t10; gOut[4] = t11; gOut[5] = t12;
+    gOut[6] = t20; gOut[7] = t21; gOut[8] = t22;
+  }
   // x⁻ₖ₊₁ = F xₖ;  dx = xˢₖ₊₁ − x⁻ₖ₊₁
   const dx0 = x[xk1]! - (f00 * x0 + f01 * x1 + f02 * x2);
   const dx1 = x[xk1 + 1]! - (f10 * x0 + f11 * x1 + f12 * x2);
@@ -144,3 +173,19 @@ export function rtsStep3p(F: Float64Array, Q: Float64Array, x: Float64Array, xk:
   return true;
 }
 
+
+/**
+ * The state half of rtsStep3p with the gain of an axis whose covariances equal this one's (gT: Gᵀ
+ * row-major from rtsStep3p's gOut): xˢₖ = xₖ + G (xˢₖ₊₁ − F xₖ), the same operations, so the same bits.
+ */
+export function rtsState3(F: Float64Array, gT: Float64Array, x: Float64Array, xk: number, xk1: number): void {
+  const x0 = x[xk]!, x1 = x[xk + 1]!, x2 = x[xk + 2]!;
+  // dx = xˢₖ₊₁ − F xₖ
+  const dx0 = x[xk1]! - (F[0]! * x0 + F[1]! * x1 + F[2]! * x2);
+  const dx1 = x[xk1 + 1]! - (F[3]! * x0 + F[4]! * x1 + F[5]! * x2);
+  const dx2 = x[xk1 + 2]! - (F[6]! * x0 + F[7]! * x1 + F[8]! * x2);
+  // xˢₖ = xₖ + G dx
+  x[xk] = x0 + (gT[0]! * dx0 + gT[3]! * dx1 + gT[6]! * dx2);
+  x[xk + 1] = x1 + (gT[1]! * dx0 + gT[4]! * dx1 + gT[7]! * dx2);
+  x[xk + 2] = x2 + (gT[2]! * dx0 + gT[5]! * dx1 + gT[8]! * dx2);
+}

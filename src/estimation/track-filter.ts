@@ -11,7 +11,7 @@
 import type { AxisModel } from '../models/axis-model.js';
 import { chiSquareQuantile } from './chi-square.js';
 import { innovation, makeScratch, predict, updateJoseph, type KalmanScratch } from './kalman.js';
-import { innovation3p, predict3p, updateJoseph3p } from './kalman3.js';
+import { innovation3p, predict3p, predictState3, updateJoseph3p, updateState3 } from './kalman3.js';
 
 /** Epoch-wise inputs of one segment, per axis arrays indexed by epoch. */
 export interface SegmentData {
@@ -37,6 +37,8 @@ export interface FilterOptions {
   qScale?: Float64Array[] | null;
   /** Optional multiplier of the measurement variances per axis (used by calibration). */
   rScale?: number[] | null;
+  /** Fill the per-epoch log-likelihood (calibration); otherwise it stays 0 and its logarithms are skipped. */
+  likelihood?: boolean;
 }
 
 /** Forward history of one segment; x/P hold filtered values (later overwritten by the smoother). */
@@ -56,7 +58,7 @@ export interface FilterHistory {
   accepted: Uint8Array;
   /** Extra process-noise diagonal added to the step ending at an epoch (re-acquisition), per axis. */
   extraQ: Map<number, Float64Array[]>;
-  /** Gaussian log-likelihood contribution of each epoch (capped at the gate for rejected fixes). */
+  /** Gaussian log-likelihood contribution of each epoch (capped at the gate for rejected fixes); filled with FilterOptions.likelihood, else 0. */
   logLik: Float64Array;
   /** Epochs where re-acquisition happened. */
   reacquired: number[];
@@ -78,6 +80,31 @@ export function covIndex(n: number, i: number, j: number): number {
   if (n !== 3) return i * n + j;
   const r = i < j ? i : j, c = i < j ? j : i;
   return r * 3 - (r * (r - 1)) / 2 + (c - r);
+}
+
+/**
+ * Whether the north axis (1) can take the east axis's (0) covariances instead of computing them:
+ * the same n = 3 model object, the same measurement variances, scale and process-noise scale at
+ * every epoch, and both measured or both not. Then the two covariance recursions are the same
+ * arithmetic on the same numbers (re-acquisition inflates both horizontal axes alike), so P is
+ * computed once and copied, bit for bit what the second computation would give.
+ */
+export function horizontalShare(models: AxisModel[], data: SegmentData, rScale: number[] | null | undefined, qScale: Float64Array[] | null | undefined): boolean {
+  if (models.length < 2 || models[0] !== models[1] || models[0]!.n !== 3) return false;
+  if (rScale && rScale[0] !== rScale[1]) return false;
+  if (qScale && qScale[0] !== qScale[1]) return false;
+  const r0 = data.r[0]!, r1 = data.r[1]!, z0 = data.z[0]!, z1 = data.z[1]!;
+  for (let k = 0; k < data.N; k++) {
+    if (!Object.is(r0[k], r1[k])) return false;
+    if (Number.isFinite(z0[k]!) !== Number.isFinite(z1[k]!)) return false;
+  }
+  return true;
+}
+
+/** Copy one packed 3×3 covariance (6 doubles at offset o) from a to b. */
+export function copy6(a: Float64Array, b: Float64Array, o: number): void {
+  b[o] = a[o]!; b[o + 1] = a[o + 1]!; b[o + 2] = a[o + 2]!;
+  b[o + 3] = a[o + 3]!; b[o + 4] = a[o + 4]!; b[o + 5] = a[o + 5]!;
 }
 
 /** Buffers reused across epochs of one pass. */
@@ -245,6 +272,12 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
   const rewound = new Set<number>();
   const rScale = opt.rScale ?? models.map(() => 1);
 
+  const likelihood = opt.likelihood === true;
+  // north takes east's covariances (predict and update its state only)
+  const share = horizontalShare(models, data, opt.rScale, opt.qScale);
+  // Δt of the step whose F, Q are in w.F, w.Q (NaN: none, or not reusable)
+  let lastDt = NaN;
+  const varying = !!opt.qScale;
   let runStart = -1;
   let runCount = 0;
   let k = 0;
@@ -297,10 +330,18 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
       }
     }
     if (k > 0) {
-      stepMatrices(models, data, h, k, opt.qScale, w.F, w.Q, w.cache);
+      // regular sampling: the step of the last epoch again, F and Q already in place
+      const dt = data.tSec[k]! - data.tSec[k - 1]!;
+      if (dt !== lastDt || varying || h.extraQ.size > 0) {
+        stepMatrices(models, data, h, k, opt.qScale, w.F, w.Q, w.cache);
+        lastDt = varying || h.extraQ.size > 0 ? NaN : dt;
+      }
       for (let a = 0; a < nAx; a++) {
         const n = models[a]!.n;
-        if (n === 3) predict3p(w.F[a]!, w.Q[a]!, h.x[a]!, (k - 1) * 3, h.P[a]!, (k - 1) * 6, h.x[a]!, k * 3, h.P[a]!, k * 6);
+        if (share && a === 1) {
+          predictState3(w.F[1]!, h.x[1]!, (k - 1) * 3, h.x[1]!, k * 3);
+          copy6(h.P[0]!, h.P[1]!, k * 6);
+        } else if (n === 3) predict3p(w.F[a]!, w.Q[a]!, h.x[a]!, (k - 1) * 3, h.P[a]!, (k - 1) * 6, h.x[a]!, k * 3, h.P[a]!, k * 6);
         else predict(n, w.F[a]!, w.Q[a]!, h.x[a]!, (k - 1) * n, h.P[a]!, (k - 1) * n * n, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!);
       }
     }
@@ -333,7 +374,7 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
       w.S[a] = S;
       // NIS = Σ ν²/S over independent axes
       nis += (nu * nu) / S;
-      ll += LOG_2PI + Math.log(S);
+      if (likelihood) ll += LOG_2PI + Math.log(S);
       dof++;
     }
     if (dof === 0) {
@@ -352,18 +393,21 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
         const n = m.n;
         // innovation() left P hᵀ in this axis's own scratch
         const r = data.r[a]![k]! * rScale[a]!;
-        if (n === 3) updateJoseph3p(m.h, w.nu[a]!, w.S[a]!, r, w.s[a]!.w, h.x[a]!, k * 3, h.P[a]!, k * 6);
+        if (share && a === 1) {
+          updateState3(w.nu[1]!, w.S[1]!, w.s[1]!.w, h.x[1]!, k * 3);
+          copy6(h.P[0]!, h.P[1]!, k * 6);
+        } else if (n === 3) updateJoseph3p(m.h, w.nu[a]!, w.S[a]!, r, w.s[a]!.w, h.x[a]!, k * 3, h.P[a]!, k * 6);
         else updateJoseph(n, m.h, w.nu[a]!, w.S[a]!, r, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!);
       }
       h.accepted[k] = 1;
-      h.logLik[k] = -0.5 * (ll + nis);
+      if (likelihood) h.logLik[k] = -0.5 * (ll + nis);
       runStart = -1;
       runCount = 0;
       k++;
       continue;
     }
     // rejected: capped likelihood contribution keeps outliers from dominating calibration
-    h.logLik[k] = -0.5 * (ll + thr);
+    if (likelihood) h.logLik[k] = -0.5 * (ll + thr);
     if (runCount === 0) runStart = k;
     runCount++;
     if (runCount >= opt.reacquireAfter && runStart > 0 && !rewound.has(runStart)) {
@@ -371,9 +415,9 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
       rewound.add(runStart);
       const extra: Float64Array[] = [];
       const span = Math.max(data.tSec[k]! - data.tSec[runStart - 1]!, 1e-3);
+      const misses: number[] = [];
       for (let a = 0; a < nAx; a++) {
         const m = models[a]!;
-        const e = new Float64Array(m.n);
         // largest miss of this axis over the run: rejected epochs hold only their prediction, so
         // z − H x⁻ there is the innovation the gate rejected
         let miss = 0;
@@ -381,6 +425,15 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
           const z = data.z[a]![j]!;
           if (Number.isFinite(z) && data.use[j]) miss = Math.max(miss, Math.abs(z - h.x[a]![j * m.n]! - (m.iBias >= 0 ? h.x[a]![j * m.n + m.iBias]! : 0)));
         }
+        misses.push(miss);
+      }
+      // the horizontal axes (0 east, 1 north) are inflated alike, by the larger miss of the two (a
+      // horizontal manoeuvre loses both; and their covariances stay equal, see horizontalShare)
+      if (nAx >= 2) misses[0] = misses[1] = Math.max(misses[0]!, misses[1]!);
+      for (let a = 0; a < nAx; a++) {
+        const m = models[a]!;
+        const miss = misses[a]!;
+        const e = new Float64Array(m.n);
         e[0] = miss * miss;
         if (m.nMotion > 1) e[1] = Math.max((miss / span) ** 2 * 4, 1);
         if (m.nMotion > 2) e[2] = Math.max((miss / (span * span)) ** 2 * 4, 0.1);

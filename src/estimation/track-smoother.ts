@@ -8,20 +8,51 @@ import type { AxisModel } from '../models/axis-model.js';
 import { NumericalError } from '../errors.js';
 import { makeScratch } from './kalman.js';
 import { makeRtsScratch, rtsStep } from './rts.js';
-import { rtsStep3p } from './kalman3.js';
-import { covStride, makeStepCache, stepMatrices, type FilterHistory, type SegmentData } from './track-filter.js';
+import { rtsState3, rtsStep3p } from './kalman3.js';
+import { copy6, covStride, makeStepCache, stepMatrices, type FilterHistory, type SegmentData } from './track-filter.js';
+
+/**
+ * Whether the smoother may give the north axis (1) the east axis's (0) gains and covariances: the
+ * same n = 3 model object and process-noise scale, and equal covariances at every epoch of every
+ * history given (checked element by element; equal inputs give equal outputs, so the result is the
+ * one of two separate computations).
+ */
+function smootherShare(models: AxisModel[], qScale: Float64Array[] | null | undefined, ...hs: FilterHistory[]): boolean {
+  if (models.length < 2 || models[0] !== models[1] || models[0]!.n !== 3) return false;
+  if (qScale && qScale[0] !== qScale[1]) return false;
+  for (const h of hs) {
+    const a = h.P[0]!, b = h.P[1]!;
+    for (let i = 0; i < a.length; i++) if (!Object.is(a[i], b[i])) return false;
+  }
+  return true;
+}
 
 export function smoothInPlace(models: AxisModel[], data: SegmentData, h: FilterHistory, qScale?: Float64Array[] | null): void {
   const F = models.map((m) => new Float64Array(m.n * m.n));
   const Q = models.map((m) => new Float64Array(m.n * m.n));
   const rs = models.map((m) => makeRtsScratch(m.n, makeScratch(m.n)));
   const cache = makeStepCache(models.length, models.map((m) => m.n));
+  // Δt whose F, Q are in place (NaN: none or not reusable: per-epoch q scale or re-acquisition noise)
+  let lastDt = NaN;
+  const reuse = !qScale && h.extraQ.size === 0;
+  const share = smootherShare(models, qScale, h);
+  const gT = new Float64Array(9);
   for (let k = h.N - 2; k >= 0; k--) {
-    stepMatrices(models, data, h, k + 1, qScale, F, Q, cache);
+    const dt = data.tSec[k + 1]! - data.tSec[k]!;
+    if (dt !== lastDt) {
+      stepMatrices(models, data, h, k + 1, qScale, F, Q, cache);
+      if (reuse) lastDt = dt;
+    }
     for (let a = 0; a < models.length; a++) {
       const n = models[a]!.n;
+      if (share && a === 1) {
+        // north: east's gain and covariance (see smootherShare)
+        rtsState3(F[1]!, gT, h.x[1]!, k * 3, (k + 1) * 3);
+        copy6(h.P[0]!, h.P[1]!, k * 6);
+        continue;
+      }
       const ok = n === 3
-        ? rtsStep3p(F[a]!, Q[a]!, h.x[a]!, k * 3, (k + 1) * 3, h.P[a]!, k * 6, (k + 1) * 6)
+        ? rtsStep3p(F[a]!, Q[a]!, h.x[a]!, k * 3, (k + 1) * 3, h.P[a]!, k * 6, (k + 1) * 6, share && a === 0 ? gT : undefined)
         : rtsStep(n, F[a]!, Q[a]!, h.x[a]!, k * n, (k + 1) * n, h.P[a]!, k * n * n, (k + 1) * n * n, rs[a]!);
       if (!ok) throw new NumericalError(`smoother: predicted covariance not positive definite at epoch ${k + 1}`);
     }
@@ -69,6 +100,11 @@ export function resmoothWindows(
   const sx = models.map((m) => new Float64Array(m.n));
   const sP = models.map((m) => new Float64Array(covStride(m.n)));
   s.extraQ = f.extraQ;
+  // as in smoothInPlace: F, Q of the last step stay in place for the next one with the same Δt
+  let lastDt = NaN;
+  const reuse = !qScale && s.extraQ.size === 0;
+  const share = smootherShare(models, qScale, f, s);
+  const gT = new Float64Array(9);
   let wi = windows.length / 2 - 1;
   let dirty = false;
   let count = 0;
@@ -101,11 +137,20 @@ export function resmoothWindows(
       }
     }
     if (k < N - 1) {
-      stepMatrices(models, data, s, k + 1, qScale, F, Q, cache);
+      const dt = data.tSec[k + 1]! - data.tSec[k]!;
+      if (dt !== lastDt) {
+        stepMatrices(models, data, s, k + 1, qScale, F, Q, cache);
+        if (reuse) lastDt = dt;
+      }
       for (let a = 0; a < nAx; a++) {
         const n = models[a]!.n;
+        if (share && a === 1) {
+          rtsState3(F[1]!, gT, s.x[1]!, k * 3, (k + 1) * 3);
+          copy6(s.P[0]!, s.P[1]!, k * 6);
+          continue;
+        }
         const ok = n === 3
-          ? rtsStep3p(F[a]!, Q[a]!, s.x[a]!, k * 3, (k + 1) * 3, s.P[a]!, k * 6, (k + 1) * 6)
+          ? rtsStep3p(F[a]!, Q[a]!, s.x[a]!, k * 3, (k + 1) * 3, s.P[a]!, k * 6, (k + 1) * 6, share && a === 0 ? gT : undefined)
           : rtsStep(n, F[a]!, Q[a]!, s.x[a]!, k * n, (k + 1) * n, s.P[a]!, k * n * n, (k + 1) * n * n, rs[a]!);
         if (!ok) throw new NumericalError(`smoother: predicted covariance not positive definite at epoch ${k + 1}`);
       }

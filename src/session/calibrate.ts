@@ -241,7 +241,7 @@ export function calibrateSession(
       h.extraQ.clear();
       h.reacquired.length = 0;
       // no re-acquisition here: its covariance inflation would explain manoeuvres for free
-      forwardFilter(models, d, { ...fopt, rScale, reacquireAfter: Number.MAX_SAFE_INTEGER }, h);
+      forwardFilter(models, d, { ...fopt, rScale, reacquireAfter: Number.MAX_SAFE_INTEGER, likelihood: true }, h);
       ll += totalLogLik(h);
     }
     // weak log-normal prior around the profile
