@@ -332,9 +332,11 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
     if (k > 0) {
       // regular sampling: the step of the last epoch again, F and Q already in place
       const dt = data.tSec[k]! - data.tSec[k - 1]!;
-      if (dt !== lastDt || varying || h.extraQ.size > 0) {
+      // (a step with re-acquisition noise is computed, and leaves F, Q reusable by none)
+      const extraHere = h.extraQ.size > 0 && h.extraQ.has(k);
+      if (dt !== lastDt || varying || extraHere) {
         stepMatrices(models, data, h, k, opt.qScale, w.F, w.Q, w.cache);
-        lastDt = varying || h.extraQ.size > 0 ? NaN : dt;
+        lastDt = varying || extraHere ? NaN : dt;
       }
       for (let a = 0; a < nAx; a++) {
         const n = models[a]!.n;

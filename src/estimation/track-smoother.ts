@@ -32,16 +32,18 @@ export function smoothInPlace(models: AxisModel[], data: SegmentData, h: FilterH
   const Q = models.map((m) => new Float64Array(m.n * m.n));
   const rs = models.map((m) => makeRtsScratch(m.n, makeScratch(m.n)));
   const cache = makeStepCache(models.length, models.map((m) => m.n));
-  // Δt whose F, Q are in place (NaN: none or not reusable: per-epoch q scale or re-acquisition noise)
+  // Δt whose F, Q are in place (NaN: none, or not reusable: per-epoch q scale or re-acquisition noise)
   let lastDt = NaN;
-  const reuse = !qScale && h.extraQ.size === 0;
+  const reuse = !qScale;
   const share = smootherShare(models, qScale, h);
   const gT = new Float64Array(9);
   for (let k = h.N - 2; k >= 0; k--) {
     const dt = data.tSec[k + 1]! - data.tSec[k]!;
-    if (dt !== lastDt) {
+    // a step with re-acquisition noise is computed, and leaves F, Q reusable by none
+    const extraHere = h.extraQ.size > 0 && h.extraQ.has(k + 1);
+    if (dt !== lastDt || extraHere) {
       stepMatrices(models, data, h, k + 1, qScale, F, Q, cache);
-      if (reuse) lastDt = dt;
+      lastDt = reuse && !extraHere ? dt : NaN;
     }
     for (let a = 0; a < models.length; a++) {
       const n = models[a]!.n;
@@ -102,7 +104,7 @@ export function resmoothWindows(
   s.extraQ = f.extraQ;
   // as in smoothInPlace: F, Q of the last step stay in place for the next one with the same Δt
   let lastDt = NaN;
-  const reuse = !qScale && s.extraQ.size === 0;
+  const reuse = !qScale;
   const share = smootherShare(models, qScale, f, s);
   const gT = new Float64Array(9);
   let wi = windows.length / 2 - 1;
@@ -138,9 +140,10 @@ export function resmoothWindows(
     }
     if (k < N - 1) {
       const dt = data.tSec[k + 1]! - data.tSec[k]!;
-      if (dt !== lastDt) {
+      const extraHere = s.extraQ.size > 0 && s.extraQ.has(k + 1);
+      if (dt !== lastDt || extraHere) {
         stepMatrices(models, data, s, k + 1, qScale, F, Q, cache);
-        if (reuse) lastDt = dt;
+        lastDt = reuse && !extraHere ? dt : NaN;
       }
       for (let a = 0; a < nAx; a++) {
         const n = models[a]!.n;

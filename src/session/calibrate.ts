@@ -152,7 +152,10 @@ function startOnFix(d: SegmentData): SegmentData | null {
 function horizontalExtentM(ps: PreparedSession): number {
   const ext = (a: Float64Array) => {
     // typed-array sort (numeric, no comparator calls): same order, a fraction of the time on long logs
-    const v = a.filter((x, i) => ps.offered[i] !== 0 && Number.isFinite(x)).sort();
+    const all = new Float64Array(a.length);
+    let m = 0;
+    for (let i = 0; i < a.length; i++) if (ps.offered[i] !== 0 && Number.isFinite(a[i]!)) all[m++] = a[i]!;
+    const v = all.subarray(0, m).sort();
     if (v.length < 2) return 0;
     return v[Math.floor(0.95 * (v.length - 1))]! - v[Math.floor(0.05 * (v.length - 1))]!;
   };

@@ -5,16 +5,18 @@
 
 /** Median of the positive differences of consecutive times, or 1 s when there are none. */
 export function nominalIntervalSec(tSec: Float64Array, use?: Uint8Array): number {
-  const d: number[] = [];
+  // a typed array sorts numerically without a comparator (same median, a fraction of the time)
+  const all = new Float64Array(tSec.length);
+  let m = 0;
   let prev = NaN;
   for (let i = 0; i < tSec.length; i++) {
     if (use && !use[i]) continue;
-    if (Number.isFinite(prev) && tSec[i]! > prev) d.push(tSec[i]! - prev);
+    if (Number.isFinite(prev) && tSec[i]! > prev) all[m++] = tSec[i]! - prev;
     prev = tSec[i]!;
   }
-  if (d.length === 0) return 1;
-  d.sort((a, b) => a - b);
-  return d[d.length >> 1]!;
+  if (m === 0) return 1;
+  const d = all.subarray(0, m).sort();
+  return d[m >> 1]!;
 }
 
 /** [first, last] indices (inclusive) of consecutive fixes with no gap longer than maxGapSec between offered fixes. */
