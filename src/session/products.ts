@@ -9,10 +9,10 @@ import { geodesicLengthM } from '../geodesy/geodesic.js';
 import type { PreparedSession } from './process-session.js';
 import { STATUS, type OutlierRecord, type SessionResult } from './result.js';
 
-function median(v: number[]): number {
+function median(v: Float64Array): number {
   if (v.length === 0) return NaN;
   // a typed array sorts numerically without a comparator (same order statistic, faster)
-  const a = Float64Array.from(v).sort();
+  const a = v.slice().sort();
   return a[a.length >> 1]!;
 }
 
@@ -78,15 +78,15 @@ export function buildOutliersAndMetrics(res: SessionResult, ps: PreparedSession,
   }
   res.outliers = out;
   let kept = 0, bridged = 0;
-  const sdH: number[] = [];
-  const ellMaj: number[] = [];
+  const sdH = new Float64Array(N);
+  const ellMaj = new Float64Array(N);
   let sumR2 = 0, nR = 0, sumU2 = 0, nU = 0;
   for (let j = 0; j < N; j++) {
     const st = res.status[j]!;
     if (st === STATUS.kept || st === STATUS.userKept) kept++;
     else if (st === STATUS.bridged) bridged++;
-    sdH.push(Math.sqrt(res.sdEnu[0]![j]! ** 2 + res.sdEnu[1]![j]! ** 2));
-    ellMaj.push(res.ell95MajorM[j]!);
+    sdH[j] = Math.sqrt(res.sdEnu[0]![j]! ** 2 + res.sdEnu[1]![j]! ** 2);
+    ellMaj[j] = res.ell95MajorM[j]!;
     const i = res.fix[j]!;
     if (i >= 0 && (st === STATUS.kept || st === STATUS.userKept)) {
       const de = ps.e[i]! - res.posEnu[0]![j]!, dn = ps.n[i]! - res.posEnu[1]![j]!;
