@@ -114,6 +114,21 @@ export interface InsStats {
   smootherFallbacks: number;
 }
 
+/**
+ * Optional wall-clock accounting of the filter (for `npm run bench`), in ms summed over calls:
+ * covariance propagation, the epoch's updates (everything of processEpoch but its propagation) and
+ * the backward pass. Callers that pass none pay one branch per epoch.
+ */
+export interface InsTimings {
+  propagateMs: number;
+  updateMs: number;
+  smoothMs: number;
+}
+
+export function newInsTimings(): InsTimings {
+  return { propagateMs: 0, updateMs: 0, smoothMs: 0 };
+}
+
 export class InsSmoother {
   readonly stats: InsStats = { samples: 0, samplesSkipped: 0, imuGaps: 0, firstSampleSec: NaN, lastSampleSec: NaN, alignments: [], zuptEpochs: 0, nhcEpochs: 0, gnssRejected: 0, reacquisitions: 0, smootherFallbacks: 0 };
   readonly products: InsProducts;
@@ -166,7 +181,7 @@ export class InsSmoother {
   private ringHead = 0;
   private ringCount = 0;
 
-  constructor(private readonly ep: InsEpochs, private readonly init: InsInit, private readonly opt: InsOptions) {
+  constructor(private readonly ep: InsEpochs, private readonly init: InsInit, private readonly opt: InsOptions, private readonly tm?: InsTimings) {
     const N = ep.N;
     this.hNav = new Float64Array(N * NAV_LEN);
     this.hPplus = new Float64Array(N * NE_PACKED);
@@ -412,6 +427,7 @@ export class InsSmoother {
   private propagate(): void {
     const T = this.sumDt;
     if (!(T > 0)) return;
+    const t0 = this.tm ? performance.now() : 0;
     const inv = 1 / T;
     for (let i = 0; i < 9; i++) this.C[i] = this.sumC[i]! * inv;
     for (let i = 0; i < 3; i++) this.v3[i] = this.sumF[i]! * inv;
@@ -425,6 +441,7 @@ export class InsSmoother {
     this.sumDt = 0;
     this.sumC.fill(0);
     this.sumF.fill(0);
+    if (this.tm) this.tm.propagateMs += performance.now() - t0;
   }
 
   /** Scalar update of the accumulated correction dx with innovation ν (w.r.t. the predicted nominal) and row h. */
@@ -436,6 +453,14 @@ export class InsSmoother {
 
   private processEpoch(k: number): void {
     this.propagate();
+    if (!this.tm) return this.updateEpoch(k);
+    const t0 = performance.now();
+    this.updateEpoch(k);
+    this.tm.updateMs += performance.now() - t0;
+  }
+
+  /** The epoch's updates after the covariance has been propagated to it. */
+  private updateEpoch(k: number): void {
     const ep = this.ep;
     const opt = this.opt;
     const P = this.P;
@@ -603,6 +628,12 @@ export class InsSmoother {
 
   /** Backward RTS over every chain of covered epochs, then the per-epoch products. */
   smooth(): void {
+    const t0 = this.tm ? performance.now() : 0;
+    this.smoothChains();
+    if (this.tm) this.tm.smoothMs += performance.now() - t0;
+  }
+
+  private smoothChains(): void {
     const N = this.ep.N;
     const pr = this.products;
     const Pf = new Float64Array(NE * NE);
