@@ -21,7 +21,7 @@ import { streamImuCsv } from '../input/imu-csv.js';
 import { earthRateEnu } from '../models/ins/gravity.js';
 import { makeMechParams } from '../models/ins/mechanization.js';
 import { yawToHeadingDeg } from '../models/ins/attitude.js';
-import { InsSmoother, newInsTimings, type InsEpochs, type InsInit, type InsOptions, type InsTimings } from '../estimation/ins/ins-filter.js';
+import { InsSmoother, newInsTimings, type InsEpochs, type InsInit, type InsHistory, type InsOptions, type InsTimings } from '../estimation/ins/ins-filter.js';
 import { gnssReviewStatistic, makeGnssReviewScratch } from '../estimation/ins/review.js';
 import { errorEllipse } from '../output/ellipse.js';
 import { InputError } from '../errors.js';
@@ -222,8 +222,10 @@ export async function processImuSession(series: FixSeries, imuPath: string, cfg:
   const display = imuPath.replace(/^.*[\\/]/, '');
   if (tm) tm.baselineMs += lap();
   let imuWarnings: SessionResult['warnings'] = [];
+  // one filter history for all passes: a pass's history is free once it has smoothed
+  let history: InsHistory | undefined;
   const runPass = async (epochs: InsEpochs): Promise<InsSmoother> => {
-    const engine = new InsSmoother(epochs, init, opt, tm?.ins);
+    const engine = new InsSmoother(epochs, init, opt, tm?.ins, history);
     const ts = performance.now();
     const read = await streamImuCsv(imuPath, display, cfg, (t, fx, fy, fz, wx, wy, wz) => engine.addSample(t, fx, fy, fz, wx, wy, wz));
     engine.finishStream();
@@ -233,6 +235,7 @@ export async function processImuSession(series: FixSeries, imuPath: string, cfg:
     }
     if (read.samples === 0) throw new InputError({ file: display }, 'no IMU samples');
     engine.smooth();
+    history = engine.releaseHistory();
     if (tm) lap(); // the pass (stream and smoother) is counted in streamMs and ins.smoothMs
     imuWarnings = read.warnings;
     return engine;

@@ -129,10 +129,40 @@ export function newInsTimings(): InsTimings {
   return { propagateMs: 0, updateMs: 0, smoothMs: 0 };
 }
 
+/**
+ * The per-epoch history of one pass (the filter's memory per epoch: nominal state, packed P⁺ and P⁻,
+ * compact Φ, correction, chain starts). Once a pass has smoothed, the next pass of the same epoch
+ * grid reuses it (releaseHistory): every entry the smoother reads is written again by the new pass
+ * (chain starts are cleared), so results do not depend on it, and the memory is written in place
+ * instead of freshly allocated and touched again.
+ */
+export interface InsHistory {
+  N: number;
+  nav: Float64Array;
+  pPlus: Float64Array;
+  pMinus: Float64Array;
+  phi: Float64Array;
+  dx: Float64Array;
+  chainStart: Uint8Array;
+}
+
+export function newInsHistory(N: number): InsHistory {
+  return {
+    N,
+    nav: new Float64Array(N * NAV_LEN),
+    pPlus: new Float64Array(N * NE_PACKED),
+    pMinus: new Float64Array(N * NE_PACKED),
+    phi: new Float64Array(N * PHI_COMPACT),
+    dx: new Float64Array(N * NE),
+    chainStart: new Uint8Array(N),
+  };
+}
+
 export class InsSmoother {
   readonly stats: InsStats = { samples: 0, samplesSkipped: 0, imuGaps: 0, firstSampleSec: NaN, lastSampleSec: NaN, alignments: [], zuptEpochs: 0, nhcEpochs: 0, gnssRejected: 0, reacquisitions: 0, smootherFallbacks: 0 };
   readonly products: InsProducts;
   // ---- per-epoch history ----
+  private history: InsHistory | null;
   private readonly hNav: Float64Array;
   private readonly hPplus: Float64Array;
   private readonly hPminus: Float64Array;
@@ -181,14 +211,19 @@ export class InsSmoother {
   private ringHead = 0;
   private ringCount = 0;
 
-  constructor(private readonly ep: InsEpochs, private readonly init: InsInit, private readonly opt: InsOptions, private readonly tm?: InsTimings) {
+  /** `history`: a released history of an earlier pass over the same grid, to be reused. */
+  constructor(private readonly ep: InsEpochs, private readonly init: InsInit, private readonly opt: InsOptions, private readonly tm?: InsTimings, history?: InsHistory) {
     const N = ep.N;
-    this.hNav = new Float64Array(N * NAV_LEN);
-    this.hPplus = new Float64Array(N * NE_PACKED);
-    this.hPminus = new Float64Array(N * NE_PACKED);
-    this.hPhi = new Float64Array(N * PHI_COMPACT);
-    this.hDx = new Float64Array(N * NE);
-    this.chainStart = new Uint8Array(N);
+    let h = history;
+    if (h && h.N === N) h.chainStart.fill(0);
+    else h = newInsHistory(N);
+    this.history = h;
+    this.hNav = h.nav;
+    this.hPplus = h.pPlus;
+    this.hPminus = h.pMinus;
+    this.hPhi = h.phi;
+    this.hDx = h.dx;
+    this.chainStart = h.chainStart;
     const mk = () => new Float64Array(N).fill(NaN);
     const m3 = (): [Float64Array, Float64Array, Float64Array] => [mk(), mk(), mk()];
     this.products = {
@@ -627,7 +662,16 @@ export class InsSmoother {
   }
 
   /** Backward RTS over every chain of covered epochs, then the per-epoch products. */
+  /** Hand the history to the next pass; this engine keeps its products but can no longer smooth. */
+  releaseHistory(): InsHistory {
+    const h = this.history;
+    if (!h) throw new Error('InsSmoother: history already released');
+    this.history = null;
+    return h;
+  }
+
   smooth(): void {
+    if (!this.history) throw new Error('InsSmoother: history released');
     const t0 = this.tm ? performance.now() : 0;
     this.smoothChains();
     if (this.tm) this.tm.smoothMs += performance.now() - t0;
