@@ -22,7 +22,7 @@ import { makeMechScratch, mechanize, NAV_BA, NAV_BG, NAV_GM, NAV_LEN, NAV_P, NAV
 import { gmPhi } from '../../models/gauss-markov.js';
 import {
   discretize, E_A, E_BA, E_BG, E_GM, E_P, E_V, fillErrorF, leftMultiply, makeDiscScratch, NE, NE_PACKED, packPhi, packSym,
-  PHI_COMPACT, propagateCovariance, unpackPhi, unpackSym, type DiscScratch, type ErrorModelParams,
+  makeNonzeros, PHI_COMPACT, propagateCovariance, setFromIdentityProduct, unpackPhi, unpackSym, type DiscScratch, type ErrorModelParams,
 } from './error-model.js';
 import { bodyVelocityRow, gnssRow, gyroBiasRow, velocityRow } from './measurements.js';
 import { insRtsStep, makeInsRtsScratch } from './rts.js';
@@ -177,6 +177,9 @@ export class InsSmoother {
   private readonly nav = new Float64Array(NAV_LEN);
   private readonly P = new Float64Array(NE * NE);
   private readonly PhiAcc = new Float64Array(NE * NE);
+  /** PhiAcc is the identity (reset at an epoch, nothing propagated since). */
+  private phiAccIdentity = true;
+  private readonly nzPhi = makeNonzeros();
   private readonly F = new Float64Array(NE * NE);
   private readonly Phi = new Float64Array(NE * NE);
   private readonly Qd = new Float64Array(NE * NE);
@@ -420,6 +423,7 @@ export class InsSmoother {
     }
     this.PhiAcc.fill(0);
     for (let i = 0; i < NE; i++) this.PhiAcc[i * NE + i] = 1;
+    this.phiAccIdentity = true;
     this.sumDt = 0;
     this.sumC.fill(0);
     this.sumF.fill(0);
@@ -468,8 +472,11 @@ export class InsSmoother {
     for (let i = 0; i < 3; i++) this.v3[i] = this.sumF[i]! * inv;
     fillErrorF(this.F, this.C, this.v3, this.opt.err);
     discretize(this.F, T, this.opt.err, this.Phi, this.Qd, this.disc);
-    propagateCovariance(this.Phi, this.Qd, this.P, this.tmp);
-    leftMultiply(this.Phi, this.PhiAcc, this.tmp);
+    propagateCovariance(this.Phi, this.Qd, this.P, this.tmp, this.nzPhi);
+    // Φ_acc ← Φ Φ_acc (the first step after an epoch: Φ_acc = Φ, the same value)
+    if (this.phiAccIdentity) setFromIdentityProduct(this.Phi, this.PhiAcc);
+    else leftMultiply(this.Phi, this.PhiAcc, this.tmp, this.nzPhi);
+    this.phiAccIdentity = false;
     // mean of the Gauss–Markov fix error decays: b ← e^{−Δt/τ} b
     const phiGm = gmPhi(T, this.opt.err.gmTauSec);
     for (let i = 0; i < 3; i++) this.nav[NAV_GM + i] *= phiGm;
@@ -558,6 +565,7 @@ export class InsSmoother {
     }
     this.PhiAcc.fill(0);
     for (let i = 0; i < NE; i++) this.PhiAcc[i * NE + i] = 1;
+    this.phiAccIdentity = true;
     const dx = this.dx;
     dx.fill(0);
     if (pass) {
