@@ -13,7 +13,7 @@
 import { spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync, mkdirSync } from 'node:fs';
 import { tmpdir } from 'node:os';
-import { dirname, join } from 'node:path';
+import { join } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { loadConfig } from '../src/config/load.js';
 import { readFixLog } from '../src/input/read-log.js';
@@ -26,6 +26,7 @@ import { forwardFilter } from '../src/estimation/track-filter.js';
 import { smoothInPlace } from '../src/estimation/track-smoother.js';
 import { defaultSpec, scenarioCsv, simulate } from '../src/simulate/scenario.js';
 import type { BenchPart } from './part.js';
+import { mergeResults } from './results.js';
 
 const SIZES = [10_000, 100_000, 1_000_000];
 const RATE_HZ = 10;
@@ -183,10 +184,8 @@ export async function runPipelineBench(sizes = SIZES): Promise<{ rows: SizeResul
     checks.push([`time per fix 1M / 100k = ${ratio.toFixed(2)} ≤ ${TARGET_LINEARITY}`, ratio <= TARGET_LINEARITY]);
   }
   for (const [t, ok] of checks) lines.push(`${ok ? 'met   ' : 'MISSED'} ${t}`);
-  const here = dirname(fileURLToPath(import.meta.url));
-  // dist/bench → bench (the results file sits beside the sources)
-  const resultsPath = join(here, '..', '..', 'bench', 'results.json');
-  writeFileSync(resultsPath, JSON.stringify({ machine: { node: process.version, cores: (await import('node:os')).availableParallelism() }, rateHz: RATE_HZ, seed: SEED, rows, checks: checks.map(([t, ok]) => ({ target: t, met: ok })) }, null, 2) + '\n');
+  // read-merge-write: the IMU part's section (bench/imu.ts) stays
+  mergeResults({ machine: { node: process.version, cores: (await import('node:os')).availableParallelism() }, rateHz: RATE_HZ, seed: SEED, rows, checks: checks.map(([t, ok]) => ({ target: t, met: ok })) });
   lines.push(`results written to bench/results.json`);
   return { rows, ok: checks.length > 0 && checks.every(([, ok]) => ok), lines };
 }

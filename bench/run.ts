@@ -5,24 +5,9 @@
  * memory (a high-water mark) go first.
  */
 import { batchBench } from './batch.js';
-import { runImuBench } from './imu.js';
+import { imuBench } from './imu.js';
 import { pipelineBench } from './pipeline.js';
 import type { BenchPart } from './part.js';
-
-const imuBench: BenchPart = {
-  name: 'imu: IMU-aided session, one hour of 100 Hz IMU with 10 Hz fixes',
-  async run() {
-    const r = await runImuBench();
-    return {
-      ok: r.pass,
-      lines: [
-        `${r.durationSec} s, ${r.imuSamples} IMU samples, ${r.fixes} fixes, ${r.epochs} epochs`,
-        `time: ${r.processSec.toFixed(2)} s (target < ${r.targetSec} s)`,
-        `peak RSS: ${r.peakRssMB.toFixed(0)} MB of the processing process (target < ${r.targetMB} MB)`,
-      ],
-    };
-  },
-};
 
 const PARTS: BenchPart[] = [imuBench, pipelineBench, batchBench];
 

@@ -21,7 +21,7 @@ import { streamImuCsv } from '../input/imu-csv.js';
 import { earthRateEnu } from '../models/ins/gravity.js';
 import { makeMechParams } from '../models/ins/mechanization.js';
 import { yawToHeadingDeg } from '../models/ins/attitude.js';
-import { InsSmoother, type InsEpochs, type InsInit, type InsOptions } from '../estimation/ins/ins-filter.js';
+import { InsSmoother, newInsTimings, type InsEpochs, type InsInit, type InsHistory, type InsOptions, type InsTimings } from '../estimation/ins/ins-filter.js';
 import { gnssReviewStatistic, makeGnssReviewScratch } from '../estimation/ins/review.js';
 import { errorEllipse } from '../output/ellipse.js';
 import { InputError } from '../errors.js';
@@ -135,6 +135,28 @@ export function insOptions(ps: PreparedSession, cfg: HindcastConfig, p: AxisPara
   };
 }
 
+/**
+ * Optional wall-clock accounting of one IMU session (for `npm run bench`), ms summed over the review
+ * passes. `streamMs` is each pass's streaming of the IMU log: reading and parsing, mechanization and
+ * the per-epoch work inside the stream, of which `ins.propagateMs` is the covariance propagation and
+ * `ins.updateMs` the epoch updates; `ins.smoothMs` is the backward passes. Results do not depend on it.
+ */
+export interface ImuStageTimings {
+  /** The fixes-only baseline: preparation, calibration, classification and its result. */
+  baselineMs: number;
+  streamMs: number;
+  ins: InsTimings;
+  /** Review statistics and decisions. */
+  reviewMs: number;
+  /** Merging the products into the result, statuses, outliers and metrics. */
+  productsMs: number;
+  passes: number;
+}
+
+export function newImuStageTimings(): ImuStageTimings {
+  return { baselineMs: 0, streamMs: 0, ins: newInsTimings(), reviewMs: 0, productsMs: 0, passes: 0 };
+}
+
 /** Outcome of the IMU review loop: final decisions and statistics per epoch. */
 export interface ImuReview {
   /** 1 kept, 0 rejected (offered gated fixes of covered epochs; others as offered). */
@@ -181,7 +203,14 @@ export function reviewImuFixes(ep: InsEpochs, offered: Uint8Array, engine: InsSm
  * Process one session with its IMU log: `imuPath` is `<stem>.imu.csv` beside the fix log. Returns the
  * same SessionResult as processSession, plus attitudeDeg, attitudeSdDeg and biasEstimates.
  */
-export async function processImuSession(series: FixSeries, imuPath: string, cfg: HindcastConfig, name: string, userDecisions?: Map<number, 'keep' | 'reject'>): Promise<SessionResult> {
+export async function processImuSession(series: FixSeries, imuPath: string, cfg: HindcastConfig, name: string, userDecisions?: Map<number, 'keep' | 'reject'>, tm?: ImuStageTimings): Promise<SessionResult> {
+  let t0 = performance.now();
+  const lap = (): number => {
+    const t = performance.now();
+    const d = t - t0;
+    t0 = t;
+    return d;
+  };
   const ps = prepareSession(series, cfg, userDecisions);
   // fixes-only solution with the session's calibrated noise (initial values, uncovered epochs)
   const { result: base, cal } = calibratedFixesOnly(ps, cfg, name);
@@ -191,13 +220,23 @@ export async function processImuSession(series: FixSeries, imuPath: string, cfg:
   const gp = imuGnssParams(cal.params, axisParamsFromConfig(cfg, ps.factors.reported));
   const opt = insOptions(ps, cfg, gp);
   const display = imuPath.replace(/^.*[\\/]/, '');
+  if (tm) tm.baselineMs += lap();
   let imuWarnings: SessionResult['warnings'] = [];
+  // one filter history for all passes: a pass's history is free once it has smoothed
+  let history: InsHistory | undefined;
   const runPass = async (epochs: InsEpochs): Promise<InsSmoother> => {
-    const engine = new InsSmoother(epochs, init, opt);
+    const engine = new InsSmoother(epochs, init, opt, tm?.ins, history);
+    const ts = performance.now();
     const read = await streamImuCsv(imuPath, display, cfg, (t, fx, fy, fz, wx, wy, wz) => engine.addSample(t, fx, fy, fz, wx, wy, wz));
     engine.finishStream();
+    if (tm) {
+      tm.streamMs += performance.now() - ts;
+      tm.passes++;
+    }
     if (read.samples === 0) throw new InputError({ file: display }, 'no IMU samples');
     engine.smooth();
+    history = engine.releaseHistory();
+    if (tm) lap(); // the pass (stream and smoother) is counted in streamMs and ins.smoothMs
     imuWarnings = read.warnings;
     return engine;
   };
@@ -231,11 +270,15 @@ export async function processImuSession(series: FixSeries, imuPath: string, cfg:
     }
     // decisions held fixed: kept fixes without gate, rejected ones left out
     for (let k = 0; k < N; k++) fixed.use[k] = gatedFix[k] ? (kept[k] ? 2 : 0) : offered[k]!;
+    if (tm) tm.reviewMs += lap();
     engine = await runPass(fixed);
     passes++;
   }
   const review: ImuReview = { kept, gateRejected, T, dof, threshold, passes, converged, ...gateStats };
-  return assembleImuResult(base, ps, engine, imuWarnings, review, gp);
+  if (tm) tm.reviewMs += lap();
+  const res = assembleImuResult(base, ps, engine, imuWarnings, review, gp);
+  if (tm) tm.productsMs += lap();
+  return res;
 }
 
 /** Merge the smoother's products and the review's decisions into a copy of the fixes-only result and recompute statuses, outliers and metrics. */

@@ -22,7 +22,7 @@ import { makeMechScratch, mechanize, NAV_BA, NAV_BG, NAV_GM, NAV_LEN, NAV_P, NAV
 import { gmPhi } from '../../models/gauss-markov.js';
 import {
   discretize, E_A, E_BA, E_BG, E_GM, E_P, E_V, fillErrorF, leftMultiply, makeDiscScratch, NE, NE_PACKED, packPhi, packSym,
-  PHI_COMPACT, propagateCovariance, unpackPhi, unpackSym, type DiscScratch, type ErrorModelParams,
+  makeNonzeros, PHI_COMPACT, propagateCovariance, setFromIdentityProduct, unpackPhi, unpackSym, type DiscScratch, type ErrorModelParams,
 } from './error-model.js';
 import { bodyVelocityRow, gnssRow, gyroBiasRow, velocityRow } from './measurements.js';
 import { insRtsStep, makeInsRtsScratch } from './rts.js';
@@ -114,10 +114,55 @@ export interface InsStats {
   smootherFallbacks: number;
 }
 
+/**
+ * Optional wall-clock accounting of the filter (for `npm run bench`), in ms summed over calls:
+ * covariance propagation, the epoch's updates (everything of processEpoch but its propagation) and
+ * the backward pass. Callers that pass none pay one branch per epoch.
+ */
+export interface InsTimings {
+  propagateMs: number;
+  updateMs: number;
+  smoothMs: number;
+}
+
+export function newInsTimings(): InsTimings {
+  return { propagateMs: 0, updateMs: 0, smoothMs: 0 };
+}
+
+/**
+ * The per-epoch history of one pass (the filter's memory per epoch: nominal state, packed P⁺ and P⁻,
+ * compact Φ, correction, chain starts). Once a pass has smoothed, the next pass of the same epoch
+ * grid reuses it (releaseHistory): every entry the smoother reads is written again by the new pass
+ * (chain starts are cleared), so results do not depend on it, and the memory is written in place
+ * instead of freshly allocated and touched again.
+ */
+export interface InsHistory {
+  N: number;
+  nav: Float64Array;
+  pPlus: Float64Array;
+  pMinus: Float64Array;
+  phi: Float64Array;
+  dx: Float64Array;
+  chainStart: Uint8Array;
+}
+
+export function newInsHistory(N: number): InsHistory {
+  return {
+    N,
+    nav: new Float64Array(N * NAV_LEN),
+    pPlus: new Float64Array(N * NE_PACKED),
+    pMinus: new Float64Array(N * NE_PACKED),
+    phi: new Float64Array(N * PHI_COMPACT),
+    dx: new Float64Array(N * NE),
+    chainStart: new Uint8Array(N),
+  };
+}
+
 export class InsSmoother {
   readonly stats: InsStats = { samples: 0, samplesSkipped: 0, imuGaps: 0, firstSampleSec: NaN, lastSampleSec: NaN, alignments: [], zuptEpochs: 0, nhcEpochs: 0, gnssRejected: 0, reacquisitions: 0, smootherFallbacks: 0 };
   readonly products: InsProducts;
   // ---- per-epoch history ----
+  private history: InsHistory | null;
   private readonly hNav: Float64Array;
   private readonly hPplus: Float64Array;
   private readonly hPminus: Float64Array;
@@ -132,6 +177,9 @@ export class InsSmoother {
   private readonly nav = new Float64Array(NAV_LEN);
   private readonly P = new Float64Array(NE * NE);
   private readonly PhiAcc = new Float64Array(NE * NE);
+  /** PhiAcc is the identity (reset at an epoch, nothing propagated since). */
+  private phiAccIdentity = true;
+  private readonly nzPhi = makeNonzeros();
   private readonly F = new Float64Array(NE * NE);
   private readonly Phi = new Float64Array(NE * NE);
   private readonly Qd = new Float64Array(NE * NE);
@@ -166,14 +214,19 @@ export class InsSmoother {
   private ringHead = 0;
   private ringCount = 0;
 
-  constructor(private readonly ep: InsEpochs, private readonly init: InsInit, private readonly opt: InsOptions) {
+  /** `history`: a released history of an earlier pass over the same grid, to be reused. */
+  constructor(private readonly ep: InsEpochs, private readonly init: InsInit, private readonly opt: InsOptions, private readonly tm?: InsTimings, history?: InsHistory) {
     const N = ep.N;
-    this.hNav = new Float64Array(N * NAV_LEN);
-    this.hPplus = new Float64Array(N * NE_PACKED);
-    this.hPminus = new Float64Array(N * NE_PACKED);
-    this.hPhi = new Float64Array(N * PHI_COMPACT);
-    this.hDx = new Float64Array(N * NE);
-    this.chainStart = new Uint8Array(N);
+    let h = history;
+    if (h && h.N === N) h.chainStart.fill(0);
+    else h = newInsHistory(N);
+    this.history = h;
+    this.hNav = h.nav;
+    this.hPplus = h.pPlus;
+    this.hPminus = h.pMinus;
+    this.hPhi = h.phi;
+    this.hDx = h.dx;
+    this.chainStart = h.chainStart;
     const mk = () => new Float64Array(N).fill(NaN);
     const m3 = (): [Float64Array, Float64Array, Float64Array] => [mk(), mk(), mk()];
     this.products = {
@@ -370,6 +423,7 @@ export class InsSmoother {
     }
     this.PhiAcc.fill(0);
     for (let i = 0; i < NE; i++) this.PhiAcc[i * NE + i] = 1;
+    this.phiAccIdentity = true;
     this.sumDt = 0;
     this.sumC.fill(0);
     this.sumF.fill(0);
@@ -412,19 +466,24 @@ export class InsSmoother {
   private propagate(): void {
     const T = this.sumDt;
     if (!(T > 0)) return;
+    const t0 = this.tm ? performance.now() : 0;
     const inv = 1 / T;
     for (let i = 0; i < 9; i++) this.C[i] = this.sumC[i]! * inv;
     for (let i = 0; i < 3; i++) this.v3[i] = this.sumF[i]! * inv;
     fillErrorF(this.F, this.C, this.v3, this.opt.err);
     discretize(this.F, T, this.opt.err, this.Phi, this.Qd, this.disc);
-    propagateCovariance(this.Phi, this.Qd, this.P, this.tmp);
-    leftMultiply(this.Phi, this.PhiAcc, this.tmp);
+    propagateCovariance(this.Phi, this.Qd, this.P, this.tmp, this.nzPhi);
+    // Φ_acc ← Φ Φ_acc (the first step after an epoch: Φ_acc = Φ, the same value)
+    if (this.phiAccIdentity) setFromIdentityProduct(this.Phi, this.PhiAcc);
+    else leftMultiply(this.Phi, this.PhiAcc, this.tmp, this.nzPhi);
+    this.phiAccIdentity = false;
     // mean of the Gauss–Markov fix error decays: b ← e^{−Δt/τ} b
     const phiGm = gmPhi(T, this.opt.err.gmTauSec);
     for (let i = 0; i < 3; i++) this.nav[NAV_GM + i] *= phiGm;
     this.sumDt = 0;
     this.sumC.fill(0);
     this.sumF.fill(0);
+    if (this.tm) this.tm.propagateMs += performance.now() - t0;
   }
 
   /** Scalar update of the accumulated correction dx with innovation ν (w.r.t. the predicted nominal) and row h. */
@@ -436,6 +495,14 @@ export class InsSmoother {
 
   private processEpoch(k: number): void {
     this.propagate();
+    if (!this.tm) return this.updateEpoch(k);
+    const t0 = performance.now();
+    this.updateEpoch(k);
+    this.tm.updateMs += performance.now() - t0;
+  }
+
+  /** The epoch's updates after the covariance has been propagated to it. */
+  private updateEpoch(k: number): void {
     const ep = this.ep;
     const opt = this.opt;
     const P = this.P;
@@ -498,6 +565,7 @@ export class InsSmoother {
     }
     this.PhiAcc.fill(0);
     for (let i = 0; i < NE; i++) this.PhiAcc[i * NE + i] = 1;
+    this.phiAccIdentity = true;
     const dx = this.dx;
     dx.fill(0);
     if (pass) {
@@ -602,7 +670,22 @@ export class InsSmoother {
   }
 
   /** Backward RTS over every chain of covered epochs, then the per-epoch products. */
+  /** Hand the history to the next pass; this engine keeps its products but can no longer smooth. */
+  releaseHistory(): InsHistory {
+    const h = this.history;
+    if (!h) throw new Error('InsSmoother: history already released');
+    this.history = null;
+    return h;
+  }
+
   smooth(): void {
+    if (!this.history) throw new Error('InsSmoother: history released');
+    const t0 = this.tm ? performance.now() : 0;
+    this.smoothChains();
+    if (this.tm) this.tm.smoothMs += performance.now() - t0;
+  }
+
+  private smoothChains(): void {
     const N = this.ep.N;
     const pr = this.products;
     const Pf = new Float64Array(NE * NE);
