@@ -56,12 +56,15 @@ export class FixSeriesBuilder {
   private h = new GrowF64();
   private ln = new GrowF64();
   private q = new Map<QualityColumn, GrowF64>();
+  /** The quality columns' arrays in the order of `qualityColumns` (add() runs per row). */
+  private qList: GrowF64[] = [];
   private anyHeight = false;
   readonly warnings: InputWarning[] = [];
   readonly meta: Record<string, string | number | boolean> = {};
 
   constructor(readonly file: string, readonly qualityColumns: readonly QualityColumn[] = []) {
     for (const c of qualityColumns) this.q.set(c, new GrowF64());
+    this.qList = [...this.q.values()];
   }
 
   get count(): number {
@@ -80,8 +83,8 @@ export class FixSeriesBuilder {
     this.h.push(heightM);
     if (Number.isFinite(heightM)) this.anyHeight = true;
     this.ln.push(line);
-    let i = 0;
-    for (const g of this.q.values()) g.push(quality ? (quality[i++] ?? NaN) : NaN);
+    const q = this.qList;
+    for (let i = 0; i < q.length; i++) q[i]!.push(quality ? (quality[i] ?? NaN) : NaN);
   }
 
   /**
@@ -123,7 +126,10 @@ export class FixSeriesBuilder {
       this.warn('duplicate-time', `${dupLines.length} row(s) repeat an earlier time and were dropped (kept the first); lines ${shown}`, dupLines[0]);
     }
     const n = keep.length;
+    // in order and no duplicates (the usual log): every row kept where it is
+    const identity = ordered && n === n0;
     const pick = (src: Float64Array) => {
+      if (identity) return src.slice(0, n);
       const out = new Float64Array(n);
       for (let j = 0; j < n; j++) out[j] = src[keep[j]!]!;
       return out;
@@ -131,7 +137,8 @@ export class FixSeriesBuilder {
     const quality: Partial<Record<QualityColumn, Float64Array>> = {};
     for (const [k, g] of this.q) quality[k] = pick(g.a);
     const line = new Uint32Array(n);
-    for (let j = 0; j < n; j++) line[j] = this.ln.a[keep[j]!]!;
+    if (identity) line.set(this.ln.a.subarray(0, n));
+    else for (let j = 0; j < n; j++) line[j] = this.ln.a[keep[j]!]!;
     return {
       file: this.file,
       n,
