@@ -212,7 +212,7 @@ export function plainRowReader(
   index: Record<ColumnRole, number>,
   quality: readonly QualityColumn[],
   ctx: PlainContext,
-): ((raw: string, line: number) => boolean) | null {
+): ((text: string, start: number, end: number, line: number) => boolean) | null {
   // role of each field: 0 unused, 1 time, 2 lat, 3 lon, 4 height, 5 + i quality column i
   const used = [index.time, index.lat, index.lon, index.height, ...quality.map((q) => index[q as ColumnRole])];
   // no time column (GPS week + TOW) or one column in two roles: the general path reads every row
@@ -252,15 +252,33 @@ export function plainRowReader(
     return t;
   };
 
-  return (s: string, line: number): boolean => {
-    if (s.indexOf('"') >= 0) return false;
+  // the next quote and the next comma at or after the place being read (rows come in text order,
+  // so each is one scan of the text in all, however long a stretch without them); NONE for none
+  let text = '';
+  let quote = -1;
+  let comma = -1;
+  const NONE = Infinity;
+  return (s: string, lineStart: number, lineEnd: number, line: number): boolean => {
+    if (s !== text) {
+      text = s;
+      quote = comma = -1;
+    }
+    if (quote < lineStart) {
+      quote = s.indexOf('"', lineStart);
+      if (quote < 0) quote = NONE;
+    }
+    if (quote < lineEnd) return false;
     let t = NaN, lat = NaN, lon = NaN, h = NaN;
-    let start = 0;
-    const n = s.length;
+    let start = lineStart;
+    const n = lineEnd;
     for (let f = 0; f < nFields; f++) {
       if (start > n) return false; // fewer fields than the header
-      let end = s.indexOf(',', start);
-      if (end < 0) end = n;
+      if (comma < start) {
+        comma = s.indexOf(',', start);
+        if (comma < 0) comma = NONE;
+      }
+      let end = comma;
+      if (end > n) end = n;
       else if (f === nFields - 1) return false; // more fields than the header
       const r = role[f]!;
       if (r === 1) {
@@ -292,6 +310,56 @@ export function plainRowReader(
   };
 }
 
+/**
+ * The lines of a text as offsets, split as `text.split(/\r\n|\n|\r/)` splits it (the last line
+ * empty when the text ends with a line break), without making a string per line: the plain-row
+ * path reads straight from the text, and only the other rows are cut out (`at`).
+ */
+export class Lines {
+  readonly start: number[] = [];
+  readonly end: number[] = [];
+  length = 0;
+
+  constructor(private readonly text: string) {
+    const s = text;
+    let pos = 0;
+    let lf = s.indexOf('\n');
+    let cr = s.indexOf('\r');
+    for (;;) {
+      let b: number, len: number;
+      if (cr >= 0 && (lf < 0 || cr < lf)) {
+        b = cr;
+        len = s.charCodeAt(cr + 1) === 10 ? 2 : 1; // "\r\n" or a lone "\r"
+      } else if (lf >= 0) {
+        b = lf;
+        len = 1;
+      } else break;
+      this.start.push(pos);
+      this.end.push(b);
+      pos = b + len;
+      if (lf >= 0 && lf < pos) lf = s.indexOf('\n', pos);
+      if (cr >= 0 && cr < pos) cr = s.indexOf('\r', pos);
+    }
+    this.start.push(pos);
+    this.end.push(s.length);
+    this.length = this.start.length;
+  }
+
+  at(j: number): string {
+    return this.text.slice(this.start[j]!, this.end[j]!);
+  }
+
+  isEmpty(j: number): boolean {
+    return this.start[j] === this.end[j];
+  }
+
+  pop(): void {
+    this.start.pop();
+    this.end.pop();
+    this.length--;
+  }
+}
+
 export interface CsvReadOptions {
   /**
    * Read plain rows by the fast path (plainRowReader); default true. Off, every row takes the general
@@ -303,26 +371,26 @@ export interface CsvReadOptions {
 export function readFixCsv(text: string, file: string, cfg: HindcastConfig, opt: CsvReadOptions = {}): FixSeries {
   const body = text.replace(/^\uFEFF/, '');
   if (body.trim() === '') throw new InputError({ file, line: 1 }, 'empty file');
-  const lines = body.split(/\r\n|\n|\r/);
-  // a final line break leaves an empty last element: the last real line was terminated
-  const lastTerminated = lines.length > 1 && lines[lines.length - 1] === '';
+  const lines = new Lines(body);
+  // a final line break leaves an empty last line: the last real line was terminated
+  const lastTerminated = lines.length > 1 && lines.isEmpty(lines.length - 1);
   if (lastTerminated) lines.pop();
   let li = 0;
   let delimiter = cfg.input.delimiter;
   const isSkippable = (l: string) => l.trim() === '' || l.trimStart().startsWith('#');
-  while (li < lines.length && isSkippable(lines[li]!)) li++;
-  const sep = li < lines.length ? /^\s*"?sep=(.)"?\s*$/i.exec(lines[li]!) : null;
+  while (li < lines.length && isSkippable(lines.at(li))) li++;
+  const sep = li < lines.length ? /^\s*"?sep=(.)"?\s*$/i.exec(lines.at(li)) : null;
   if (sep) {
     delimiter ??= sep[1] === 't' ? '\t' : sep[1]!;
     li++;
-    while (li < lines.length && isSkippable(lines[li]!)) li++;
+    while (li < lines.length && isSkippable(lines.at(li))) li++;
   }
   if (li >= lines.length) throw new InputError({ file, line: 1 }, 'no header row: the file holds only blank or comment lines');
   const headerLineNo = li + 1;
-  const headerLine = lines[li]!;
+  const headerLine = lines.at(li);
   if (!delimiter) {
     const sample: string[] = [];
-    for (let j = li + 1; j < lines.length && sample.length < 20; j++) if (!isSkippable(lines[j]!)) sample.push(lines[j]!);
+    for (let j = li + 1; j < lines.length && sample.length < 20; j++) if (!isSkippable(lines.at(j))) sample.push(lines.at(j));
     delimiter = detectDelimiter(headerLine, sample);
   }
   const decimalComma = delimiter !== ',';
@@ -339,7 +407,7 @@ export function readFixCsv(text: string, file: string, cfg: HindcastConfig, opt:
       `no ${missing.join(', ')} column in the header (${header.slice(0, 20).map((h) => h.slice(0, 40)).join(', ')}); name it in input.columns of a --config file`,
     );
   const qualityPresent = QUALITY_ROLES.filter((r) => index[r] >= 0);
-  const b = new FixSeriesBuilder(file, qualityPresent);
+  const b = new FixSeriesBuilder(file, qualityPresent, lines.length - li);
   const w = new RowWarnings(b);
   b.meta.format = 'csv';
   b.meta.delimiter = delimiter === '\t' ? 'tab' : delimiter;
@@ -363,13 +431,14 @@ export function readFixCsv(text: string, file: string, cfg: HindcastConfig, opt:
       ? plainRowReader(b, header.length, index, qualityPresent, { rad, unitMs: unit === 'ms' })
       : null;
   for (let j = li + 1; j < lines.length; j++) {
-    const raw = lines[j]!;
+    const start = lines.start[j]!, end = lines.end[j]!;
     // a row starting with a digit or "-" is neither blank nor a comment
-    const c0 = raw.charCodeAt(0);
-    if (!((c0 >= 48 && c0 <= 57) || c0 === 45) && isSkippable(raw)) continue;
+    const c0 = start < end ? body.charCodeAt(start) : -1;
+    if (!((c0 >= 48 && c0 <= 57) || c0 === 45) && isSkippable(lines.at(j))) continue;
     const line = j + 1;
     rows++;
-    if (plain !== null && plain(raw, line)) continue;
+    if (plain !== null && plain(body, start, end, line)) continue;
+    const raw = lines.at(j);
     const { fields: rec, unclosedQuote } = splitCsvLine(raw, delimiter);
     const isLast = j === lines.length - 1;
     if (isLast && !lastTerminated && rec.length < header.length) {

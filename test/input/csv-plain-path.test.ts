@@ -11,7 +11,7 @@ import { join } from 'node:path';
 import { describe, expect, test } from 'vitest';
 import fc from 'fast-check';
 import { configSchema, type HindcastConfig } from '../../src/config/schema.js';
-import { plainRowReader, readFixCsv } from '../../src/input/csv-fixes.js';
+import { Lines, plainRowReader, readFixCsv } from '../../src/input/csv-fixes.js';
 import { decodeLogBytes } from '../../src/input/decode-text.js';
 import { FixSeriesBuilder, type FixSeries } from '../../src/input/fix-series.js';
 import { matchColumns } from '../../src/input/columns.js';
@@ -160,12 +160,30 @@ describe('fast path = general path', () => {
   });
 });
 
+describe('Lines = String.prototype.split(/\\r\\n|\\n|\\r/)', () => {
+  test.each(['', 'a', 'a\n', '\n', '\n\n', 'a\r\nb', 'a\rb\n', 'a\n\rb', 'a\r\r\nb\r', '\r\n\r\n', 'x,y\r\n1,2\n3,4\r5,6'])('%j', (text) => {
+    const l = new Lines(text);
+    expect(Array.from({ length: l.length }, (_, j) => l.at(j))).toEqual(text.split(/\r\n|\n|\r/));
+  });
+  test('random texts (fast-check, seeded)', () => {
+    fc.assert(
+      fc.property(fc.array(fc.constantFrom('a', ',', '\r', '\n', '"'), { maxLength: 40 }), (cs) => {
+        const text = cs.join('');
+        const l = new Lines(text);
+        expect(Array.from({ length: l.length }, (_, j) => l.at(j))).toEqual(text.split(/\r\n|\n|\r/));
+      }),
+      { seed: 8102, numRuns: 2000 },
+    );
+  });
+});
+
 describe('plain rows take the fast path', () => {
   const header = ['time', 'lat', 'lon', 'height', 'hdop', 'sats'];
   const reader = () => {
     const b = new FixSeriesBuilder('f.csv', ['hdop', 'sats']);
     const { index } = matchColumns(header);
-    return { b, read: plainRowReader(b, header.length, index, ['hdop', 'sats'], { rad: false, unitMs: false })! };
+    const r = plainRowReader(b, header.length, index, ['hdop', 'sats'], { rad: false, unitMs: false })!;
+    return { b, read: (row: string, line: number) => r(row, 0, row.length, line) };
   };
   test('rows as the benchmark and the simulator write them are read without the general path', () => {
     const { b, read } = reader();
