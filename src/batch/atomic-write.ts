@@ -28,8 +28,11 @@ export async function writeFileAtomic(path: string, content: string | Uint8Array
   }
 }
 
-/** Stream chunks to a temporary file, then rename into place. */
-export async function writeChunksAtomic(path: string, chunks: Iterable<string>): Promise<void> {
+/**
+ * Stream chunks to a temporary file, then rename into place. A chunk is handed to the stream and
+ * not touched again (the output writers give each chunk its own buffer).
+ */
+export async function writeChunksAtomic(path: string, chunks: Iterable<string | Uint8Array>): Promise<void> {
   await mkdir(dirname(path), { recursive: true });
   const tmp = tempPath(path);
   const ws = createWriteStream(tmp);

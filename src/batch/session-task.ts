@@ -16,12 +16,12 @@ import { processSession } from '../session/process-session.js';
 import { processImuSession } from '../session/imu-session.js';
 import type { SessionResult } from '../session/result.js';
 import { trackCsvChunks } from '../output/track-csv.js';
-import { outliersCsv } from '../output/outliers-csv.js';
-import { geoJsonOptions, sessionGeoJsonText } from '../output/geojson.js';
-import { sessionGpx } from '../output/gpx.js';
+import { outliersCsvChunks } from '../output/outliers-csv.js';
+import { geoJsonOptions, sessionGeoJsonChunks } from '../output/geojson.js';
+import { sessionGpxChunks } from '../output/gpx.js';
 import { reportPayload } from '../output/report/payload.js';
 import { okEntry, type SessionSummary } from '../output/summary.js';
-import { writeChunksAtomic, writeFileAtomic } from './atomic-write.js';
+import { writeChunksAtomic } from './atomic-write.js';
 import type { OutputFile } from './manifest.js';
 
 export interface SessionTask {
@@ -68,16 +68,19 @@ export function outputPaths(out: string, name: string): SessionFiles {
   return { track: abs(n.track), outliers: abs(n.outliers), geojson: abs(n.geojson), gpx: abs(n.gpx) };
 }
 
-/** Write the outputs of one session (each atomically); returns them relative to `out` with sizes. */
+/**
+ * Write the outputs of one session (each atomically, streamed in chunks of about a megabyte so no
+ * output is held whole in memory); returns them relative to `out` with sizes.
+ */
 export async function writeSessionOutputs(out: string, r: SessionResult, cfg: HindcastConfig): Promise<OutputFile[]> {
   const n = outputNames(r.name);
   const p = outputPaths(out, r.name);
   await writeChunksAtomic(p.track, trackCsvChunks(r));
-  await writeFileAtomic(p.outliers, outliersCsv(r));
-  await writeFileAtomic(p.geojson, sessionGeoJsonText(r, geoJsonOptions(cfg)));
+  await writeChunksAtomic(p.outliers, outliersCsvChunks(r));
+  await writeChunksAtomic(p.geojson, sessionGeoJsonChunks(r, geoJsonOptions(cfg)));
   const written: Array<keyof SessionFiles> = ['track', 'outliers', 'geojson'];
   if (cfg.output.gpx) {
-    await writeFileAtomic(p.gpx, sessionGpx(r, { decimals: cfg.output.geojsonDecimals }));
+    await writeChunksAtomic(p.gpx, sessionGpxChunks(r, { decimals: cfg.output.geojsonDecimals }));
     written.push('gpx');
   } else await rm(p.gpx, { force: true }); // from an earlier run with output.gpx
   const files: OutputFile[] = [];

@@ -148,29 +148,249 @@ export function parseCsvNumber(text: string | undefined, decimalComma: boolean):
 
 const DEG_PER_RAD = 180 / Math.PI;
 
-export function readFixCsv(text: string, file: string, cfg: HindcastConfig): FixSeries {
+/** Returned by plainNumber for a field that is not a plain decimal (no plain number is −∞). */
+const NOT_PLAIN = -Infinity;
+/** 10^k, exact for k ≤ 22. */
+const POW10 = Array.from({ length: 23 }, (_, k) => 10 ** k);
+const TWO_53 = 2 ** 53;
+
+/**
+ * A plain decimal `-?d*(.d*)?` with at least one digit between `start` and `end` of `s`, converted
+ * as Number() does; NaN for an empty field; NOT_PLAIN for anything else (sign "+", exponent,
+ * blanks, decimal comma, more than 2^53 in its digits or more than 22 decimals: the general path
+ * reads those). The digits as an integer m < 2^53 and 10^k are exact doubles, so m / 10^k is the
+ * correctly rounded value of the decimal, which is what Number() returns (Clinger, "How to read
+ * floating point numbers accurately", PLDI 1990, the fast path; ECMA-262 §7.1.4.1.1).
+ */
+function plainNumber(s: string, start: number, end: number): number {
+  if (start === end) return NaN;
+  let i = start;
+  const neg = s.charCodeAt(i) === 45;
+  if (neg) i++;
+  let m = 0;
+  let digits = 0;
+  let k = -1;
+  for (; i < end; i++) {
+    const c = s.charCodeAt(i) - 48;
+    if (c >= 0 && c <= 9) {
+      m = m * 10 + c;
+      digits++;
+      if (k >= 0) k++;
+    } else if (c === -2 && k < 0) k = 0; // "."
+    else return NOT_PLAIN;
+  }
+  if (digits === 0 || m > TWO_53 || k > 22) return NOT_PLAIN;
+  const v = k > 0 ? m / POW10[k]! : m;
+  return neg ? -v : v;
+}
+
+const d2 = (s: string, i: number): number => {
+  const a = s.charCodeAt(i) - 48, b = s.charCodeAt(i + 1) - 48;
+  return a >= 0 && a <= 9 && b >= 0 && b <= 9 ? a * 10 + b : -1;
+};
+
+interface PlainContext {
+  rad: boolean;
+  /** input.timeUnit is "ms" (numeric times then take the general path). */
+  unitMs: boolean;
+}
+
+/**
+ * The fast path for plain rows of a comma-delimited file: no quotes, exactly the header's number of
+ * fields, times as "YYYY-MM-DDTHH:MM:SS(.f+)Z" or plain Unix seconds, numbers plain decimals, every
+ * value in range (nothing to warn about). Such a row is read straight from the line, without field
+ * strings or regular expressions, into exactly what the general path would give (the same
+ * conversions: Date.UTC for the day, cached per day; the fraction of a second as parseFloat gives
+ * it, added to the whole seconds; the number rule above). Any other row, and any row the general
+ * path would warn about, returns false and is read by the general path in its place, so warnings,
+ * their lines and their order are unchanged. Tested against the general path in
+ * test/input/csv-plain-path.test.ts.
+ */
+export function plainRowReader(
+  b: FixSeriesBuilder,
+  nFields: number,
+  index: Record<ColumnRole, number>,
+  quality: readonly QualityColumn[],
+  ctx: PlainContext,
+): ((text: string, start: number, end: number, line: number) => boolean) | null {
+  // role of each field: 0 unused, 1 time, 2 lat, 3 lon, 4 height, 5 + i quality column i
+  const used = [index.time, index.lat, index.lon, index.height, ...quality.map((q) => index[q as ColumnRole])];
+  // no time column (GPS week + TOW) or one column in two roles: the general path reads every row
+  if (index.time < 0 || new Set(used.filter((c) => c >= 0)).size !== used.filter((c) => c >= 0).length) return null;
+  const role = new Int8Array(nFields);
+  role[index.time] = 1;
+  role[index.lat] = 2;
+  role[index.lon] = 3;
+  if (index.height >= 0) role[index.height] = 4;
+  quality.forEach((q, i) => (role[index[q as ColumnRole]] = 5 + i));
+  const qv = new Float64Array(quality.length);
+  const [hMin, hMax] = HEIGHT_RANGE_M;
+  let dayKey = NaN;
+  let daySec = NaN;
+
+  /** UTC Unix seconds of an ISO "…Z" time as parseIsoToUnix gives them; NaN when not plain or not valid. */
+  const isoZ = (s: string, i: number, end: number): number => {
+    if (end - i < 20 || s.charCodeAt(end - 1) !== 90) return NaN; // "Z"
+    if (s.charCodeAt(i + 4) !== 45 || s.charCodeAt(i + 7) !== 45 || s.charCodeAt(i + 10) !== 84 || s.charCodeAt(i + 13) !== 58 || s.charCodeAt(i + 16) !== 58) return NaN;
+    const y1 = d2(s, i), y2 = d2(s, i + 2), mo = d2(s, i + 5), d = d2(s, i + 8), h = d2(s, i + 11), mi = d2(s, i + 14), sec = d2(s, i + 17);
+    if (y1 < 0 || y2 < 0 || mo < 1 || mo > 12 || d < 1 || d > 31 || h < 0 || h > 23 || mi < 0 || mi > 59 || sec < 0 || sec > 59) return NaN;
+    const key = (y1 * 100 + y2) * 10000 + mo * 100 + d;
+    if (key !== dayKey) {
+      const t = Date.UTC(y1 * 100 + y2, mo - 1, d) / 1000;
+      // Date.UTC rolls an invalid day over (Feb 30): refused as parseIsoToUnix refuses it
+      if (new Date(t * 1000).getUTCDate() !== d) return NaN;
+      dayKey = key;
+      daySec = t;
+    }
+    let t = daySec + h * 3600 + mi * 60 + sec;
+    if (end - i > 20) {
+      if (s.charCodeAt(i + 19) !== 46) return NaN; // "."
+      const f = plainNumber(s, i + 19, end - 1);
+      if (!(f >= 0)) return NaN; // no digit after the point, or too many
+      t += f;
+    } else if (end - i !== 20) return NaN;
+    return t;
+  };
+
+  // the next quote and the next comma at or after the place being read (rows come in text order,
+  // so each is one scan of the text in all, however long a stretch without them); NONE for none
+  let text = '';
+  let quote = -1;
+  let comma = -1;
+  const NONE = Infinity;
+  return (s: string, lineStart: number, lineEnd: number, line: number): boolean => {
+    if (s !== text) {
+      text = s;
+      quote = comma = -1;
+    }
+    if (quote < lineStart) {
+      quote = s.indexOf('"', lineStart);
+      if (quote < 0) quote = NONE;
+    }
+    if (quote < lineEnd) return false;
+    let t = NaN, lat = NaN, lon = NaN, h = NaN;
+    let start = lineStart;
+    const n = lineEnd;
+    for (let f = 0; f < nFields; f++) {
+      if (start > n) return false; // fewer fields than the header
+      if (comma < start) {
+        comma = s.indexOf(',', start);
+        if (comma < 0) comma = NONE;
+      }
+      let end = comma;
+      if (end > n) end = n;
+      else if (f === nFields - 1) return false; // more fields than the header
+      const r = role[f]!;
+      if (r === 1) {
+        if (end - start >= 20 && s.charCodeAt(start + 4) === 45) t = isoZ(s, start, end);
+        else if (!ctx.unitMs && s.charCodeAt(start) !== 45) {
+          t = plainNumber(s, start, end);
+        }
+        // not plain, not valid, or out of range; also Unix milliseconds (> 1e11), noted by the general path
+        if (!(Math.abs(t) <= 1e11)) return false;
+      } else if (r !== 0) {
+        const v = plainNumber(s, start, end);
+        if (v === NOT_PLAIN) return false;
+        if (r === 2) lat = v;
+        else if (r === 3) lon = v;
+        else if (r === 4) h = v;
+        else qv[r - 5] = v >= 0 ? v : NaN;
+      }
+      start = end + 1;
+    }
+    if (start <= n) return false; // a delimiter after the last field
+    if (ctx.rad) {
+      lat *= DEG_PER_RAD;
+      lon *= DEG_PER_RAD;
+    }
+    if (!(Math.abs(lat) <= 90 && Math.abs(lon) <= 180)) return false;
+    if (h < hMin || h > hMax) return false;
+    b.add(t, lat, lon, h, line, qv);
+    return true;
+  };
+}
+
+/**
+ * The lines of a text as offsets, split as `text.split(/\r\n|\n|\r/)` splits it (the last line
+ * empty when the text ends with a line break), without making a string per line: the plain-row
+ * path reads straight from the text, and only the other rows are cut out (`at`).
+ */
+export class Lines {
+  readonly start: number[] = [];
+  readonly end: number[] = [];
+  length = 0;
+
+  constructor(private readonly text: string) {
+    const s = text;
+    let pos = 0;
+    let lf = s.indexOf('\n');
+    let cr = s.indexOf('\r');
+    for (;;) {
+      let b: number, len: number;
+      if (cr >= 0 && (lf < 0 || cr < lf)) {
+        b = cr;
+        len = s.charCodeAt(cr + 1) === 10 ? 2 : 1; // "\r\n" or a lone "\r"
+      } else if (lf >= 0) {
+        b = lf;
+        len = 1;
+      } else break;
+      this.start.push(pos);
+      this.end.push(b);
+      pos = b + len;
+      if (lf >= 0 && lf < pos) lf = s.indexOf('\n', pos);
+      if (cr >= 0 && cr < pos) cr = s.indexOf('\r', pos);
+    }
+    this.start.push(pos);
+    this.end.push(s.length);
+    this.length = this.start.length;
+  }
+
+  at(j: number): string {
+    return this.text.slice(this.start[j]!, this.end[j]!);
+  }
+
+  isEmpty(j: number): boolean {
+    return this.start[j] === this.end[j];
+  }
+
+  pop(): void {
+    this.start.pop();
+    this.end.pop();
+    this.length--;
+  }
+}
+
+export interface CsvReadOptions {
+  /**
+   * Read plain rows by the fast path (plainRowReader); default true. Off, every row takes the general
+   * path: the result is the same (test/input/csv-plain-path.test.ts), only slower.
+   */
+  plainRows?: boolean;
+}
+
+export function readFixCsv(text: string, file: string, cfg: HindcastConfig, opt: CsvReadOptions = {}): FixSeries {
   const body = text.replace(/^\uFEFF/, '');
   if (body.trim() === '') throw new InputError({ file, line: 1 }, 'empty file');
-  const lines = body.split(/\r\n|\n|\r/);
-  // a final line break leaves an empty last element: the last real line was terminated
-  const lastTerminated = lines.length > 1 && lines[lines.length - 1] === '';
+  const lines = new Lines(body);
+  // a final line break leaves an empty last line: the last real line was terminated
+  const lastTerminated = lines.length > 1 && lines.isEmpty(lines.length - 1);
   if (lastTerminated) lines.pop();
   let li = 0;
   let delimiter = cfg.input.delimiter;
   const isSkippable = (l: string) => l.trim() === '' || l.trimStart().startsWith('#');
-  while (li < lines.length && isSkippable(lines[li]!)) li++;
-  const sep = li < lines.length ? /^\s*"?sep=(.)"?\s*$/i.exec(lines[li]!) : null;
+  while (li < lines.length && isSkippable(lines.at(li))) li++;
+  const sep = li < lines.length ? /^\s*"?sep=(.)"?\s*$/i.exec(lines.at(li)) : null;
   if (sep) {
     delimiter ??= sep[1] === 't' ? '\t' : sep[1]!;
     li++;
-    while (li < lines.length && isSkippable(lines[li]!)) li++;
+    while (li < lines.length && isSkippable(lines.at(li))) li++;
   }
   if (li >= lines.length) throw new InputError({ file, line: 1 }, 'no header row: the file holds only blank or comment lines');
   const headerLineNo = li + 1;
-  const headerLine = lines[li]!;
+  const headerLine = lines.at(li);
   if (!delimiter) {
     const sample: string[] = [];
-    for (let j = li + 1; j < lines.length && sample.length < 20; j++) if (!isSkippable(lines[j]!)) sample.push(lines[j]!);
+    for (let j = li + 1; j < lines.length && sample.length < 20; j++) if (!isSkippable(lines.at(j))) sample.push(lines.at(j));
     delimiter = detectDelimiter(headerLine, sample);
   }
   const decimalComma = delimiter !== ',';
@@ -187,7 +407,7 @@ export function readFixCsv(text: string, file: string, cfg: HindcastConfig): Fix
       `no ${missing.join(', ')} column in the header (${header.slice(0, 20).map((h) => h.slice(0, 40)).join(', ')}); name it in input.columns of a --config file`,
     );
   const qualityPresent = QUALITY_ROLES.filter((r) => index[r] >= 0);
-  const b = new FixSeriesBuilder(file, qualityPresent);
+  const b = new FixSeriesBuilder(file, qualityPresent, lines.length - li);
   const w = new RowWarnings(b);
   b.meta.format = 'csv';
   b.meta.delimiter = delimiter === '\t' ? 'tab' : delimiter;
@@ -206,11 +426,19 @@ export function readFixCsv(text: string, file: string, cfg: HindcastConfig): Fix
   let msNoted = false;
   let rows = 0;
   const need = Math.max(index.time, index.lat, index.lon, hasWeekTow ? Math.max(index.gpsWeek, index.tow) : -1) + 1;
+  const plain =
+    opt.plainRows !== false && delimiter === ','
+      ? plainRowReader(b, header.length, index, qualityPresent, { rad, unitMs: unit === 'ms' })
+      : null;
   for (let j = li + 1; j < lines.length; j++) {
-    const raw = lines[j]!;
-    if (isSkippable(raw)) continue;
+    const start = lines.start[j]!, end = lines.end[j]!;
+    // a row starting with a digit or "-" is neither blank nor a comment
+    const c0 = start < end ? body.charCodeAt(start) : -1;
+    if (!((c0 >= 48 && c0 <= 57) || c0 === 45) && isSkippable(lines.at(j))) continue;
     const line = j + 1;
     rows++;
+    if (plain !== null && plain(body, start, end, line)) continue;
+    const raw = lines.at(j);
     const { fields: rec, unclosedQuote } = splitCsvLine(raw, delimiter);
     const isLast = j === lines.length - 1;
     if (isLast && !lastTerminated && rec.length < header.length) {

@@ -50,18 +50,28 @@ class GrowF64 {
 
 /** Accumulates fixes row by row; finish() sorts by time and drops duplicate times (keep first). */
 export class FixSeriesBuilder {
-  private t = new GrowF64();
-  private lat = new GrowF64();
-  private lon = new GrowF64();
-  private h = new GrowF64();
-  private ln = new GrowF64();
+  private t: GrowF64;
+  private lat: GrowF64;
+  private lon: GrowF64;
+  private h: GrowF64;
+  private ln: GrowF64;
   private q = new Map<QualityColumn, GrowF64>();
+  /** The quality columns' arrays in the order of `qualityColumns` (add() runs per row). */
+  private qList: GrowF64[] = [];
   private anyHeight = false;
   readonly warnings: InputWarning[] = [];
   readonly meta: Record<string, string | number | boolean> = {};
 
-  constructor(readonly file: string, readonly qualityColumns: readonly QualityColumn[] = []) {
-    for (const c of qualityColumns) this.q.set(c, new GrowF64());
+  /** `capacity`: the rows expected (an upper bound spares the arrays' regrowth; any number works). */
+  constructor(readonly file: string, readonly qualityColumns: readonly QualityColumn[] = [], capacity = 1024) {
+    const cap = Math.max(16, Math.min(capacity, 1 << 28));
+    this.t = new GrowF64(cap);
+    this.lat = new GrowF64(cap);
+    this.lon = new GrowF64(cap);
+    this.h = new GrowF64(cap);
+    this.ln = new GrowF64(cap);
+    for (const c of qualityColumns) this.q.set(c, new GrowF64(cap));
+    this.qList = [...this.q.values()];
   }
 
   get count(): number {
@@ -80,8 +90,8 @@ export class FixSeriesBuilder {
     this.h.push(heightM);
     if (Number.isFinite(heightM)) this.anyHeight = true;
     this.ln.push(line);
-    let i = 0;
-    for (const g of this.q.values()) g.push(quality ? (quality[i++] ?? NaN) : NaN);
+    const q = this.qList;
+    for (let i = 0; i < q.length; i++) q[i]!.push(quality ? (quality[i] ?? NaN) : NaN);
   }
 
   /**
@@ -92,11 +102,16 @@ export class FixSeriesBuilder {
     const n0 = this.t.n;
     const t = this.t.a;
     let ordered = true;
-    for (let i = 1; i < n0; i++)
+    let repeats = false;
+    for (let i = 1; i < n0; i++) {
       if (t[i]! < t[i - 1]!) {
         ordered = false;
         break;
       }
+      if (t[i] === t[i - 1]) repeats = true;
+    }
+    // in order and no repeated time (the usual log): every row is kept where it is
+    if (ordered && !repeats) return this.series(n0, null);
     let idx: Uint32Array = new Uint32Array(n0);
     for (let i = 0; i < n0; i++) idx[i] = i;
     if (!ordered) {
@@ -122,8 +137,13 @@ export class FixSeriesBuilder {
       const shown = dupLines.slice(0, 10).join(', ') + (dupLines.length > 10 ? ', …' : '');
       this.warn('duplicate-time', `${dupLines.length} row(s) repeat an earlier time and were dropped (kept the first); lines ${shown}`, dupLines[0]);
     }
-    const n = keep.length;
+    return this.series(keep.length, keep);
+  }
+
+  /** The series of the rows `keep` (in that order), or of the first n rows as they are (keep null). */
+  private series(n: number, keep: number[] | null): FixSeries {
     const pick = (src: Float64Array) => {
+      if (keep === null) return src.slice(0, n);
       const out = new Float64Array(n);
       for (let j = 0; j < n; j++) out[j] = src[keep[j]!]!;
       return out;
@@ -131,11 +151,12 @@ export class FixSeriesBuilder {
     const quality: Partial<Record<QualityColumn, Float64Array>> = {};
     for (const [k, g] of this.q) quality[k] = pick(g.a);
     const line = new Uint32Array(n);
-    for (let j = 0; j < n; j++) line[j] = this.ln.a[keep[j]!]!;
+    if (keep === null) line.set(this.ln.a.subarray(0, n));
+    else for (let j = 0; j < n; j++) line[j] = this.ln.a[keep[j]!]!;
     return {
       file: this.file,
       n,
-      tSec: pick(t),
+      tSec: pick(this.t.a),
       latDeg: pick(this.lat.a),
       lonDeg: pick(this.lon.a),
       heightM: this.anyHeight ? pick(this.h.a) : null,

@@ -10,6 +10,7 @@
 import type { HindcastConfig } from '../config/schema.js';
 import { formatIsoUtc } from '../time/parse-time.js';
 import { STATUS, STATUS_NAMES, type SessionResult } from '../session/result.js';
+import { ByteChunks, chunksToString, POW10, utf8 } from './byte-chunks.js';
 
 type Position = number[];
 
@@ -17,7 +18,7 @@ type Position = number[];
 const METRE_DECIMALS = 3;
 
 function round(v: number, d: number): number {
-  const f = 10 ** d;
+  const f = POW10[d]!;
   return Math.round(v * f) / f;
 }
 
@@ -66,9 +67,14 @@ export function cutAtAntimeridian(line: Position[], decimals = 12): Position[][]
  * the antimeridian (RFC 7946 §5.2).
  */
 export function longitudeExtent(lons: ArrayLike<number>): [number, number] | null {
-  const a = Float64Array.from(lons).filter((v) => Number.isFinite(v));
-  if (a.length === 0) return null;
-  a.sort();
+  const all = new Float64Array(lons.length);
+  let n = 0;
+  for (let i = 0; i < lons.length; i++) {
+    const v = lons[i]!;
+    if (Number.isFinite(v)) all[n++] = v;
+  }
+  if (n === 0) return null;
+  const a = all.subarray(0, n).sort();
   // the gap across the antimeridian, from the easternmost round to the westernmost
   let gap = a[0]! + 360 - a[a.length - 1]!;
   let west = a[0]!, east = a[a.length - 1]!;
@@ -214,7 +220,201 @@ export function sessionGeoJson(r: SessionResult, opt: GeoJsonOptions): object {
   return fc;
 }
 
+/**
+ * The GeoJSON text of a session as UTF-8 chunks of about a megabyte: the same bytes as
+ * `JSON.stringify(sessionGeoJson(r, opt)) + "\n"` (test/output/geojson.test.ts), without building
+ * the object tree or the string. A first pass finds the bbox (it precedes the features), a second
+ * writes them; a segment that crosses the antimeridian (rare) is cut and stringified as an object.
+ */
+export function* sessionGeoJsonChunks(r: SessionResult, opt: GeoJsonOptions, chunkBytes?: number): Generator<Uint8Array> {
+  const d = opt.decimals;
+  const { N, latDeg, lonDeg, heightM, tSec, segment, status, sdEnu, posEnu } = r;
+  const valid = (lon: number, lat: number) => Math.abs(lat) <= 90 && Math.abs(lon) <= 180;
+  const withHeight = (h: number) => r.hasHeight && Number.isFinite(h);
+  // pass 1: the bbox over the track's positions and the mapped flagged fixes (as sessionGeoJson)
+  const mapped = r.outliers.filter((o) => o.reason !== 'invalid' && valid(o.lonDeg, o.latDeg));
+  const lons = new Float64Array(N + mapped.length);
+  let nLon = 0;
+  let south = Infinity, north = -Infinity, zMin = Infinity, zMax = -Infinity;
+  let threeD = false;
+  const extend = (lon: number, lat: number, h: number) => {
+    lons[nLon++] = round(lon, d);
+    const y = round(lat, d);
+    if (y < south) south = y;
+    if (y > north) north = y;
+    if (withHeight(h)) {
+      threeD = true;
+      const z = round(h, METRE_DECIMALS);
+      if (z < zMin) zMin = z;
+      if (z > zMax) zMax = z;
+    }
+  };
+  for (let j = 0; j < N; j++) if (valid(lonDeg[j]!, latDeg[j]!)) extend(lonDeg[j]!, latDeg[j]!, heightM[j]!);
+  for (const o of mapped) extend(o.lonDeg, o.latDeg, o.heightM);
+  const out = new ByteChunks(chunkBytes);
+  const name = JSON.stringify(r.name);
+  out.ascii('{"type":"FeatureCollection"');
+  const we = longitudeExtent(lons.subarray(0, nLon));
+  if (we) {
+    out.ascii(',"bbox":');
+    out.ascii(JSON.stringify(threeD ? [we[0], south, zMin, we[1], north, zMax] : [we[0], south, we[1], north]));
+  }
+  out.ascii(',"features":[');
+  let first = true;
+  const sep = () => {
+    if (!first) out.byte(44);
+    first = false;
+  };
+  const coordinate = (lon: number, lat: number, h: number) => {
+    out.byte(91);
+    out.rounded(lon, d);
+    out.byte(44);
+    out.rounded(lat, d);
+    if (withHeight(h)) {
+      out.byte(44);
+      out.rounded(h, METRE_DECIMALS);
+    }
+    out.byte(93);
+  };
+  // pass 2: the track segments
+  const nSeg = N > 0 ? segment[N - 1]! + 1 : 0;
+  let j = 0;
+  for (let s = 0; s < nSeg; s++) {
+    const j0 = j;
+    let sumSd = 0, bridged = 0, flagged = 0, lengthM = 0, count = 0;
+    let crosses = false;
+    let lastLon = NaN;
+    while (j < N && segment[j] === s) {
+      if (valid(lonDeg[j]!, latDeg[j]!)) {
+        const x = round(lonDeg[j]!, d);
+        if (count > 0 && Math.abs(x - lastLon) > 180) crosses = true;
+        lastLon = x;
+        count++;
+      }
+      sumSd += Math.hypot(sdEnu[0][j]!, sdEnu[1][j]!);
+      if (status[j] === STATUS.bridged) bridged++;
+      if (status[j] === STATUS.outlier || status[j] === STATUS.userRejected) flagged++;
+      if (j > j0) lengthM += Math.hypot(posEnu[0][j]! - posEnu[0][j - 1]!, posEnu[1][j]! - posEnu[1][j - 1]!);
+      j++;
+    }
+    if (count === 0) continue;
+    sep();
+    out.ascii('{"type":"Feature","geometry":');
+    if (crosses) {
+      const line: Position[] = [];
+      for (let k = j0; k < j; k++) {
+        if (!valid(lonDeg[k]!, latDeg[k]!)) continue;
+        const p: Position = [round(lonDeg[k]!, d), round(latDeg[k]!, d)];
+        if (withHeight(heightM[k]!)) p.push(round(heightM[k]!, METRE_DECIMALS));
+        line.push(p);
+      }
+      const parts = cutAtAntimeridian(line, d);
+      out.ascii(JSON.stringify(parts.length === 1 ? { type: 'LineString', coordinates: parts[0] } : { type: 'MultiLineString', coordinates: parts }));
+    } else {
+      out.ascii('{"type":"LineString","coordinates":[');
+      let k1 = -1;
+      for (let k = j0; k < j; k++) {
+        if (!valid(lonDeg[k]!, latDeg[k]!)) continue;
+        if (k1 >= 0) out.byte(44);
+        coordinate(lonDeg[k]!, latDeg[k]!, heightM[k]!);
+        if (out.full) yield out.take();
+        k1 = k;
+      }
+      if (count === 1) {
+        out.byte(44);
+        coordinate(lonDeg[k1]!, latDeg[k1]!, heightM[k1]!);
+      }
+      out.ascii(']}');
+    }
+    out.ascii(',"properties":{"kind":"track-segment","session":');
+    out.text(name);
+    out.ascii(',"segment":');
+    out.int(s + 1);
+    out.ascii(',"start_time":"');
+    out.isoUtc(tSec[j0]!);
+    out.ascii('","end_time":"');
+    out.isoUtc(tSec[j - 1]!);
+    out.ascii('","duration_s":');
+    out.rounded(tSec[j - 1]! - tSec[j0]!, 3);
+    out.ascii(',"length_m":');
+    out.rounded(lengthM, METRE_DECIMALS);
+    out.ascii(',"epochs":');
+    out.int(j - j0);
+    out.ascii(',"bridged_epochs":');
+    out.int(bridged);
+    out.ascii(',"flagged_epochs":');
+    out.int(flagged);
+    out.ascii(',"mean_sd_horizontal_m":');
+    out.rounded(sumSd / Math.max(j - j0, 1), METRE_DECIMALS);
+    out.ascii('}}');
+    if (out.full) yield out.take();
+  }
+  // the flagged fixes
+  const flaggedHead = utf8(`,"properties":{"kind":"flagged-fix","session":${name},"time":"`);
+  for (const o of mapped) {
+    sep();
+    out.ascii('{"type":"Feature","geometry":{"type":"Point","coordinates":');
+    coordinate(o.lonDeg, o.latDeg, o.heightM);
+    out.byte(125);
+    out.bytes(flaggedHead);
+    out.isoUtc(o.tSec);
+    out.ascii('","source_line":');
+    out.int(o.line);
+    out.ascii(',"reason":');
+    out.text(JSON.stringify(o.reason));
+    out.ascii(o.reason === 'user' ? ',"decided_by":"user","statistic":' : ',"decided_by":"hindcast","statistic":');
+    out.rounded(o.statistic, 3);
+    out.ascii(',"threshold":');
+    out.rounded(o.threshold, 3);
+    out.ascii(',"offset_m":');
+    out.rounded(o.offsetM, METRE_DECIMALS);
+    out.ascii(',"offset_up_m":');
+    out.rounded(o.offsetUpM, METRE_DECIMALS);
+    out.ascii(',"detail":');
+    out.text(JSON.stringify(o.detail));
+    out.ascii('}}');
+    if (out.full) yield out.take();
+  }
+  // every epoch as a Point (--points)
+  if (opt.points) {
+    const epochHead = utf8(`,"properties":{"kind":"epoch","session":${name},"time":"`);
+    const statusText = STATUS_NAMES.map((n) => utf8(`","status":${JSON.stringify(n)},"segment":`));
+    for (let k = 0; k < N; k++) {
+      if (!valid(lonDeg[k]!, latDeg[k]!)) continue;
+      sep();
+      out.ascii('{"type":"Feature","geometry":{"type":"Point","coordinates":');
+      coordinate(lonDeg[k]!, latDeg[k]!, heightM[k]!);
+      out.byte(125);
+      out.bytes(epochHead);
+      out.isoUtc(tSec[k]!);
+      out.bytes(statusText[status[k]!]!);
+      out.int(segment[k]! + 1);
+      out.ascii(',"sd_east_m":');
+      out.rounded(sdEnu[0][k]!, METRE_DECIMALS);
+      out.ascii(',"sd_north_m":');
+      out.rounded(sdEnu[1][k]!, METRE_DECIMALS);
+      out.ascii(',"sd_up_m":');
+      if (r.hasHeight) out.rounded(sdEnu[2][k]!, METRE_DECIMALS);
+      else out.ascii('null');
+      out.ascii(',"sd_horizontal_m":');
+      out.rounded(Math.hypot(sdEnu[0][k]!, sdEnu[1][k]!), METRE_DECIMALS);
+      out.ascii(',"ell95_major_m":');
+      out.rounded(r.ell95MajorM[k]!, METRE_DECIMALS);
+      out.ascii(',"ell95_minor_m":');
+      out.rounded(r.ell95MinorM[k]!, METRE_DECIMALS);
+      out.ascii(',"ell95_azimuth_deg":');
+      out.rounded(r.ell95AzimuthDeg[k]!, 1);
+      out.ascii(',"speed_mps":');
+      out.rounded(Math.hypot(r.velEnu[0][k]!, r.velEnu[1][k]!), METRE_DECIMALS);
+      out.ascii('}}');
+      if (out.full) yield out.take();
+    }
+  }
+  out.ascii(']}\n');
+  yield out.take();
+}
+
 /** The GeoJSON text of a session, as written to <stem>.geojson. */
 export function sessionGeoJsonText(r: SessionResult, opt: GeoJsonOptions): string {
-  return JSON.stringify(sessionGeoJson(r, opt)) + '\n';
+  return chunksToString(sessionGeoJsonChunks(r, opt));
 }

@@ -10,6 +10,7 @@ import { CAUTION } from './caution.js';
 import { formatIsoUtc } from '../time/parse-time.js';
 import { STATUS, STATUS_NAMES, type SessionResult } from '../session/result.js';
 import { longitudeExtent } from './geojson.js';
+import { ByteChunks, chunksToString, utf8 } from './byte-chunks.js';
 
 export const GPX_NAMESPACE = 'http://www.topografix.com/GPX/1/1';
 
@@ -27,16 +28,21 @@ export interface GpxOptions {
   creator?: string;
 }
 
-export function sessionGpx(r: SessionResult, opt: GpxOptions = {}): string {
+/** The GPX text as UTF-8 chunks of about a megabyte (byte-chunks.ts). */
+export function* sessionGpxChunks(r: SessionResult, opt: GpxOptions = {}, chunkBytes?: number): Generator<Uint8Array> {
   const d = opt.decimals ?? 7;
-  const out: string[] = [];
-  out.push('<?xml version="1.0" encoding="UTF-8"?>');
-  out.push(`<gpx version="1.1" creator="${xmlText(opt.creator ?? 'hindcast')}" xmlns="${GPX_NAMESPACE}" xmlns:xsi="http://www.w3.org/2001/XMLSchema-instance" xsi:schemaLocation="${GPX_NAMESPACE} ${GPX_NAMESPACE}/gpx.xsd">`);
+  const out = new ByteChunks(chunkBytes);
+  const line = (s: string) => {
+    out.text(s);
+    out.byte(10);
+  };
+  line('<?xml version="1.0" encoding="UTF-8"?>');
+  line(`<gpx version="1.1" creator="${xmlText(opt.creator ?? 'hindcast')}" xmlns="${GPX_NAMESPACE}" xmlns:xsi="http://www.w3.org/2001/XMLSchema-instance" xsi:schemaLocation="${GPX_NAMESPACE} ${GPX_NAMESPACE}/gpx.xsd">`);
   const desc = `Smoothed track of ${r.file}. ${r.hasHeight ? 'ele is the ellipsoidal height above WGS84 (m), not above mean sea level. ' : ''}${CAUTION}`;
-  out.push('<metadata>');
-  out.push(`<name>${xmlText(r.name)}</name>`);
-  out.push(`<desc>${xmlText(desc)}</desc>`);
-  if (r.N > 0) out.push(`<time>${formatIsoUtc(r.tSec[0]!)}</time>`);
+  line('<metadata>');
+  line(`<name>${xmlText(r.name)}</name>`);
+  line(`<desc>${xmlText(desc)}</desc>`);
+  if (r.N > 0) line(`<time>${formatIsoUtc(r.tSec[0]!)}</time>`);
   // bounds: minlon > maxlon when the track crosses the antimeridian (as GeoJSON's bbox)
   let south = Infinity, north = -Infinity;
   for (let j = 0; j < r.N; j++) {
@@ -48,29 +54,45 @@ export function sessionGpx(r: SessionResult, opt: GpxOptions = {}): string {
   }
   const we = longitudeExtent(r.lonDeg);
   if (we && Number.isFinite(south))
-    out.push(`<bounds minlat="${south.toFixed(d)}" minlon="${we[0].toFixed(d)}" maxlat="${north.toFixed(d)}" maxlon="${we[1].toFixed(d)}"/>`);
-  out.push('</metadata>');
-  out.push('<trk>');
-  out.push(`<name>${xmlText(r.name)}</name>`);
-  out.push(`<src>hindcast smoothed track (forward filter and RTS smoother)</src>`);
+    line(`<bounds minlat="${south.toFixed(d)}" minlon="${we[0].toFixed(d)}" maxlat="${north.toFixed(d)}" maxlon="${we[1].toFixed(d)}"/>`);
+  line('</metadata>');
+  line('<trk>');
+  line(`<name>${xmlText(r.name)}</name>`);
+  line(`<src>hindcast smoothed track (forward filter and RTS smoother)</src>`);
+  const types = STATUS_NAMES.map((n) => utf8(`<type>${n}</type>`));
   let seg = -1;
   for (let j = 0; j < r.N; j++) {
     const lat = r.latDeg[j]!, lon = r.lonDeg[j]!;
     if (!(Math.abs(lat) <= 90 && Math.abs(lon) <= 180)) continue;
     if (r.segment[j] !== seg) {
-      if (seg >= 0) out.push('</trkseg>');
-      out.push('<trkseg>');
+      if (seg >= 0) line('</trkseg>');
+      line('<trkseg>');
       seg = r.segment[j]!;
     }
-    let pt = `<trkpt lat="${lat.toFixed(d)}" lon="${lon.toFixed(d)}">`;
-    if (r.hasHeight && Number.isFinite(r.heightM[j]!)) pt += `<ele>${r.heightM[j]!.toFixed(3)}</ele>`;
-    pt += `<time>${formatIsoUtc(r.tSec[j]!)}</time>`;
+    out.ascii('<trkpt lat="');
+    out.fixed(lat, d);
+    out.ascii('" lon="');
+    out.fixed(lon, d);
+    out.ascii('">');
+    if (r.hasHeight && Number.isFinite(r.heightM[j]!)) {
+      out.ascii('<ele>');
+      out.fixed(r.heightM[j]!, 3);
+      out.ascii('</ele>');
+    }
+    out.ascii('<time>');
+    out.isoUtc(r.tSec[j]!);
+    out.ascii('</time>');
     const st = r.status[j]!;
-    if (st !== STATUS.kept) pt += `<type>${STATUS_NAMES[st]}</type>`;
-    out.push(pt + '</trkpt>');
+    if (st !== STATUS.kept) out.bytes(types[st]!);
+    line('</trkpt>');
+    if (out.full) yield out.take();
   }
-  if (seg >= 0) out.push('</trkseg>');
-  out.push('</trk>');
-  out.push('</gpx>');
-  return out.join('\n') + '\n';
+  if (seg >= 0) line('</trkseg>');
+  line('</trk>');
+  line('</gpx>');
+  yield out.take();
+}
+
+export function sessionGpx(r: SessionResult, opt: GpxOptions = {}): string {
+  return chunksToString(sessionGpxChunks(r, opt));
 }

@@ -3,7 +3,8 @@ import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { getIssues } from '@placemarkio/check-geojson';
-import { cutAtAntimeridian, longitudeExtent, sessionGeoJson, sessionGeoJsonText, geoJsonOptions } from '../../src/output/geojson.js';
+import { cutAtAntimeridian, longitudeExtent, sessionGeoJson, sessionGeoJsonChunks, sessionGeoJsonText, geoJsonOptions } from '../../src/output/geojson.js';
+import { chunksToString } from '../../src/output/byte-chunks.js';
 import { sessionGpx } from '../../src/output/gpx.js';
 import { loadConfig } from '../../src/config/load.js';
 import type { SessionResult } from '../../src/session/result.js';
@@ -140,6 +141,46 @@ describe('session GeoJSON', () => {
   ] as const)('%s passes the GeoJSON validator', (_n, f, points) => {
     const issues = getIssues(sessionGeoJsonText(f().result, { decimals: 7, points }));
     expect(issues).toEqual([]);
+  });
+});
+
+/** A copy of a result without heights, with awkward names and a segment left with one valid position. */
+function awkward(r: SessionResult): SessionResult {
+  const latDeg = r.latDeg.slice();
+  // the last segment keeps only its first position
+  const last = r.segment[r.N - 1]!;
+  const s1 = r.segment.indexOf(last);
+  for (let k = s1 + 1; k < r.N; k++) latDeg[k] = NaN;
+  return { ...r, name: 'Café "north" \\ run\u2028', hasHeight: false, latDeg, outliers: r.outliers.map((o, i) => (i === 0 ? { ...o, detail: 'tab\there "quoted" ✓' } : o)) };
+}
+
+describe('streamed GeoJSON = JSON.stringify of the object (RFC 7946 text unchanged)', () => {
+  const cases: Array<[string, () => SessionResult]> = [
+    ['plain', () => plain().result],
+    ['antimeridian', () => crossing().result],
+    ['no height, one-position segment, escaped names', () => awkward(plain().result)],
+  ];
+  test.each(cases)('%s, decimals 0–12, with and without points, small chunks', (_n, get) => {
+    const r = get();
+    for (const decimals of [0, 3, 7, 9, 12])
+      for (const points of [false, true]) {
+        const opt = { decimals, points };
+        expect(chunksToString(sessionGeoJsonChunks(r, opt, 4096)), `decimals ${decimals}, points ${points}`).toBe(JSON.stringify(sessionGeoJson(r, opt)) + '\n');
+      }
+  });
+  test('the awkward copy has a segment of one position (written twice) and no heights', () => {
+    const r = plain().result;
+    const fc = sessionGeoJson(awkward(r), { decimals: 7 }) as FC;
+    const one = fc.features.filter((f) => f.properties.segment === r.segment[r.N - 1]! + 1);
+    expect(one).toHaveLength(1);
+    expect(one[0]!.geometry.coordinates).toHaveLength(2);
+    expect(one[0]!.geometry.coordinates[0]).toEqual(one[0]!.geometry.coordinates[1]);
+    expect(fc.bbox).toHaveLength(4);
+  });
+  test('a session whose every position is out of range has no features and no bbox', () => {
+    const r = plain().result;
+    const bad = { ...r, latDeg: new Float64Array(r.N).fill(91), outliers: [] };
+    expect(sessionGeoJsonText(bad, { decimals: 7 })).toBe('{"type":"FeatureCollection","features":[]}\n');
   });
 });
 

@@ -1,0 +1,251 @@
+/**
+ * Output text written straight into byte chunks (UTF-8), so that a million-row output is streamed
+ * to its file a megabyte at a time instead of being built as one string or object tree: no
+ * per-cell strings, no joins, no UTF-16 → UTF-8 conversion of the whole text.
+ *
+ * The number and time writers give exactly the text of the JavaScript calls they replace
+ * (ECMA-262 §21.1.3.3 Number.prototype.toFixed, §6.1.6.1.20 Number::toString, §21.4.4.36
+ * Date.prototype.toISOString), tested against them in test/output/byte-chunks.test.ts:
+ * - `fixed(v, d)` = `v.toFixed(d)`: the integer n nearest to |v|·10^d (ties up) from the rounded
+ *   product |v|·10^d, whose error is at most half an ulp; when the product lies within two ulps of a
+ *   tie, the exact answer could differ, and toFixed itself is called;
+ * - `rounded(v, d)` = `String(Math.round(v·10^d) / 10^d)`: with n = Math.round(v·10^d) below 10^15,
+ *   the decimal n·10^−d has at most 15 significant digits, so it is the only decimal of ≤ 15 digits
+ *   naming that double (DBL_DIG = 15; IEEE 754-2008 §5.12.2) and therefore the shortest text that
+ *   round-trips, which is what Number::toString prints (trailing zeros dropped); exponent notation
+ *   (below 1e-6) and larger n fall back to String();
+ * - `isoUtc(t)` = `new Date(Math.round(t·1000)).toISOString()`: the date part is cached per UTC day
+ *   (regular logs stay within a day for 864,000 epochs at 10 Hz), the time of day is integer
+ *   arithmetic; outside years 1970–9999 and for non-finite times Date is called (and throws as before).
+ */
+
+/** Bytes of a chunk before it is handed out (the buffer has room for a row beyond it). */
+export const CHUNK_BYTES = 1 << 20;
+const SLACK_BYTES = 1 << 16;
+const MS_PER_DAY = 86_400_000;
+/** 10000-01-01T00:00:00Z: from here on toISOString writes a six-digit year. */
+const MS_YEAR_10000 = 253_402_300_800_000;
+
+/** 10^d as the expression `10 ** d` gives it (exact for d ≤ 22). */
+export const POW10: readonly number[] = Array.from({ length: 23 }, (_, d) => 10 ** d);
+
+const enum C {
+  minus = 45,
+  dot = 46,
+  zero = 48,
+  colon = 58,
+  Z = 90,
+}
+
+export class ByteChunks {
+  private buf: Buffer;
+  private pos = 0;
+  private day = NaN;
+  private readonly dayPrefix = new Uint8Array(11);
+
+  constructor(private readonly chunkBytes = CHUNK_BYTES) {
+    this.buf = Buffer.allocUnsafe(chunkBytes + SLACK_BYTES);
+  }
+
+  /** A chunk is ready to be taken. */
+  get full(): boolean {
+    return this.pos >= this.chunkBytes;
+  }
+
+  /** Bytes written and not yet taken. */
+  get length(): number {
+    return this.pos;
+  }
+
+  /** The bytes written so far (to be written out before the next call writes more); empty when none. */
+  take(): Buffer {
+    const out = this.buf.subarray(0, this.pos);
+    this.buf = Buffer.allocUnsafe(this.chunkBytes + SLACK_BYTES);
+    this.pos = 0;
+    return out;
+  }
+
+  /** Make room for `n` more bytes (a long text cell); copies into a larger buffer when needed. */
+  private room(n: number): void {
+    if (this.pos + n <= this.buf.length) return;
+    const b = Buffer.allocUnsafe(Math.max(this.buf.length * 2, this.pos + n + SLACK_BYTES));
+    this.buf.copy(b, 0, 0, this.pos);
+    this.buf = b;
+  }
+
+  byte(c: number): void {
+    this.room(1);
+    this.buf[this.pos++] = c;
+  }
+
+  /** Text known to be ASCII (names, constants, number text). */
+  ascii(s: string): void {
+    const n = s.length;
+    this.room(n);
+    const b = this.buf;
+    let p = this.pos;
+    for (let i = 0; i < n; i++) b[p++] = s.charCodeAt(i);
+    this.pos = p;
+  }
+
+  /** Any text, as UTF-8. */
+  text(s: string): void {
+    if (s.length < 32) {
+      let ascii = true;
+      for (let i = 0; i < s.length; i++)
+        if (s.charCodeAt(i) > 0x7f) {
+          ascii = false;
+          break;
+        }
+      if (ascii) return this.ascii(s);
+    }
+    this.room(3 * s.length);
+    this.pos += this.buf.write(s, this.pos, 'utf8');
+  }
+
+  /** Bytes prepared once (for constants written per row). */
+  bytes(b: Uint8Array): void {
+    const n = b.length;
+    this.room(n);
+    const buf = this.buf;
+    let p = this.pos;
+    for (let i = 0; i < n; i++) buf[p++] = b[i]!;
+    this.pos = p;
+  }
+
+  /** A non-negative integer below 2^53, at least `minDigits` digits (zero-padded). */
+  private digits(n: number, minDigits: number): void {
+    let k = 1;
+    for (let m = n; m >= 10; m = Math.floor(m / 10)) k++;
+    if (k < minDigits) k = minDigits;
+    this.room(k);
+    const b = this.buf;
+    let p = this.pos + k;
+    this.pos = p;
+    let m = n;
+    for (let i = 0; i < k; i++) {
+      const q = Math.floor(m / 10);
+      b[--p] = C.zero + (m - q * 10);
+      m = q;
+    }
+  }
+
+  /** An integer (as String(n) for safe integers). */
+  int(n: number): void {
+    if (!Number.isSafeInteger(n)) return this.ascii(String(n));
+    if (n < 0) {
+      this.byte(C.minus);
+      this.digits(-n, 1);
+    } else this.digits(n, 1); // −0 writes "0", as String(−0)
+  }
+
+  /** `v.toFixed(d)` for finite v and 0 ≤ d ≤ 15. */
+  fixed(v: number, d: number): void {
+    const a = v < 0 ? -v : v;
+    const f = POW10[d]!;
+    const x = a * f;
+    if (!(x < 4e15) || d > 15) return this.ascii(v.toFixed(d));
+    const n0 = Math.floor(x);
+    const frac = x - n0;
+    // within two ulps of a tie the rounded product cannot tell which way the exact value lies
+    if (Math.abs(frac - 0.5) <= x * 4.5e-16) return this.ascii(v.toFixed(d));
+    const n = frac > 0.5 ? n0 + 1 : n0;
+    if (v < 0) this.byte(C.minus);
+    if (d === 0) return this.digits(n, 1);
+    let ip = Math.floor(n / f);
+    let fp = n - ip * f;
+    if (fp < 0) {
+      ip--;
+      fp += f;
+    }
+    this.digits(ip, 1);
+    this.byte(C.dot);
+    this.digits(fp, d);
+  }
+
+  /** `v.toFixed(d)`, or nothing for a non-finite value (a CSV cell). */
+  fixedCell(v: number, d: number): void {
+    if (Number.isFinite(v)) this.fixed(v, d);
+  }
+
+  /**
+   * The JSON text of `Math.round(v·10^d) / 10^d` (as JSON.stringify writes it), or `null` for a
+   * non-finite v; 0 ≤ d ≤ 22.
+   */
+  rounded(v: number, d: number): void {
+    if (!Number.isFinite(v)) return this.ascii('null');
+    const f = POW10[d]!;
+    const n = Math.round(v * f);
+    const x = n / f;
+    if (n === 0) return this.byte(C.zero); // also −0, which JSON writes as 0
+    const a = n < 0 ? -n : n;
+    if (!(a < 1e15) || Math.abs(x) < 1e-6) return this.ascii(String(x));
+    if (n < 0) this.byte(C.minus);
+    if (d === 0) return this.digits(a, 1);
+    let ip = Math.floor(a / f);
+    let fp = a - ip * f;
+    if (fp < 0) {
+      ip--;
+      fp += f;
+    }
+    this.digits(ip, 1);
+    if (fp === 0) return;
+    let k = d;
+    while (fp % 10 === 0) {
+      fp /= 10;
+      k--;
+    }
+    this.byte(C.dot);
+    this.digits(fp, k);
+  }
+
+  /** `new Date(Math.round(tSec·1000)).toISOString()`. */
+  isoUtc(tSec: number): void {
+    const ms = Math.round(tSec * 1000);
+    if (!(ms >= 0 && ms < MS_YEAR_10000)) return this.ascii(new Date(ms).toISOString());
+    const day = Math.floor(ms / MS_PER_DAY);
+    if (day !== this.day) {
+      const s = new Date(day * MS_PER_DAY).toISOString();
+      for (let i = 0; i < 11; i++) this.dayPrefix[i] = s.charCodeAt(i);
+      this.day = day;
+    }
+    this.room(24);
+    const b = this.buf;
+    let p = this.pos;
+    const pre = this.dayPrefix;
+    for (let i = 0; i < 11; i++) b[p++] = pre[i]!;
+    let r = ms - day * MS_PER_DAY;
+    const h = Math.floor(r / 3_600_000);
+    r -= h * 3_600_000;
+    const mi = Math.floor(r / 60_000);
+    r -= mi * 60_000;
+    const s = Math.floor(r / 1000);
+    r -= s * 1000;
+    b[p++] = C.zero + Math.floor(h / 10);
+    b[p++] = C.zero + (h % 10);
+    b[p++] = C.colon;
+    b[p++] = C.zero + Math.floor(mi / 10);
+    b[p++] = C.zero + (mi % 10);
+    b[p++] = C.colon;
+    b[p++] = C.zero + Math.floor(s / 10);
+    b[p++] = C.zero + (s % 10);
+    b[p++] = C.dot;
+    b[p++] = C.zero + Math.floor(r / 100);
+    b[p++] = C.zero + (Math.floor(r / 10) % 10);
+    b[p++] = C.zero + (r % 10);
+    b[p++] = C.Z;
+    this.pos = p;
+  }
+}
+
+/** The UTF-8 bytes of a string (for constants written per row). */
+export function utf8(s: string): Uint8Array {
+  return Buffer.from(s, 'utf8');
+}
+
+/** Join chunks into one string (the string-returning writers, tests). */
+export function chunksToString(chunks: Iterable<Uint8Array>): string {
+  const all: Uint8Array[] = [];
+  for (const c of chunks) all.push(c);
+  return Buffer.concat(all).toString('utf8');
+}
