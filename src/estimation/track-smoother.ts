@@ -27,6 +27,25 @@ function smootherShare(models: AxisModel[], qScale: Float64Array[] | null | unde
   return true;
 }
 
+/**
+ * The RTS step of every axis at epoch k of h (in place, from k + 1), F and Q of the step k → k + 1
+ * in place. With `share`, north takes east's gain (gT) and smoothed covariance (see smootherShare).
+ */
+function rtsEpoch(models: AxisModel[], F: Float64Array[], Q: Float64Array[], h: FilterHistory, k: number, share: boolean, gT: Float64Array, rs: ReturnType<typeof makeRtsScratch>[]): void {
+  for (let a = 0; a < models.length; a++) {
+    const n = models[a]!.n;
+    if (share && a === 1) {
+      rtsState3(F[1]!, gT, h.x[1]!, k * 3, (k + 1) * 3);
+      copy6(h.P[0]!, h.P[1]!, k * 6);
+      continue;
+    }
+    const ok = n === 3
+      ? rtsStep3p(F[a]!, Q[a]!, h.x[a]!, k * 3, (k + 1) * 3, h.P[a]!, k * 6, (k + 1) * 6, share && a === 0 ? gT : undefined)
+      : rtsStep(n, F[a]!, Q[a]!, h.x[a]!, k * n, (k + 1) * n, h.P[a]!, k * n * n, (k + 1) * n * n, rs[a]!);
+    if (!ok) throw new NumericalError(`smoother: predicted covariance not positive definite at epoch ${k + 1}`);
+  }
+}
+
 export function smoothInPlace(models: AxisModel[], data: SegmentData, h: FilterHistory, qScale?: Float64Array[] | null): void {
   const F = models.map((m) => new Float64Array(m.n * m.n));
   const Q = models.map((m) => new Float64Array(m.n * m.n));
@@ -45,19 +64,7 @@ export function smoothInPlace(models: AxisModel[], data: SegmentData, h: FilterH
       stepMatrices(models, data, h, k + 1, qScale, F, Q, cache);
       lastDt = reuse && !extraHere ? dt : NaN;
     }
-    for (let a = 0; a < models.length; a++) {
-      const n = models[a]!.n;
-      if (share && a === 1) {
-        // north: east's gain and covariance (see smootherShare)
-        rtsState3(F[1]!, gT, h.x[1]!, k * 3, (k + 1) * 3);
-        copy6(h.P[0]!, h.P[1]!, k * 6);
-        continue;
-      }
-      const ok = n === 3
-        ? rtsStep3p(F[a]!, Q[a]!, h.x[a]!, k * 3, (k + 1) * 3, h.P[a]!, k * 6, (k + 1) * 6, share && a === 0 ? gT : undefined)
-        : rtsStep(n, F[a]!, Q[a]!, h.x[a]!, k * n, (k + 1) * n, h.P[a]!, k * n * n, (k + 1) * n * n, rs[a]!);
-      if (!ok) throw new NumericalError(`smoother: predicted covariance not positive definite at epoch ${k + 1}`);
-    }
+    rtsEpoch(models, F, Q, h, k, share, gT, rs);
   }
 }
 
@@ -145,18 +152,7 @@ export function resmoothWindows(
         stepMatrices(models, data, s, k + 1, qScale, F, Q, cache);
         lastDt = reuse && !extraHere ? dt : NaN;
       }
-      for (let a = 0; a < nAx; a++) {
-        const n = models[a]!.n;
-        if (share && a === 1) {
-          rtsState3(F[1]!, gT, s.x[1]!, k * 3, (k + 1) * 3);
-          copy6(s.P[0]!, s.P[1]!, k * 6);
-          continue;
-        }
-        const ok = n === 3
-          ? rtsStep3p(F[a]!, Q[a]!, s.x[a]!, k * 3, (k + 1) * 3, s.P[a]!, k * 6, (k + 1) * 6, share && a === 0 ? gT : undefined)
-          : rtsStep(n, F[a]!, Q[a]!, s.x[a]!, k * n, (k + 1) * n, s.P[a]!, k * n * n, (k + 1) * n * n, rs[a]!);
-        if (!ok) throw new NumericalError(`smoother: predicted covariance not positive definite at epoch ${k + 1}`);
-      }
+      rtsEpoch(models, F, Q, s, k, share, gT, rs);
     }
     let same = true;
     for (let a = 0; a < nAx && same; a++) {
