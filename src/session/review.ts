@@ -14,6 +14,7 @@ import { resmoothWindows, smoothInto } from '../estimation/track-smoother.js';
 import { allocateHistory, historyOf } from '../estimation/track-filter.js';
 import { reviewStatistic } from '../estimation/review.js';
 import { applyReviewDecisions, reviewThresholds } from './review-decisions.js';
+import { applySwap, findSwaps, swapCost, type Swap } from './review-swaps.js';
 import type { StageTimings } from './timings.js';
 
 /**
@@ -49,6 +50,8 @@ export interface ReviewOptions {
   guardSec: number;
   /** Re-run the filter and smoother only where decisions changed (default); false: full passes (the reference). */
   windowed?: boolean;
+  /** Try the sandwiched kept runs the other way round once converged (default); false: off. */
+  swaps?: boolean;
 }
 
 /**
@@ -110,6 +113,9 @@ export function reviewSegment(
   const nu = new Float64Array(models.length);
   let passes = 0;
   let converged = false;
+  let swapState: 'none' | 'pending' | 'done' = 'none';
+  let swaps: Swap[] = [];
+  let costBefore: number[] = [];
   // after the first pass, the filter and smoother re-run only where a decision changed (FilterResume,
   // resmoothWindows): hf keeps the filtered states, hs the smoothed ones; with RERUN_TOL = 0 the
   // skipped epochs are bit for bit those of a full pass
@@ -164,7 +170,8 @@ export function reviewSegment(
       tm.filterEpochs += nf;
       tm.smoothEpochs += ns;
     }
-    if (passes > ro.maxPasses) break;
+    // the swap test (review-swaps.ts) may take two passes beyond the budget
+    if (passes > ro.maxPasses + (swapState === 'none' ? 0 : 2)) break;
     converged = false;
     // test every offered fix whose smoothed state or decision changed (the others keep their statistic)
     const test = (k: number) => {
@@ -176,9 +183,33 @@ export function reviewSegment(
     };
     for (let i = 0; i < smoothed.length; i += 2) for (let k = smoothed[i + 1]!; k <= smoothed[i]!; k++) test(k);
     for (const k of changed) test(k);
+    if (swapState === 'pending') {
+      // keep a swap only where it lowered its neighbourhood's robust cost; undo the others
+      swapState = 'done';
+      let undone = false;
+      swaps.forEach((sw, i) => {
+        if (swapCost(sw, offered, kept, T, threshold) >= costBefore[i]!) {
+          applySwap(sw, kept, true);
+          undone = true;
+        }
+      });
+      // the statistics of undone swaps belong to the swapped track: re-run before judging again
+      if (undone) continue;
+    }
     // re-admit the clearly consistent, reject the worst failing fix per guard window
     const changedAny = applyReviewDecisions(N, offered, kept, T, dof, threshold, data.tSec, th, ro.guardSec);
     if (!changedAny) {
+      if (swapState === 'none' && ro.swaps !== false) {
+        // converged: try every kept run sandwiched between rejections the other way round
+        swaps = findSwaps(N, offered, kept, data.tSec, ro.guardSec);
+        if (swaps.length > 0) {
+          costBefore = swaps.map((sw) => swapCost(sw, offered, kept, T, threshold));
+          for (const sw of swaps) applySwap(sw, kept, false);
+          swapState = 'pending';
+          continue;
+        }
+        swapState = 'done';
+      }
       converged = true;
       break;
     }
