@@ -28,7 +28,6 @@ import { InputError } from '../errors.js';
 import { axisParamsFromConfig, prepareSession, reviewOptions, segmentData, type AxisParams, type PreparedSession } from './process-session.js';
 import { calibratedFixesOnly } from './calibrated-params.js';
 import { applyReviewDecisions, reviewThresholds } from './review-decisions.js';
-import { applySwap, findSwaps, swapCost, type Swap } from './review-swaps.js';
 import { buildOutliersAndMetrics } from './products.js';
 import { STATUS, type SessionResult } from './result.js';
 
@@ -50,7 +49,7 @@ export function imuGnssParams(calibrated: AxisParams, profile: AxisParams): Axis
   };
 }
 
-/** Most IMU streams (filter + smoother passes) of the review loop, before the swap test (up to two more). */
+/** Most IMU streams (filter + smoother passes) of the review loop. */
 export const IMU_REVIEW_MAX_PASSES = 5;
 
 /** The epoch grid of all segments, as the fixes-only pipeline builds it, with antenna fixes and variances (white noise of `p`). */
@@ -262,50 +261,18 @@ export async function processImuSession(series: FixSeries, imuPath: string, cfg:
   let passes = 1;
   let converged = false;
   const fixed: InsEpochs = { ...ep, use: ep.use.slice() };
-  const rerun = async () => {
+  for (;;) {
+    reviewImuFixes(ep, gatedFix, engine, th.reject, T, dof, threshold);
+    if (passes >= IMU_REVIEW_MAX_PASSES) break;
+    if (!applyReviewDecisions(N, gatedFix, kept, T, dof, threshold, ep.tSec, th, ro.guardSec)) {
+      converged = true;
+      break;
+    }
     // decisions held fixed: kept fixes without gate, rejected ones left out
     for (let k = 0; k < N; k++) fixed.use[k] = gatedFix[k] ? (kept[k] ? 2 : 0) : offered[k]!;
     if (tm) tm.reviewMs += lap();
     engine = await runPass(fixed);
     passes++;
-  };
-  // the swap test of the fixes-only review (review-swaps.ts), with up to two passes beyond the budget
-  let swapState: 'none' | 'pending' | 'done' = 'none';
-  let swaps: Swap[] = [];
-  let costBefore: number[] = [];
-  for (;;) {
-    reviewImuFixes(ep, gatedFix, engine, th.reject, T, dof, threshold);
-    if (swapState === 'pending') {
-      swapState = 'done';
-      let undone = false;
-      swaps.forEach((sw, i) => {
-        if (swapCost(sw, gatedFix, kept, T, threshold) >= costBefore[i]!) {
-          applySwap(sw, kept, true);
-          undone = true;
-        }
-      });
-      if (undone) {
-        await rerun();
-        continue;
-      }
-    }
-    if (passes >= IMU_REVIEW_MAX_PASSES + (swapState === 'none' ? 0 : 2)) break;
-    if (!applyReviewDecisions(N, gatedFix, kept, T, dof, threshold, ep.tSec, th, ro.guardSec)) {
-      if (swapState === 'none') {
-        swaps = findSwaps(N, gatedFix, kept, ep.tSec, ro.guardSec);
-        if (swaps.length > 0) {
-          costBefore = swaps.map((sw) => swapCost(sw, gatedFix, kept, T, threshold));
-          for (const sw of swaps) applySwap(sw, kept, false);
-          swapState = 'pending';
-          await rerun();
-          continue;
-        }
-        swapState = 'done';
-      }
-      converged = true;
-      break;
-    }
-    await rerun();
   }
   const review: ImuReview = { kept, gateRejected, T, dof, threshold, passes, converged, ...gateStats };
   if (tm) tm.reviewMs += lap();
