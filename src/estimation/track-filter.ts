@@ -231,6 +231,21 @@ export function stepMatrices(models: AxisModel[], data: SegmentData, h: FilterHi
 }
 
 /**
+ * F and Q of the step ending at epoch k, unless w.F, w.Q already hold it: regular sampling repeats
+ * the step, so they are recomputed only when Δt changes, at a step with re-acquisition noise, or
+ * always under a per-epoch q scale. `heldDt` is the Δt they hold (NaN: none, or not reusable);
+ * returns the new one.
+ */
+export function ensureStep(models: AxisModel[], data: SegmentData, h: FilterHistory, k: number, qScale: Float64Array[] | null | undefined, F: Float64Array[], Q: Float64Array[], cache: StepCache, heldDt: number): number {
+  const dt = data.tSec[k]! - data.tSec[k - 1]!;
+  const extra = h.extraQ.size > 0 && h.extraQ.has(k);
+  if (dt === heldDt && !extra) return heldDt;
+  stepMatrices(models, data, h, k, qScale, F, Q, cache);
+  // a step with re-acquisition noise, or any step under a q scale, leaves F, Q reusable by none
+  return qScale || extra ? NaN : dt;
+}
+
+/**
  * Re-run of an ungated pass (every `use` 0 or 2: no gate rejections, hence no re-acquisition) over a
  * history that holds the previous pass's filtered states, after the measurement use changed at the
  * epochs `changed` (ascending). The filter is a recursion: epochs before the first change, and the
@@ -275,9 +290,8 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
   const likelihood = opt.likelihood === true;
   // north takes east's covariances (predict and update its state only)
   const share = horizontalShare(models, data, opt.rScale, opt.qScale);
-  // Δt of the step whose F, Q are in w.F, w.Q (NaN: none, or not reusable)
+  // Δt of the step whose F, Q are in w.F, w.Q (NaN: none, or not reusable; see ensureStep)
   let lastDt = NaN;
-  const varying = !!opt.qScale;
   let runStart = -1;
   let runCount = 0;
   let k = 0;
@@ -330,14 +344,7 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
       }
     }
     if (k > 0) {
-      // regular sampling: the step of the last epoch again, F and Q already in place
-      const dt = data.tSec[k]! - data.tSec[k - 1]!;
-      // (a step with re-acquisition noise is computed, and leaves F, Q reusable by none)
-      const extraHere = h.extraQ.size > 0 && h.extraQ.has(k);
-      if (dt !== lastDt || varying || extraHere) {
-        stepMatrices(models, data, h, k, opt.qScale, w.F, w.Q, w.cache);
-        lastDt = varying || extraHere ? NaN : dt;
-      }
+      lastDt = ensureStep(models, data, h, k, opt.qScale, w.F, w.Q, w.cache, lastDt);
       for (let a = 0; a < nAx; a++) {
         const n = models[a]!.n;
         if (share && a === 1) {

@@ -9,7 +9,7 @@ import { NumericalError } from '../errors.js';
 import { makeScratch } from './kalman.js';
 import { makeRtsScratch, rtsStep } from './rts.js';
 import { rtsState3, rtsStep3p } from './kalman3.js';
-import { copy6, covStride, makeStepCache, stepMatrices, type FilterHistory, type SegmentData } from './track-filter.js';
+import { copy6, covStride, ensureStep, makeStepCache, type FilterHistory, type SegmentData } from './track-filter.js';
 
 /**
  * Whether the smoother may give the north axis (1) the east axis's (0) gains and covariances: the
@@ -51,19 +51,12 @@ export function smoothInPlace(models: AxisModel[], data: SegmentData, h: FilterH
   const Q = models.map((m) => new Float64Array(m.n * m.n));
   const rs = models.map((m) => makeRtsScratch(m.n, makeScratch(m.n)));
   const cache = makeStepCache(models.length, models.map((m) => m.n));
-  // Δt whose F, Q are in place (NaN: none, or not reusable: per-epoch q scale or re-acquisition noise)
+  // Δt whose F, Q are in place (see ensureStep)
   let lastDt = NaN;
-  const reuse = !qScale;
   const share = smootherShare(models, qScale, h);
   const gT = new Float64Array(9);
   for (let k = h.N - 2; k >= 0; k--) {
-    const dt = data.tSec[k + 1]! - data.tSec[k]!;
-    // a step with re-acquisition noise is computed, and leaves F, Q reusable by none
-    const extraHere = h.extraQ.size > 0 && h.extraQ.has(k + 1);
-    if (dt !== lastDt || extraHere) {
-      stepMatrices(models, data, h, k + 1, qScale, F, Q, cache);
-      lastDt = reuse && !extraHere ? dt : NaN;
-    }
+    lastDt = ensureStep(models, data, h, k + 1, qScale, F, Q, cache, lastDt);
     rtsEpoch(models, F, Q, h, k, share, gT, rs);
   }
 }
@@ -111,7 +104,6 @@ export function resmoothWindows(
   s.extraQ = f.extraQ;
   // as in smoothInPlace: F, Q of the last step stay in place for the next one with the same Δt
   let lastDt = NaN;
-  const reuse = !qScale;
   const share = smootherShare(models, qScale, f, s);
   const gT = new Float64Array(9);
   let wi = windows.length / 2 - 1;
@@ -146,12 +138,7 @@ export function resmoothWindows(
       }
     }
     if (k < N - 1) {
-      const dt = data.tSec[k + 1]! - data.tSec[k]!;
-      const extraHere = s.extraQ.size > 0 && s.extraQ.has(k + 1);
-      if (dt !== lastDt || extraHere) {
-        stepMatrices(models, data, s, k + 1, qScale, F, Q, cache);
-        lastDt = reuse && !extraHere ? dt : NaN;
-      }
+      lastDt = ensureStep(models, data, s, k + 1, qScale, F, Q, cache, lastDt);
       rtsEpoch(models, F, Q, s, k, share, gT, rs);
     }
     let same = true;
