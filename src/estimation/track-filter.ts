@@ -256,6 +256,29 @@ export function ensureStep(models: AxisModel[], data: SegmentData, h: FilterHist
   const dt = data.tSec[k]! - data.tSec[k - 1]!;
   const extra = h.extraQ.size > 0 && h.extraQ.has(k);
   if (dt === heldDt && !extra) return heldDt;
+  if (!extra && !qScale) {
+    // a Δt seen before (a regular log alternates between two or three): every axis that holds it
+    // with q scale 1 in the same slot (they fill their slots in step when no q scale is given)
+    // points at that slot, what stepMatrices would do axis by axis
+    const sl = cache.slots;
+    let s = 0;
+    while (s < sl && !(cache.dt[s] === dt && cache.qs[s] === 1)) s++;
+    if (s < sl) {
+      let all = true;
+      for (let a = 0; a < models.length && all; a++) {
+        const i = a * sl + s;
+        all = cache.dt[i] === dt && cache.qs[i] === 1 && cache.ownF[a]!.length === models[a]!.n * models[a]!.n;
+      }
+      if (all) {
+        for (let a = 0; a < models.length; a++) {
+          F[a] = cache.F[a * sl + s]!;
+          Q[a] = cache.Q[a * sl + s]!;
+          cache.current[a] = s;
+        }
+        return dt;
+      }
+    }
+  }
   stepMatrices(models, data, h, k, qScale, F, Q, cache);
   // a step with re-acquisition noise, or any step under a q scale, leaves F, Q reusable by none
   return qScale || extra ? NaN : dt;
