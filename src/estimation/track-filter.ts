@@ -151,7 +151,10 @@ export function historyOf(h: Omit<FilterHistory, 'x' | 'P'>, x: Float64Array[], 
  * Remembers the last few distinct steps (Δt, q scale) of every axis with their F and Q, so regular
  * sampling does not recompute them every epoch. Several slots, since Unix times in seconds carry
  * rounding of ~1e-7 s: a regular 10 Hz log has two or three distinct Δt values, not one.
- * The slots hold exact copies, so results do not depend on the cache.
+ * The caller's F[a], Q[a] are pointed at the slot's arrays instead of being copied from them (a
+ * 10 Hz log alternates between its Δt values, and the copies were about a tenth of a pass); a step
+ * that is not cached (re-acquisition noise) is computed into the axis's own arrays `ownF`, `ownQ`.
+ * The slots hold what fillF, fillQ wrote, so results do not depend on the cache.
  */
 export interface StepCache {
   slots: number;
@@ -161,7 +164,10 @@ export interface StepCache {
   /** Per axis and slot: F and Q (n×n each). */
   F: Float64Array[];
   Q: Float64Array[];
-  /** Per axis: the slot whose F, Q are in the caller's arrays now (−1: none). */
+  /** Per axis: F and Q of a step not cached. */
+  ownF: Float64Array[];
+  ownQ: Float64Array[];
+  /** Per axis: the slot the caller's F[a], Q[a] point at now (−1: none). */
   current: Int32Array;
   /** Per axis: next slot to overwrite. */
   next: Int32Array;
@@ -177,21 +183,34 @@ export function makeStepCache(nAxes: number, dims?: number[]): StepCache {
     qs: new Float64Array(nAxes * CACHE_SLOTS).fill(NaN),
     F: Array.from({ length: nAxes * CACHE_SLOTS }, (_, i) => new Float64Array(nn(Math.floor(i / CACHE_SLOTS)))),
     Q: Array.from({ length: nAxes * CACHE_SLOTS }, (_, i) => new Float64Array(nn(Math.floor(i / CACHE_SLOTS)))),
+    ownF: Array.from({ length: nAxes }, (_, a) => new Float64Array(nn(a))),
+    ownQ: Array.from({ length: nAxes }, (_, a) => new Float64Array(nn(a))),
     current: new Int32Array(nAxes).fill(-1),
     next: new Int32Array(nAxes),
   };
 }
 
-/** Fill F and Q (with any recorded extra noise) of every axis for the step ending at epoch k. */
+/**
+ * Fill F and Q (with any recorded extra noise) of every axis for the step ending at epoch k. With a
+ * cache whose arrays fit the models (n×n), F[a] and Q[a] are replaced by the cache's arrays (a slot's,
+ * or the axis's own for a step with extra noise): read them again after the call, do not keep them.
+ */
 export function stepMatrices(models: AxisModel[], data: SegmentData, h: FilterHistory, k: number, qScale: Float64Array[] | null | undefined, F: Float64Array[], Q: Float64Array[], cache?: StepCache): void {
   const dt = data.tSec[k]! - data.tSec[k - 1]!;
   const extra = h.extraQ.size > 0 ? h.extraQ.get(k) : undefined;
   for (let a = 0; a < models.length; a++) {
     const m = models[a]!;
     const qs = qScale ? qScale[a]![k]! : 1;
-    if (cache && !extra) {
-      const base = a * cache.slots;
-      // the step of the last epoch again (regular sampling): F and Q are already in place; a slot is
+    if (!cache || cache.ownF[a]!.length !== m.n * m.n) {
+      // no usable cache: compute into the caller's arrays
+      m.fillF(dt, F[a]!);
+      m.fillQ(dt, Q[a]!, qs);
+      if (extra) for (let i = 0; i < m.n; i++) Q[a]![i * m.n + i] += extra[a]![i]!;
+      continue;
+    }
+    const base = a * cache.slots;
+    if (!extra) {
+      // the step of the last epoch again (regular sampling): F and Q already point at it; a slot is
       // filled only on a miss, so no other slot holds the same step
       const cur = cache.current[a]!;
       if (cur >= 0 && cache.dt[base + cur] === dt && cache.qs[base + cur] === qs) continue;
@@ -201,32 +220,29 @@ export function stepMatrices(models: AxisModel[], data: SegmentData, h: FilterHi
           hit = s;
           break;
         }
-      if (hit >= 0) {
-        if (cache.current[a] !== hit) {
-          F[a]!.set(cache.F[base + hit]!);
-          Q[a]!.set(cache.Q[base + hit]!);
-          cache.current[a] = hit;
-        }
-        continue;
+      if (hit < 0) {
+        // a miss: compute into the next slot
+        hit = cache.next[a]!;
+        cache.next[a] = (hit + 1) % cache.slots;
+        cache.dt[base + hit] = dt;
+        cache.qs[base + hit] = qs;
+        m.fillF(dt, cache.F[base + hit]!);
+        m.fillQ(dt, cache.Q[base + hit]!, qs);
       }
+      F[a] = cache.F[base + hit]!;
+      Q[a] = cache.Q[base + hit]!;
+      cache.current[a] = hit;
+      continue;
     }
-    m.fillF(dt, F[a]!);
-    m.fillQ(dt, Q[a]!, qs);
-    if (extra) {
-      const e = extra[a]!;
-      for (let i = 0; i < m.n; i++) Q[a]![i * m.n + i] += e[i]!;
-      // an epoch with extra noise is not cached, and leaves F, Q matching no slot
-      if (cache) cache.current[a] = -1;
-    } else if (cache && F[a]!.length === cache.F[a * cache.slots]!.length) {
-      const s = cache.next[a]!;
-      const i = a * cache.slots + s;
-      cache.dt[i] = dt;
-      cache.qs[i] = qs;
-      cache.F[i]!.set(F[a]!);
-      cache.Q[i]!.set(Q[a]!);
-      cache.current[a] = s;
-      cache.next[a] = (s + 1) % cache.slots;
-    } else if (cache) cache.current[a] = -1;
+    // an epoch with extra noise is not cached: the axis's own arrays, matching no slot
+    const oF = cache.ownF[a]!, oQ = cache.ownQ[a]!;
+    m.fillF(dt, oF);
+    m.fillQ(dt, oQ, qs);
+    const e = extra[a]!;
+    for (let i = 0; i < m.n; i++) oQ[i * m.n + i] += e[i]!;
+    F[a] = oF;
+    Q[a] = oQ;
+    cache.current[a] = -1;
   }
 }
 
@@ -240,6 +256,29 @@ export function ensureStep(models: AxisModel[], data: SegmentData, h: FilterHist
   const dt = data.tSec[k]! - data.tSec[k - 1]!;
   const extra = h.extraQ.size > 0 && h.extraQ.has(k);
   if (dt === heldDt && !extra) return heldDt;
+  if (!extra && !qScale) {
+    // a Δt seen before (a regular log alternates between two or three): every axis that holds it
+    // with q scale 1 in the same slot (they fill their slots in step when no q scale is given)
+    // points at that slot, what stepMatrices would do axis by axis
+    const sl = cache.slots;
+    let s = 0;
+    while (s < sl && !(cache.dt[s] === dt && cache.qs[s] === 1)) s++;
+    if (s < sl) {
+      let all = true;
+      for (let a = 0; a < models.length && all; a++) {
+        const i = a * sl + s;
+        all = cache.dt[i] === dt && cache.qs[i] === 1 && cache.ownF[a]!.length === models[a]!.n * models[a]!.n;
+      }
+      if (all) {
+        for (let a = 0; a < models.length; a++) {
+          F[a] = cache.F[a * sl + s]!;
+          Q[a] = cache.Q[a * sl + s]!;
+          cache.current[a] = s;
+        }
+        return dt;
+      }
+    }
+  }
   stepMatrices(models, data, h, k, qScale, F, Q, cache);
   // a step with re-acquisition noise, or any step under a q scale, leaves F, Q reusable by none
   return qScale || extra ? NaN : dt;

@@ -8,6 +8,7 @@
  * Source for the projection: Snyder, "Map Projections: A Working Manual", USGS PP 1395 (1987), §8.
  */
 import proj4 from 'proj4';
+import { selectKth } from '../estimation/select.js';
 
 export interface LocalFrame {
   readonly lat0Deg: number;
@@ -79,10 +80,11 @@ export function sessionCentre(latDeg: Float64Array, lonDeg: Float64Array, valid?
   }
   if (lats.length === 0) return [0, 0];
   const med = (v: number[]) => {
-    // a typed array sorts numerically without a comparator (same median, faster)
-    const a = Float64Array.from(v).sort();
+    // the middle order statistics of the sorted values, selected without sorting (the same values)
+    const a = Float64Array.from(v);
     const m = a.length >> 1;
-    return a.length % 2 ? a[m]! : 0.5 * (a[m - 1]! + a[m]!);
+    const hi = selectKth(a, m);
+    return a.length % 2 ? hi : 0.5 * (selectKth(a, m - 1) + hi);
   };
   return [med(lats), wrapLonDeg(med(lons))];
 }

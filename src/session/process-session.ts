@@ -16,6 +16,7 @@ import { reviewSegment, type ReviewOptions } from './review.js';
 import { buildOutliersAndMetrics } from './products.js';
 import { STATUS, type OutlierRecord, type SessionResult } from './result.js';
 import type { StageTimings } from './timings.js';
+import { selectKth } from '../estimation/select.js';
 
 /** Validity of each fix before filtering: finite, in range, not the (0, 0) "null island" placeholder. */
 export function validFixes(s: FixSeries): { valid: Uint8Array; why: string[] } {
@@ -149,10 +150,9 @@ export function prepareSession(s: FixSeries, cfg: HindcastConfig, userDecisions?
   const u = new Float64Array(s.n).fill(NaN);
   const hs: number[] = [];
   if (s.heightM) for (let i = 0; i < s.n; i++) if (valid[i] && Number.isFinite(s.heightM[i]!)) hs.push(s.heightM[i]!);
-  // a typed array sorts numerically without a comparator (same median, faster)
-  const hsSorted = Float64Array.from(hs).sort();
-  const hasHeight = hsSorted.length > 0;
-  const heightRefM = hasHeight ? hsSorted[hsSorted.length >> 1]! : 0;
+  // the median order statistic, selected without sorting (the value of the sorted array)
+  const hasHeight = hs.length > 0;
+  const heightRefM = hasHeight ? selectKth(Float64Array.from(hs), hs.length >> 1) : 0;
   const out = [0, 0];
   for (let i = 0; i < s.n; i++) {
     if (!valid[i]) continue;

@@ -8,12 +8,12 @@
 import { geodesicLengthM } from '../geodesy/geodesic.js';
 import type { PreparedSession } from './process-session.js';
 import { STATUS, type OutlierRecord, type SessionResult } from './result.js';
+import { selectKth } from '../estimation/select.js';
 
 function median(v: Float64Array): number {
   if (v.length === 0) return NaN;
-  // a typed array sorts numerically without a comparator (same order statistic, faster)
-  const a = v.slice().sort();
-  return a[a.length >> 1]!;
+  // the order statistic of the sorted values, selected without sorting (the same value)
+  return selectKth(v.slice(), v.length >> 1);
 }
 
 /**

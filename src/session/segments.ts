@@ -2,10 +2,10 @@
  * Splitting a session into segments at long gaps, and the epoch grid of a segment: the fix epochs
  * plus bridged epochs at the nominal fix interval inside shorter gaps.
  */
+import { selectKth } from '../estimation/select.js';
 
 /** Median of the positive differences of consecutive times, or 1 s when there are none. */
 export function nominalIntervalSec(tSec: Float64Array, use?: Uint8Array): number {
-  // a typed array sorts numerically without a comparator (same median, a fraction of the time)
   const all = new Float64Array(tSec.length);
   let m = 0;
   let prev = NaN;
@@ -15,8 +15,8 @@ export function nominalIntervalSec(tSec: Float64Array, use?: Uint8Array): number
     prev = tSec[i]!;
   }
   if (m === 0) return 1;
-  const d = all.subarray(0, m).sort();
-  return d[m >> 1]!;
+  // the median order statistic, selected without sorting (the value of the sorted array)
+  return selectKth(all.subarray(0, m), m >> 1);
 }
 
 /** [first, last] indices (inclusive) of consecutive fixes with no gap longer than maxGapSec between offered fixes. */
