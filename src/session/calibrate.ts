@@ -56,9 +56,17 @@ export interface CalibrationOptions {
   minFixes: number;
   minDurationSec: number;
   maxEvaluations: number;
+  /**
+   * Standard errors from the numerical Hessian (about 2n² evaluations more); off for a round whose
+   * estimates only start the next one (processSession's first round: the second's replace them).
+   */
+  standardErrors?: boolean;
 }
 
 export const DEFAULT_CALIBRATION: CalibrationOptions = { maxEpochs: 4000, minFixes: 120, minDurationSec: 180, maxEvaluations: 500 };
+
+/** The first of processSession's two rounds: its estimates start the second, which replaces them, so no standard errors. */
+export const FIRST_ROUND: CalibrationOptions = { ...DEFAULT_CALIBRATION, standardErrors: false };
 
 /**
  * Prior spread (log space) per parameter. White noise and process noise are well identified by the
@@ -272,22 +280,24 @@ export function calibrateSession(
   });
   const free = names.map((_, i) => i).filter((i) => !atBound[i]);
   const seLog: number[] = names.map(() => NaN);
-  try {
-    const sub = (y: number[]) => {
-      const x = res.x.slice();
-      free.forEach((i, j) => (x[i] = y[j]!));
-      return negLogLik(x);
-    };
-    const H = free.length ? numericalHessian(sub, free.map((i) => res.x[i]!), free.map(() => 0.02)) : [];
-    if (free.length && H.every((row) => row.every(Number.isFinite))) {
-      const C = inverse(new Matrix(H));
-      free.forEach((i, j) => {
-        const v = C.get(j, j);
-        seLog[i] = v > 0 ? Math.sqrt(v) : NaN;
-      });
+  if (opt.standardErrors !== false) {
+    try {
+      const sub = (y: number[]) => {
+        const x = res.x.slice();
+        free.forEach((i, j) => (x[i] = y[j]!));
+        return negLogLik(x);
+      };
+      const H = free.length ? numericalHessian(sub, free.map((i) => res.x[i]!), free.map(() => 0.02)) : [];
+      if (free.length && H.every((row) => row.every(Number.isFinite))) {
+        const C = inverse(new Matrix(H));
+        free.forEach((i, j) => {
+          const v = C.get(j, j);
+          seLog[i] = v > 0 ? Math.sqrt(v) : NaN;
+        });
+      }
+    } catch {
+      /* singular information matrix: standard errors stay NaN */
     }
-  } catch {
-    /* singular information matrix: standard errors stay NaN */
   }
   names.forEach((nm, i) => {
     const v = params[nm];

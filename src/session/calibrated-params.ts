@@ -10,7 +10,7 @@
  */
 import type { HindcastConfig } from '../config/schema.js';
 import { axisParamsFromConfig, buildAxisModels, filterOptions, reviewOptions, runPrepared, segmentData, type AxisParams, type PreparedSession } from './process-session.js';
-import { calibrateSession, type CalibrationInfo } from './calibrate.js';
+import { FIRST_ROUND, calibrateSession, type CalibrationInfo } from './calibrate.js';
 import { reviewSegment, type ReviewOptions } from './review.js';
 import type { SessionResult } from './result.js';
 
@@ -43,7 +43,7 @@ function classify(ps: PreparedSession, cfg: HindcastConfig, params: AxisParams, 
 export function calibratedParams(ps: PreparedSession, cfg: HindcastConfig): CalibratedSession {
   const prior = axisParamsFromConfig(cfg, ps.factors.reported);
   const ro = reviewOptions(cfg, ps.intervalSec);
-  const cal1 = calibrateSession(ps, cfg, prior);
+  const cal1 = calibrateSession(ps, cfg, prior, FIRST_ROUND);
   let params = cal1.params;
   let info = cal1.info;
   let plans = classify(ps, cfg, params, ro);

@@ -11,7 +11,7 @@ import { covStride } from '../estimation/track-filter.js';
 import { errorEllipse } from '../output/ellipse.js';
 import { epochGrid, nominalIntervalSec, splitSegments } from './segments.js';
 import { fixSigmaFactors } from './fix-noise.js';
-import { DEFAULT_CALIBRATION, calibrateSession, calibrationWindows, sliceSegment } from './calibrate.js';
+import { DEFAULT_CALIBRATION, FIRST_ROUND, calibrateSession, calibrationWindows, sliceSegment } from './calibrate.js';
 import { reviewSegment, type ReviewOptions } from './review.js';
 import { buildOutliersAndMetrics } from './products.js';
 import { STATUS, type OutlierRecord, type SessionResult } from './result.js';
@@ -242,7 +242,7 @@ export function processSession(series: FixSeries, cfg: HindcastConfig, name: str
   const prior = axisParamsFromConfig(cfg, ps.factors.reported);
   const ro = reviewOptions(cfg, ps.intervalSec);
   if (tm) t0 = performance.now();
-  const cal1 = calibrateSession(ps, cfg, prior);
+  const cal1 = calibrateSession(ps, cfg, prior, FIRST_ROUND);
   if (tm) tm.calibrate += performance.now() - t0;
   let params = cal1.params;
   let info = cal1.info;
