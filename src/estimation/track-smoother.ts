@@ -12,24 +12,28 @@ import { rtsState3, rtsStep3p } from './kalman3.js';
 import { copy6, covStride, ensureStep, makeStepCache, type FilterHistory, type SegmentData } from './track-filter.js';
 
 /**
- * Whether the smoother may give the north axis (1) the east axis's (0) gains and covariances: the
- * same n = 3 model object and process-noise scale, and equal covariances at every epoch of every
- * history given (checked element by element; equal inputs give equal outputs, so the result is the
- * one of two separate computations).
+ * Whether the smoother may ever give the north axis (1) the east axis's (0) gains and covariances:
+ * the same n = 3 model object and process-noise scale (so the same F and Q at every step). It then
+ * does so at each epoch k whose covariances of the two axes are the same numbers, filtered at k and
+ * smoothed at k + 1 (sameCov6; those are the only covariances the RTS step k reads): equal inputs
+ * give equal outputs, so the result is the one of two separate computations. Checking the epochs
+ * the pass computes, instead of every epoch of the histories before each pass, is what lets a
+ * windowed re-run cost its windows (the whole-history check was ~0.6 s of a 1M-fix session).
  */
-function smootherShare(models: AxisModel[], qScale: Float64Array[] | null | undefined, ...hs: FilterHistory[]): boolean {
+function smootherCanShare(models: AxisModel[], qScale: Float64Array[] | null | undefined): boolean {
   if (models.length < 2 || models[0] !== models[1] || models[0]!.n !== 3) return false;
-  if (qScale && qScale[0] !== qScale[1]) return false;
-  for (const h of hs) {
-    const a = h.P[0]!, b = h.P[1]!;
-    for (let i = 0; i < a.length; i++) if (!Object.is(a[i], b[i])) return false;
-  }
-  return true;
+  return !(qScale && qScale[0] !== qScale[1]);
+}
+
+/** Whether the packed covariances (6 doubles at offset o) of a and b are the same numbers (Object.is on each). */
+export function sameCov6(a: Float64Array, b: Float64Array, o: number): boolean {
+  return Object.is(a[o], b[o]) && Object.is(a[o + 1], b[o + 1]) && Object.is(a[o + 2], b[o + 2]) &&
+    Object.is(a[o + 3], b[o + 3]) && Object.is(a[o + 4], b[o + 4]) && Object.is(a[o + 5], b[o + 5]);
 }
 
 /**
  * The RTS step of every axis at epoch k of h (in place, from k + 1), F and Q of the step k → k + 1
- * in place. With `share`, north takes east's gain (gT) and smoothed covariance (see smootherShare).
+ * in place. With `share`, north takes east's gain (gT) and smoothed covariance (see smootherCanShare).
  */
 function rtsEpoch(models: AxisModel[], F: Float64Array[], Q: Float64Array[], h: FilterHistory, k: number, share: boolean, gT: Float64Array, rs: ReturnType<typeof makeRtsScratch>[]): void {
   for (let a = 0; a < models.length; a++) {
@@ -53,11 +57,17 @@ export function smoothInPlace(models: AxisModel[], data: SegmentData, h: FilterH
   const cache = makeStepCache(models.length, models.map((m) => m.n));
   // Δt whose F, Q are in place (see ensureStep)
   let lastDt = NaN;
-  const share = smootherShare(models, qScale, h);
+  const canShare = smootherCanShare(models, qScale);
   const gT = new Float64Array(9);
+  const P0 = h.P[0]!, P1 = h.P[1] ?? P0;
+  // whether the two horizontal covariances at k + 1 (smoothed) are the same numbers
+  let nextSame = canShare && h.N > 0 && sameCov6(P0, P1, (h.N - 1) * 6);
   for (let k = h.N - 2; k >= 0; k--) {
     lastDt = ensureStep(models, data, h, k + 1, qScale, F, Q, cache, lastDt);
+    const share = nextSame && sameCov6(P0, P1, k * 6);
     rtsEpoch(models, F, Q, h, k, share, gT, rs);
+    // shared: north's covariance at k is a copy of east's
+    nextSame = share || (canShare && sameCov6(P0, P1, k * 6));
   }
 }
 
@@ -104,7 +114,10 @@ export function resmoothWindows(
   s.extraQ = f.extraQ;
   // as in smoothInPlace: F, Q of the last step stay in place for the next one with the same Δt
   let lastDt = NaN;
-  const share = smootherShare(models, qScale, f, s);
+  const canShare = smootherCanShare(models, qScale);
+  const sP0 = s.P[0]!, sP1 = s.P[1] ?? sP0;
+  // the RTS step at k + 1 was computed just before this epoch's, with north sharing east's covariance
+  let sharedNext = false;
   const gT = new Float64Array(9);
   let wi = windows.length / 2 - 1;
   let dirty = false;
@@ -120,6 +133,7 @@ export function resmoothWindows(
       if (wi < 0) break;
       // clean: jump to the last epoch of the next window below
       k = windows[2 * wi + 1]!;
+      sharedNext = false;
       continue;
     }
     if (runTop < 0) runTop = k;
@@ -149,8 +163,11 @@ export function resmoothWindows(
     }
     if (k < N - 1) {
       lastDt = ensureStep(models, data, s, k + 1, qScale, F, Q, cache, lastDt);
+      // filtered covariances at k (just restored) and smoothed ones at k + 1 equal (see smootherCanShare)
+      const share: boolean = canShare && (sharedNext || sameCov6(sP0, sP1, (k + 1) * 6)) && sameCov6(sP0, sP1, k * 6);
       rtsEpoch(models, F, Q, s, k, share, gT, rs);
-    }
+      sharedNext = share;
+    } else sharedNext = false;
     let same = true;
     for (let a = 0; a < nAx && same; a++) {
       const n = models[a]!.n;
