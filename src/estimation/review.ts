@@ -44,7 +44,21 @@ export function reviewStatistic(
     let hx = 0;
     let hph = 0;
     const Pk = k * covStride(n);
-    for (let i = 0; i < n; i++) {
+    if (n === 3) {
+      // the loops below written out for n = 3 on the packed triangle [p00, p01, p02, p11, p12, p22],
+      // in their order of operations (sums start from 0, as the loops' do), so the same bits
+      const Pa = P[a]!, xa = x[a]!, xk = k * 3;
+      const h0 = h[0]!, h1 = h[1]!, h2 = h[2]!;
+      const p00 = Pa[Pk]!, p01 = Pa[Pk + 1]!, p02 = Pa[Pk + 2]!, p11 = Pa[Pk + 3]!, p12 = Pa[Pk + 4]!, p22 = Pa[Pk + 5]!;
+      // H xˢ
+      hx = 0 + h0 * xa[xk]! + h1 * xa[xk + 1]! + h2 * xa[xk + 2]!;
+      // P hᵀ, row by row
+      const c0 = 0 + p00 * h0 + p01 * h1 + p02 * h2;
+      const c1 = 0 + p01 * h0 + p11 * h1 + p12 * h2;
+      const c2 = 0 + p02 * h0 + p12 * h1 + p22 * h2;
+      // H Pˢ Hᵀ
+      hph = 0 + h0 * c0 + h1 * c1 + h2 * c2;
+    } else for (let i = 0; i < n; i++) {
       hx += h[i]! * x[a]![k * n + i]!;
       let acc = 0;
       for (let j = 0; j < n; j++) acc += P[a]![Pk + covIndex(n, i, j)]! * h[j]!;
