@@ -515,6 +515,22 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
   return h;
 }
 
+/** sameState for one 3-state axis a: every element of x (at xo) and P (at po) within tol of the saved sx, sP (NaN: not). */
+function sameAxis3(x: Float64Array, P: Float64Array, xo: number, po: number, sx: Float64Array, sP: Float64Array, a: number, tol: number): boolean {
+  const sa = a * 3, pa = a * 6;
+  return Math.abs(x[xo]! - sx[sa]!) <= tol && Math.abs(x[xo + 1]! - sx[sa + 1]!) <= tol && Math.abs(x[xo + 2]! - sx[sa + 2]!) <= tol &&
+    Math.abs(P[po]! - sP[pa]!) <= tol && Math.abs(P[po + 1]! - sP[pa + 1]!) <= tol && Math.abs(P[po + 2]! - sP[pa + 2]!) <= tol &&
+    Math.abs(P[po + 3]! - sP[pa + 3]!) <= tol && Math.abs(P[po + 4]! - sP[pa + 4]!) <= tol && Math.abs(P[po + 5]! - sP[pa + 5]!) <= tol;
+}
+
+/** Save one 3-state axis a (x at xo, P at po) into sx, sP. */
+function saveAxis3(x: Float64Array, P: Float64Array, xo: number, po: number, sx: Float64Array, sP: Float64Array, a: number): void {
+  const sa = a * 3, pa = a * 6;
+  sx[sa] = x[xo]!; sx[sa + 1] = x[xo + 1]!; sx[sa + 2] = x[xo + 2]!;
+  sP[pa] = P[po]!; sP[pa + 1] = P[po + 1]!; sP[pa + 2] = P[po + 2]!;
+  sP[pa + 3] = P[po + 3]!; sP[pa + 4] = P[po + 4]!; sP[pa + 5] = P[po + 5]!;
+}
+
 /**
  * forwardFilter's loop for its common case: every axis n = 3, north (1) sharing east's (0)
  * covariances (horizontalShare), no q or r scale, no likelihood; 2 axes, or 3 with the vertical.
@@ -539,8 +555,6 @@ function forwardShared3(models: AxisModel[], data: SegmentData, opt: FilterOptio
   const e0 = hH[0]!, e1 = hH[1]!, e2 = hH[2]!;
   const v0 = hV[0]!, v1 = hV[1]!, v2 = hV[2]!;
   const nisA = h.nis, dofA = h.dof, thrA = h.threshold, accepted = h.accepted, logLik = h.logLik;
-  // P hᵀ of the horizontal axes (east's, shared by north) and of the vertical, for the updates
-  const wH = w.s[0]!.w, wV = up ? w.s[2]!.w : wH;
   const rewound = new Set<number>();
   let lastDt = NaN;
   let runStart = -1;
@@ -557,12 +571,7 @@ function forwardShared3(models: AxisModel[], data: SegmentData, opt: FilterOptio
       if (k > winStart) {
         // sameState at k − 1, written out for the 3-state axes
         const xo = (k - 1) * 3, po = (k - 1) * 6;
-        let same = true;
-        for (let a = 0; a < (up ? 3 : 2) && same; a++) {
-          const x = h.x[a]!, P = h.P[a]!;
-          for (let i = 0; i < 3; i++) if (!(Math.abs(x[xo + i]! - sx[a * 3 + i]!) <= tol)) same = false;
-          for (let i = 0; i < 6; i++) if (!(Math.abs(P[po + i]! - sP[a * 6 + i]!) <= tol)) same = false;
-        }
+        const same = sameAxis3(xE, PE, xo, po, sx, sP, 0, tol) && sameAxis3(xN, PN, xo, po, sx, sP, 1, tol) && (!up || sameAxis3(xU, PU, xo, po, sx, sP, 2, tol));
         if (same) {
           // same state, same inputs up to the next change: skip to it
           resume.windows.push(winStart, k - 1);
@@ -577,12 +586,9 @@ function forwardShared3(models: AxisModel[], data: SegmentData, opt: FilterOptio
       while (ci < resume.changed.length && resume.changed[ci]! <= k) ci++;
       if (use[k] === 1) throw new Error('forwardFilter: resume is for ungated passes (use 0 or 2)');
       const xo = k * 3, po = k * 6;
-      for (let a = 0; a < (up ? 3 : 2); a++) {
-        const x = h.x[a]!, P = h.P[a]!;
-        sx[a * 3] = x[xo]!; sx[a * 3 + 1] = x[xo + 1]!; sx[a * 3 + 2] = x[xo + 2]!;
-        sP[a * 6] = P[po]!; sP[a * 6 + 1] = P[po + 1]!; sP[a * 6 + 2] = P[po + 2]!;
-        sP[a * 6 + 3] = P[po + 3]!; sP[a * 6 + 4] = P[po + 4]!; sP[a * 6 + 5] = P[po + 5]!;
-      }
+      saveAxis3(xE, PE, xo, po, sx, sP, 0);
+      saveAxis3(xN, PN, xo, po, sx, sP, 1);
+      if (up) saveAxis3(xU, PU, xo, po, sx, sP, 2);
     }
     const xk = k * 3, pk = k * 6;
     // ---- prediction (or prior at the first epoch) ----
@@ -591,11 +597,54 @@ function forwardShared3(models: AxisModel[], data: SegmentData, opt: FilterOptio
       // Δt of this step; F, Q already in place unless it changed or the step has re-acquisition noise
       const dt = tSec[k]! - tSec[k - 1]!;
       if (dt !== lastDt || (h.extraQ.size > 0 && h.extraQ.has(k))) lastDt = ensureStep(models, data, h, k, null, w.F, w.Q, w.cache, lastDt);
-      // x⁻ = F x, P⁻ = F P Fᵀ + Q (east; north: its state, east's covariance)
-      predict3p(w.F[0]!, w.Q[0]!, xE, xk - 3, PE, pk - 6, xE, xk, PE, pk);
+      {
+        // east: x⁻ = F x, P⁻ = F P Fᵀ + Q (predict3p written out)
+        const F = w.F[0]!, Q = w.Q[0]!;
+        const f00 = F[0]!, f01 = F[1]!, f02 = F[2]!, f10 = F[3]!, f11 = F[4]!, f12 = F[5]!, f20 = F[6]!, f21 = F[7]!, f22 = F[8]!;
+        const x0 = xE[xk - 3]!, x1 = xE[xk - 2]!, x2 = xE[xk - 1]!;
+        const p00 = PE[pk - 6]!, p01 = PE[pk - 5]!, p02 = PE[pk - 4]!, p11 = PE[pk - 3]!, p12 = PE[pk - 2]!, p22 = PE[pk - 1]!;
+        // x⁻ = F x
+        xE[xk] = f00 * x0 + f01 * x1 + f02 * x2;
+        xE[xk + 1] = f10 * x0 + f11 * x1 + f12 * x2;
+        xE[xk + 2] = f20 * x0 + f21 * x1 + f22 * x2;
+        // A = F P
+        const a00 = f00 * p00 + f01 * p01 + f02 * p02, a01 = f00 * p01 + f01 * p11 + f02 * p12, a02 = f00 * p02 + f01 * p12 + f02 * p22;
+        const a10 = f10 * p00 + f11 * p01 + f12 * p02, a11 = f10 * p01 + f11 * p11 + f12 * p12, a12 = f10 * p02 + f11 * p12 + f12 * p22;
+        const a20 = f20 * p00 + f21 * p01 + f22 * p02, a21 = f20 * p01 + f21 * p11 + f22 * p12, a22 = f20 * p02 + f21 * p12 + f22 * p22;
+        // P⁻ = A Fᵀ + Q (upper triangle)
+        PE[pk] = Q[0]! + a00 * f00 + a01 * f01 + a02 * f02;
+        PE[pk + 1] = Q[1]! + a00 * f10 + a01 * f11 + a02 * f12;
+        PE[pk + 2] = Q[2]! + a00 * f20 + a01 * f21 + a02 * f22;
+        PE[pk + 3] = Q[4]! + a10 * f10 + a11 * f11 + a12 * f12;
+        PE[pk + 4] = Q[5]! + a10 * f20 + a11 * f21 + a12 * f22;
+        PE[pk + 5] = Q[8]! + a20 * f20 + a21 * f21 + a22 * f22;
+      }
+      // north: its state (x⁻ = F x), east's covariance
       predictState3(w.F[1]!, xN, xk - 3, xN, xk);
       copy6(PE, PN, pk);
-      if (up) predict3p(w.F[2]!, w.Q[2]!, xU, xk - 3, PU, pk - 6, xU, xk, PU, pk);
+      if (up)
+      {
+        // up: x⁻ = F x, P⁻ = F P Fᵀ + Q (predict3p written out)
+        const F = w.F[2]!, Q = w.Q[2]!;
+        const f00 = F[0]!, f01 = F[1]!, f02 = F[2]!, f10 = F[3]!, f11 = F[4]!, f12 = F[5]!, f20 = F[6]!, f21 = F[7]!, f22 = F[8]!;
+        const x0 = xU[xk - 3]!, x1 = xU[xk - 2]!, x2 = xU[xk - 1]!;
+        const p00 = PU[pk - 6]!, p01 = PU[pk - 5]!, p02 = PU[pk - 4]!, p11 = PU[pk - 3]!, p12 = PU[pk - 2]!, p22 = PU[pk - 1]!;
+        // x⁻ = F x
+        xU[xk] = f00 * x0 + f01 * x1 + f02 * x2;
+        xU[xk + 1] = f10 * x0 + f11 * x1 + f12 * x2;
+        xU[xk + 2] = f20 * x0 + f21 * x1 + f22 * x2;
+        // A = F P
+        const a00 = f00 * p00 + f01 * p01 + f02 * p02, a01 = f00 * p01 + f01 * p11 + f02 * p12, a02 = f00 * p02 + f01 * p12 + f02 * p22;
+        const a10 = f10 * p00 + f11 * p01 + f12 * p02, a11 = f10 * p01 + f11 * p11 + f12 * p12, a12 = f10 * p02 + f11 * p12 + f12 * p22;
+        const a20 = f20 * p00 + f21 * p01 + f22 * p02, a21 = f20 * p01 + f21 * p11 + f22 * p12, a22 = f20 * p02 + f21 * p12 + f22 * p22;
+        // P⁻ = A Fᵀ + Q (upper triangle)
+        PU[pk] = Q[0]! + a00 * f00 + a01 * f01 + a02 * f02;
+        PU[pk + 1] = Q[1]! + a00 * f10 + a01 * f11 + a02 * f12;
+        PU[pk + 2] = Q[2]! + a00 * f20 + a01 * f21 + a02 * f22;
+        PU[pk + 3] = Q[4]! + a10 * f10 + a11 * f11 + a12 * f12;
+        PU[pk + 4] = Q[5]! + a10 * f20 + a11 * f21 + a12 * f22;
+        PU[pk + 5] = Q[8]! + a20 * f20 + a21 * f21 + a22 * f22;
+      }
     }
     accepted[k] = 0;
     logLik[k] = 0;
@@ -613,7 +662,7 @@ function forwardShared3(models: AxisModel[], data: SegmentData, opt: FilterOptio
     // horizontal: east and north are measured together (horizontalShare); r · rScale = r (no scale)
     const ze = zE[k]!;
     const hasH = Number.isFinite(ze);
-    let nuE = 0, nuN = 0, SH = NaN;
+    let nuE = 0, nuN = 0, SH = NaN, wH0 = 0, wH1 = 0, wH2 = 0;
     if (hasH) {
       const r = rE[k]!;
       const p00 = PE[pk]!, p01 = PE[pk + 1]!, p02 = PE[pk + 2]!, p11 = PE[pk + 3]!, p12 = PE[pk + 4]!, p22 = PE[pk + 5]!;
@@ -621,7 +670,7 @@ function forwardShared3(models: AxisModel[], data: SegmentData, opt: FilterOptio
       const w0 = p00 * e0 + p01 * e1 + p02 * e2;
       const w1 = p01 * e0 + p11 * e1 + p12 * e2;
       const w2 = p02 * e0 + p12 * e1 + p22 * e2;
-      wH[0] = w0; wH[1] = w1; wH[2] = w2;
+      wH0 = w0; wH1 = w1; wH2 = w2;
       // S = h P hᵀ + r (east's; north's is the same numbers)
       SH = r + e0 * w0 + e1 * w1 + e2 * w2;
       // ν = z − h x⁻
@@ -635,7 +684,7 @@ function forwardShared3(models: AxisModel[], data: SegmentData, opt: FilterOptio
     }
     const zu = up ? zU[k]! : NaN;
     const hasU = up && Number.isFinite(zu);
-    let nuU = 0, SU = NaN, rVk = 0;
+    let nuU = 0, SU = NaN, rVk = 0, wV0 = 0, wV1 = 0, wV2 = 0;
     if (hasU) {
       rVk = rU[k]!;
       const p00 = PU[pk]!, p01 = PU[pk + 1]!, p02 = PU[pk + 2]!, p11 = PU[pk + 3]!, p12 = PU[pk + 4]!, p22 = PU[pk + 5]!;
@@ -643,7 +692,7 @@ function forwardShared3(models: AxisModel[], data: SegmentData, opt: FilterOptio
       const w0 = p00 * v0 + p01 * v1 + p02 * v2;
       const w1 = p01 * v0 + p11 * v1 + p12 * v2;
       const w2 = p02 * v0 + p12 * v1 + p22 * v2;
-      wV[0] = w0; wV[1] = w1; wV[2] = w2;
+      wV0 = w0; wV1 = w1; wV2 = w2;
       // S = h P hᵀ + r
       SU = rVk + v0 * w0 + v1 * w1 + v2 * w2;
       // ν = z − h x⁻
@@ -662,12 +711,55 @@ function forwardShared3(models: AxisModel[], data: SegmentData, opt: FilterOptio
     if (u === 2 || nis <= thr) {
       // an axis whose S is not finite is not updated (as in the general loop)
       if (Number.isFinite(SH)) {
-        updateJoseph3p(hH, nuE, SH, rE[k]!, wH, xE, xk, PE, pk);
+        {
+          // updateJoseph3p written out: K = P hᵀ S⁻¹, x ← x + K ν, P ← P − K wᵀ − w Kᵀ + (h P hᵀ + r) K Kᵀ
+          const w0 = wH0, w1 = wH1, w2 = wH2;
+          // K = P hᵀ S⁻¹
+          const k0 = w0 / SH, k1 = w1 / SH, k2 = w2 / SH;
+          // x ← x + K ν
+          xE[xk] += k0 * nuE;
+          xE[xk + 1] += k1 * nuE;
+          xE[xk + 2] += k2 * nuE;
+          // h P hᵀ recomputed from w (= S − r up to rounding), as updateJoseph3p
+          const c = e0 * w0 + e1 * w1 + e2 * w2 + rE[k]!;
+          // P ← P − K wᵀ − w Kᵀ + (h P hᵀ + r) K Kᵀ
+          const n00 = PE[pk]! - 2 * k0 * w0 + c * k0 * k0;
+          const n01 = PE[pk + 1]! - k0 * w1 - w0 * k1 + c * k0 * k1;
+          const n02 = PE[pk + 2]! - k0 * w2 - w0 * k2 + c * k0 * k2;
+          const n11 = PE[pk + 3]! - 2 * k1 * w1 + c * k1 * k1;
+          const n12 = PE[pk + 4]! - k1 * w2 - w1 * k2 + c * k1 * k2;
+          const n22 = PE[pk + 5]! - 2 * k2 * w2 + c * k2 * k2;
+          PE[pk] = n00; PE[pk + 1] = n01; PE[pk + 2] = n02;
+          PE[pk + 3] = n11; PE[pk + 4] = n12; PE[pk + 5] = n22;
+        }
         // K = P hᵀ S⁻¹, x ← x + K ν (north, with east's P hᵀ and S); P: east's updated one
-        updateState3(nuN, SH, wH, xN, xk);
+        xN[xk] += (wH0 / SH) * nuN;
+        xN[xk + 1] += (wH1 / SH) * nuN;
+        xN[xk + 2] += (wH2 / SH) * nuN;
         copy6(PE, PN, pk);
       }
-      if (Number.isFinite(SU)) updateJoseph3p(hV, nuU, SU, rVk, wV, xU, xk, PU, pk);
+      if (Number.isFinite(SU))
+        {
+          // updateJoseph3p written out: K = P hᵀ S⁻¹, x ← x + K ν, P ← P − K wᵀ − w Kᵀ + (h P hᵀ + r) K Kᵀ
+          const w0 = wV0, w1 = wV1, w2 = wV2;
+          // K = P hᵀ S⁻¹
+          const k0 = w0 / SU, k1 = w1 / SU, k2 = w2 / SU;
+          // x ← x + K ν
+          xU[xk] += k0 * nuU;
+          xU[xk + 1] += k1 * nuU;
+          xU[xk + 2] += k2 * nuU;
+          // h P hᵀ recomputed from w (= S − r up to rounding), as updateJoseph3p
+          const c = v0 * w0 + v1 * w1 + v2 * w2 + rVk;
+          // P ← P − K wᵀ − w Kᵀ + (h P hᵀ + r) K Kᵀ
+          const n00 = PU[pk]! - 2 * k0 * w0 + c * k0 * k0;
+          const n01 = PU[pk + 1]! - k0 * w1 - w0 * k1 + c * k0 * k1;
+          const n02 = PU[pk + 2]! - k0 * w2 - w0 * k2 + c * k0 * k2;
+          const n11 = PU[pk + 3]! - 2 * k1 * w1 + c * k1 * k1;
+          const n12 = PU[pk + 4]! - k1 * w2 - w1 * k2 + c * k1 * k2;
+          const n22 = PU[pk + 5]! - 2 * k2 * w2 + c * k2 * k2;
+          PU[pk] = n00; PU[pk + 1] = n01; PU[pk + 2] = n02;
+          PU[pk + 3] = n11; PU[pk + 4] = n12; PU[pk + 5] = n22;
+        }
       accepted[k] = 1;
       runStart = -1;
       runCount = 0;
