@@ -8,7 +8,8 @@ import { describe, expect, it } from 'vitest';
 import { makeAxisModel } from '../../src/models/axis-model.js';
 import { forwardFilter } from '../../src/estimation/track-filter.js';
 import { smoothInPlace } from '../../src/estimation/track-smoother.js';
-import { reviewStatistic } from '../../src/estimation/review.js';
+import { reviewStatistic, reviewStatisticsRange } from '../../src/estimation/review.js';
+import { reviewThresholds } from '../../src/session/review-decisions.js';
 import { refReviewStatistic } from '../helpers/reference-review.js';
 import { segmentCase } from '../helpers/history-compare.js';
 
@@ -34,6 +35,43 @@ describe('reviewStatistic: the n = 3 form against the previous one', () => {
         expect(a.dof).toBe(b.dof);
         for (let i = 0; i < na.length; i++) expect(Object.is(na[i], nb[i])).toBe(true);
       }
+  });
+
+  it.each([
+    ['vehicle', 5, 1],
+    ['drone', 7, 5],
+  ] as const)('reviewStatisticsRange = the previous reviewStatistic epoch by epoch (%s seed %i at %i Hz; n = 3 and a 4-state vertical)', (kind, seed, rateHz) => {
+    const { models, data, opt } = segmentCase(kind, seed, rateHz);
+    const r = rng(seed);
+    const offered = Uint8Array.from(data.use, (u) => (u === 0 ? 0 : r() < 0.05 ? 2 : 1));
+    const kept = Uint8Array.from(data.use, () => (r() < 0.9 ? 1 : 0));
+    const thr = reviewThresholds(0.999).reject;
+    const m4 = makeAxisModel({ motion: 'ca', q: 0.05, gm: { sigmaM: 3, tauSec: 60 } });
+    for (const ms of [models, [models[0]!, models[1]!, m4]]) {
+      const h = forwardFilter(ms, data, opt);
+      smoothInPlace(ms, data, h);
+      const N = data.N;
+      const Ta = new Float64Array(N).fill(NaN), Tb = Ta.slice();
+      const da = new Uint8Array(N), db = new Uint8Array(N);
+      const tha = new Float64Array(N).fill(NaN), thb = tha.slice();
+      const nu = new Float64Array(3);
+      const ranges: Array<[number, number]> = [[0, N - 1], [5, 5], [N - 1, N - 1], [10, Math.min(400, N - 1)]];
+      for (const [a, b] of ranges) {
+        reviewStatisticsRange(ms, h.x, h.P, a, b, data.z, data.r, offered, kept, Ta, da, tha, thr, nu);
+        for (let k = a; k <= b; k++) {
+          if (offered[k] !== 1) continue;
+          const st = refReviewStatistic(ms, h.x, h.P, k, data.z, data.r, kept[k] === 1, nu);
+          Tb[k] = st.T;
+          db[k] = st.dof;
+          thb[k] = thr[st.dof]!;
+        }
+        for (let k = 0; k < N; k++) {
+          expect(Object.is(Ta[k], Tb[k])).toBe(true);
+          expect(da[k]).toBe(db[k]);
+          expect(Object.is(tha[k], thb[k])).toBe(true);
+        }
+      }
+    }
   });
 
   it('seeded random states, covariances and H rows with signed zeros (n = 3 and 4)', () => {
