@@ -8,7 +8,7 @@ import type { AxisModel } from '../models/axis-model.js';
 import { NumericalError } from '../errors.js';
 import { makeScratch } from './kalman.js';
 import { makeRtsScratch, rtsStep } from './rts.js';
-import { rtsState3, rtsStep3p } from './kalman3.js';
+import { rtsState3, rtsState3From, rtsStep3p, rtsStep3pFrom } from './kalman3.js';
 import { copy6, covStride, ensureStep, makeStepCache, type FilterHistory, type SegmentData } from './track-filter.js';
 
 /**
@@ -119,6 +119,7 @@ export function resmoothWindows(
   // the RTS step at k + 1 was computed just before this epoch's, with north sharing east's covariance
   let sharedNext = false;
   const gT = new Float64Array(9);
+  if (canShare && (nAx === 2 || (nAx === 3 && models[2]!.n === 3))) return resmoothShared3(models, data, f, s, windows, qScale, tol, changedOut, F, Q, cache, gT);
   let wi = windows.length / 2 - 1;
   let dirty = false;
   let count = 0;
@@ -190,4 +191,113 @@ export function resmoothWindows(
   }
   if (runTop >= 0) changedOut.push(runTop, Math.max(k + 1, 0));
   return count;
+}
+
+/**
+ * resmoothWindows for its common case: every axis n = 3 and east/north able to share (see
+ * smootherCanShare), 2 axes or 3. The same epochs in the same order and the same decisions; per
+ * epoch, instead of copying the filtered epoch into `s` and smoothing it in place, the RTS step
+ * reads it from `f` (rtsStep3pFrom, rtsState3From: the same operations), and the old smoothed
+ * values are kept in locals for the comparison. Bit for bit the general loop's result
+ * (test/estimation/smoother-share.test.ts, against the previous form in
+ * test/helpers/reference-track-smoother.ts).
+ */
+function resmoothShared3(
+  models: AxisModel[],
+  data: SegmentData,
+  f: FilterHistory,
+  s: FilterHistory,
+  windows: number[],
+  qScale: Float64Array[] | null | undefined,
+  tol: number,
+  changedOut: number[],
+  F: Float64Array[],
+  Q: Float64Array[],
+  cache: ReturnType<typeof makeStepCache>,
+  gT: Float64Array,
+): number {
+  const N = f.N;
+  const up = models.length === 3;
+  const fxE = f.x[0]!, fxN = f.x[1]!, fxU = up ? f.x[2]! : fxE;
+  const fPE = f.P[0]!, fPN = f.P[1]!, fPU = up ? f.P[2]! : fPE;
+  const xE = s.x[0]!, xN = s.x[1]!, xU = up ? s.x[2]! : xE;
+  const PE = s.P[0]!, PN = s.P[1]!, PU = up ? s.P[2]! : PE;
+  // old smoothed values of the epoch being recomputed: x (3 per axis) and P (6 per axis)
+  const o = new Float64Array(27);
+  let lastDt = NaN;
+  let sharedNext = false;
+  let wi = windows.length / 2 - 1;
+  let dirty = false;
+  let count = 0;
+  let runTop = -1;
+  let k = N - 1;
+  while (k >= 0) {
+    while (wi >= 0 && windows[2 * wi]! > k) wi--;
+    const inWin = wi >= 0 && k <= windows[2 * wi + 1]!;
+    if (!dirty && !inWin) {
+      if (runTop >= 0) changedOut.push(runTop, k + 1);
+      runTop = -1;
+      if (wi < 0) break;
+      // clean: jump to the last epoch of the next window below
+      k = windows[2 * wi + 1]!;
+      sharedNext = false;
+      continue;
+    }
+    if (runTop < 0) runTop = k;
+    const xk = k * 3, Pk = k * 6;
+    save3(xE, PE, xk, Pk, o, 0);
+    save3(xN, PN, xk, Pk, o, 1);
+    if (up) save3(xU, PU, xk, Pk, o, 2);
+    if (k < N - 1) {
+      lastDt = ensureStep(models, data, s, k + 1, qScale, F, Q, cache, lastDt);
+      // filtered covariances at k and smoothed ones at k + 1 equal (see smootherCanShare)
+      const share: boolean = (sharedNext || sameCov6(PE, PN, Pk + 6)) && sameCov6(fPE, fPN, Pk);
+      const xk1 = xk + 3, Pk1 = Pk + 6;
+      if (!rtsStep3pFrom(F[0]!, Q[0]!, fxE, fPE, xE, xk, xk1, PE, Pk, Pk1, share ? gT : undefined)) throw notPd(k);
+      if (share) {
+        rtsState3From(F[1]!, gT, fxN, xN, xk, xk1);
+        copy6(PE, PN, Pk);
+      } else if (!rtsStep3pFrom(F[1]!, Q[1]!, fxN, fPN, xN, xk, xk1, PN, Pk, Pk1)) throw notPd(k);
+      if (up && !rtsStep3pFrom(F[2]!, Q[2]!, fxU, fPU, xU, xk, xk1, PU, Pk, Pk1)) throw notPd(k);
+      sharedNext = share;
+    } else {
+      // the last epoch: smoothed = filtered
+      copy3(fxE, fPE, xE, PE, xk, Pk);
+      copy3(fxN, fPN, xN, PN, xk, Pk);
+      if (up) copy3(fxU, fPU, xU, PU, xk, Pk);
+      sharedNext = false;
+    }
+    dirty = !(near3(xE, PE, xk, Pk, o, 0, tol) && near3(xN, PN, xk, Pk, o, 1, tol) && (!up || near3(xU, PU, xk, Pk, o, 2, tol)));
+    count++;
+    k--;
+  }
+  if (runTop >= 0) changedOut.push(runTop, Math.max(k + 1, 0));
+  return count;
+}
+
+function notPd(k: number): NumericalError {
+  return new NumericalError(`smoother: predicted covariance not positive definite at epoch ${k + 1}`);
+}
+
+/** Save epoch k of one 3-state axis (x at xk, P at Pk) into o at axis a (x at 9a, P at 9a + 3). */
+function save3(x: Float64Array, P: Float64Array, xk: number, Pk: number, o: Float64Array, a: number): void {
+  const b = a * 9;
+  o[b] = x[xk]!; o[b + 1] = x[xk + 1]!; o[b + 2] = x[xk + 2]!;
+  o[b + 3] = P[Pk]!; o[b + 4] = P[Pk + 1]!; o[b + 5] = P[Pk + 2]!;
+  o[b + 6] = P[Pk + 3]!; o[b + 7] = P[Pk + 4]!; o[b + 8] = P[Pk + 5]!;
+}
+
+/** Copy epoch k of one 3-state axis from (fx, fP) to (x, P). */
+function copy3(fx: Float64Array, fP: Float64Array, x: Float64Array, P: Float64Array, xk: number, Pk: number): void {
+  x[xk] = fx[xk]!; x[xk + 1] = fx[xk + 1]!; x[xk + 2] = fx[xk + 2]!;
+  P[Pk] = fP[Pk]!; P[Pk + 1] = fP[Pk + 1]!; P[Pk + 2] = fP[Pk + 2]!;
+  P[Pk + 3] = fP[Pk + 3]!; P[Pk + 4] = fP[Pk + 4]!; P[Pk + 5] = fP[Pk + 5]!;
+}
+
+/** Whether epoch k of one 3-state axis is within tol of the values saved by save3 (NaN: not). */
+function near3(x: Float64Array, P: Float64Array, xk: number, Pk: number, o: Float64Array, a: number, tol: number): boolean {
+  const b = a * 9;
+  return Math.abs(x[xk]! - o[b]!) <= tol && Math.abs(x[xk + 1]! - o[b + 1]!) <= tol && Math.abs(x[xk + 2]! - o[b + 2]!) <= tol &&
+    Math.abs(P[Pk]! - o[b + 3]!) <= tol && Math.abs(P[Pk + 1]! - o[b + 4]!) <= tol && Math.abs(P[Pk + 2]! - o[b + 5]!) <= tol &&
+    Math.abs(P[Pk + 3]! - o[b + 6]!) <= tol && Math.abs(P[Pk + 4]! - o[b + 7]!) <= tol && Math.abs(P[Pk + 5]! - o[b + 8]!) <= tol;
 }

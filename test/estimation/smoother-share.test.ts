@@ -36,11 +36,12 @@ function perturbNorth(h: FilterHistory, seed: number): void {
 
 describe('smoother: east/north sharing per epoch against the previous form', () => {
   it.each([
-    ['vehicle', 5, 1],
-    ['vehicle', 6, 10],
-    ['drone', 7, 5],
-  ] as const)('%s seed %i at %i Hz', (kind, seed, rateHz) => {
-    const { models, data, opt } = segmentCase(kind, seed, rateHz);
+    ['vehicle', 5, 1, false],
+    ['vehicle', 6, 10, false],
+    ['drone', 7, 5, false],
+    ['vehicle', 1, 1, true],
+  ] as const)('%s seed %i at %i Hz (no height: %s)', (kind, seed, rateHz, noHeight = false) => {
+    const { models, data, opt } = segmentCase(kind, seed, rateHz, noHeight);
     const separate = [models[0]!, makeAxisModel(models[0]!.params), ...models.slice(2)];
     for (const perturb of [false, true])
       for (const ms of perturb ? [models] : [models, separate]) {
@@ -86,6 +87,13 @@ describe('smoother: east/north sharing per epoch against the previous form', () 
           const ca: number[] = [], cb: number[] = [];
           const na = resmoothWindows(ms, work, fa, sa, windows, null, tol, ca);
           const nb = refResmoothWindows(ms, work, fb, sb, windows, null, tol, cb);
+          // and under a shared per-epoch q scale (into copies of the smoothed histories)
+          const qs = Float64Array.from({ length: data.N }, (_, k) => 1 + (k % 7) / 10);
+          const q = ms.map(() => qs);
+          const sa2 = clone(sa), sb2 = clone(sb), ca2: number[] = [], cb2: number[] = [];
+          expect(resmoothWindows(ms, work, fa, sa2, windows, q, tol, ca2)).toBe(refResmoothWindows(ms, work, fb, sb2, windows, q, tol, cb2));
+          expect(ca2).toEqual(cb2);
+          expectSameHistory(sa2, sb2);
           expect(na).toBe(nb);
           expect(ca).toEqual(cb);
           expectSameHistory(sa, sb);
