@@ -76,6 +76,8 @@ export function smoothInPlace(models: AxisModel[], data: SegmentData, h: FilterH
  * for a later re-run with resmoothWindows). Same arithmetic as smoothInPlace on a copy.
  */
 export function smoothInto(models: AxisModel[], data: SegmentData, f: FilterHistory, s: FilterHistory, qScale?: Float64Array[] | null): void {
+  const nAx = models.length;
+  if (smootherCanShare(models, qScale) && (nAx === 2 || (nAx === 3 && models[2]!.n === 3)) && f.N > 0) return smoothIntoShared3(models, data, f, s, qScale);
   for (let a = 0; a < models.length; a++) {
     s.x[a]!.set(f.x[a]!);
     s.P[a]!.set(f.P[a]!);
@@ -300,4 +302,45 @@ function near3(x: Float64Array, P: Float64Array, xk: number, Pk: number, o: Floa
   return Math.abs(x[xk]! - o[b]!) <= tol && Math.abs(x[xk + 1]! - o[b + 1]!) <= tol && Math.abs(x[xk + 2]! - o[b + 2]!) <= tol &&
     Math.abs(P[Pk]! - o[b + 3]!) <= tol && Math.abs(P[Pk + 1]! - o[b + 4]!) <= tol && Math.abs(P[Pk + 2]! - o[b + 5]!) <= tol &&
     Math.abs(P[Pk + 3]! - o[b + 6]!) <= tol && Math.abs(P[Pk + 4]! - o[b + 7]!) <= tol && Math.abs(P[Pk + 5]! - o[b + 8]!) <= tol;
+}
+
+/**
+ * smoothInto for n = 3 on every axis with east/north able to share: the RTS step reads each
+ * filtered epoch from `f` (rtsStep3pFrom, rtsState3From) instead of copying the whole history into
+ * `s` first and smoothing it in place; the same steps, sharing decisions and operations as that
+ * copy and smoothInPlace, so the same bits (test/estimation/smoother-share.test.ts).
+ */
+function smoothIntoShared3(models: AxisModel[], data: SegmentData, f: FilterHistory, s: FilterHistory, qScale: Float64Array[] | null | undefined): void {
+  const N = f.N;
+  const up = models.length === 3;
+  const fxE = f.x[0]!, fxN = f.x[1]!, fxU = up ? f.x[2]! : fxE;
+  const fPE = f.P[0]!, fPN = f.P[1]!, fPU = up ? f.P[2]! : fPE;
+  const xE = s.x[0]!, xN = s.x[1]!, xU = up ? s.x[2]! : xE;
+  const PE = s.P[0]!, PN = s.P[1]!, PU = up ? s.P[2]! : PE;
+  s.extraQ = f.extraQ;
+  const F = models.map((m) => new Float64Array(m.n * m.n));
+  const Q = models.map((m) => new Float64Array(m.n * m.n));
+  const cache = makeStepCache(models.length, models.map((m) => m.n));
+  const gT = new Float64Array(9);
+  // the last epoch: smoothed = filtered
+  const xl = (N - 1) * 3, Pl = (N - 1) * 6;
+  copy3(fxE, fPE, xE, PE, xl, Pl);
+  copy3(fxN, fPN, xN, PN, xl, Pl);
+  if (up) copy3(fxU, fPU, xU, PU, xl, Pl);
+  let lastDt = NaN;
+  // whether the two horizontal covariances at k + 1 (smoothed) are the same numbers
+  let nextSame = sameCov6(PE, PN, Pl);
+  for (let k = N - 2; k >= 0; k--) {
+    lastDt = ensureStep(models, data, s, k + 1, qScale, F, Q, cache, lastDt);
+    const xk = k * 3, Pk = k * 6, xk1 = xk + 3, Pk1 = Pk + 6;
+    const share = nextSame && sameCov6(fPE, fPN, Pk);
+    if (!rtsStep3pFrom(F[0]!, Q[0]!, fxE, fPE, xE, xk, xk1, PE, Pk, Pk1, share ? gT : undefined)) throw notPd(k);
+    if (share) {
+      rtsState3From(F[1]!, gT, fxN, xN, xk, xk1);
+      copy6(PE, PN, Pk);
+    } else if (!rtsStep3pFrom(F[1]!, Q[1]!, fxN, fPN, xN, xk, xk1, PN, Pk, Pk1)) throw notPd(k);
+    if (up && !rtsStep3pFrom(F[2]!, Q[2]!, fxU, fPU, xU, xk, xk1, PU, Pk, Pk1)) throw notPd(k);
+    // shared: north's covariance at k is a copy of east's
+    nextSame = share || sameCov6(PE, PN, Pk);
+  }
 }

@@ -63,6 +63,15 @@ describe('smoother: east/north sharing per epoch against the previous form', () 
         smoothInto(ms, work, fa, sa);
         refSmoothInto(ms, work, fb, sb);
         expectSameHistory(sa, sb);
+        {
+          // under a shared per-epoch q scale
+          const q = ms.map(() => Float64Array.from({ length: data.N }, (_, k) => 1 + (k % 5) / 10));
+          q[1] = q[0]!;
+          const sa2 = clone(sa), sb2 = clone(sb);
+          smoothInto(ms, work, fa, sa2, q);
+          refSmoothInto(ms, work, fb, sb2, q);
+          expectSameHistory(sa2, sb2);
+        }
         const r = rng(seed + 17);
         for (const tol of [0, 1e-6, 0, 1e-6]) {
           const changed: number[] = [];
