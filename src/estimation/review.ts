@@ -44,7 +44,21 @@ export function reviewStatistic(
     let hx = 0;
     let hph = 0;
     const Pk = k * covStride(n);
-    for (let i = 0; i < n; i++) {
+    if (n === 3) {
+      // the loops below written out for n = 3 on the packed triangle [p00, p01, p02, p11, p12, p22],
+      // in their order of operations (sums start from 0, as the loops' do), so the same bits
+      const Pa = P[a]!, xa = x[a]!, xk = k * 3;
+      const h0 = h[0]!, h1 = h[1]!, h2 = h[2]!;
+      const p00 = Pa[Pk]!, p01 = Pa[Pk + 1]!, p02 = Pa[Pk + 2]!, p11 = Pa[Pk + 3]!, p12 = Pa[Pk + 4]!, p22 = Pa[Pk + 5]!;
+      // H xˢ
+      hx = 0 + h0 * xa[xk]! + h1 * xa[xk + 1]! + h2 * xa[xk + 2]!;
+      // P hᵀ, row by row
+      const c0 = 0 + p00 * h0 + p01 * h1 + p02 * h2;
+      const c1 = 0 + p01 * h0 + p11 * h1 + p12 * h2;
+      const c2 = 0 + p02 * h0 + p12 * h1 + p22 * h2;
+      // H Pˢ Hᵀ
+      hph = 0 + h0 * c0 + h1 * c1 + h2 * c2;
+    } else for (let i = 0; i < n; i++) {
       hx += h[i]! * x[a]![k * n + i]!;
       let acc = 0;
       for (let j = 0; j < n; j++) acc += P[a]![Pk + covIndex(n, i, j)]! * h[j]!;
@@ -60,4 +74,73 @@ export function reviewStatistic(
     dof++;
   }
   return { T, dof };
+}
+
+/**
+ * The review statistic of every gated fix (offered[k] === 1) at epochs from..to (inclusive), into
+ * T[k], dof[k] and threshold[k] = thr[dof]: reviewStatistic at each such epoch (used = kept[k] === 1),
+ * with the arrays of the axes looked up once. Models with n = 3 on every axis take reviewStatistic's
+ * n = 3 arithmetic written out here (the same operations, so the same bits; test/estimation/
+ * review-statistic.test.ts); any other model goes through reviewStatistic.
+ */
+export function reviewStatisticsRange(
+  models: AxisModel[],
+  x: Float64Array[],
+  P: Float64Array[],
+  from: number,
+  to: number,
+  z: Float64Array[],
+  r: Float64Array[],
+  offered: Uint8Array,
+  kept: Uint8Array,
+  T: Float64Array,
+  dof: Uint8Array,
+  threshold: Float64Array,
+  thr: readonly number[],
+  nuScratch: Float64Array,
+): void {
+  const nAx = models.length;
+  if (!models.every((m) => m.n === 3) || nAx > 3) {
+    for (let k = from; k <= to; k++) {
+      if (offered[k] !== 1) continue;
+      const st = reviewStatistic(models, x, P, k, z, r, kept[k] === 1, nuScratch);
+      T[k] = st.T;
+      dof[k] = st.dof;
+      threshold[k] = thr[st.dof]!;
+    }
+    return;
+  }
+  for (let k = from; k <= to; k++) {
+    if (offered[k] !== 1) continue;
+    const used = kept[k] === 1;
+    let t = 0;
+    let d = 0;
+    const xk = k * 3, Pk = k * 6;
+    for (let a = 0; a < nAx; a++) {
+      const zk = z[a]![k]!;
+      if (!Number.isFinite(zk)) continue;
+      const h = models[a]!.h;
+      const Pa = P[a]!, xa = x[a]!;
+      const h0 = h[0]!, h1 = h[1]!, h2 = h[2]!;
+      const p00 = Pa[Pk]!, p01 = Pa[Pk + 1]!, p02 = Pa[Pk + 2]!, p11 = Pa[Pk + 3]!, p12 = Pa[Pk + 4]!, p22 = Pa[Pk + 5]!;
+      // H xˢ
+      const hx = 0 + h0 * xa[xk]! + h1 * xa[xk + 1]! + h2 * xa[xk + 2]!;
+      // P hᵀ, row by row
+      const c0 = 0 + p00 * h0 + p01 * h1 + p02 * h2;
+      const c1 = 0 + p01 * h0 + p11 * h1 + p12 * h2;
+      const c2 = 0 + p02 * h0 + p12 * h1 + p22 * h2;
+      // H Pˢ Hᵀ
+      const hph = 0 + h0 * c0 + h1 * c1 + h2 * c2;
+      const rk = r[a]![k]!;
+      // ν = z − H xˢ
+      const nu = zk - hx;
+      // var(ν) = R ∓ H Pˢ Hᵀ
+      const v = used ? Math.max(rk - hph, MIN_RESIDUAL_SHARE * rk) : rk + hph;
+      t += (nu * nu) / v;
+      d++;
+    }
+    T[k] = t;
+    dof[k] = d;
+    threshold[k] = thr[d]!;
+  }
 }

@@ -313,6 +313,58 @@ function sameState(models: AxisModel[], h: FilterHistory, k: number, sx: Float64
   return true;
 }
 
+/** The prior at the first epoch: position at the first fix (or 0), diffuse kinematics, stationary GM error. */
+function writePrior(models: AxisModel[], data: SegmentData, opt: FilterOptions, h: FilterHistory): void {
+  for (let a = 0; a < models.length; a++) {
+    const m = models[a]!;
+    const n = m.n;
+    const x = h.x[a]!;
+    const P = h.P[a]!;
+    x.fill(0, 0, n);
+    P.fill(0, 0, covStride(n));
+    const z0 = data.z[a]![0]!;
+    x[0] = Number.isFinite(z0) ? z0 : 0;
+    for (let i = 0; i < m.nMotion; i++) P[covIndex(n, i, i)] = opt.priorVar[i]!;
+    if (m.iBias >= 0) P[covIndex(n, m.iBias, m.iBias)] = m.params.gm!.sigmaM ** 2;
+  }
+}
+
+/**
+ * Re-acquisition after the run of rejections runStart..k: records the extra process noise of the
+ * step ending at runStart (per axis, from the largest miss over the run) and the epoch.
+ */
+function recordReacquisition(models: AxisModel[], data: SegmentData, h: FilterHistory, k: number, runStart: number): void {
+  const nAx = models.length;
+  const extra: Float64Array[] = [];
+  const span = Math.max(data.tSec[k]! - data.tSec[runStart - 1]!, 1e-3);
+  const misses: number[] = [];
+  for (let a = 0; a < nAx; a++) {
+    const m = models[a]!;
+    // largest miss of this axis over the run: rejected epochs hold only their prediction, so
+    // z − H x⁻ there is the innovation the gate rejected
+    let miss = 0;
+    for (let j = runStart; j <= k; j++) {
+      const z = data.z[a]![j]!;
+      if (Number.isFinite(z) && data.use[j]) miss = Math.max(miss, Math.abs(z - h.x[a]![j * m.n]! - (m.iBias >= 0 ? h.x[a]![j * m.n + m.iBias]! : 0)));
+    }
+    misses.push(miss);
+  }
+  // the horizontal axes (0 east, 1 north) are inflated alike, by the larger miss of the two (a
+  // horizontal manoeuvre loses both; and their covariances stay equal, see horizontalShare)
+  if (nAx >= 2) misses[0] = misses[1] = Math.max(misses[0]!, misses[1]!);
+  for (let a = 0; a < nAx; a++) {
+    const m = models[a]!;
+    const miss = misses[a]!;
+    const e = new Float64Array(m.n);
+    e[0] = miss * miss;
+    if (m.nMotion > 1) e[1] = Math.max((miss / span) ** 2 * 4, 1);
+    if (m.nMotion > 2) e[2] = Math.max((miss / (span * span)) ** 2 * 4, 0.1);
+    extra.push(e);
+  }
+  h.extraQ.set(runStart, extra);
+  h.reacquired.push(runStart);
+}
+
 /**
  * Run the forward filter over a segment. The first epoch must carry a fix (use ≠ 0).
  * With `resume`, only the epochs affected by a change of use are recomputed (see FilterResume).
@@ -345,6 +397,10 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
     k = resume.changed[0]!;
     winStart = k;
   }
+  // the common case (every axis n = 3, north sharing east's covariances, no scales, no likelihood)
+  // in its own loop; the same operations in the same order, so the same bits (see forwardShared3)
+  if (share && !likelihood && !opt.qScale && !opt.rScale && (nAx === 2 || (nAx === 3 && models[2]!.n === 3)))
+    return forwardShared3(models, data, opt, h, w, thresholds, k, resume);
   while (k < N) {
     if (resume) {
       if (k > winStart && sameState(models, h, k - 1, sx, sP, resume.tol)) {
@@ -367,21 +423,7 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
       }
     }
     // ---- prediction (or prior at the first epoch) ----
-    for (let a = 0; a < nAx; a++) {
-      const m = models[a]!;
-      const n = m.n;
-      const x = h.x[a]!;
-      const P = h.P[a]!;
-      if (k === 0) {
-        // prior: position at the first fix (or 0), diffuse kinematics, stationary GM error
-        x.fill(0, 0, n);
-        P.fill(0, 0, covStride(n));
-        const z0 = data.z[a]![0]!;
-        x[0] = Number.isFinite(z0) ? z0 : 0;
-        for (let i = 0; i < m.nMotion; i++) P[covIndex(n, i, i)] = opt.priorVar[i]!;
-        if (m.iBias >= 0) P[covIndex(n, m.iBias, m.iBias)] = m.params.gm!.sigmaM ** 2;
-      }
-    }
+    if (k === 0) writePrior(models, data, opt, h);
     if (k > 0) {
       lastDt = ensureStep(models, data, h, k, opt.qScale, w.F, w.Q, w.cache, lastDt);
       for (let a = 0; a < nAx; a++) {
@@ -461,34 +503,275 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
     if (runCount >= opt.reacquireAfter && runStart > 0 && !rewound.has(runStart)) {
       // ---- re-acquire: rewind to the run start with inflated covariance ----
       rewound.add(runStart);
-      const extra: Float64Array[] = [];
-      const span = Math.max(data.tSec[k]! - data.tSec[runStart - 1]!, 1e-3);
-      const misses: number[] = [];
-      for (let a = 0; a < nAx; a++) {
-        const m = models[a]!;
-        // largest miss of this axis over the run: rejected epochs hold only their prediction, so
-        // z − H x⁻ there is the innovation the gate rejected
-        let miss = 0;
-        for (let j = runStart; j <= k; j++) {
-          const z = data.z[a]![j]!;
-          if (Number.isFinite(z) && data.use[j]) miss = Math.max(miss, Math.abs(z - h.x[a]![j * m.n]! - (m.iBias >= 0 ? h.x[a]![j * m.n + m.iBias]! : 0)));
+      recordReacquisition(models, data, h, k, runStart);
+      k = runStart;
+      runStart = -1;
+      runCount = 0;
+      continue;
+    }
+    k++;
+  }
+  if (resume && winStart >= 0) resume.windows.push(winStart, N - 1);
+  return h;
+}
+
+/** sameState for one 3-state axis a: every element of x (at xo) and P (at po) within tol of the saved sx, sP (NaN: not). */
+function sameAxis3(x: Float64Array, P: Float64Array, xo: number, po: number, sx: Float64Array, sP: Float64Array, a: number, tol: number): boolean {
+  const sa = a * 3, pa = a * 6;
+  return Math.abs(x[xo]! - sx[sa]!) <= tol && Math.abs(x[xo + 1]! - sx[sa + 1]!) <= tol && Math.abs(x[xo + 2]! - sx[sa + 2]!) <= tol &&
+    Math.abs(P[po]! - sP[pa]!) <= tol && Math.abs(P[po + 1]! - sP[pa + 1]!) <= tol && Math.abs(P[po + 2]! - sP[pa + 2]!) <= tol &&
+    Math.abs(P[po + 3]! - sP[pa + 3]!) <= tol && Math.abs(P[po + 4]! - sP[pa + 4]!) <= tol && Math.abs(P[po + 5]! - sP[pa + 5]!) <= tol;
+}
+
+/** Save one 3-state axis a (x at xo, P at po) into sx, sP. */
+function saveAxis3(x: Float64Array, P: Float64Array, xo: number, po: number, sx: Float64Array, sP: Float64Array, a: number): void {
+  const sa = a * 3, pa = a * 6;
+  sx[sa] = x[xo]!; sx[sa + 1] = x[xo + 1]!; sx[sa + 2] = x[xo + 2]!;
+  sP[pa] = P[po]!; sP[pa + 1] = P[po + 1]!; sP[pa + 2] = P[po + 2]!;
+  sP[pa + 3] = P[po + 3]!; sP[pa + 4] = P[po + 4]!; sP[pa + 5] = P[po + 5]!;
+}
+
+/**
+ * forwardFilter's loop for its common case: every axis n = 3, north (1) sharing east's (0)
+ * covariances (horizontalShare), no q or r scale, no likelihood; 2 axes, or 3 with the vertical.
+ * The general loop's operations in its order, written for this case: the step matrices are looked
+ * up only when Δt changes or at a step with re-acquisition noise (ensureStep would return at once
+ * otherwise), east's innovation (P hᵀ, S) serves north too (the same P and r, so the same numbers),
+ * the per-epoch buffers of the general loop are locals, and a re-run (resume) saves and compares
+ * the 3-state axes written out. Bit for bit the general loop's result
+ * (test/estimation/forward-filter-shared.test.ts compares it with the previous form, kept in
+ * test/helpers/reference-track-filter.ts). Sources as forwardFilter's (Bar-Shalom et al. 2001 §5.4;
+ * Kalman 1960; Joseph form: Grewal & Andrews 2015 §6).
+ */
+function forwardShared3(models: AxisModel[], data: SegmentData, opt: FilterOptions, h: FilterHistory, w: Work, thresholds: number[], kStart: number, resume?: FilterResume): FilterHistory {
+  const N = data.N;
+  const up = models.length === 3;
+  const tSec = data.tSec, use = data.use;
+  const zE = data.z[0]!, zN = data.z[1]!, zU = up ? data.z[2]! : zE;
+  const rE = data.r[0]!, rU = up ? data.r[2]! : rE;
+  const xE = h.x[0]!, xN = h.x[1]!, xU = up ? h.x[2]! : xE;
+  const PE = h.P[0]!, PN = h.P[1]!, PU = up ? h.P[2]! : PE;
+  const hH = models[0]!.h, hV = up ? models[2]!.h : hH;
+  const e0 = hH[0]!, e1 = hH[1]!, e2 = hH[2]!;
+  const v0 = hV[0]!, v1 = hV[1]!, v2 = hV[2]!;
+  const nisA = h.nis, dofA = h.dof, thrA = h.threshold, accepted = h.accepted, logLik = h.logLik;
+  const rewound = new Set<number>();
+  let lastDt = NaN;
+  let runStart = -1;
+  let runCount = 0;
+  let k = kStart;
+  // resume: the old state of the epoch being recomputed (x: 3 per axis, P: 6 per axis)
+  const sx = new Float64Array(9);
+  const sP = new Float64Array(18);
+  const tol = resume ? resume.tol : 0;
+  let ci = 0;
+  let winStart = resume ? k : -1;
+  while (k < N) {
+    if (resume) {
+      if (k > winStart) {
+        // sameState at k − 1, written out for the 3-state axes
+        const xo = (k - 1) * 3, po = (k - 1) * 6;
+        const same = sameAxis3(xE, PE, xo, po, sx, sP, 0, tol) && sameAxis3(xN, PN, xo, po, sx, sP, 1, tol) && (!up || sameAxis3(xU, PU, xo, po, sx, sP, 2, tol));
+        if (same) {
+          // same state, same inputs up to the next change: skip to it
+          resume.windows.push(winStart, k - 1);
+          if (ci >= resume.changed.length) {
+            winStart = -1;
+            break;
+          }
+          k = resume.changed[ci]!;
+          winStart = k;
         }
-        misses.push(miss);
       }
-      // the horizontal axes (0 east, 1 north) are inflated alike, by the larger miss of the two (a
-      // horizontal manoeuvre loses both; and their covariances stay equal, see horizontalShare)
-      if (nAx >= 2) misses[0] = misses[1] = Math.max(misses[0]!, misses[1]!);
-      for (let a = 0; a < nAx; a++) {
-        const m = models[a]!;
-        const miss = misses[a]!;
-        const e = new Float64Array(m.n);
-        e[0] = miss * miss;
-        if (m.nMotion > 1) e[1] = Math.max((miss / span) ** 2 * 4, 1);
-        if (m.nMotion > 2) e[2] = Math.max((miss / (span * span)) ** 2 * 4, 0.1);
-        extra.push(e);
+      while (ci < resume.changed.length && resume.changed[ci]! <= k) ci++;
+      if (use[k] === 1) throw new Error('forwardFilter: resume is for ungated passes (use 0 or 2)');
+      const xo = k * 3, po = k * 6;
+      saveAxis3(xE, PE, xo, po, sx, sP, 0);
+      saveAxis3(xN, PN, xo, po, sx, sP, 1);
+      if (up) saveAxis3(xU, PU, xo, po, sx, sP, 2);
+    }
+    const xk = k * 3, pk = k * 6;
+    // ---- prediction (or prior at the first epoch) ----
+    if (k === 0) writePrior(models, data, opt, h);
+    else {
+      // Δt of this step; F, Q already in place unless it changed or the step has re-acquisition noise
+      const dt = tSec[k]! - tSec[k - 1]!;
+      if (dt !== lastDt || (h.extraQ.size > 0 && h.extraQ.has(k))) lastDt = ensureStep(models, data, h, k, null, w.F, w.Q, w.cache, lastDt);
+      {
+        // east: x⁻ = F x, P⁻ = F P Fᵀ + Q (predict3p written out)
+        const F = w.F[0]!, Q = w.Q[0]!;
+        const f00 = F[0]!, f01 = F[1]!, f02 = F[2]!, f10 = F[3]!, f11 = F[4]!, f12 = F[5]!, f20 = F[6]!, f21 = F[7]!, f22 = F[8]!;
+        const x0 = xE[xk - 3]!, x1 = xE[xk - 2]!, x2 = xE[xk - 1]!;
+        const p00 = PE[pk - 6]!, p01 = PE[pk - 5]!, p02 = PE[pk - 4]!, p11 = PE[pk - 3]!, p12 = PE[pk - 2]!, p22 = PE[pk - 1]!;
+        // x⁻ = F x
+        xE[xk] = f00 * x0 + f01 * x1 + f02 * x2;
+        xE[xk + 1] = f10 * x0 + f11 * x1 + f12 * x2;
+        xE[xk + 2] = f20 * x0 + f21 * x1 + f22 * x2;
+        // A = F P
+        const a00 = f00 * p00 + f01 * p01 + f02 * p02, a01 = f00 * p01 + f01 * p11 + f02 * p12, a02 = f00 * p02 + f01 * p12 + f02 * p22;
+        const a10 = f10 * p00 + f11 * p01 + f12 * p02, a11 = f10 * p01 + f11 * p11 + f12 * p12, a12 = f10 * p02 + f11 * p12 + f12 * p22;
+        const a20 = f20 * p00 + f21 * p01 + f22 * p02, a21 = f20 * p01 + f21 * p11 + f22 * p12, a22 = f20 * p02 + f21 * p12 + f22 * p22;
+        // P⁻ = A Fᵀ + Q (upper triangle)
+        PE[pk] = Q[0]! + a00 * f00 + a01 * f01 + a02 * f02;
+        PE[pk + 1] = Q[1]! + a00 * f10 + a01 * f11 + a02 * f12;
+        PE[pk + 2] = Q[2]! + a00 * f20 + a01 * f21 + a02 * f22;
+        PE[pk + 3] = Q[4]! + a10 * f10 + a11 * f11 + a12 * f12;
+        PE[pk + 4] = Q[5]! + a10 * f20 + a11 * f21 + a12 * f22;
+        PE[pk + 5] = Q[8]! + a20 * f20 + a21 * f21 + a22 * f22;
       }
-      h.extraQ.set(runStart, extra);
-      h.reacquired.push(runStart);
+      // north: its state (x⁻ = F x), east's covariance
+      predictState3(w.F[1]!, xN, xk - 3, xN, xk);
+      copy6(PE, PN, pk);
+      if (up)
+      {
+        // up: x⁻ = F x, P⁻ = F P Fᵀ + Q (predict3p written out)
+        const F = w.F[2]!, Q = w.Q[2]!;
+        const f00 = F[0]!, f01 = F[1]!, f02 = F[2]!, f10 = F[3]!, f11 = F[4]!, f12 = F[5]!, f20 = F[6]!, f21 = F[7]!, f22 = F[8]!;
+        const x0 = xU[xk - 3]!, x1 = xU[xk - 2]!, x2 = xU[xk - 1]!;
+        const p00 = PU[pk - 6]!, p01 = PU[pk - 5]!, p02 = PU[pk - 4]!, p11 = PU[pk - 3]!, p12 = PU[pk - 2]!, p22 = PU[pk - 1]!;
+        // x⁻ = F x
+        xU[xk] = f00 * x0 + f01 * x1 + f02 * x2;
+        xU[xk + 1] = f10 * x0 + f11 * x1 + f12 * x2;
+        xU[xk + 2] = f20 * x0 + f21 * x1 + f22 * x2;
+        // A = F P
+        const a00 = f00 * p00 + f01 * p01 + f02 * p02, a01 = f00 * p01 + f01 * p11 + f02 * p12, a02 = f00 * p02 + f01 * p12 + f02 * p22;
+        const a10 = f10 * p00 + f11 * p01 + f12 * p02, a11 = f10 * p01 + f11 * p11 + f12 * p12, a12 = f10 * p02 + f11 * p12 + f12 * p22;
+        const a20 = f20 * p00 + f21 * p01 + f22 * p02, a21 = f20 * p01 + f21 * p11 + f22 * p12, a22 = f20 * p02 + f21 * p12 + f22 * p22;
+        // P⁻ = A Fᵀ + Q (upper triangle)
+        PU[pk] = Q[0]! + a00 * f00 + a01 * f01 + a02 * f02;
+        PU[pk + 1] = Q[1]! + a00 * f10 + a01 * f11 + a02 * f12;
+        PU[pk + 2] = Q[2]! + a00 * f20 + a01 * f21 + a02 * f22;
+        PU[pk + 3] = Q[4]! + a10 * f10 + a11 * f11 + a12 * f12;
+        PU[pk + 4] = Q[5]! + a10 * f20 + a11 * f21 + a12 * f22;
+        PU[pk + 5] = Q[8]! + a20 * f20 + a21 * f21 + a22 * f22;
+      }
+    }
+    accepted[k] = 0;
+    logLik[k] = 0;
+    nisA[k] = NaN;
+    dofA[k] = 0;
+    thrA[k] = NaN;
+    const u = use[k]!;
+    if (u === 0) {
+      k++;
+      continue;
+    }
+    // ---- innovations and the joint gate ----
+    let nis = 0;
+    let dof = 0;
+    // horizontal: east and north are measured together (horizontalShare); r · rScale = r (no scale)
+    const ze = zE[k]!;
+    const hasH = Number.isFinite(ze);
+    let nuE = 0, nuN = 0, SH = NaN, wH0 = 0, wH1 = 0, wH2 = 0;
+    if (hasH) {
+      const r = rE[k]!;
+      const p00 = PE[pk]!, p01 = PE[pk + 1]!, p02 = PE[pk + 2]!, p11 = PE[pk + 3]!, p12 = PE[pk + 4]!, p22 = PE[pk + 5]!;
+      // P hᵀ
+      const w0 = p00 * e0 + p01 * e1 + p02 * e2;
+      const w1 = p01 * e0 + p11 * e1 + p12 * e2;
+      const w2 = p02 * e0 + p12 * e1 + p22 * e2;
+      wH0 = w0; wH1 = w1; wH2 = w2;
+      // S = h P hᵀ + r (east's; north's is the same numbers)
+      SH = r + e0 * w0 + e1 * w1 + e2 * w2;
+      // ν = z − h x⁻
+      nuE = ze - (e0 * xE[xk]! + e1 * xE[xk + 1]! + e2 * xE[xk + 2]!);
+      nuN = zN[k]! - (e0 * xN[xk]! + e1 * xN[xk + 1]! + e2 * xN[xk + 2]!);
+      // NIS = Σ ν²/S over independent axes
+      nis += (nuE * nuE) / SH;
+      dof++;
+      nis += (nuN * nuN) / SH;
+      dof++;
+    }
+    const zu = up ? zU[k]! : NaN;
+    const hasU = up && Number.isFinite(zu);
+    let nuU = 0, SU = NaN, rVk = 0, wV0 = 0, wV1 = 0, wV2 = 0;
+    if (hasU) {
+      rVk = rU[k]!;
+      const p00 = PU[pk]!, p01 = PU[pk + 1]!, p02 = PU[pk + 2]!, p11 = PU[pk + 3]!, p12 = PU[pk + 4]!, p22 = PU[pk + 5]!;
+      // P hᵀ
+      const w0 = p00 * v0 + p01 * v1 + p02 * v2;
+      const w1 = p01 * v0 + p11 * v1 + p12 * v2;
+      const w2 = p02 * v0 + p12 * v1 + p22 * v2;
+      wV0 = w0; wV1 = w1; wV2 = w2;
+      // S = h P hᵀ + r
+      SU = rVk + v0 * w0 + v1 * w1 + v2 * w2;
+      // ν = z − h x⁻
+      nuU = zu - (v0 * xU[xk]! + v1 * xU[xk + 1]! + v2 * xU[xk + 2]!);
+      nis += (nuU * nuU) / SU;
+      dof++;
+    }
+    if (dof === 0) {
+      k++;
+      continue;
+    }
+    const thr = thresholds[dof]!;
+    nisA[k] = nis;
+    dofA[k] = dof;
+    thrA[k] = thr;
+    if (u === 2 || nis <= thr) {
+      // an axis whose S is not finite is not updated (as in the general loop)
+      if (Number.isFinite(SH)) {
+        {
+          // updateJoseph3p written out: K = P hᵀ S⁻¹, x ← x + K ν, P ← P − K wᵀ − w Kᵀ + (h P hᵀ + r) K Kᵀ
+          const w0 = wH0, w1 = wH1, w2 = wH2;
+          // K = P hᵀ S⁻¹
+          const k0 = w0 / SH, k1 = w1 / SH, k2 = w2 / SH;
+          // x ← x + K ν
+          xE[xk] += k0 * nuE;
+          xE[xk + 1] += k1 * nuE;
+          xE[xk + 2] += k2 * nuE;
+          // h P hᵀ recomputed from w (= S − r up to rounding), as updateJoseph3p
+          const c = e0 * w0 + e1 * w1 + e2 * w2 + rE[k]!;
+          // P ← P − K wᵀ − w Kᵀ + (h P hᵀ + r) K Kᵀ
+          const n00 = PE[pk]! - 2 * k0 * w0 + c * k0 * k0;
+          const n01 = PE[pk + 1]! - k0 * w1 - w0 * k1 + c * k0 * k1;
+          const n02 = PE[pk + 2]! - k0 * w2 - w0 * k2 + c * k0 * k2;
+          const n11 = PE[pk + 3]! - 2 * k1 * w1 + c * k1 * k1;
+          const n12 = PE[pk + 4]! - k1 * w2 - w1 * k2 + c * k1 * k2;
+          const n22 = PE[pk + 5]! - 2 * k2 * w2 + c * k2 * k2;
+          PE[pk] = n00; PE[pk + 1] = n01; PE[pk + 2] = n02;
+          PE[pk + 3] = n11; PE[pk + 4] = n12; PE[pk + 5] = n22;
+        }
+        // K = P hᵀ S⁻¹, x ← x + K ν (north, with east's P hᵀ and S); P: east's updated one
+        xN[xk] += (wH0 / SH) * nuN;
+        xN[xk + 1] += (wH1 / SH) * nuN;
+        xN[xk + 2] += (wH2 / SH) * nuN;
+        copy6(PE, PN, pk);
+      }
+      if (Number.isFinite(SU))
+        {
+          // updateJoseph3p written out: K = P hᵀ S⁻¹, x ← x + K ν, P ← P − K wᵀ − w Kᵀ + (h P hᵀ + r) K Kᵀ
+          const w0 = wV0, w1 = wV1, w2 = wV2;
+          // K = P hᵀ S⁻¹
+          const k0 = w0 / SU, k1 = w1 / SU, k2 = w2 / SU;
+          // x ← x + K ν
+          xU[xk] += k0 * nuU;
+          xU[xk + 1] += k1 * nuU;
+          xU[xk + 2] += k2 * nuU;
+          // h P hᵀ recomputed from w (= S − r up to rounding), as updateJoseph3p
+          const c = v0 * w0 + v1 * w1 + v2 * w2 + rVk;
+          // P ← P − K wᵀ − w Kᵀ + (h P hᵀ + r) K Kᵀ
+          const n00 = PU[pk]! - 2 * k0 * w0 + c * k0 * k0;
+          const n01 = PU[pk + 1]! - k0 * w1 - w0 * k1 + c * k0 * k1;
+          const n02 = PU[pk + 2]! - k0 * w2 - w0 * k2 + c * k0 * k2;
+          const n11 = PU[pk + 3]! - 2 * k1 * w1 + c * k1 * k1;
+          const n12 = PU[pk + 4]! - k1 * w2 - w1 * k2 + c * k1 * k2;
+          const n22 = PU[pk + 5]! - 2 * k2 * w2 + c * k2 * k2;
+          PU[pk] = n00; PU[pk + 1] = n01; PU[pk + 2] = n02;
+          PU[pk + 3] = n11; PU[pk + 4] = n12; PU[pk + 5] = n22;
+        }
+      accepted[k] = 1;
+      runStart = -1;
+      runCount = 0;
+      k++;
+      continue;
+    }
+    if (runCount === 0) runStart = k;
+    runCount++;
+    if (runCount >= opt.reacquireAfter && runStart > 0 && !rewound.has(runStart)) {
+      // ---- re-acquire: rewind to the run start with inflated covariance ----
+      rewound.add(runStart);
+      recordReacquisition(models, data, h, k, runStart);
       k = runStart;
       runStart = -1;
       runCount = 0;

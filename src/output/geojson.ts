@@ -69,11 +69,21 @@ export function cutAtAntimeridian(line: Position[], decimals = 12): Position[][]
 export function longitudeExtent(lons: ArrayLike<number>): [number, number] | null {
   const all = new Float64Array(lons.length);
   let n = 0;
+  // smallest and largest as the sort orders them (−0 before +0)
+  let lo = Infinity, hi = -Infinity;
   for (let i = 0; i < lons.length; i++) {
     const v = lons[i]!;
-    if (Number.isFinite(v)) all[n++] = v;
+    if (Number.isFinite(v)) {
+      all[n++] = v;
+      if (v < lo || (v === lo && Object.is(v, -0))) lo = v;
+      if (v > hi || (v === hi && Object.is(hi, -0))) hi = v;
+    }
   }
   if (n === 0) return null;
+  // values spanning under 170° (every track that is not near-global): the gap across the
+  // antimeridian, (lo + 360) − hi > 190, exceeds every gap between sorted neighbours (each at most
+  // hi − lo, floating-point subtraction being monotone), so the loop below would keep it: no sort
+  if (hi - lo < 170) return [lo, hi];
   const a = all.subarray(0, n).sort();
   // the gap across the antimeridian, from the easternmost round to the westernmost
   let gap = a[0]! + 360 - a[a.length - 1]!;
@@ -124,6 +134,8 @@ export function sessionGeoJson(r: SessionResult, opt: GeoJsonOptions): object {
   };
   const nSeg = r.N > 0 ? r.segment[r.N - 1]! + 1 : 0;
   let j = 0;
+  // the valid epochs' rounded longitudes, in pass 1's order
+  let li = 0;
   for (let s = 0; s < nSeg; s++) {
     const line: Position[] = [];
     const j0 = j;
@@ -279,6 +291,8 @@ export function* sessionGeoJsonChunks(r: SessionResult, opt: GeoJsonOptions, chu
   // pass 2: the track segments
   const nSeg = N > 0 ? segment[N - 1]! + 1 : 0;
   let j = 0;
+  // the valid epochs' rounded longitudes, in pass 1's order
+  let li = 0;
   for (let s = 0; s < nSeg; s++) {
     const j0 = j;
     let sumSd = 0, bridged = 0, flagged = 0, lengthM = 0, count = 0;
@@ -286,7 +300,7 @@ export function* sessionGeoJsonChunks(r: SessionResult, opt: GeoJsonOptions, chu
     let lastLon = NaN;
     while (j < N && segment[j] === s) {
       if (valid(lonDeg[j]!, latDeg[j]!)) {
-        const x = round(lonDeg[j]!, d);
+        const x = lons[li++]!;
         if (count > 0 && Math.abs(x - lastLon) > 180) crosses = true;
         lastLon = x;
         count++;

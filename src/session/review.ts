@@ -12,7 +12,7 @@ import type { AxisModel } from '../models/axis-model.js';
 import { forwardFilter, type FilterHistory, type FilterOptions, type SegmentData } from '../estimation/track-filter.js';
 import { resmoothWindows, smoothInto } from '../estimation/track-smoother.js';
 import { allocateHistory, historyOf } from '../estimation/track-filter.js';
-import { reviewStatistic } from '../estimation/review.js';
+import { reviewStatisticsRange } from '../estimation/review.js';
 import { applyReviewDecisions, reviewThresholds } from './review-decisions.js';
 import { applySwap, findSwaps, swapCost, type Swap } from './review-swaps.js';
 import type { StageTimings } from './timings.js';
@@ -174,15 +174,8 @@ export function reviewSegment(
     if (passes > ro.maxPasses + (swapState === 'none' ? 0 : 2)) break;
     converged = false;
     // test every offered fix whose smoothed state or decision changed (the others keep their statistic)
-    const test = (k: number) => {
-      if (offered[k] !== 1) return;
-      const st = reviewStatistic(models, h.x, h.P, k, data.z, data.r, kept[k] === 1, nu);
-      T[k] = st.T;
-      dof[k] = st.dof;
-      threshold[k] = thr[st.dof]!;
-    };
-    for (let i = 0; i < smoothed.length; i += 2) for (let k = smoothed[i + 1]!; k <= smoothed[i]!; k++) test(k);
-    for (const k of changed) test(k);
+    for (let i = 0; i < smoothed.length; i += 2) reviewStatisticsRange(models, h.x, h.P, smoothed[i + 1]!, smoothed[i]!, data.z, data.r, offered, kept, T, dof, threshold, thr, nu);
+    for (const k of changed) reviewStatisticsRange(models, h.x, h.P, k, k, data.z, data.r, offered, kept, T, dof, threshold, thr, nu);
     if (swapState === 'pending') {
       // keep a swap only where it lowered its neighbourhood's robust cost; undo the others
       swapState = 'done';

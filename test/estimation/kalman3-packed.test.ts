@@ -4,7 +4,7 @@
  * covariance is symmetric bit for bit) they must give identical states and covariances.
  */
 import { describe, expect, it } from 'vitest';
-import { innovation3p, predict3p, rtsStep3p, updateJoseph3p } from '../../src/estimation/kalman3.js';
+import { innovation3p, predict3p, rtsState3, rtsState3From, rtsStep3p, rtsStep3pFrom, updateJoseph3p } from '../../src/estimation/kalman3.js';
 import { innovation3, predict3, rtsStep3, updateJoseph3 } from '../helpers/kalman3-full.js';
 import { covIndex } from '../../src/estimation/track-filter.js';
 import { Rng } from '../../src/simulate/rng.js';
@@ -70,4 +70,35 @@ describe('packed n = 3 kernels equal the full n = 3 kernels bit for bit', () => 
           expectSameBits(Pp.subarray(0, 6), Pf.subarray(0, 9));
         }
       });
+});
+
+describe('out-of-place RTS kernels (rtsStep3pFrom, rtsState3From) equal copy-then-in-place bit for bit', () => {
+  it('random SPD covariances, states and F, with and without the gain out', () => {
+    const rng = new Rng(77);
+    for (let trial = 0; trial < 500; trial++) {
+      const F = Float64Array.from({ length: 9 }, (_, i) => (i % 4 === 0 ? 1 : 0) + 0.3 * rng.normal());
+      const Q = spd(rng, 0.01);
+      const fx = Float64Array.from({ length: 6 }, () => rng.normal() * 10);
+      const fP = Float64Array.from([...pack(spd(rng, 1)), ...pack(spd(rng, 1))]);
+      // smoothed k + 1 in the second slot; filtered k in the first
+      const xs = Float64Array.from({ length: 6 }, (_, i) => (i < 3 ? NaN : rng.normal() * 10));
+      const Ps = Float64Array.from({ length: 12 }, (_, i) => (i < 6 ? NaN : fP[i]! * 0.5));
+      const xa = xs.slice(), Pa = Ps.slice(), ga = new Float64Array(9);
+      const xb = xs.slice(), Pb = Ps.slice(), gb = new Float64Array(9);
+      for (let i = 0; i < 3; i++) xb[i] = fx[i]!;
+      for (let i = 0; i < 6; i++) Pb[i] = fP[i]!;
+      const oka = rtsStep3pFrom(F, Q, fx, fP, xa, 0, 3, Pa, 0, 6, ga);
+      const okb = rtsStep3p(F, Q, xb, 0, 3, Pb, 0, 6, gb);
+      expect(oka).toBe(okb);
+      for (let i = 0; i < 6; i++) expect(Object.is(xa[i], xb[i])).toBe(true);
+      for (let i = 0; i < 12; i++) expect(Object.is(Pa[i], Pb[i])).toBe(true);
+      for (let i = 0; i < 9; i++) expect(Object.is(ga[i], gb[i])).toBe(true);
+      if (!oka) continue;
+      const ya = xs.slice(), yb = xs.slice();
+      for (let i = 0; i < 3; i++) yb[i] = fx[i]!;
+      rtsState3From(F, ga, fx, ya, 0, 3);
+      rtsState3(F, gb, yb, 0, 3);
+      for (let i = 0; i < 6; i++) expect(Object.is(ya[i], yb[i])).toBe(true);
+    }
+  });
 });

@@ -58,6 +58,36 @@ describe('ByteChunks.rounded = JSON of Math.round(v·10^d)/10^d', () => {
   });
 });
 
+describe('digit writers (round 7: pairs in int32, integer part from ⌊|v|⌋)', () => {
+  // fractions and integer parts on both sides of 2^31 (the int32 path's limit), powers of ten,
+  // and values whose rounding carries into the integer part (999.9999999996 → "1000.000000000")
+  const near = [2 ** 31 - 1, 2 ** 31, 2 ** 31 + 1, 2 ** 32, 1e9 - 1, 1e9, 1e10 - 1, 1e10, 99, 100, 101, 9, 10];
+  const values: number[] = [];
+  for (const m of near) for (const d of [0, 1, 3, 6, 9, 12]) values.push(m / 10 ** d, -m / 10 ** d, (m + 0.4) / 10 ** d, (m + 0.6) / 10 ** d);
+  for (const ip of [0, 1, 9, 47, 99, 999, 123456]) for (const d of [1, 2, 3, 9, 12]) values.push(ip + 1 - 0.4 / 10 ** d, -(ip + 1 - 0.4 / 10 ** d), ip + 0.4 / 10 ** d, ip + 1 - 0.6 / 10 ** d);
+  test.each(Array.from({ length: 16 }, (_, d) => d))('fixed, %i decimals', (d) => {
+    for (const v of values) expect(text((b) => b.fixed(v, d)), `${v}`).toBe(v.toFixed(d));
+  });
+  test.each(Array.from({ length: 16 }, (_, d) => d))('rounded, %i decimals', (d) => {
+    for (const v of values) expect(text((b) => b.rounded(v, d)), `${v}`).toBe(roundJson(v, d));
+  });
+  test('integers across the int32 limit and up to 2^53', () => {
+    const ints = [0, 1, 9, 10, 99, 100, 2 ** 31 - 1, 2 ** 31, 2 ** 31 + 1, 1e15 - 1, 1e15, 2 ** 53 - 1, -(2 ** 31), -(2 ** 31) - 1, -(2 ** 53) + 1];
+    for (const n of ints) expect(text((b) => b.int(n))).toBe(String(n));
+  });
+  test('track-like values (seeded): latitudes, longitudes at 9 decimals, metres at 3', () => {
+    fc.assert(
+      fc.property(fc.double({ noNaN: true, noDefaultInfinity: true, min: -180, max: 180 }), fc.double({ noNaN: true, noDefaultInfinity: true, min: -5000, max: 5000 }), (deg, m) => {
+        expect(text((b) => b.fixed(deg, 9))).toBe(deg.toFixed(9));
+        expect(text((b) => b.fixed(m, 3))).toBe(m.toFixed(3));
+        expect(text((b) => b.rounded(deg, 7))).toBe(roundJson(deg, 7));
+        expect(text((b) => b.rounded(m, 2))).toBe(roundJson(m, 2));
+      }),
+      { seed: 8007, numRuns: 20000 },
+    );
+  });
+});
+
 describe('ByteChunks.isoUtc = Date.prototype.toISOString of the rounded millisecond', () => {
   const iso = (t: number) => new Date(Math.round(t * 1000)).toISOString();
   test('day, year and range boundaries', () => {

@@ -3,6 +3,7 @@ import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { getIssues } from '@placemarkio/check-geojson';
+import { refLongitudeExtent } from '../helpers/reference-geojson.js';
 import { cutAtAntimeridian, longitudeExtent, sessionGeoJson, sessionGeoJsonChunks, sessionGeoJsonText, geoJsonOptions } from '../../src/output/geojson.js';
 import { chunksToString } from '../../src/output/byte-chunks.js';
 import { sessionGpx } from '../../src/output/gpx.js';
@@ -53,6 +54,29 @@ describe('longitudeExtent (bbox west/east, RFC 7946 §5.2)', () => {
     expect(longitudeExtent(lons)).toEqual(we);
   });
   test('no finite longitudes', () => expect(longitudeExtent([NaN])).toBeNull());
+  test('the same values (Object.is) as the previous, always-sorting form, seeded: narrow, wide, wrapped, signed zeros, NaN', () => {
+    let seed = 4711;
+    const rnd = () => (seed = (seed * 48271) % 2147483647) / 2147483647;
+    for (let t = 0; t < 3000; t++) {
+      const n = 1 + Math.floor(rnd() * 40);
+      const centre = rnd() * 360 - 180;
+      const span = [0, 1e-9, 0.5, 20, 169.99, 170, 170.01, 200, 359][t % 9]!;
+      const lons: number[] = [];
+      for (let i = 0; i < n; i++) {
+        const u = rnd();
+        let v = u < 0.05 ? NaN : u < 0.1 ? 0 : u < 0.15 ? -0 : centre + (rnd() - 0.5) * span;
+        if (v > 180) v -= 360;
+        if (v < -180) v += 360;
+        lons.push(v);
+      }
+      const a = longitudeExtent(lons), b = refLongitudeExtent(lons);
+      if (b === null) expect(a).toBeNull();
+      else {
+        expect(Object.is(a![0], b[0]), `${lons}`).toBe(true);
+        expect(Object.is(a![1], b[1]), `${lons}`).toBe(true);
+      }
+    }
+  });
 });
 
 describe('session GeoJSON', () => {

@@ -206,13 +206,19 @@ export function reportPayload(r: SessionResult, opt: PayloadOptions = {}): Repor
     .filter((j) => Number.isFinite(r.ell95MajorM[j]!))
     .map((j) => ({ tSec: r.tSec[j]!, east: r.posEnu[0][j]!, north: r.posEnu[1][j]!, majorM: r.ell95MajorM[j]!, minorM: r.ell95MinorM[j]!, azimuthDeg: r.ell95AzimuthDeg[j]! }));
   // flagged fixes, with the status of their epoch
+  const listed = r.outliers.slice(0, LISTED_ROWS_MAX);
+  // the last epoch holding each listed fix (−1: none), found in one pass without a map of every epoch
   const epochOfFix = new Map<number, number>();
-  for (let j = 0; j < r.N; j++) if (r.fix[j]! >= 0) epochOfFix.set(r.fix[j]!, j);
-  const flagged: FlaggedRow[] = r.outliers.slice(0, LISTED_ROWS_MAX).map((o) => {
-    const j = epochOfFix.get(o.fix);
+  for (const o of listed) epochOfFix.set(o.fix, -1);
+  for (let j = 0; j < r.N; j++) {
+    const i = r.fix[j]!;
+    if (i >= 0 && epochOfFix.has(i)) epochOfFix.set(i, j);
+  }
+  const flagged: FlaggedRow[] = listed.map((o) => {
+    const j = epochOfFix.get(o.fix)!;
     return {
       tSec: o.tSec, line: o.line, reason: o.reason,
-      status: j === undefined ? 'not in track' : STATUS_NAMES[r.status[j]!]!,
+      status: j < 0 ? 'not in track' : STATUS_NAMES[r.status[j]!]!,
       statistic: o.statistic, threshold: o.threshold, offsetM: o.offsetM, detail: o.detail,
     };
   });
