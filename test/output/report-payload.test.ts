@@ -1,7 +1,7 @@
 import { describe, expect, test } from 'vitest';
 import { deserialize, serialize } from 'node:v8';
 import { reportPayload } from '../../src/output/report/index.js';
-import { calibratedNoise } from '../../src/output/report/payload.js';
+import { calibratedNoise, calibrationLine } from '../../src/output/report/payload.js';
 import { plotEpochs } from '../../src/output/report/decimate.js';
 import { collectExtensions, type ReportExtension } from '../../src/output/report/extensions.js';
 import { STATUS } from '../../src/session/result.js';
@@ -91,6 +91,34 @@ describe('report payload', () => {
     [{ calibration: { status: 'estimated', estimates: { sigmaHorizontalM: { value: 0.9 } }, reportedSigmaScale: true } }, { horizontal: 0.9, vertical: NaN, unit: '× reported sd' }],
     [{ calibration: { params: { sigmaHorizontalM: 1.1, sigmaVerticalM: 2 } } }, { horizontal: 1.1, vertical: 2, unit: 'm' }],
   ])('calibrated noise from info %j', (info, want) => expect(calibratedNoise(info)).toEqual(want));
+
+  test.each([
+    [
+      {
+        calibration: {
+          status: 'estimated', epochsUsed: 810, reportedSigmaScale: false,
+          estimates: {
+            sigmaHorizontalM: { value: 1.5700605, se: 0.0372223, atBound: false }, sigmaVerticalM: { value: 3.4124184, se: 0.0971338, atBound: false },
+            gmHorizontalSigmaM: { value: 1.3947482, se: 0.3442129, atBound: false }, gmVerticalSigmaM: { value: 2.902909, se: 0.6133315, atBound: false },
+            gmTauSec: { value: 62.820851, se: 31.232066, atBound: false },
+            qHorizontal: { value: 1.5127867, se: 0.1079958, atBound: false }, qVertical: { value: 5.86057e-5, se: 5.7001e-5, atBound: false },
+          },
+        },
+      },
+      'white 1.57 ± 0.037 / 3.41 ± 0.097 m; correlated 1.39 ± 0.34 / 2.9 ± 0.61 m, time constant 62.8 ± 31.2 s; process noise 1.51 ± 0.11 / 5.9e-5 ± 5.7e-5 m²/s³ (horizontal / vertical; ± standard error; 810 epochs)',
+    ],
+    [
+      { calibration: { status: 'estimated', reportedSigmaScale: true, estimates: { sigmaHorizontalM: { value: 0.9, se: 0.05 }, qHorizontal: { value: 1e-6, se: NaN, atBound: true } } } },
+      'white 0.9 ± 0.05 × reported sd; process noise 1.0e-6 (at its bound) m²/s³ (horizontal / vertical; ± standard error)',
+    ],
+    [{ calibration: { status: 'fallback', reason: 'only 40 usable fixes (needs 120)' } }, 'profile values (only 40 usable fixes (needs 120))'],
+    [{}, null],
+  ])('calibration line from info %#', (info, want) => expect(calibrationLine(info as Record<string, unknown>)).toBe(want));
+
+  test('a calibrated session carries its calibration line into the payload', () => {
+    const p = reportPayload(vehicle());
+    expect(p.calibrationLine).toMatch(/^white \S+ ± \S+ \/ \S+ ± \S+ m; correlated .* time constant .* s; process noise .* m²\/s³ \(horizontal \/ vertical; ± standard error; \d+ epochs\)$/);
+  });
 
   test('the IMU extension picks the plotted epochs of attitude and biases (gyro in deg/h)', () => {
     const r = withImu(vehicle());

@@ -8,7 +8,8 @@ import { STATUS, STATUS_NAMES, type OutlierReason, type SessionMetrics, type Ses
 import { everyNth, plotEpochs } from './decimate.js';
 import { collectExtensions, type ExtensionData } from './extensions.js';
 
-export const PAYLOAD_VERSION = 1;
+/** Version of the payload's shape (2: calibrationLine); an older kept payload is not drawn (page.ts). */
+export const PAYLOAD_VERSION = 2;
 /** Ellipses drawn on the track plot of a session (about; plus the worst one). */
 export const ELLIPSES_PER_SESSION = 30;
 /** Flagged fixes and decisions listed in a session's table (all are plotted). */
@@ -87,6 +88,8 @@ export interface ReportPayload {
   bridgedSpans: Array<[number, number]>;
   /** Calibrated fix noise when the session was calibrated (from SessionResult.info), else null. */
   calibratedNoise: CalibratedNoise | null;
+  /** The session's noise calibration in one line, every estimate with its standard error (calibrationLine), or null. */
+  calibrationLine: string | null;
   /** Facts worth showing (frame, model), as short text pairs. */
   facts: Array<[string, string]>;
   warningCount: number;
@@ -131,6 +134,50 @@ export function calibratedNoise(info: Record<string, unknown> | undefined): Cali
   const v = estimate(p.sigmaVerticalM) ?? estimate(p.verticalSigmaM);
   if (h === undefined && v === undefined) return null;
   return { horizontal: h ?? NaN, vertical: v ?? NaN, unit: cal.reportedSigmaScale === true ? '× reported sd' : 'm' };
+}
+
+/** An estimate as "v ± se" with the same number of significant digits (about 3) in both; "v (at a bound)" without one. */
+function withSe(e: unknown): string | undefined {
+  if (typeof e === 'number') return Number.isFinite(e) ? fmt(e) : undefined;
+  if (!e || typeof e !== 'object') return undefined;
+  const { value, se, atBound } = e as { value?: unknown; se?: unknown; atBound?: unknown };
+  const v = num(value);
+  if (v === undefined) return undefined;
+  const s = num(se);
+  if (atBound === true) return `${fmt(v)} (at its bound)`;
+  return s === undefined ? fmt(v) : `${fmt(v)} ± ${fmt(s)}`;
+}
+
+function fmt(v: number): string {
+  const a = Math.abs(v);
+  if (a !== 0 && (a < 1e-3 || a >= 1e5)) return v.toExponential(1);
+  return String(+v.toPrecision(a < 1 ? 2 : 3));
+}
+
+/**
+ * The calibration of a session in one line (issue 3: "the estimates and their standard errors in a
+ * per-session line of the report"): white noise, correlated error (sigma, time constant) and
+ * process noise, horizontal / vertical, each "value ± standard error"; "profile values (reason)"
+ * for a fallback; null without a calibration record.
+ */
+export function calibrationLine(info: Record<string, unknown> | undefined): string | null {
+  const cal = info?.calibration as Record<string, unknown> | undefined;
+  if (!cal || typeof cal !== 'object') return null;
+  if (cal.status === 'fallback') return `profile values${typeof cal.reason === 'string' ? ` (${cal.reason})` : ''}`;
+  const e = (cal.estimates ?? {}) as Record<string, unknown>;
+  const pair = (h: string, v: string) => [withSe(e[h]), withSe(e[v])].filter((x) => x !== undefined).join(' / ');
+  const unitW = cal.reportedSigmaScale === true ? '× reported sd' : 'm';
+  const parts: string[] = [];
+  const w = pair('sigmaHorizontalM', 'sigmaVerticalM');
+  if (w) parts.push(`white ${w} ${unitW}`);
+  const g = pair('gmHorizontalSigmaM', 'gmVerticalSigmaM');
+  const tau = withSe(e.gmTauSec);
+  if (g) parts.push(`correlated ${g} m${tau ? `, time constant ${tau} s` : ''}`);
+  const q = pair('qHorizontal', 'qVertical');
+  if (q) parts.push(`process noise ${q} m²/s³`);
+  if (parts.length === 0) return null;
+  const epochs = num(cal.epochsUsed);
+  return `${parts.join('; ')} (horizontal / vertical; ± standard error${epochs !== undefined ? `; ${epochs} epochs` : ''})`;
 }
 
 function facts(r: SessionResult): Array<[string, string]> {
@@ -241,6 +288,7 @@ export function reportPayload(r: SessionResult, opt: PayloadOptions = {}): Repor
     bridgedSec,
     bridgedSpans,
     calibratedNoise: calibratedNoise(r.info),
+    calibrationLine: calibrationLine(r.info),
     facts: facts(r),
     warningCount: r.warnings.length,
     warnings: r.warnings.slice(0, WARNINGS_MAX).map((w) => ({ ...w })),

@@ -72,6 +72,7 @@ function figures(p: ReportPayload): string {
     ['rms residual horizontal / up (m)', `${num(m.rmsResidualHorizontalM, 2)} / ${num(m.rmsResidualUpM, 2)}`],
     ['re-acquisitions', String(m.reacquisitions)],
     ['calibrated fix noise h / v', p.calibratedNoise ? noiseText(p.calibratedNoise) : 'not calibrated (profile values)'],
+    ['noise calibration', p.calibrationLine ?? 'none recorded'],
     ...p.facts,
   ];
   return `<dl class="figures">${rows.map(([k, v]) => `<dt>${esc(k)}</dt><dd>${esc(v)}</dd>`).join('')}</dl>`;
