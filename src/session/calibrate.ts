@@ -14,7 +14,8 @@
 import { Matrix, inverse } from 'ml-matrix';
 import type { HindcastConfig } from '../config/schema.js';
 import { nelderMead, numericalHessian } from '../estimation/nelder-mead.js';
-import { allocateHistory, forwardFilter, totalLogLik, type FilterHistory, type SegmentData } from '../estimation/track-filter.js';
+import { allocateHistory, forwardFilter, sameHorizontalInputs, totalLogLik, type FilterHistory, type SegmentData } from '../estimation/track-filter.js';
+import { forwardLogLik, forwardLogLikApplies, makeLogLikWork } from '../estimation/track-loglik.js';
 import { buildAxisModels, filterOptions, segmentData, segmentGrid, type AxisParams, type PreparedSession } from './process-session.js';
 import { selectKth } from '../estimation/select.js';
 
@@ -218,11 +219,12 @@ export function calibrateSession(
       const u = useOverride.get(item.seg);
       if (u) item.data = { ...item.data, use: u.subarray(item.start, item.start + item.data.N) };
     }
-  const subset: Array<{ data: SegmentData }> = [];
+  // with whether east and north have the same inputs (a property of the data alone, so found once)
+  const subset: Array<{ data: SegmentData; sameInputs: boolean }> = [];
   for (const item of chunks) {
     // a whole segment starts on its first fix already (kept as it is, also under held-fixed decisions)
     const d = item.start > 0 ? startOnFix(item.data) : item.data;
-    if (d) subset.push({ data: d });
+    if (d) subset.push({ data: d, sameInputs: sameHorizontalInputs(d) });
   }
   const epochsUsed = subset.reduce((a, d) => a + d.data.N, 0);
   const clampLog = (nm: ParamName, v: number) => Math.log(Math.min(Math.max(v, PARAM_BOUNDS[nm][0]), PARAM_BOUNDS[nm][1]));
@@ -232,6 +234,9 @@ export function calibrateSession(
   const base = start ?? prior;
   const histories = new Map<SegmentData, FilterHistory>();
   const fopt = filterOptions(cfg, prior);
+  // no re-acquisition here: its covariance inflation would explain manoeuvres for free
+  const lopt = { ...fopt, reacquireAfter: Number.MAX_SAFE_INTEGER, likelihood: true };
+  const llWork = makeLogLikWork(ps.hasHeight ? 3 : 2);
 
   const toParams = (x: number[]): AxisParams => {
     const p = { ...base };
@@ -247,7 +252,13 @@ export function calibrateSession(
     const models = buildAxisModels(p, ps.hasHeight);
     const rScale = [p.sigmaHorizontalM ** 2, p.sigmaHorizontalM ** 2, p.sigmaVerticalM ** 2];
     let ll = 0;
-    for (const { data: d } of subset) {
+    for (const { data: d, sameInputs } of subset) {
+      // the common case (n = 3, east and north shared) without a history: the same value as
+      // totalLogLik of the forward pass below (test/estimation/forward-loglik.test.ts)
+      if (forwardLogLikApplies(models, d, lopt, rScale, sameInputs)) {
+        ll += forwardLogLik(models, d, lopt, rScale, llWork);
+        continue;
+      }
       let h = histories.get(d);
       if (!h || h.x[0]!.length !== d.N * models[0]!.n) {
         h = allocateHistory(d.N, models);
