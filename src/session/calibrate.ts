@@ -16,7 +16,7 @@ import type { HindcastConfig } from '../config/schema.js';
 import { nelderMead, numericalHessian } from '../estimation/nelder-mead.js';
 import { allocateHistory, forwardFilter, sameHorizontalInputs, totalLogLik, type FilterHistory, type SegmentData } from '../estimation/track-filter.js';
 import { forwardLogLik, forwardLogLikApplies, makeLogLikWork } from '../estimation/track-loglik.js';
-import { buildAxisModels, filterOptions, segmentData, segmentGrid, type AxisParams, type PreparedSession } from './process-session.js';
+import { buildAxisModels, filterOptions, segmentData, segmentDataRange, segmentGrid, type AxisParams, type PreparedSession } from './process-session.js';
 import { selectKth } from '../estimation/select.js';
 
 type ParamName = 'sigmaHorizontalM' | 'sigmaVerticalM' | 'gmHorizontalSigmaM' | 'gmVerticalSigmaM' | 'gmTauSec' | 'qHorizontal' | 'qVertical';
@@ -137,12 +137,8 @@ function calibrationSubset(ps: PreparedSession, base: AxisParams, bridgeFactor: 
     }
     return out;
   }
-  const whole = new Map<number, SegmentData>();
-  for (const { seg, start, len } of windows) {
-    let data = whole.get(seg);
-    if (!data) whole.set(seg, (data = segmentData(ps, ps.segments[seg]!, unit, bridgeFactor).data));
-    out.push({ seg, start, data: sliceSegment(data, start, start + len) });
-  }
+  // each chunk alone (the same values as the slice of its whole segment's data)
+  for (const { seg, start, len } of windows) out.push({ seg, start, data: segmentDataRange(ps, ps.segments[seg]!, unit, bridgeFactor, start, start + len) });
   return out;
 }
 
@@ -158,8 +154,17 @@ function startOnFix(d: SegmentData): SegmentData | null {
   return k === 0 ? d : sliceSegment(d, k, d.N);
 }
 
+/** horizontalExtentM of a prepared session (both calibration rounds read it). */
+const extents = new WeakMap<PreparedSession, number>();
+
 /** Robust spread (m) of the horizontal fixes: the larger of the 5–95 % ranges of east and north. */
 function horizontalExtentM(ps: PreparedSession): number {
+  let v = extents.get(ps);
+  if (v === undefined) extents.set(ps, (v = horizontalExtentOf(ps)));
+  return v;
+}
+
+function horizontalExtentOf(ps: PreparedSession): number {
   const ext = (a: Float64Array) => {
     // the 5% and 95% order statistics, selected without sorting (the values of the sorted array)
     const all = new Float64Array(a.length);

@@ -198,13 +198,31 @@ export function segmentGrid(ps: PreparedSession, seg: [number, number], bridgeFa
 export function segmentData(ps: PreparedSession, seg: [number, number], p: AxisParams, bridgeFactor: number): { data: SegmentData; fix: Int32Array } {
   const grid = segmentGrid(ps, seg, bridgeFactor);
   const N = grid.tSec.length;
+  const { z, r, use } = fillSegment(ps, grid.fix, p, 0, N);
+  return { data: { N, tSec: grid.tSec, z, r, use }, fix: grid.fix };
+}
+
+/**
+ * The filter inputs of the epochs from..to−1 of a segment: the same values as
+ * sliceSegment(segmentData(…).data, from, to), without building the rest of the segment (the
+ * calibration reads four chunks of 1000 epochs from segments of up to millions).
+ */
+export function segmentDataRange(ps: PreparedSession, seg: [number, number], p: AxisParams, bridgeFactor: number, from: number, to: number): SegmentData {
+  const grid = segmentGrid(ps, seg, bridgeFactor);
+  const { z, r, use } = fillSegment(ps, grid.fix, p, from, to);
+  return { N: to - from, tSec: grid.tSec.subarray(from, to), z, r, use };
+}
+
+/** Measurements, variances and use of the grid epochs from..to−1 (arrays indexed from `from`). */
+function fillSegment(ps: PreparedSession, fix: Int32Array, p: AxisParams, from: number, to: number): { z: Float64Array[]; r: Float64Array[]; use: Uint8Array } {
+  const N = to - from;
   const nAx = ps.hasHeight ? 3 : 2;
   const z = Array.from({ length: nAx }, () => new Float64Array(N).fill(NaN));
   const r = Array.from({ length: nAx }, () => new Float64Array(N).fill(NaN));
   const use = new Uint8Array(N);
   const f = ps.factors;
   for (let k = 0; k < N; k++) {
-    const i = grid.fix[k]!;
+    const i = fix[from + k]!;
     if (i < 0 || !ps.offered[i]) continue;
     use[k] = ps.forced[i] ? 2 : 1;
     z[0]![k] = ps.e[i]!;
@@ -216,7 +234,7 @@ export function segmentData(ps: PreparedSession, seg: [number, number], p: AxisP
       r[a]![k] = sigma * sigma;
     }
   }
-  return { data: { N, tSec: grid.tSec, z, r, use }, fix: grid.fix };
+  return { z, r, use };
 }
 
 export function filterOptions(cfg: HindcastConfig, p: AxisParams): FilterOptions {
@@ -314,20 +332,23 @@ export const CHUNK_MARGIN_EPOCHS = 1000;
 function classifyWindows(ps: PreparedSession, cfg: HindcastConfig, params: AxisParams, ro: ReviewOptions, windows: Array<{ seg: number; start: number; len: number }>, uses: Map<number, Uint8Array>, tm?: StageTimings): void {
   const opt = filterOptions(cfg, params);
   const models = buildAxisModels(params, ps.hasHeight);
-  const whole = new Map<number, SegmentData>();
   for (const w of windows) {
     const t0 = tm ? performance.now() : 0;
-    let data = whole.get(w.seg);
-    if (!data) whole.set(w.seg, (data = segmentData(ps, ps.segments[w.seg]!, params, cfg.segments.bridgeFactor).data));
+    const seg = ps.segments[w.seg]!;
+    const N = segmentGrid(ps, seg, cfg.segments.bridgeFactor).tSec.length;
     let u = uses.get(w.seg);
-    if (!u) uses.set(w.seg, (u = new Uint8Array(data.N)));
-    let a = Math.max(0, w.start - CHUNK_MARGIN_EPOCHS);
-    let b = Math.min(data.N, w.start + w.len + CHUNK_MARGIN_EPOCHS);
-    while (a < b && data.use[a] === 0) a++;
-    while (b > a && data.use[b - 1] === 0) b--;
+    if (!u) uses.set(w.seg, (u = new Uint8Array(N)));
+    // the chunk with its margins only (the same values as that part of the segment's data)
+    const a0 = Math.max(0, w.start - CHUNK_MARGIN_EPOCHS);
+    const b0 = Math.min(N, w.start + w.len + CHUNK_MARGIN_EPOCHS);
+    const data = segmentDataRange(ps, seg, params, cfg.segments.bridgeFactor, a0, b0);
+    let a = a0;
+    let b = b0;
+    while (a < b && data.use[a - a0] === 0) a++;
+    while (b > a && data.use[b - 1 - a0] === 0) b--;
     if (tm) tm.review += performance.now() - t0;
     if (b - a < 3) continue;
-    const part = sliceSegment(data, a, b);
+    const part = sliceSegment(data, a - a0, b - a0);
     const offered = part.use.slice();
     const rev = reviewSegment(models, part, offered, opt, ro, undefined, tm);
     for (let k = 0; k < part.N; k++) u[a + k] = offered[k] === 0 ? 0 : rev.kept[k] ? 2 : 0;
