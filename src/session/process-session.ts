@@ -165,11 +165,13 @@ export function prepareSession(s: FixSeries, cfg: HindcastConfig, userDecisions?
   const e = new Float64Array(s.n).fill(NaN);
   const n = new Float64Array(s.n).fill(NaN);
   const u = new Float64Array(s.n).fill(NaN);
-  const hs: number[] = [];
-  if (s.heightM) for (let i = 0; i < s.n; i++) if (valid[i] && Number.isFinite(s.heightM[i]!)) hs.push(s.heightM[i]!);
+  // the valid heights in order, in a typed array (the values a list of them would hold)
+  const hs = new Float64Array(s.heightM ? s.n : 0);
+  let nh = 0;
+  if (s.heightM) for (let i = 0; i < s.n; i++) if (valid[i] && Number.isFinite(s.heightM[i]!)) hs[nh++] = s.heightM[i]!;
   // the median order statistic, selected without sorting (the value of the sorted array)
-  const hasHeight = hs.length > 0;
-  const heightRefM = hasHeight ? selectKth(Float64Array.from(hs), hs.length >> 1) : 0;
+  const hasHeight = nh > 0;
+  const heightRefM = hasHeight ? selectKth(hs.subarray(0, nh), nh >> 1) : 0;
   const out = [0, 0];
   for (let i = 0; i < s.n; i++) {
     if (!valid[i]) continue;
