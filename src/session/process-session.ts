@@ -380,15 +380,18 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
   const tProducts = tm ? performance.now() : 0;
   const N = segOuts.reduce((a, o) => a + o.data.N, 0);
   const mk = () => new Float64Array(N).fill(NaN);
+  // arrays the loop below writes at every epoch (the segments cover the N epochs) need no NaN first
+  const all = () => new Float64Array(N);
+  const up = nAx === 3 ? all : mk;
   const res: SessionResult = {
     name,
     file: s.file,
     N,
-    tSec: mk(), latDeg: mk(), lonDeg: mk(), heightM: mk(),
-    posEnu: [mk(), mk(), mk()], velEnu: [mk(), mk(), mk()], sdEnu: [mk(), mk(), mk()],
-    covEN: mk(), ell95MajorM: mk(), ell95MinorM: mk(), ell95AzimuthDeg: mk(),
+    tSec: all(), latDeg: all(), lonDeg: all(), heightM: ps.hasHeight ? all() : mk(),
+    posEnu: [all(), all(), up()], velEnu: [all(), all(), up()], sdEnu: [all(), all(), up()],
+    covEN: all(), ell95MajorM: all(), ell95MinorM: all(), ell95AzimuthDeg: all(),
     status: new Uint8Array(N), segment: new Int32Array(N), fix: new Int32Array(N),
-    nis: mk(), nisThreshold: mk(),
+    nis: all(), nisThreshold: all(),
     hasHeight: ps.hasHeight,
     outliers: [],
     metrics: undefined as unknown as SessionResult['metrics'],
