@@ -39,12 +39,6 @@ export interface FilterOptions {
   rScale?: number[] | null;
   /** Fill the per-epoch log-likelihood (calibration); otherwise it stays 0 and its logarithms are skipped. */
   likelihood?: boolean;
-  /**
-   * sameHorizontalInputs of the data, when the caller has it (the review runs tens of passes over
-   * the same measurements, whose variances and missing values do not change between them): then
-   * horizontalShare does not scan the epochs again. Must be that function's value for data.z, data.r.
-   */
-  sameHorizontalInputs?: boolean;
 }
 
 /** Forward history of one segment; x/P hold filtered values (later overwritten by the smoother). */
@@ -95,12 +89,11 @@ export function covIndex(n: number, i: number, j: number): number {
  * arithmetic on the same numbers (re-acquisition inflates both horizontal axes alike), so P is
  * computed once and copied, bit for bit what the second computation would give.
  */
-export function horizontalShare(models: AxisModel[], data: SegmentData, rScale: number[] | null | undefined, qScale: Float64Array[] | null | undefined, sameInputs?: boolean): boolean {
+export function horizontalShare(models: AxisModel[], data: SegmentData, rScale: number[] | null | undefined, qScale: Float64Array[] | null | undefined): boolean {
   if (models.length < 2 || models[0] !== models[1] || models[0]!.n !== 3) return false;
   if (rScale && rScale[0] !== rScale[1]) return false;
   if (qScale && qScale[0] !== qScale[1]) return false;
-  // the caller's sameHorizontalInputs(data), when given (FilterOptions.sameHorizontalInputs)
-  return sameInputs ?? sameHorizontalInputs(data);
+  return sameHorizontalInputs(data);
 }
 
 /** The data half of horizontalShare: east and north have the same measurement variances at every epoch, and are measured or not together. */
@@ -393,7 +386,7 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
 
   const likelihood = opt.likelihood === true;
   // north takes east's covariances (predict and update its state only)
-  const share = horizontalShare(models, data, opt.rScale, opt.qScale, opt.sameHorizontalInputs);
+  const share = horizontalShare(models, data, opt.rScale, opt.qScale);
   // Δt of the step whose F, Q are in w.F, w.Q (NaN: none, or not reusable; see ensureStep)
   let lastDt = NaN;
   let runStart = -1;

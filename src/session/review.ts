@@ -11,7 +11,7 @@
 import type { AxisModel } from '../models/axis-model.js';
 import { forwardFilter, type FilterHistory, type FilterOptions, type SegmentData } from '../estimation/track-filter.js';
 import { resmoothWindows, smoothInto } from '../estimation/track-smoother.js';
-import { allocateHistory, historyOf, sameHorizontalInputs } from '../estimation/track-filter.js';
+import { allocateHistory, historyOf } from '../estimation/track-filter.js';
 import { reviewStatisticsRange } from '../estimation/review.js';
 import { applyReviewDecisions, reviewThresholds } from './review-decisions.js';
 import { applySwap, findSwaps, swapCost, type Swap } from './review-swaps.js';
@@ -62,7 +62,7 @@ export function reviewSegment(
   models: AxisModel[],
   data: SegmentData,
   offered: Uint8Array,
-  filterOpt: FilterOptions,
+  opt: FilterOptions,
   ro: ReviewOptions,
   initial?: { kept: Uint8Array; gateRejected: Uint8Array },
   tm?: StageTimings,
@@ -75,9 +75,6 @@ export function reviewSegment(
   // accepted flags are needed after the gate), so the review holds two full histories, not three
   let smoothBuf: FilterHistory | undefined;
   const work: SegmentData = { ...data, use: offered.slice() };
-  // every pass filters the same measurements (forward and time-reversed: the same pairs of east and
-  // north values), so whether east and north may share is found once, not at every pass
-  const opt: FilterOptions = { ...filterOpt, sameHorizontalInputs: filterOpt.sameHorizontalInputs ?? sameHorizontalInputs(data) };
   let h: FilterHistory;
   const gateRejected = new Uint8Array(N);
   const kept = new Uint8Array(N);

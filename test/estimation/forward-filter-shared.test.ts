@@ -8,7 +8,7 @@
  * 0 and 1e-6 after seeded changes of use. Seeded.
  */
 import { describe, expect, it } from 'vitest';
-import { forwardFilter, horizontalShare, sameHorizontalInputs, type SegmentData } from '../../src/estimation/track-filter.js';
+import { forwardFilter, horizontalShare, type SegmentData } from '../../src/estimation/track-filter.js';
 import { reversed } from '../../src/session/review.js';
 import type { ScenarioKind } from '../../src/simulate/truth.js';
 import { refForwardFilter } from '../helpers/reference-track-filter.js';
@@ -84,17 +84,6 @@ describe('forwardFilter: the shared n = 3 loop against the previous form', () =>
         expectSameHistory(a, b);
       }
     }
-  });
-
-  it("with the caller's sameHorizontalInputs (the review's hint): the same histories, and the hint decides horizontalShare", () => {
-    const { models, data, opt } = segmentCase('vehicle', 5, 1);
-    const same = sameHorizontalInputs(data);
-    expect(same).toBe(true);
-    for (const d of [data, reversed(data)]) expectSameHistory(forwardFilter(models, d, { ...opt, sameHorizontalInputs: same }), refForwardFilter(models, d, opt));
-    expect(horizontalShare(models, data, null, null, false)).toBe(false);
-    expect(horizontalShare(models, data, null, null, true)).toBe(true);
-    // the model checks come first: a hint does not make separate models share
-    expect(horizontalShare([models[0]!, { ...models[0]! }, models[2]!], data, null, null, true)).toBe(false);
   });
 
   it('the general loop still runs the cases outside the shared one (likelihood, r scale, q scale)', () => {
