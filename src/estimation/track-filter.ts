@@ -93,6 +93,12 @@ export function horizontalShare(models: AxisModel[], data: SegmentData, rScale: 
   if (models.length < 2 || models[0] !== models[1] || models[0]!.n !== 3) return false;
   if (rScale && rScale[0] !== rScale[1]) return false;
   if (qScale && qScale[0] !== qScale[1]) return false;
+  return sameHorizontalInputs(data);
+}
+
+/** The data half of horizontalShare: east and north have the same measurement variances at every epoch, and are measured or not together. */
+export function sameHorizontalInputs(data: SegmentData): boolean {
+  if (data.r.length < 2) return false;
   const r0 = data.r[0]!, r1 = data.r[1]!, z0 = data.z[0]!, z1 = data.z[1]!;
   for (let k = 0; k < data.N; k++) {
     if (!Object.is(r0[k], r1[k])) return false;
@@ -314,7 +320,7 @@ function sameState(models: AxisModel[], h: FilterHistory, k: number, sx: Float64
 }
 
 /** The prior at the first epoch: position at the first fix (or 0), diffuse kinematics, stationary GM error. */
-function writePrior(models: AxisModel[], data: SegmentData, opt: FilterOptions, h: FilterHistory): void {
+export function writePrior(models: AxisModel[], data: SegmentData, opt: FilterOptions, h: FilterHistory): void {
   for (let a = 0; a < models.length; a++) {
     const m = models[a]!;
     const n = m.n;

@@ -69,19 +69,21 @@ export function wrapLonDeg(d: number): number {
  * first valid one (so sessions across the antimeridian get a sensible centre).
  */
 export function sessionCentre(latDeg: Float64Array, lonDeg: Float64Array, valid?: Uint8Array): [number, number] {
-  const lats: number[] = [];
-  const lons: number[] = [];
+  // the values in typed arrays filled in order (what lists of them held)
+  const lats = new Float64Array(latDeg.length);
+  const lons = new Float64Array(latDeg.length);
+  let c = 0;
   let ref = NaN;
   for (let i = 0; i < latDeg.length; i++) {
     if (valid && !valid[i]) continue;
     if (Number.isNaN(ref)) ref = lonDeg[i]!;
-    lats.push(latDeg[i]!);
-    lons.push(ref + wrapLonDeg(lonDeg[i]! - ref));
+    lats[c] = latDeg[i]!;
+    lons[c++] = ref + wrapLonDeg(lonDeg[i]! - ref);
   }
-  if (lats.length === 0) return [0, 0];
-  const med = (v: number[]) => {
+  if (c === 0) return [0, 0];
+  const med = (v: Float64Array) => {
     // the middle order statistics of the sorted values, selected without sorting (the same values)
-    const a = Float64Array.from(v);
+    const a = v.subarray(0, c);
     const m = a.length >> 1;
     const hi = selectKth(a, m);
     return a.length % 2 ? hi : 0.5 * (selectKth(a, m - 1) + hi);

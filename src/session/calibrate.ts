@@ -14,8 +14,9 @@
 import { Matrix, inverse } from 'ml-matrix';
 import type { HindcastConfig } from '../config/schema.js';
 import { nelderMead, numericalHessian } from '../estimation/nelder-mead.js';
-import { allocateHistory, forwardFilter, totalLogLik, type FilterHistory, type SegmentData } from '../estimation/track-filter.js';
-import { buildAxisModels, filterOptions, segmentData, segmentGrid, type AxisParams, type PreparedSession } from './process-session.js';
+import { allocateHistory, forwardFilter, sameHorizontalInputs, totalLogLik, type FilterHistory, type SegmentData } from '../estimation/track-filter.js';
+import { forwardLogLik, forwardLogLikApplies, makeLogLikWork } from '../estimation/track-loglik.js';
+import { buildAxisModels, filterOptions, segmentData, segmentDataRange, segmentGrid, type AxisParams, type PreparedSession } from './process-session.js';
 import { selectKth } from '../estimation/select.js';
 
 type ParamName = 'sigmaHorizontalM' | 'sigmaVerticalM' | 'gmHorizontalSigmaM' | 'gmVerticalSigmaM' | 'gmTauSec' | 'qHorizontal' | 'qVertical';
@@ -136,12 +137,8 @@ function calibrationSubset(ps: PreparedSession, base: AxisParams, bridgeFactor: 
     }
     return out;
   }
-  const whole = new Map<number, SegmentData>();
-  for (const { seg, start, len } of windows) {
-    let data = whole.get(seg);
-    if (!data) whole.set(seg, (data = segmentData(ps, ps.segments[seg]!, unit, bridgeFactor).data));
-    out.push({ seg, start, data: sliceSegment(data, start, start + len) });
-  }
+  // each chunk alone (the same values as the slice of its whole segment's data)
+  for (const { seg, start, len } of windows) out.push({ seg, start, data: segmentDataRange(ps, ps.segments[seg]!, unit, bridgeFactor, start, start + len) });
   return out;
 }
 
@@ -157,8 +154,17 @@ function startOnFix(d: SegmentData): SegmentData | null {
   return k === 0 ? d : sliceSegment(d, k, d.N);
 }
 
+/** horizontalExtentM of a prepared session (both calibration rounds read it). */
+const extents = new WeakMap<PreparedSession, number>();
+
 /** Robust spread (m) of the horizontal fixes: the larger of the 5–95 % ranges of east and north. */
 function horizontalExtentM(ps: PreparedSession): number {
+  let v = extents.get(ps);
+  if (v === undefined) extents.set(ps, (v = horizontalExtentOf(ps)));
+  return v;
+}
+
+function horizontalExtentOf(ps: PreparedSession): number {
   const ext = (a: Float64Array) => {
     // the 5% and 95% order statistics, selected without sorting (the values of the sorted array)
     const all = new Float64Array(a.length);
@@ -218,11 +224,12 @@ export function calibrateSession(
       const u = useOverride.get(item.seg);
       if (u) item.data = { ...item.data, use: u.subarray(item.start, item.start + item.data.N) };
     }
-  const subset: Array<{ data: SegmentData }> = [];
+  // with whether east and north have the same inputs (a property of the data alone, so found once)
+  const subset: Array<{ data: SegmentData; sameInputs: boolean }> = [];
   for (const item of chunks) {
     // a whole segment starts on its first fix already (kept as it is, also under held-fixed decisions)
     const d = item.start > 0 ? startOnFix(item.data) : item.data;
-    if (d) subset.push({ data: d });
+    if (d) subset.push({ data: d, sameInputs: sameHorizontalInputs(d) });
   }
   const epochsUsed = subset.reduce((a, d) => a + d.data.N, 0);
   const clampLog = (nm: ParamName, v: number) => Math.log(Math.min(Math.max(v, PARAM_BOUNDS[nm][0]), PARAM_BOUNDS[nm][1]));
@@ -232,6 +239,9 @@ export function calibrateSession(
   const base = start ?? prior;
   const histories = new Map<SegmentData, FilterHistory>();
   const fopt = filterOptions(cfg, prior);
+  // no re-acquisition here: its covariance inflation would explain manoeuvres for free
+  const lopt = { ...fopt, reacquireAfter: Number.MAX_SAFE_INTEGER, likelihood: true };
+  const llWork = makeLogLikWork(ps.hasHeight ? 3 : 2);
 
   const toParams = (x: number[]): AxisParams => {
     const p = { ...base };
@@ -247,7 +257,13 @@ export function calibrateSession(
     const models = buildAxisModels(p, ps.hasHeight);
     const rScale = [p.sigmaHorizontalM ** 2, p.sigmaHorizontalM ** 2, p.sigmaVerticalM ** 2];
     let ll = 0;
-    for (const { data: d } of subset) {
+    for (const { data: d, sameInputs } of subset) {
+      // the common case (n = 3, east and north shared) without a history: the same value as
+      // totalLogLik of the forward pass below (test/estimation/forward-loglik.test.ts)
+      if (forwardLogLikApplies(models, d, lopt, rScale, sameInputs)) {
+        ll += forwardLogLik(models, d, lopt, rScale, llWork);
+        continue;
+      }
       let h = histories.get(d);
       if (!h || h.x[0]!.length !== d.N * models[0]!.n) {
         h = allocateHistory(d.N, models);

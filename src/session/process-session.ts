@@ -41,34 +41,51 @@ export const HEIGHT_JUMP_SLACK_M = 150;
  * Impossible jumps in height: a fix whose height differs from the median of its valid neighbours
  * (up to five on each side) by more than the slack plus the fastest climb over the time to the
  * farthest of them is invalid; the median of neighbours is robust to a burst of bad heights.
+ * The median lies between the neighbours' smallest and largest heights, so a fix within the limit
+ * of both is not a jump and needs no median (rounding is monotonic, so this holds for the computed
+ * differences too); only the others sort their neighbours, as before (the same values, the same order).
  */
 export function flagHeightJumps(s: FixSeries, valid: Uint8Array, why: string[]): void {
   const h = s.heightM;
   if (!h) return;
   const W = 5;
-  // the neighbours' heights, insertion-sorted in place (at most 2W values: no allocation per fix)
+  const n = s.n, tSec = s.tSec;
+  // the neighbours' heights in the order they are found (at most 2W values: no allocation per fix)
   const nb = new Float64Array(2 * W);
-  for (let i = 0; i < s.n; i++) {
-    if (!valid[i] || !Number.isFinite(h[i]!)) continue;
+  for (let i = 0; i < n; i++) {
+    const hi = h[i]!;
+    if (!valid[i] || !Number.isFinite(hi)) continue;
+    const ti = tSec[i]!;
     let m = 0;
     let span = 0;
+    let lo = Infinity, up = -Infinity;
     for (let d = 1; d <= 3 * W && m < 2 * W; d++)
       for (let side = 0; side < 2; side++) {
         const j = side === 0 ? i - d : i + d;
-        if (j < 0 || j >= s.n || !valid[j] || !Number.isFinite(h[j]!) || m >= 2 * W) continue;
+        if (j < 0 || j >= n || !valid[j] || !Number.isFinite(h[j]!) || m >= 2 * W) continue;
         const v = h[j]!;
-        let q = m++;
-        while (q > 0 && nb[q - 1]! > v) {
-          nb[q] = nb[q - 1]!;
-          q--;
-        }
-        nb[q] = v;
-        span = Math.max(span, Math.abs(s.tSec[j]! - s.tSec[i]!));
+        nb[m++] = v;
+        if (v < lo) lo = v;
+        if (v > up) up = v;
+        span = Math.max(span, Math.abs(tSec[j]! - ti));
       }
     if (m < 4) continue;
+    const limit = HEIGHT_JUMP_SLACK_M + HEIGHT_JUMP_RATE_MPS * span;
+    // |h − median| ≤ max(|h − lowest|, |h − highest|): within the limit, no jump
+    if (Math.abs(hi - lo) <= limit && Math.abs(hi - up) <= limit) continue;
+    // insertion sort in the order found (what inserting each value as it was found gave)
+    for (let a = 1; a < m; a++) {
+      const v = nb[a]!;
+      let q = a;
+      while (q > 0 && nb[q - 1]! > v) {
+        nb[q] = nb[q - 1]!;
+        q--;
+      }
+      nb[q] = v;
+    }
     const med = nb[m >> 1]!;
-    const jump = Math.abs(h[i]! - med);
-    if (jump > HEIGHT_JUMP_SLACK_M + HEIGHT_JUMP_RATE_MPS * span) {
+    const jump = Math.abs(hi - med);
+    if (jump > limit) {
       valid[i] = 0;
       why[i] = `impossible height jump: ${jump.toFixed(0)} m from its neighbours within ${span.toFixed(1)} s`;
     }
@@ -148,11 +165,13 @@ export function prepareSession(s: FixSeries, cfg: HindcastConfig, userDecisions?
   const e = new Float64Array(s.n).fill(NaN);
   const n = new Float64Array(s.n).fill(NaN);
   const u = new Float64Array(s.n).fill(NaN);
-  const hs: number[] = [];
-  if (s.heightM) for (let i = 0; i < s.n; i++) if (valid[i] && Number.isFinite(s.heightM[i]!)) hs.push(s.heightM[i]!);
+  // the valid heights in order, in a typed array (the values a list of them would hold)
+  const hs = new Float64Array(s.heightM ? s.n : 0);
+  let nh = 0;
+  if (s.heightM) for (let i = 0; i < s.n; i++) if (valid[i] && Number.isFinite(s.heightM[i]!)) hs[nh++] = s.heightM[i]!;
   // the median order statistic, selected without sorting (the value of the sorted array)
-  const hasHeight = hs.length > 0;
-  const heightRefM = hasHeight ? selectKth(Float64Array.from(hs), hs.length >> 1) : 0;
+  const hasHeight = nh > 0;
+  const heightRefM = hasHeight ? selectKth(hs.subarray(0, nh), nh >> 1) : 0;
   const out = [0, 0];
   for (let i = 0; i < s.n; i++) {
     if (!valid[i]) continue;
@@ -181,13 +200,31 @@ export function segmentGrid(ps: PreparedSession, seg: [number, number], bridgeFa
 export function segmentData(ps: PreparedSession, seg: [number, number], p: AxisParams, bridgeFactor: number): { data: SegmentData; fix: Int32Array } {
   const grid = segmentGrid(ps, seg, bridgeFactor);
   const N = grid.tSec.length;
+  const { z, r, use } = fillSegment(ps, grid.fix, p, 0, N);
+  return { data: { N, tSec: grid.tSec, z, r, use }, fix: grid.fix };
+}
+
+/**
+ * The filter inputs of the epochs from..to−1 of a segment: the same values as
+ * sliceSegment(segmentData(…).data, from, to), without building the rest of the segment (the
+ * calibration reads four chunks of 1000 epochs from segments of up to millions).
+ */
+export function segmentDataRange(ps: PreparedSession, seg: [number, number], p: AxisParams, bridgeFactor: number, from: number, to: number): SegmentData {
+  const grid = segmentGrid(ps, seg, bridgeFactor);
+  const { z, r, use } = fillSegment(ps, grid.fix, p, from, to);
+  return { N: to - from, tSec: grid.tSec.subarray(from, to), z, r, use };
+}
+
+/** Measurements, variances and use of the grid epochs from..to−1 (arrays indexed from `from`). */
+function fillSegment(ps: PreparedSession, fix: Int32Array, p: AxisParams, from: number, to: number): { z: Float64Array[]; r: Float64Array[]; use: Uint8Array } {
+  const N = to - from;
   const nAx = ps.hasHeight ? 3 : 2;
   const z = Array.from({ length: nAx }, () => new Float64Array(N).fill(NaN));
   const r = Array.from({ length: nAx }, () => new Float64Array(N).fill(NaN));
   const use = new Uint8Array(N);
   const f = ps.factors;
   for (let k = 0; k < N; k++) {
-    const i = grid.fix[k]!;
+    const i = fix[from + k]!;
     if (i < 0 || !ps.offered[i]) continue;
     use[k] = ps.forced[i] ? 2 : 1;
     z[0]![k] = ps.e[i]!;
@@ -199,7 +236,7 @@ export function segmentData(ps: PreparedSession, seg: [number, number], p: AxisP
       r[a]![k] = sigma * sigma;
     }
   }
-  return { data: { N, tSec: grid.tSec, z, r, use }, fix: grid.fix };
+  return { z, r, use };
 }
 
 export function filterOptions(cfg: HindcastConfig, p: AxisParams): FilterOptions {
@@ -297,20 +334,23 @@ export const CHUNK_MARGIN_EPOCHS = 1000;
 function classifyWindows(ps: PreparedSession, cfg: HindcastConfig, params: AxisParams, ro: ReviewOptions, windows: Array<{ seg: number; start: number; len: number }>, uses: Map<number, Uint8Array>, tm?: StageTimings): void {
   const opt = filterOptions(cfg, params);
   const models = buildAxisModels(params, ps.hasHeight);
-  const whole = new Map<number, SegmentData>();
   for (const w of windows) {
     const t0 = tm ? performance.now() : 0;
-    let data = whole.get(w.seg);
-    if (!data) whole.set(w.seg, (data = segmentData(ps, ps.segments[w.seg]!, params, cfg.segments.bridgeFactor).data));
+    const seg = ps.segments[w.seg]!;
+    const N = segmentGrid(ps, seg, cfg.segments.bridgeFactor).tSec.length;
     let u = uses.get(w.seg);
-    if (!u) uses.set(w.seg, (u = new Uint8Array(data.N)));
-    let a = Math.max(0, w.start - CHUNK_MARGIN_EPOCHS);
-    let b = Math.min(data.N, w.start + w.len + CHUNK_MARGIN_EPOCHS);
-    while (a < b && data.use[a] === 0) a++;
-    while (b > a && data.use[b - 1] === 0) b--;
+    if (!u) uses.set(w.seg, (u = new Uint8Array(N)));
+    // the chunk with its margins only (the same values as that part of the segment's data)
+    const a0 = Math.max(0, w.start - CHUNK_MARGIN_EPOCHS);
+    const b0 = Math.min(N, w.start + w.len + CHUNK_MARGIN_EPOCHS);
+    const data = segmentDataRange(ps, seg, params, cfg.segments.bridgeFactor, a0, b0);
+    let a = a0;
+    let b = b0;
+    while (a < b && data.use[a - a0] === 0) a++;
+    while (b > a && data.use[b - 1 - a0] === 0) b--;
     if (tm) tm.review += performance.now() - t0;
     if (b - a < 3) continue;
-    const part = sliceSegment(data, a, b);
+    const part = sliceSegment(data, a - a0, b - a0);
     const offered = part.use.slice();
     const rev = reviewSegment(models, part, offered, opt, ro, undefined, tm);
     for (let k = 0; k < part.N; k++) u[a + k] = offered[k] === 0 ? 0 : rev.kept[k] ? 2 : 0;
@@ -340,15 +380,18 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
   const tProducts = tm ? performance.now() : 0;
   const N = segOuts.reduce((a, o) => a + o.data.N, 0);
   const mk = () => new Float64Array(N).fill(NaN);
+  // arrays the loop below writes at every epoch (the segments cover the N epochs) need no NaN first
+  const all = () => new Float64Array(N);
+  const up = nAx === 3 ? all : mk;
   const res: SessionResult = {
     name,
     file: s.file,
     N,
-    tSec: mk(), latDeg: mk(), lonDeg: mk(), heightM: mk(),
-    posEnu: [mk(), mk(), mk()], velEnu: [mk(), mk(), mk()], sdEnu: [mk(), mk(), mk()],
-    covEN: mk(), ell95MajorM: mk(), ell95MinorM: mk(), ell95AzimuthDeg: mk(),
+    tSec: all(), latDeg: all(), lonDeg: all(), heightM: ps.hasHeight ? all() : mk(),
+    posEnu: [all(), all(), up()], velEnu: [all(), all(), up()], sdEnu: [all(), all(), up()],
+    covEN: all(), ell95MajorM: all(), ell95MinorM: all(), ell95AzimuthDeg: all(),
     status: new Uint8Array(N), segment: new Int32Array(N), fix: new Int32Array(N),
-    nis: mk(), nisThreshold: mk(),
+    nis: all(), nisThreshold: all(),
     hasHeight: ps.hasHeight,
     outliers: [],
     metrics: undefined as unknown as SessionResult['metrics'],

@@ -1,0 +1,83 @@
+/**
+ * calibrateSession with the objective evaluated by forwardLogLik (round 8 of issue 8) against its
+ * previous form, kept verbatim in test/helpers/reference-calibrate.ts (forwardFilter with the
+ * likelihood and totalLogLik at every evaluation): parameters, estimates, standard errors,
+ * log-likelihood and evaluation counts compared with Object.is. Cases: a log used whole (short),
+ * one taken in chunks (longer than the 4000-epoch subset), one without height, and a second round
+ * with held-fixed decisions (kept and rejected fixes, the first epoch of a segment rejected). Seeded.
+ */
+import { describe, expect, it } from 'vitest';
+import { loadConfig } from '../../src/config/load.js';
+import { readFixCsv } from '../../src/input/csv-fixes.js';
+import { FIRST_ROUND, calibrateSession, calibrationWindows } from '../../src/session/calibrate.js';
+import { axisParamsFromConfig, prepareSession, segmentData } from '../../src/session/process-session.js';
+import { defaultSpec, scenarioCsv, simulate } from '../../src/simulate/scenario.js';
+import { refCalibrateSession } from '../helpers/reference-calibrate.js';
+
+/** Park–Miller minimal standard generator (seeded). */
+function rng(seed: number): () => number {
+  let s = seed;
+  return () => (s = (s * 48271) % 2147483647) / 2147483647;
+}
+
+/** Every number of two results the same (Object.is), NaN and −0 included. */
+function expectSame(a: unknown, b: unknown, path = ''): void {
+  if (typeof a === 'number' && typeof b === 'number') {
+    if (!Object.is(a, b)) expect(`${path}: ${a}`).toBe(`${path}: ${b}`);
+    return;
+  }
+  if (a && b && typeof a === 'object' && typeof b === 'object') {
+    expect(Object.keys(a).sort()).toEqual(Object.keys(b).sort());
+    for (const k of Object.keys(a)) expectSame((a as Record<string, unknown>)[k], (b as Record<string, unknown>)[k], `${path}.${k}`);
+    return;
+  }
+  expect(a).toEqual(b);
+}
+
+function session(seed: number, rateHz: number, durationSec: number, noHeight = false) {
+  const cfg = loadConfig({ profile: 'vehicle' });
+  const spec = defaultSpec('vehicle', seed, { rateHz });
+  spec.durationSec = durationSec;
+  let csv = scenarioCsv(simulate(spec));
+  if (noHeight) {
+    const lines = csv.split('\n');
+    const hi = lines[0]!.split(',').indexOf('height');
+    csv = lines.map((l) => (l ? l.split(',').filter((_, i) => i !== hi).join(',') : l)).join('\n');
+  }
+  const ps = prepareSession(readFixCsv(csv, 's.csv', cfg), cfg);
+  return { cfg, ps, prior: axisParamsFromConfig(cfg) };
+}
+
+describe('calibrateSession: the objective without histories against the previous form', () => {
+  it.each([
+    ['whole log (1 Hz, 20 min)', 5, 1, 1200, false],
+    ['chunks of a longer log (5 Hz, 20 min)', 6, 5, 1200, false],
+    ['no height (1 Hz, 20 min)', 1, 1, 1200, true],
+  ] as const)('%s: first round', (_name, seed, rateHz, dur, noHeight) => {
+    const { cfg, ps, prior } = session(seed, rateHz, dur, noHeight);
+    if (rateHz === 5) expect(calibrationWindows(ps, cfg.segments.bridgeFactor, 4000)).not.toBeNull();
+    else expect(calibrationWindows(ps, cfg.segments.bridgeFactor, 4000)).toBeNull();
+    const a = calibrateSession(ps, cfg, prior, FIRST_ROUND);
+    const b = refCalibrateSession(ps, cfg, prior, FIRST_ROUND);
+    expect(a.info.status).toBe('estimated');
+    expectSame(a, b);
+  });
+
+  it('second round with held-fixed decisions and standard errors', () => {
+    const { cfg, ps, prior } = session(5, 1, 1200);
+    const start = calibrateSession(ps, cfg, prior, FIRST_ROUND).params;
+    const r = rng(4242);
+    const uses = new Map<number, Uint8Array>();
+    ps.segments.forEach((seg, si) => {
+      const u = segmentData(ps, seg, start, cfg.segments.bridgeFactor).data.use.slice();
+      for (let k = 0; k < u.length; k++) if (u[k] !== 0) u[k] = r() < 0.03 ? 0 : 2;
+      // a segment whose first epoch is rejected (whole segments are used as they are)
+      if (si === 0) u[0] = 0;
+      uses.set(si, u);
+    });
+    const a = calibrateSession(ps, cfg, prior, undefined, start, uses);
+    const b = refCalibrateSession(ps, cfg, prior, undefined, start, uses);
+    expect(Number.isFinite(a.info.estimates.gmTauSec!.se)).toBe(true);
+    expectSame(a, b);
+  });
+});
