@@ -136,11 +136,18 @@ function makeWork(models: AxisModel[]): Work {
   };
 }
 
-export function allocateHistory(N: number, models: AxisModel[]): FilterHistory {
+export function allocateHistory(N: number, models: AxisModel[], shareHorizontal = false): FilterHistory {
+  const P = models.map((m, a) => (shareHorizontal && a === 1 ? undefined : new Float64Array(N * covStride(m.n))));
+  // north's covariances are east's array: only for histories that every pass writes with
+  // horizontalShare true (north's covariance a copy of east's at every epoch, so one array holds both)
+  if (shareHorizontal) {
+    if (!(models.length >= 2 && models[0] === models[1] && models[0]!.n === 3)) throw new Error('allocateHistory: east and north cannot share');
+    P[1] = P[0];
+  }
   return historyOf(
     { N, nis: new Float64Array(N).fill(NaN), dof: new Uint8Array(N), threshold: new Float64Array(N).fill(NaN), accepted: new Uint8Array(N), extraQ: new Map(), logLik: new Float64Array(N), reacquired: [] },
     models.map((m) => new Float64Array(N * m.n)),
-    models.map((m) => new Float64Array(N * covStride(m.n))),
+    P as Float64Array[],
   );
 }
 

@@ -11,7 +11,7 @@
 import type { AxisModel } from '../models/axis-model.js';
 import { forwardFilter, type FilterHistory, type FilterOptions, type SegmentData } from '../estimation/track-filter.js';
 import { resmoothWindows, smoothInto } from '../estimation/track-smoother.js';
-import { allocateHistory, historyOf } from '../estimation/track-filter.js';
+import { allocateHistory, historyOf, horizontalShare } from '../estimation/track-filter.js';
 import { reviewStatisticsRange } from '../estimation/review.js';
 import { applyReviewDecisions, reviewThresholds } from './review-decisions.js';
 import { applySwap, findSwaps, swapCost, type Swap } from './review-swaps.js';
@@ -78,7 +78,14 @@ export function reviewSegment(
   let h: FilterHistory;
   const gateRejected = new Uint8Array(N);
   const kept = new Uint8Array(N);
+  // east and north measured alike (horizontalShare: it reads the models, the options and z, r, not
+  // the use, so it holds for every pass of this review and for the time-reversed data): every pass
+  // writes north's covariance as a copy of east's, filtered and smoothed, so each history holds one
+  // array for both (the same values; ~48 MB a history less to write at 1M epochs)
+  // (taken where the filter and smoother run their n = 3 loops, forwardShared3 and smoothIntoShared3)
+  const shareP = horizontalShare(models, data, opt.rScale, opt.qScale) && (models.length === 2 || models[2]!.n === 3);
   if (initial) {
+    histBuf = allocateHistory(N, models, shareP);
     for (let k = 0; k < N; k++) {
       kept[k] = offered[k] === 2 ? 1 : offered[k] ? initial.kept[k]! : 0;
       gateRejected[k] = initial.gateRejected[k]!;
@@ -87,8 +94,8 @@ export function reviewSegment(
     // gate both ways: a burst that opens the forward gate (the prediction's covariance grows while
     // its first fixes are rejected) is met from the other side by the time-reversed filter
     const t0 = tm ? performance.now() : 0;
-    h = forwardFilter(models, work, opt);
-    const back = forwardFilter(models, reversed(work), opt);
+    h = forwardFilter(models, work, opt, allocateHistory(N, models, shareP));
+    const back = forwardFilter(models, reversed(work), opt, allocateHistory(N, models, shareP));
     smoothBuf = back;
     // the first review pass reuses the forward history's buffers (every epoch is rewritten)
     histBuf = h;
@@ -154,7 +161,7 @@ export function reviewSegment(
     const t1 = tm ? performance.now() : 0;
     if (!hs || ro.windowed === false) {
       // the smoothed history shares the forward pass's per-epoch flags and statistics
-      const alloc = hs ?? smoothBuf ?? allocateHistory(N, models);
+      const alloc = hs ?? smoothBuf ?? allocateHistory(N, models, shareP);
       hs = historyOf(hf, alloc.x, alloc.P);
       smoothInto(models, work, hf, hs, opt.qScale);
       smoothed.push(N - 1, 0);

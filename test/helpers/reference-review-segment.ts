@@ -1,0 +1,229 @@
+/**
+ * reviewSegment of src/session/review.ts as it was before round 9 of issue 8 (a history of its own
+ * for north's covariances), kept verbatim as the reference for the bit-for-bit test of the current
+ * form (test/session/review-shared-history.test.ts). Only the imports, the name and this header
+ * differ; the source's header follows.
+ */
+/**
+ * The outlier review loop of one segment: forward gate first, then repeated smoothing in which every
+ * fix is tested against the smoothed track (estimation/review.ts). Kept fixes that fail are
+ * rejected (reason "review"), rejected fixes that pass are re-admitted, and the decisions are fed
+ * back as fixed (no forward gate) until nothing changes or maxPasses is reached. Re-admission is
+ * what undoes a cascade of rejections after a manoeuvre or a gap; rejection catches bursts that the
+ * forward gate let through.
+ * To avoid swamping, only the worst failing fix within a guard time is rejected per pass (its
+ * neighbours are judged again once it no longer pulls the track).
+ */
+import type { AxisModel } from '../../src/models/axis-model.js';
+import { forwardFilter, type FilterHistory, type FilterOptions, type SegmentData } from '../../src/estimation/track-filter.js';
+import { resmoothWindows, smoothInto } from '../../src/estimation/track-smoother.js';
+import { allocateHistory, historyOf } from '../../src/estimation/track-filter.js';
+import { reviewStatisticsRange } from '../../src/estimation/review.js';
+import { applyReviewDecisions, reviewThresholds } from '../../src/session/review-decisions.js';
+import { applySwap, findSwaps, swapCost, type Swap } from '../../src/session/review-swaps.js';
+import type { StageTimings } from '../../src/session/timings.js';
+
+/**
+ * Tolerance of the windowed re-runs (m, m/s, m²): a re-run stops once every state and covariance
+ * element is within it of the previous pass's value. With 0 (bit for bit) a change reaches ~16,000
+ * epochs at 10 Hz (the slow Gauss–Markov mode must decay below one ulp), so windows merge into full
+ * passes on long logs; at 1e-6 a change reaches ~900 epochs, and states differ from full passes by
+ * micrometres (test/session/review-windowed.test.ts). Measured on a 100k-fix 10 Hz vehicle log.
+ */
+const RERUN_TOL = 1e-6;
+
+export interface ReviewOutcome {
+  history: FilterHistory;
+  /** Data with the final decisions in `use` (2 kept, 0 rejected or no fix). */
+  data: SegmentData;
+  /** Final decision per epoch: 1 kept, 0 not used. */
+  kept: Uint8Array;
+  /** Rejected by the forward gate in the first pass. */
+  gateRejected: Uint8Array;
+  /** Review statistic, its dof and threshold per epoch (NaN where no fix). */
+  T: Float64Array;
+  dof: Uint8Array;
+  threshold: Float64Array;
+  passes: number;
+  /** The loop ended because no decision changed (not at maxPasses): rerunning it from `kept` under the same model gives this outcome again. */
+  converged: boolean;
+}
+
+export interface ReviewOptions {
+  probability: number;
+  maxPasses: number;
+  /** Only one fix is rejected per pass within this many seconds (masking guard). */
+  guardSec: number;
+  /** Re-run the filter and smoother only where decisions changed (default); false: full passes (the reference). */
+  windowed?: boolean;
+  /** Try the sandwiched kept runs the other way round once converged (default); false: off. */
+  swaps?: boolean;
+}
+
+/**
+ * @param offered the original use flags (0 none/user-rejected, 1 fix, 2 user-kept)
+ * @param initial optional starting decisions (1 kept / 0 rejected per epoch) instead of the forward gate
+ */
+export function refReviewSegment(
+  models: AxisModel[],
+  data: SegmentData,
+  offered: Uint8Array,
+  opt: FilterOptions,
+  ro: ReviewOptions,
+  initial?: { kept: Uint8Array; gateRejected: Uint8Array },
+  tm?: StageTimings,
+): ReviewOutcome {
+  const tStart = tm ? performance.now() : 0;
+  let tKernel = 0;
+  const N = data.N;
+  let histBuf: FilterHistory | undefined;
+  // buffers of the smoothed history: the time-reversed gate pass's, when there is one (only its
+  // accepted flags are needed after the gate), so the review holds two full histories, not three
+  let smoothBuf: FilterHistory | undefined;
+  const work: SegmentData = { ...data, use: offered.slice() };
+  let h: FilterHistory;
+  const gateRejected = new Uint8Array(N);
+  const kept = new Uint8Array(N);
+  if (initial) {
+    for (let k = 0; k < N; k++) {
+      kept[k] = offered[k] === 2 ? 1 : offered[k] ? initial.kept[k]! : 0;
+      gateRejected[k] = initial.gateRejected[k]!;
+    }
+  } else {
+    // gate both ways: a burst that opens the forward gate (the prediction's covariance grows while
+    // its first fixes are rejected) is met from the other side by the time-reversed filter
+    const t0 = tm ? performance.now() : 0;
+    h = forwardFilter(models, work, opt);
+    const back = forwardFilter(models, reversed(work), opt);
+    smoothBuf = back;
+    // the first review pass reuses the forward history's buffers (every epoch is rewritten)
+    histBuf = h;
+    if (tm) {
+      const d = performance.now() - t0;
+      tm.filter += d;
+      tKernel += d;
+      tm.filterPasses += 2;
+      tm.filterEpochs += 2 * N;
+    }
+    for (let k = 0; k < N; k++) {
+      const both = h.accepted[k]! && back.accepted[N - 1 - k]!;
+      kept[k] = offered[k] === 2 ? 1 : offered[k] ? both : 0;
+      if (offered[k] === 1 && !both) gateRejected[k] = 1;
+    }
+  }
+  const th = reviewThresholds(ro.probability);
+  const thr = th.reject;
+  const T = new Float64Array(N).fill(NaN);
+  const dof = new Uint8Array(N);
+  const threshold = new Float64Array(N).fill(NaN);
+  const nu = new Float64Array(models.length);
+  let passes = 0;
+  let converged = false;
+  let swapState: 'none' | 'pending' | 'done' = 'none';
+  let swaps: Swap[] = [];
+  let costBefore: number[] = [];
+  // after the first pass, the filter and smoother re-run only where a decision changed (FilterResume,
+  // resmoothWindows): hf keeps the filtered states, hs the smoothed ones; with RERUN_TOL = 0 the
+  // skipped epochs are bit for bit those of a full pass
+  let hf: FilterHistory | undefined;
+  let hs: FilterHistory | undefined;
+  const prevUse = new Uint8Array(N);
+  const changed: number[] = [];
+  const windows: number[] = [];
+  const smoothed: number[] = [];
+  for (;;) {
+    passes++;
+    changed.length = 0;
+    for (let k = 0; k < N; k++) {
+      const u = offered[k] === 0 ? 0 : kept[k] ? 2 : 0;
+      if (hf && u !== prevUse[k]) changed.push(k);
+      work.use[k] = u;
+      prevUse[k] = u;
+    }
+    const t0 = tm ? performance.now() : 0;
+    let nf = N;
+    let ns = N;
+    smoothed.length = 0;
+    if (!hf || ro.windowed === false) {
+      if (histBuf) {
+        histBuf.extraQ.clear();
+        histBuf.reacquired.length = 0;
+      }
+      hf = forwardFilter(models, work, opt, histBuf);
+      histBuf = hf;
+    } else {
+      windows.length = 0;
+      forwardFilter(models, work, opt, hf, { changed, tol: RERUN_TOL, windows });
+      nf = 0;
+      for (let i = 0; i < windows.length; i += 2) nf += windows[i + 1]! - windows[i]! + 1;
+    }
+    const t1 = tm ? performance.now() : 0;
+    if (!hs || ro.windowed === false) {
+      // the smoothed history shares the forward pass's per-epoch flags and statistics
+      const alloc = hs ?? smoothBuf ?? allocateHistory(N, models);
+      hs = historyOf(hf, alloc.x, alloc.P);
+      smoothInto(models, work, hf, hs, opt.qScale);
+      smoothed.push(N - 1, 0);
+    } else ns = resmoothWindows(models, work, hf, hs, windows, opt.qScale, RERUN_TOL, smoothed);
+    h = hs;
+    if (tm) {
+      const t2 = performance.now();
+      tm.filter += t1 - t0;
+      tm.smooth += t2 - t1;
+      tKernel += t2 - t0;
+      tm.filterPasses++;
+      tm.smoothPasses++;
+      tm.filterEpochs += nf;
+      tm.smoothEpochs += ns;
+    }
+    // the swap test (review-swaps.ts) may take two passes beyond the budget
+    if (passes > ro.maxPasses + (swapState === 'none' ? 0 : 2)) break;
+    converged = false;
+    // test every offered fix whose smoothed state or decision changed (the others keep their statistic)
+    for (let i = 0; i < smoothed.length; i += 2) reviewStatisticsRange(models, h.x, h.P, smoothed[i + 1]!, smoothed[i]!, data.z, data.r, offered, kept, T, dof, threshold, thr, nu);
+    for (const k of changed) reviewStatisticsRange(models, h.x, h.P, k, k, data.z, data.r, offered, kept, T, dof, threshold, thr, nu);
+    if (swapState === 'pending') {
+      // keep a swap only where it lowered its neighbourhood's robust cost; undo the others
+      swapState = 'done';
+      let undone = false;
+      swaps.forEach((sw, i) => {
+        if (swapCost(sw, offered, kept, T, threshold) >= costBefore[i]!) {
+          applySwap(sw, kept, true);
+          undone = true;
+        }
+      });
+      // the statistics of undone swaps belong to the swapped track: re-run before judging again
+      if (undone) continue;
+    }
+    // re-admit the clearly consistent, reject the worst failing fix per guard window
+    const changedAny = applyReviewDecisions(N, offered, kept, T, dof, threshold, data.tSec, th, ro.guardSec);
+    if (!changedAny) {
+      if (swapState === 'none' && ro.swaps !== false) {
+        // converged: try every kept run sandwiched between rejections the other way round
+        swaps = findSwaps(N, offered, kept, data.tSec, ro.guardSec);
+        if (swaps.length > 0) {
+          costBefore = swaps.map((sw) => swapCost(sw, offered, kept, T, threshold));
+          for (const sw of swaps) applySwap(sw, kept, false);
+          swapState = 'pending';
+          continue;
+        }
+        swapState = 'done';
+      }
+      converged = true;
+      break;
+    }
+  }
+  for (let k = 0; k < N; k++) work.use[k] = offered[k] === 0 ? 0 : kept[k] ? 2 : 0;
+  if (tm) tm.review += performance.now() - tStart - tKernel;
+  return { history: h!, data: work, kept, gateRejected, T, dof, threshold, passes, converged };
+}
+
+/** The segment in reverse time order (t → −t), for the time-reversed filter; the models are time-symmetric. */
+function reversed(d: SegmentData): SegmentData {
+  const N = d.N;
+  // typed-array copy and reverse (the same values as an element-wise map, without its per-element call)
+  const rev = (a: Float64Array) => a.slice().reverse();
+  const tSec = new Float64Array(N);
+  for (let i = 0; i < N; i++) tSec[i] = -d.tSec[N - 1 - i]!;
+  return { N, tSec, z: d.z.map(rev), r: d.r.map(rev), use: d.use.slice().reverse() };
+}
