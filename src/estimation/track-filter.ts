@@ -564,6 +564,8 @@ function forwardShared3(models: AxisModel[], data: SegmentData, opt: FilterOptio
   const rE = data.r[0]!, rU = up ? data.r[2]! : rE;
   const xE = h.x[0]!, xN = h.x[1]!, xU = up ? h.x[2]! : xE;
   const PE = h.P[0]!, PN = h.P[1]!, PU = up ? h.P[2]! : PE;
+  // north's covariances are east's array (allocateHistory's shareHorizontal)
+  const oneP = PN === PE;
   const hH = models[0]!.h, hV = up ? models[2]!.h : hH;
   const e0 = hH[0]!, e1 = hH[1]!, e2 = hH[2]!;
   const v0 = hV[0]!, v1 = hV[1]!, v2 = hV[2]!;
@@ -632,9 +634,9 @@ function forwardShared3(models: AxisModel[], data: SegmentData, opt: FilterOptio
         PE[pk + 4] = Q[5]! + a10 * f20 + a11 * f21 + a12 * f22;
         PE[pk + 5] = Q[8]! + a20 * f20 + a21 * f21 + a22 * f22;
       }
-      // north: its state (x⁻ = F x), east's covariance
+      // north: its state (x⁻ = F x), east's covariance (nothing to copy where it is east's array, see allocateHistory)
       predictState3(w.F[1]!, xN, xk - 3, xN, xk);
-      copy6(PE, PN, pk);
+      if (!oneP) copy6(PE, PN, pk);
       if (up)
       {
         // up: x⁻ = F x, P⁻ = F P Fᵀ + Q (predict3p written out)
@@ -749,7 +751,7 @@ function forwardShared3(models: AxisModel[], data: SegmentData, opt: FilterOptio
         xN[xk] += (wH0 / SH) * nuN;
         xN[xk + 1] += (wH1 / SH) * nuN;
         xN[xk + 2] += (wH2 / SH) * nuN;
-        copy6(PE, PN, pk);
+        if (!oneP) copy6(PE, PN, pk);
       }
       if (Number.isFinite(SU))
         {

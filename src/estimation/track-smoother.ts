@@ -226,6 +226,9 @@ function resmoothShared3(
   const PE = s.P[0]!, PN = s.P[1]!, PU = up ? s.P[2]! : PE;
   // old smoothed values of the epoch being recomputed: x (3 per axis) and P (6 per axis)
   const o = new Float64Array(27);
+  const tSec = data.tSec;
+  // north's covariances are east's arrays, filtered and smoothed (see allocateHistory)
+  const oneP = PN === PE && fPN === fPE;
   let lastDt = NaN;
   let sharedNext = false;
   let wi = windows.length / 2 - 1;
@@ -251,14 +254,18 @@ function resmoothShared3(
     save3(xN, PN, xk, Pk, o, 1);
     if (up) save3(xU, PU, xk, Pk, o, 2);
     if (k < N - 1) {
-      lastDt = ensureStep(models, data, s, k + 1, qScale, F, Q, cache, lastDt);
-      // filtered covariances at k and smoothed ones at k + 1 equal (see smootherCanShare)
-      const share: boolean = (sharedNext || sameCov6(PE, PN, Pk + 6)) && sameCov6(fPE, fPN, Pk);
+      // F, Q of the step k → k + 1 already in place unless Δt changed or the step has re-acquisition
+      // noise (ensureStep would return at once otherwise)
+      const dt = tSec[k + 1]! - tSec[k]!;
+      if (dt !== lastDt || (s.extraQ.size > 0 && s.extraQ.has(k + 1))) lastDt = ensureStep(models, data, s, k + 1, qScale, F, Q, cache, lastDt);
+      // filtered covariances at k and smoothed ones at k + 1 equal (see smootherCanShare); one
+      // array for both (allocateHistory's shareHorizontal): the same numbers at every epoch
+      const share: boolean = oneP || ((sharedNext || sameCov6(PE, PN, Pk + 6)) && sameCov6(fPE, fPN, Pk));
       const xk1 = xk + 3, Pk1 = Pk + 6;
       if (!rtsStep3pFrom(F[0]!, Q[0]!, fxE, fPE, xE, xk, xk1, PE, Pk, Pk1, share ? gT : undefined)) throw notPd(k);
       if (share) {
         rtsState3From(F[1]!, gT, fxN, xN, xk, xk1);
-        copy6(PE, PN, Pk);
+        if (!oneP) copy6(PE, PN, Pk);
       } else if (!rtsStep3pFrom(F[1]!, Q[1]!, fxN, fPN, xN, xk, xk1, PN, Pk, Pk1)) throw notPd(k);
       if (up && !rtsStep3pFrom(F[2]!, Q[2]!, fxU, fPU, xU, xk, xk1, PU, Pk, Pk1)) throw notPd(k);
       sharedNext = share;
@@ -328,16 +335,22 @@ function smoothIntoShared3(models: AxisModel[], data: SegmentData, f: FilterHist
   copy3(fxN, fPN, xN, PN, xl, Pl);
   if (up) copy3(fxU, fPU, xU, PU, xl, Pl);
   let lastDt = NaN;
+  const tSec = data.tSec;
+  // north's covariances are east's arrays, filtered and smoothed (see allocateHistory): the same numbers at every epoch
+  const oneP = PN === PE && fPN === fPE;
   // whether the two horizontal covariances at k + 1 (smoothed) are the same numbers
   let nextSame = sameCov6(PE, PN, Pl);
   for (let k = N - 2; k >= 0; k--) {
-    lastDt = ensureStep(models, data, s, k + 1, qScale, F, Q, cache, lastDt);
+    // F, Q of the step k → k + 1 already in place unless Δt changed or the step has re-acquisition
+    // noise (ensureStep would return at once otherwise)
+    const dt = tSec[k + 1]! - tSec[k]!;
+    if (dt !== lastDt || (s.extraQ.size > 0 && s.extraQ.has(k + 1))) lastDt = ensureStep(models, data, s, k + 1, qScale, F, Q, cache, lastDt);
     const xk = k * 3, Pk = k * 6, xk1 = xk + 3, Pk1 = Pk + 6;
-    const share = nextSame && sameCov6(fPE, fPN, Pk);
+    const share = oneP || (nextSame && sameCov6(fPE, fPN, Pk));
     if (!rtsStep3pFrom(F[0]!, Q[0]!, fxE, fPE, xE, xk, xk1, PE, Pk, Pk1, share ? gT : undefined)) throw notPd(k);
     if (share) {
       rtsState3From(F[1]!, gT, fxN, xN, xk, xk1);
-      copy6(PE, PN, Pk);
+      if (!oneP) copy6(PE, PN, Pk);
     } else if (!rtsStep3pFrom(F[1]!, Q[1]!, fxN, fPN, xN, xk, xk1, PN, Pk, Pk1)) throw notPd(k);
     if (up && !rtsStep3pFrom(F[2]!, Q[2]!, fxU, fPU, xU, xk, xk1, PU, Pk, Pk1)) throw notPd(k);
     // shared: north's covariance at k is a copy of east's
