@@ -128,18 +128,21 @@ export function reviewSegment(
   // skipped epochs are bit for bit those of a full pass
   let hf: FilterHistory | undefined;
   let hs: FilterHistory | undefined;
-  const prevUse = new Uint8Array(N);
   const changed: number[] = [];
   const windows: number[] = [];
   const smoothed: number[] = [];
   for (;;) {
     passes++;
     changed.length = 0;
+    // work.use holds the previous pass's use (nothing else writes it between passes): only the
+    // epochs whose use changes are written (and listed for the re-run)
+    const use = work.use;
     for (let k = 0; k < N; k++) {
       const u = offered[k] === 0 ? 0 : kept[k] ? 2 : 0;
-      if (hf && u !== prevUse[k]) changed.push(k);
-      work.use[k] = u;
-      prevUse[k] = u;
+      if (u !== use[k]) {
+        if (hf) changed.push(k);
+        use[k] = u;
+      }
     }
     const t0 = tm ? performance.now() : 0;
     let nf = N;
