@@ -612,54 +612,13 @@ function forwardShared3(models: AxisModel[], data: SegmentData, opt: FilterOptio
       // Δt of this step; F, Q already in place unless it changed or the step has re-acquisition noise
       const dt = tSec[k]! - tSec[k - 1]!;
       if (dt !== lastDt || (h.extraQ.size > 0 && h.extraQ.has(k))) lastDt = ensureStep(models, data, h, k, null, w.F, w.Q, w.cache, lastDt);
-      {
-        // east: x⁻ = F x, P⁻ = F P Fᵀ + Q (predict3p written out)
-        const F = w.F[0]!, Q = w.Q[0]!;
-        const f00 = F[0]!, f01 = F[1]!, f02 = F[2]!, f10 = F[3]!, f11 = F[4]!, f12 = F[5]!, f20 = F[6]!, f21 = F[7]!, f22 = F[8]!;
-        const x0 = xE[xk - 3]!, x1 = xE[xk - 2]!, x2 = xE[xk - 1]!;
-        const p00 = PE[pk - 6]!, p01 = PE[pk - 5]!, p02 = PE[pk - 4]!, p11 = PE[pk - 3]!, p12 = PE[pk - 2]!, p22 = PE[pk - 1]!;
-        // x⁻ = F x
-        xE[xk] = f00 * x0 + f01 * x1 + f02 * x2;
-        xE[xk + 1] = f10 * x0 + f11 * x1 + f12 * x2;
-        xE[xk + 2] = f20 * x0 + f21 * x1 + f22 * x2;
-        // A = F P
-        const a00 = f00 * p00 + f01 * p01 + f02 * p02, a01 = f00 * p01 + f01 * p11 + f02 * p12, a02 = f00 * p02 + f01 * p12 + f02 * p22;
-        const a10 = f10 * p00 + f11 * p01 + f12 * p02, a11 = f10 * p01 + f11 * p11 + f12 * p12, a12 = f10 * p02 + f11 * p12 + f12 * p22;
-        const a20 = f20 * p00 + f21 * p01 + f22 * p02, a21 = f20 * p01 + f21 * p11 + f22 * p12, a22 = f20 * p02 + f21 * p12 + f22 * p22;
-        // P⁻ = A Fᵀ + Q (upper triangle)
-        PE[pk] = Q[0]! + a00 * f00 + a01 * f01 + a02 * f02;
-        PE[pk + 1] = Q[1]! + a00 * f10 + a01 * f11 + a02 * f12;
-        PE[pk + 2] = Q[2]! + a00 * f20 + a01 * f21 + a02 * f22;
-        PE[pk + 3] = Q[4]! + a10 * f10 + a11 * f11 + a12 * f12;
-        PE[pk + 4] = Q[5]! + a10 * f20 + a11 * f21 + a12 * f22;
-        PE[pk + 5] = Q[8]! + a20 * f20 + a21 * f21 + a22 * f22;
-      }
+      // east: x⁻ = F x, P⁻ = F P Fᵀ + Q
+      predict3p(w.F[0]!, w.Q[0]!, xE, xk - 3, PE, pk - 6, xE, xk, PE, pk);
       // north: its state (x⁻ = F x), east's covariance (nothing to copy where it is east's array, see allocateHistory)
       predictState3(w.F[1]!, xN, xk - 3, xN, xk);
       if (!oneP) copy6(PE, PN, pk);
-      if (up)
-      {
-        // up: x⁻ = F x, P⁻ = F P Fᵀ + Q (predict3p written out)
-        const F = w.F[2]!, Q = w.Q[2]!;
-        const f00 = F[0]!, f01 = F[1]!, f02 = F[2]!, f10 = F[3]!, f11 = F[4]!, f12 = F[5]!, f20 = F[6]!, f21 = F[7]!, f22 = F[8]!;
-        const x0 = xU[xk - 3]!, x1 = xU[xk - 2]!, x2 = xU[xk - 1]!;
-        const p00 = PU[pk - 6]!, p01 = PU[pk - 5]!, p02 = PU[pk - 4]!, p11 = PU[pk - 3]!, p12 = PU[pk - 2]!, p22 = PU[pk - 1]!;
-        // x⁻ = F x
-        xU[xk] = f00 * x0 + f01 * x1 + f02 * x2;
-        xU[xk + 1] = f10 * x0 + f11 * x1 + f12 * x2;
-        xU[xk + 2] = f20 * x0 + f21 * x1 + f22 * x2;
-        // A = F P
-        const a00 = f00 * p00 + f01 * p01 + f02 * p02, a01 = f00 * p01 + f01 * p11 + f02 * p12, a02 = f00 * p02 + f01 * p12 + f02 * p22;
-        const a10 = f10 * p00 + f11 * p01 + f12 * p02, a11 = f10 * p01 + f11 * p11 + f12 * p12, a12 = f10 * p02 + f11 * p12 + f12 * p22;
-        const a20 = f20 * p00 + f21 * p01 + f22 * p02, a21 = f20 * p01 + f21 * p11 + f22 * p12, a22 = f20 * p02 + f21 * p12 + f22 * p22;
-        // P⁻ = A Fᵀ + Q (upper triangle)
-        PU[pk] = Q[0]! + a00 * f00 + a01 * f01 + a02 * f02;
-        PU[pk + 1] = Q[1]! + a00 * f10 + a01 * f11 + a02 * f12;
-        PU[pk + 2] = Q[2]! + a00 * f20 + a01 * f21 + a02 * f22;
-        PU[pk + 3] = Q[4]! + a10 * f10 + a11 * f11 + a12 * f12;
-        PU[pk + 4] = Q[5]! + a10 * f20 + a11 * f21 + a12 * f22;
-        PU[pk + 5] = Q[8]! + a20 * f20 + a21 * f21 + a22 * f22;
-      }
+      // up: x⁻ = F x, P⁻ = F P Fᵀ + Q
+      if (up) predict3p(w.F[2]!, w.Q[2]!, xU, xk - 3, PU, pk - 6, xU, xk, PU, pk);
     }
     accepted[k] = 0;
     logLik[k] = 0;
