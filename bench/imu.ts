@@ -32,7 +32,7 @@ import { mergeResults } from './results.js';
 
 const DURATIONS = [3600, 21600];
 const SEED = 4242;
-const FIX_RATE_HZ = 10;
+const FIX_RATE_HZ = Number(process.env.HC_FIX_HZ ?? 10);
 const IMU_RATE_HZ = 100;
 export const TARGET_SAMPLES_PER_SEC = 500_000;
 /**
