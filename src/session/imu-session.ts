@@ -17,7 +17,8 @@
  */
 import type { HindcastConfig } from '../config/schema.js';
 import type { FixSeries } from '../input/fix-series.js';
-import { streamImuCsv } from '../input/imu-csv.js';
+import { streamImuCsv, type ImuSampleSink } from '../input/imu-csv.js';
+import { ImuReplay, ImuReplayWriter } from '../input/imu-replay.js';
 import { earthRateEnu } from '../models/ins/gravity.js';
 import { makeMechParams } from '../models/ins/mechanization.js';
 import { yawToHeadingDeg } from '../models/ins/attitude.js';
@@ -137,9 +138,10 @@ export function insOptions(ps: PreparedSession, cfg: HindcastConfig, p: AxisPara
 
 /**
  * Optional wall-clock accounting of one IMU session (for `npm run bench`), ms summed over the review
- * passes. `streamMs` is each pass's streaming of the IMU log: reading and parsing, mechanization and
- * the per-epoch work inside the stream, of which `ins.propagateMs` is the covariance propagation and
- * `ins.updateMs` the epoch updates; `ins.smoothMs` is the backward passes. Results do not depend on it.
+ * passes. `streamMs` is each pass's streaming of the IMU log: reading and parsing (the first pass; the
+ * later ones replay the parsed samples, `replayPasses` of them), mechanization and the per-epoch work
+ * inside the stream, of which `ins.propagateMs` is the covariance propagation and `ins.updateMs` the
+ * epoch updates; `ins.smoothMs` is the backward passes. Results do not depend on it.
  */
 export interface ImuStageTimings {
   /** The fixes-only baseline: preparation, calibration, classification and its result. */
@@ -151,10 +153,12 @@ export interface ImuStageTimings {
   /** Merging the products into the result, statuses, outliers and metrics. */
   productsMs: number;
   passes: number;
+  /** Passes that replayed the parsed samples instead of reading the CSV. */
+  replayPasses: number;
 }
 
 export function newImuStageTimings(): ImuStageTimings {
-  return { baselineMs: 0, streamMs: 0, ins: newInsTimings(), reviewMs: 0, productsMs: 0, passes: 0 };
+  return { baselineMs: 0, streamMs: 0, ins: newInsTimings(), reviewMs: 0, productsMs: 0, passes: 0, replayPasses: 0 };
 }
 
 /** Outcome of the IMU review loop: final decisions and statistics per epoch. */
@@ -221,64 +225,88 @@ export async function processImuSession(series: FixSeries, imuPath: string, cfg:
   const opt = insOptions(ps, cfg, gp);
   const display = imuPath.replace(/^.*[\\/]/, '');
   if (tm) tm.baselineMs += lap();
-  let imuWarnings: SessionResult['warnings'] = [];
+  let imuWarnings: SessionResult['warnings'] | undefined;
   // one filter history for all passes: a pass's history is free once it has smoothed
   let history: InsHistory | undefined;
+  // the first pass reads the CSV and records the parsed samples; the later ones replay them (the same
+  // doubles in the same order, so the same results), or read the CSV again if recording failed
+  let replay: ImuReplay | undefined;
   const runPass = async (epochs: InsEpochs): Promise<InsSmoother> => {
     const engine = new InsSmoother(epochs, init, opt, tm?.ins, history);
     const ts = performance.now();
-    const read = await streamImuCsv(imuPath, display, cfg, (t, fx, fy, fz, wx, wy, wz) => engine.addSample(t, fx, fy, fz, wx, wy, wz));
+    const sink: ImuSampleSink = (t, fx, fy, fz, wx, wy, wz) => engine.addSample(t, fx, fy, fz, wx, wy, wz);
+    if (replay) {
+      replay.replay(sink);
+      if (tm) tm.replayPasses++;
+    } else {
+      const rec = imuWarnings === undefined ? new ImuReplayWriter() : undefined;
+      let read;
+      try {
+        read = await streamImuCsv(imuPath, display, cfg, rec ? rec.tee(sink) : sink);
+      } catch (e) {
+        rec?.discard();
+        throw e;
+      }
+      replay = rec?.finish();
+      if (read.samples === 0) {
+        replay?.close();
+        throw new InputError({ file: display }, 'no IMU samples');
+      }
+      imuWarnings = read.warnings;
+    }
     engine.finishStream();
     if (tm) {
       tm.streamMs += performance.now() - ts;
       tm.passes++;
     }
-    if (read.samples === 0) throw new InputError({ file: display }, 'no IMU samples');
     engine.smooth();
     history = engine.releaseHistory();
     if (tm) lap(); // the pass (stream and smoother) is counted in streamMs and ins.smoothMs
-    imuWarnings = read.warnings;
     return engine;
   };
   // pass 1: the forward gate decides; then the two-sided review until the decisions are stable
   const N = ep.N;
   const offered = ep.use.slice();
-  let engine = await runPass(ep);
-  const gateRejected = new Uint8Array(N);
-  const kept = new Uint8Array(N);
-  for (let k = 0; k < N; k++) {
-    const gated = offered[k] === 1 && engine.products.covered[k] === 1;
-    kept[k] = offered[k] === 2 ? 1 : offered[k] === 0 ? 0 : gated ? engine.products.accepted[k]! : 1;
-    if (gated && !engine.products.accepted[k]) gateRejected[k] = 1;
-  }
-  const ro = reviewOptions(cfg, ps.intervalSec);
-  const th = reviewThresholds(ro.probability);
-  const T = new Float64Array(N).fill(NaN);
-  const dof = new Uint8Array(N);
-  const threshold = new Float64Array(N).fill(NaN);
-  const gatedFix = Uint8Array.from(offered, (u, k) => (u === 1 && engine.products.covered[k] ? 1 : 0));
-  const gateStats = { gnssRejected: engine.stats.gnssRejected, reacquisitions: engine.stats.reacquisitions };
-  let passes = 1;
-  let converged = false;
-  const fixed: InsEpochs = { ...ep, use: ep.use.slice() };
-  for (;;) {
-    reviewImuFixes(ep, gatedFix, engine, th.reject, T, dof, threshold);
-    if (passes >= IMU_REVIEW_MAX_PASSES) break;
-    if (!applyReviewDecisions(N, gatedFix, kept, T, dof, threshold, ep.tSec, th, ro.guardSec)) {
-      converged = true;
-      break;
+  try {
+    let engine = await runPass(ep);
+    const gateRejected = new Uint8Array(N);
+    const kept = new Uint8Array(N);
+    for (let k = 0; k < N; k++) {
+      const gated = offered[k] === 1 && engine.products.covered[k] === 1;
+      kept[k] = offered[k] === 2 ? 1 : offered[k] === 0 ? 0 : gated ? engine.products.accepted[k]! : 1;
+      if (gated && !engine.products.accepted[k]) gateRejected[k] = 1;
     }
-    // decisions held fixed: kept fixes without gate, rejected ones left out
-    for (let k = 0; k < N; k++) fixed.use[k] = gatedFix[k] ? (kept[k] ? 2 : 0) : offered[k]!;
+    const ro = reviewOptions(cfg, ps.intervalSec);
+    const th = reviewThresholds(ro.probability);
+    const T = new Float64Array(N).fill(NaN);
+    const dof = new Uint8Array(N);
+    const threshold = new Float64Array(N).fill(NaN);
+    const gatedFix = Uint8Array.from(offered, (u, k) => (u === 1 && engine.products.covered[k] ? 1 : 0));
+    const gateStats = { gnssRejected: engine.stats.gnssRejected, reacquisitions: engine.stats.reacquisitions };
+    let passes = 1;
+    let converged = false;
+    const fixed: InsEpochs = { ...ep, use: ep.use.slice() };
+    for (;;) {
+      reviewImuFixes(ep, gatedFix, engine, th.reject, T, dof, threshold);
+      if (passes >= IMU_REVIEW_MAX_PASSES) break;
+      if (!applyReviewDecisions(N, gatedFix, kept, T, dof, threshold, ep.tSec, th, ro.guardSec)) {
+        converged = true;
+        break;
+      }
+      // decisions held fixed: kept fixes without gate, rejected ones left out
+      for (let k = 0; k < N; k++) fixed.use[k] = gatedFix[k] ? (kept[k] ? 2 : 0) : offered[k]!;
+      if (tm) tm.reviewMs += lap();
+      engine = await runPass(fixed);
+      passes++;
+    }
+    const review: ImuReview = { kept, gateRejected, T, dof, threshold, passes, converged, ...gateStats };
     if (tm) tm.reviewMs += lap();
-    engine = await runPass(fixed);
-    passes++;
+    const res = assembleImuResult(base, ps, engine, imuWarnings ?? [], review, gp);
+    if (tm) tm.productsMs += lap();
+    return res;
+  } finally {
+    replay?.close();
   }
-  const review: ImuReview = { kept, gateRejected, T, dof, threshold, passes, converged, ...gateStats };
-  if (tm) tm.reviewMs += lap();
-  const res = assembleImuResult(base, ps, engine, imuWarnings, review, gp);
-  if (tm) tm.productsMs += lap();
-  return res;
 }
 
 /** Merge the smoother's products and the review's decisions into a copy of the fixes-only result and recompute statuses, outliers and metrics. */

@@ -1,0 +1,92 @@
+/**
+ * The IMU replay file (src/input/imu-replay.ts, issue 8): the later passes of the IMU review replay
+ * the samples the first pass parsed. Checked: the replay hands the sink exactly the recorded numbers
+ * (Object.is, so -0, subnormals and the last bits survive) in the recorded order, any number of
+ * times, for counts below, at and across the write chunk; the recording sink passes every sample on
+ * unchanged; the temporary folder is gone after close and after discard. Since the filter sees nothing
+ * of the file but the sink's calls, a session whose later passes replay gives the result of one that
+ * reads the CSV again (checked once more on the 1-hour bench logs: the SessionResult hashes agree).
+ */
+import { existsSync, readdirSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { loadConfig } from '../../src/config/load.js';
+import { streamImuCsv } from '../../src/input/imu-csv.js';
+import { ImuReplayWriter } from '../../src/input/imu-replay.js';
+import { Rng } from '../../src/simulate/rng.js';
+
+const CHUNK = 8192;
+
+function replayDirs(): Set<string> {
+  return new Set(readdirSync(tmpdir()).filter((d) => d.startsWith('hindcast-imu-')));
+}
+
+/** Seeded awkward samples: ordinary rates, signed zeros, subnormals, huge and tiny magnitudes. */
+function samples(seed: number, n: number): number[][] {
+  const rng = new Rng(seed);
+  const odd = [-0, 0, 5e-324, -2.2250738585072014e-308, 1.7976931348623157e308, 0.1 + 0.2];
+  const rows: number[][] = [];
+  for (let i = 0; i < n; i++) {
+    const row = [i * 0.01 + 1.7e9];
+    for (let j = 0; j < 6; j++) row.push(rng.uniform(0, 1) < 0.05 ? odd[Math.floor(rng.uniform(0, odd.length))]! : rng.normal() * 10);
+    rows.push(row);
+  }
+  return rows;
+}
+
+describe('IMU replay file', () => {
+  it.each([0, 1, CHUNK - 1, CHUNK, CHUNK + 1, 3 * CHUNK + 17])('%i samples: replayed twice, bit for bit and in order', (n) => {
+    const rows = samples(n + 1, n);
+    const before = replayDirs();
+    const w = new ImuReplayWriter();
+    const passed: number[][] = [];
+    const sink = w.tee((...v) => passed.push(v));
+    for (const r of rows) sink(r[0]!, r[1]!, r[2]!, r[3]!, r[4]!, r[5]!, r[6]!);
+    const replay = w.finish();
+    expect(replay).toBeDefined();
+    expect(replay!.samples).toBe(n);
+    for (let rep = 0; rep < 2; rep++) {
+      const got: number[][] = [];
+      replay!.replay((...v) => got.push(v));
+      expect(got.length).toBe(n);
+      for (let i = 0; i < n; i++)
+        for (let j = 0; j < 7; j++) {
+          if (!Object.is(got[i]![j], rows[i]![j])) expect([rep, i, j, got[i]![j]]).toEqual([rep, i, j, rows[i]![j]]);
+          if (!Object.is(passed[i]![j], rows[i]![j])) expect([i, j, passed[i]![j]]).toEqual([i, j, rows[i]![j]]);
+        }
+    }
+    replay!.close();
+    expect(() => replay!.replay(() => {})).toThrow(/after close/);
+    const after = replayDirs();
+    for (const d of after) expect(before.has(d)).toBe(true);
+  });
+
+  it('discard removes the file of an unfinished recording', () => {
+    const before = replayDirs();
+    const w = new ImuReplayWriter();
+    for (let i = 0; i < CHUNK + 5; i++) w.add(i, 1, 2, 3, 4, 5, 6);
+    const made = [...replayDirs()].filter((d) => !before.has(d));
+    expect(made.length).toBe(1);
+    w.discard();
+    expect(existsSync(join(tmpdir(), made[0]!))).toBe(false);
+  });
+
+  it('the sample data IMU log: replay = what the CSV reader parsed, bit for bit', async () => {
+    const cfg = loadConfig({ profile: 'vehicle' });
+    const path = join(import.meta.dirname, '../../sample-data/urban-test-car.imu.csv');
+    const direct: number[][] = [];
+    const w = new ImuReplayWriter();
+    const stats = await streamImuCsv(path, 'urban-test-car.imu.csv', cfg, w.tee((...v) => direct.push(v)));
+    const replay = w.finish()!;
+    expect(replay.samples).toBe(stats.samples);
+    expect(direct.length).toBe(stats.samples);
+    let i = 0;
+    replay.replay((...v) => {
+      for (let j = 0; j < 7; j++) if (!Object.is(v[j], direct[i]![j])) expect([i, j, v[j]]).toEqual([i, j, direct[i]![j]]);
+      i++;
+    });
+    expect(i).toBe(direct.length);
+    replay.close();
+  });
+});
