@@ -25,7 +25,7 @@ import {
   makeNonzeros, PHI_COMPACT, propagateCovariance, setFromIdentityProduct, unpackPhi, unpackSym, type DiscScratch, type ErrorModelParams,
 } from './error-model.js';
 import { bodyVelocityRow, gnssRow, gyroBiasRow, velocityRow } from './measurements.js';
-import { insRtsStep, makeInsRtsScratch } from './rts.js';
+import { makeInsRtsKernel } from './rts-kernel.js';
 
 /** The epoch grid and its GNSS measurements (antenna position in the local frame). */
 export interface InsEpochs {
@@ -68,6 +68,8 @@ export interface InsOptions {
   propagationStepSec: number;
   /** Heights measured (3-axis fixes); without them a weak height hold keeps the vertical channel bounded. */
   hasHeight: boolean;
+  /** RTS step kernel: WebAssembly where it loads (default) or TypeScript; the same results bit for bit. */
+  rtsKernel?: 'wasm' | 'js';
 }
 
 /** Per-epoch products of the smoother (NaN / 0 where an epoch is not covered by the IMU). */
@@ -688,14 +690,11 @@ export class InsSmoother {
   private smoothChains(): void {
     const N = this.ep.N;
     const pr = this.products;
-    const Pf = new Float64Array(NE * NE);
-    const Pm = new Float64Array(NE * NE);
-    const Phi = new Float64Array(NE * NE);
-    const Ps = new Float64Array(NE * NE);
-    const dxs = new Float64Array(NE);
-    const dNext = new Float64Array(NE);
+    // the step's slots (WebAssembly memory where the kernel loads: ./rts-kernel.ts)
+    const rk = makeInsRtsKernel(this.opt.rtsKernel);
+    const { Pf, Pm, Phi, Ps, dNext } = rk;
+    const dxs = rk.dx;
     const navS = new Float64Array(NAV_LEN);
-    const rs = makeInsRtsScratch();
     const ex = makeExtractScratch();
     let linked = false;
     for (let k = N - 1; k >= 0; k--) {
@@ -711,7 +710,7 @@ export class InsSmoother {
         unpackSym(this.hPminus, (k + 1) * NE_PACKED, Pm);
         unpackPhi(this.hPhi, (k + 1) * PHI_COMPACT, Phi);
         for (let i = 0; i < NE; i++) dNext[i] = dxs[i]! + this.hDx[(k + 1) * NE + i]!;
-        if (!insRtsStep(Pf, Pm, Phi, Ps, dNext, dxs, Ps, rs)) {
+        if (!rk.step()) {
           // not positive definite: keep the filtered estimate here and restart the chain
           this.stats.smootherFallbacks++;
           Ps.set(Pf);
