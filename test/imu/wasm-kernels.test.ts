@@ -1,15 +1,21 @@
 /**
- * The WebAssembly RTS step (src/estimation/ins/asm/ins-kernels.ts through
- * src/estimation/ins/rts-kernel.ts) against the TypeScript one (src/estimation/ins/rts.ts): the same
- * results bit for bit (Object.is) on seeded steps with covariances of mixed scales and a Φ with the
- * error model's structure, on a chain of steps fed back as the smoother feeds them, on a step whose
- * P⁻ is not positive definite (both refuse and leave their outputs alone), and over whole IMU-aided
- * sessions (every array of the result). The build must have produced the kernel: the test fails if
- * the TypeScript fallback is what loads, since the speed figures in README depend on it.
+ * The WebAssembly kernels (src/estimation/ins/asm/ins-kernels.ts through
+ * src/estimation/ins/kernels.ts) against the TypeScript ones (src/estimation/ins/rts.ts,
+ * error-model.ts, scalar-update.ts): the same results bit for bit (Object.is)
+ * - RTS step: seeded steps with covariances of mixed scales and a Φ with the error model's
+ *   structure, a chain of steps fed back as the smoother feeds them, and a step whose P⁻ is not
+ *   positive definite (both refuse and leave their outputs alone);
+ * - filter: seeded runs of F from turning, accelerating attitudes → Φ, Qd, P ← ΦPΦᵀ + Qd, the
+ *   accumulated transition, and scalar Joseph updates with the filter's measurement rows, in turn;
+ * - whole IMU-aided sessions (every array of the result).
+ * The build must have produced the module: the test fails if the TypeScript fallback is what loads,
+ * since the speed figures in README depend on it.
  */
 import { afterAll, describe, expect, it } from 'vitest';
 import { NE } from '../../src/estimation/ins/error-model.js';
-import { insRtsKernelKind, makeInsRtsKernel, preferInsRtsKernel, type InsRtsKernel } from '../../src/estimation/ins/rts-kernel.js';
+import { E_A, E_BA, E_GM, E_P, E_V, fillErrorF, type ErrorModelParams } from '../../src/estimation/ins/error-model.js';
+import { insKernelKind, makeInsKernels, makeInsRtsKernel, preferInsKernels, type InsFilterKernel, type InsRtsKernel } from '../../src/estimation/ins/kernels.js';
+import { quatFromEuler, quatRotateBody, quatToDcm } from '../../src/models/ins/attitude.js';
 import { processImuSession } from '../../src/session/imu-session.js';
 import { Rng } from '../../src/simulate/rng.js';
 import { makeImuCase } from './helpers.js';
@@ -51,6 +57,11 @@ function expectSame(a: Float64Array, b: Float64Array, what: string): void {
   for (let i = 0; i < a.length; i++) if (!Object.is(a[i], b[i])) expect([what, i, a[i]]).toEqual([what, i, b[i]]);
 }
 
+const EM: ErrorModelParams = {
+  accelNoiseDensity: 0.004, gyroNoiseDensity: 0.0004, accelBiasWalk: 2e-4, gyroBiasWalk: 2e-5,
+  gmSigmaHM: 1.5, gmSigmaVM: 3, gmTauSec: 80, earthRateEnu: Float64Array.of(0, 5.5e-5, 4.6e-5),
+};
+
 const SCALES = [
   Array(n).fill(1),
   [3, 3, 5, 0.1, 0.1, 0.2, 1e-3, 1e-3, 5e-3, 0.05, 0.05, 0.05, 1e-4, 1e-4, 1e-4, 1.5, 1.5, 3],
@@ -64,13 +75,68 @@ function load(k: InsRtsKernel, Pf: Float64Array, Pm: Float64Array, Phi: Float64A
   k.dNext.set(dNext);
 }
 
-describe('WebAssembly RTS step = TypeScript RTS step, bit for bit', () => {
-  afterAll(() => preferInsRtsKernel('wasm'));
+describe('WebAssembly kernels = TypeScript kernels, bit for bit', () => {
+  afterAll(() => preferInsKernels('wasm'));
 
   it('the build produced the WebAssembly kernel and it loads', () => {
-    expect(insRtsKernelKind()).toBe('wasm');
+    expect(insKernelKind()).toBe('wasm');
     expect(makeInsRtsKernel().kind).toBe('wasm');
     expect(makeInsRtsKernel('js').kind).toBe('js');
+    expect(makeInsKernels(EM).filter.kind).toBe('wasm');
+    expect(makeInsKernels(EM, 'js').filter.kind).toBe('js');
+  });
+
+  it.each([1, 2, 3])('filter, seed %i: 400 steps of Φ, Qd, propagation, accumulation and scalar updates', (seed) => {
+    const rng = new Rng(seed);
+    const w = makeInsKernels(EM, 'wasm').filter, j = makeInsKernels(EM, 'js').filter;
+    const P0 = spd(rng, SCALES[1]!);
+    for (const k of [w, j]) {
+      k.P.set(P0);
+      k.dx.fill(0);
+    }
+    const q = new Float64Array(4), C = new Float64Array(9), fNav = new Float64Array(3);
+    quatFromEuler(0.02, -0.03, rng.uniform(-3, 3), q, 0);
+    let identity = true;
+    for (let t = 0; t < 400; t++) {
+      quatRotateBody(q, 0, 0.01 * rng.normal(), 0.01 * rng.normal(), 0.3 * rng.normal());
+      quatToDcm(q, 0, C);
+      for (let i = 0; i < 3; i++) fNav[i] = (i === 2 ? 9.81 : 0) + 2 * rng.normal();
+      const dt = [0.1, 1, 0.01 * (1 + Math.floor(rng.uniform(0, 100)))][t % 3]!;
+      for (const k of [w, j]) {
+        fillErrorF(k.F, C, fNav, EM);
+        k.discretize(dt);
+        k.propagate();
+        k.accumulate(identity);
+      }
+      identity = t % 5 === 4;
+      expectSame(w.Phi, j.Phi, `Φ ${t}`);
+      expectSame(w.Qd, j.Qd, `Qd ${t}`);
+      expectSame(w.P, j.P, `P ${t}`);
+      expectSame(w.PhiAcc, j.PhiAcc, `Φacc ${t}`);
+      if (identity) {
+        // an epoch: position fix rows with a lever arm, then a velocity row; the estimate reset after
+        for (const k of [w, j]) k.dx.fill(0);
+        for (let a = 0; a < 4; a++) {
+          const h = new Float64Array(NE);
+          if (a < 3) {
+            h[E_P + a] = 1;
+            h[E_GM + a] = 1;
+            h[E_A + ((a + 1) % 3)] = 0.3 * rng.normal();
+          } else {
+            h[E_V + 1] = 1;
+            h[E_BA] = 1e-3 * rng.normal();
+          }
+          const nu = 2 * rng.normal(), r = rng.uniform(0.01, 4);
+          const S = [w, j].map((k) => {
+            k.h.set(h);
+            return k.scalarUpdate(nu, r);
+          });
+          expect(Object.is(S[0], S[1])).toBe(true);
+          expectSame(w.dx, j.dx, `dx ${t} ${a}`);
+          expectSame(w.P, j.P, `P after update ${t} ${a}`);
+        }
+      }
+    }
   });
 
   it.each([0, 1])('200 seeded single steps, scale set %i', (si) => {
@@ -132,9 +198,9 @@ describe('WebAssembly RTS step = TypeScript RTS step, bit for bit', () => {
   it('whole IMU-aided sessions (two seeded drives): every array of the result the same', async () => {
     for (const seed of [11, 23]) {
       const c = makeImuCase(seed, {}, {}, 'vehicle');
-      preferInsRtsKernel('js');
+      preferInsKernels('js');
       const a = await processImuSession(c.series, c.imuPath, c.cfg, 'x');
-      preferInsRtsKernel('wasm');
+      preferInsKernels('wasm');
       const b = await processImuSession(c.series, c.imuPath, c.cfg, 'x');
       let arrays = 0;
       for (const key of Object.keys(a) as Array<keyof typeof a>) {

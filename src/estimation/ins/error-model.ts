@@ -136,7 +136,7 @@ export function makeDiscScratch(): DiscScratch {
 }
 
 /** Diagonal of the continuous noise Qc (the accelerometer/gyro white noise maps through Ĉ, which leaves an isotropic density unchanged). */
-function fillQcDiag(qc: Float64Array, mp: ErrorModelParams): void {
+export function fillQcDiag(qc: Float64Array, mp: ErrorModelParams): void {
   for (let i = 0; i < 3; i++) {
     qc[E_P + i] = 0;
     qc[E_V + i] = mp.accelNoiseDensity ** 2;

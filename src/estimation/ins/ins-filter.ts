@@ -16,16 +16,12 @@
  */
 import { chiSquareQuantile } from '../chi-square.js';
 import { cholesky } from '../cholesky.js';
-import { makeScalarScratch, scalarJosephUpdate, type ScalarScratch } from './scalar-update.js';
 import { quatFromEuler, quatRotateNav, quatToDcm, dcmToEuler } from '../../models/ins/attitude.js';
 import { makeMechScratch, mechanize, NAV_BA, NAV_BG, NAV_GM, NAV_LEN, NAV_P, NAV_Q, NAV_V, type MechParams, type MechScratch } from '../../models/ins/mechanization.js';
 import { gmPhi } from '../../models/gauss-markov.js';
-import {
-  discretize, E_A, E_BA, E_BG, E_GM, E_P, E_V, fillErrorF, leftMultiply, makeDiscScratch, NE, NE_PACKED, packPhi, packSym,
-  makeNonzeros, PHI_COMPACT, propagateCovariance, setFromIdentityProduct, unpackPhi, unpackSym, type DiscScratch, type ErrorModelParams,
-} from './error-model.js';
+import { E_A, E_BA, E_BG, E_GM, E_P, E_V, fillErrorF, NE, NE_PACKED, packPhi, packSym, PHI_COMPACT, unpackPhi, unpackSym, type ErrorModelParams } from './error-model.js';
 import { bodyVelocityRow, gnssRow, gyroBiasRow, velocityRow } from './measurements.js';
-import { makeInsRtsKernel } from './rts-kernel.js';
+import { makeInsKernels, type InsFilterKernel, type InsRtsKernel, type KernelKind } from './kernels.js';
 
 /** The epoch grid and its GNSS measurements (antenna position in the local frame). */
 export interface InsEpochs {
@@ -68,8 +64,8 @@ export interface InsOptions {
   propagationStepSec: number;
   /** Heights measured (3-axis fixes); without them a weak height hold keeps the vertical channel bounded. */
   hasHeight: boolean;
-  /** RTS step kernel: WebAssembly where it loads (default) or TypeScript; the same results bit for bit. */
-  rtsKernel?: 'wasm' | 'js';
+  /** Covariance kernels: WebAssembly where the module loads (default) or TypeScript; the same results bit for bit. */
+  kernels?: KernelKind;
 }
 
 /** Per-epoch products of the smoother (NaN / 0 where an epoch is not covered by the IMU). */
@@ -177,20 +173,17 @@ export class InsSmoother {
   private alignEpoch = -1;
   private tNav = NaN;
   private readonly nav = new Float64Array(NAV_LEN);
-  private readonly P = new Float64Array(NE * NE);
-  private readonly PhiAcc = new Float64Array(NE * NE);
+  // covariance kernels and their slots (WebAssembly memory where the module loads: ./kernels.ts)
+  private readonly kern: { filter: InsFilterKernel; rts: InsRtsKernel };
+  private readonly kf: InsFilterKernel;
+  private readonly P: Float64Array;
+  private readonly PhiAcc: Float64Array;
   /** PhiAcc is the identity (reset at an epoch, nothing propagated since). */
   private phiAccIdentity = true;
-  private readonly nzPhi = makeNonzeros();
-  private readonly F = new Float64Array(NE * NE);
-  private readonly Phi = new Float64Array(NE * NE);
-  private readonly Qd = new Float64Array(NE * NE);
-  private readonly tmp = new Float64Array(NE * NE);
-  private readonly disc: DiscScratch = makeDiscScratch();
-  private readonly ss: ScalarScratch = makeScalarScratch(NE);
+  private readonly F: Float64Array;
   private readonly ms: MechScratch = makeMechScratch();
-  private readonly h = new Float64Array(NE);
-  private readonly dx = new Float64Array(NE);
+  private readonly h: Float64Array;
+  private readonly dx: Float64Array;
   private readonly C = new Float64Array(9);
   private readonly v3 = new Float64Array(3);
   private readonly nu = new Float64Array(3);
@@ -218,6 +211,13 @@ export class InsSmoother {
 
   /** `history`: a released history of an earlier pass over the same grid, to be reused. */
   constructor(private readonly ep: InsEpochs, private readonly init: InsInit, private readonly opt: InsOptions, private readonly tm?: InsTimings, history?: InsHistory) {
+    this.kern = makeInsKernels(opt.err, opt.kernels);
+    this.kf = this.kern.filter;
+    this.P = this.kf.P;
+    this.PhiAcc = this.kf.PhiAcc;
+    this.F = this.kf.F;
+    this.h = this.kf.h;
+    this.dx = this.kf.dx;
     const N = ep.N;
     let h = history;
     if (h && h.N === N) h.chainStart.fill(0);
@@ -473,11 +473,10 @@ export class InsSmoother {
     for (let i = 0; i < 9; i++) this.C[i] = this.sumC[i]! * inv;
     for (let i = 0; i < 3; i++) this.v3[i] = this.sumF[i]! * inv;
     fillErrorF(this.F, this.C, this.v3, this.opt.err);
-    discretize(this.F, T, this.opt.err, this.Phi, this.Qd, this.disc);
-    propagateCovariance(this.Phi, this.Qd, this.P, this.tmp, this.nzPhi);
+    this.kf.discretize(T);
+    this.kf.propagate();
     // Φ_acc ← Φ Φ_acc (the first step after an epoch: Φ_acc = Φ, the same value)
-    if (this.phiAccIdentity) setFromIdentityProduct(this.Phi, this.PhiAcc);
-    else leftMultiply(this.Phi, this.PhiAcc, this.tmp, this.nzPhi);
+    this.kf.accumulate(this.phiAccIdentity);
     this.phiAccIdentity = false;
     // mean of the Gauss–Markov fix error decays: b ← e^{−Δt/τ} b
     const phiGm = gmPhi(T, this.opt.err.gmTauSec);
@@ -490,9 +489,7 @@ export class InsSmoother {
 
   /** Scalar update of the accumulated correction dx with innovation ν (w.r.t. the predicted nominal) and row h. */
   private scalarUpdate(nu: number, r: number): void {
-    let hx = 0;
-    for (let i = 0; i < NE; i++) hx += this.h[i]! * this.dx[i]!;
-    scalarJosephUpdate(NE, this.h, nu - hx, r, this.dx, this.P, this.ss);
+    this.kf.scalarUpdate(nu, r);
   }
 
   private processEpoch(k: number): void {
@@ -691,7 +688,7 @@ export class InsSmoother {
     const N = this.ep.N;
     const pr = this.products;
     // the step's slots (WebAssembly memory where the kernel loads: ./rts-kernel.ts)
-    const rk = makeInsRtsKernel(this.opt.rtsKernel);
+    const rk = this.kern.rts;
     const { Pf, Pm, Phi, Ps, dNext } = rk;
     const dxs = rk.dx;
     const navS = new Float64Array(NAV_LEN);

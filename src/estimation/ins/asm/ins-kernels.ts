@@ -1,12 +1,15 @@
 /**
- * WebAssembly kernels of the 18-state IMU error-state smoother (AssemblyScript; compiled by
- * `npm run build` to ins-kernels.wasm beside this file and in dist, see package.json "build:wasm").
- * The same operations in the same order as the TypeScript kernels they stand for
- * (../rts.ts insRtsStep with ../../cholesky.ts), so the results are the same bit for bit
- * (test/imu/wasm-kernels.test.ts): WebAssembly has no fused multiply-add and its f64 add, sub, mul,
- * div and sqrt round as IEEE 754 does in JavaScript. The 128-bit SIMD lanes each carry one of two
- * independent sums (two columns, or two elements of a row), never two halves of one sum, so no sum is
- * reordered. Measured on 18×18 inputs: 27–29 µs a step in TypeScript, 8.6–8.8 µs here.
+ * WebAssembly kernels of the 18-state IMU error-state filter and smoother (AssemblyScript; compiled
+ * by `npm run build` to ins-kernels.wasm beside this file and in dist, see package.json
+ * "build:wasm"). The same operations in the same order as the TypeScript kernels they stand for
+ * (../rts.ts insRtsStep with ../../cholesky.ts; ../error-model.ts discretize, propagateCovariance,
+ * leftMultiply, setFromIdentityProduct; ../scalar-update.ts scalarJosephUpdate), so the results are
+ * the same bit for bit (test/imu/wasm-kernels.test.ts): WebAssembly has no fused multiply-add and its
+ * f64 add, sub, mul, div and sqrt round as IEEE 754 does in JavaScript; exponentials and powers, whose
+ * last bits depend on the library, are computed by the caller in JavaScript and passed in. The
+ * 128-bit SIMD lanes each carry one of two independent sums (two columns, or two elements of a row),
+ * never two halves of one sum, so no sum is reordered. Measured on 18×18 inputs: 27–29 µs an RTS step
+ * in TypeScript, 8.6–8.8 µs here.
  * Memory: one 64 kB page, fixed slots of 18×18 doubles (offsets in doubles below); the caller writes
  * the inputs through Float64Array views of the exported memory and reads the outputs from them.
  * Sources: Rauch, Tung & Striebel (1965); Golub & Van Loan (2013) Alg. 4.2.1 (Cholesky).
@@ -26,6 +29,29 @@ const GT: i32 = 5 * NN + 36;
 const D: i32 = 6 * NN + 36;
 const GD: i32 = 7 * NN + 36;
 const ROW: i32 = 8 * NN + 36;
+
+// filter slots (offsets in doubles): F, Φ, Qd, P, Φ accumulated since the last epoch, scratch; vectors
+const FB: i32 = 2700;
+export const F_F: i32 = FB;
+export const F_PHI: i32 = FB + NN;
+export const F_QD: i32 = FB + 2 * NN;
+export const F_P: i32 = FB + 3 * NN;
+export const F_ACC: i32 = FB + 4 * NN;
+const F_TMP: i32 = FB + 5 * NN;
+const F_F2: i32 = FB + 6 * NN;
+const F_F3: i32 = FB + 7 * NN;
+const F_FQ: i32 = FB + 8 * NN;
+export const F_H: i32 = FB + 9 * NN; // measurement row h (18)
+export const F_DX: i32 = F_H + 18; // error-state estimate δx (18)
+const F_W: i32 = F_H + 36;
+const F_K: i32 = F_H + 54;
+export const F_QC: i32 = F_H + 72; // diagonal of the continuous noise Qc (18)
+// nonzero lists (bytes): per list 18 counts then 18×18 column indices
+const NZ_BYTES: i32 = 5760 * 8;
+const NZ_F: i32 = NZ_BYTES;
+const NZ_F2: i32 = NZ_BYTES + 342;
+const NZ_FQ: i32 = NZ_BYTES + 2 * 342;
+const NZ_PHI: i32 = NZ_BYTES + 3 * 342;
 
 @inline function ld(i: i32): f64 {
   return load<f64>(i << 3);
@@ -124,4 +150,150 @@ export function rtsStep(): i32 {
     }
   }
   return 1;
+}
+
+// ---------------------------------------------------------------- filter kernels
+
+@inline function cnt(nz: i32, i: i32): i32 {
+  return <i32>load<u8>(nz + i);
+}
+@inline function idx(nz: i32, p: i32): i32 {
+  return <i32>load<u8>(nz + 18 + p);
+}
+
+/** Column indices of the nonzeros of every row (as ../error-model.ts findNonzeros; NaN counts as nonzero). */
+function findNonzeros(A: i32, nz: i32): void {
+  for (let i = 0; i < n; i++) {
+    const r = i * n;
+    let c = 0;
+    for (let k = 0; k < n; k++)
+      if (ld(A + r + k) != 0) {
+        store<u8>(nz + 18 + r + c, <u8>k);
+        c++;
+      }
+    store<u8>(nz + i, <u8>c);
+  }
+}
+
+/** C = A B over the nonzeros of A (sums over k increasing); lanes: two columns j. */
+function mulSparseLeft(A: i32, nz: i32, B: i32, C: i32): void {
+  for (let i = 0; i < n; i++) {
+    const r = i * n;
+    for (let j = 0; j < n; j += 2) sv(C + r + j, f64x2.splat(0));
+    const c = cnt(nz, i);
+    for (let m = 0; m < c; m++) {
+      const k = idx(nz, r + m);
+      const f = f64x2.splat(ld(A + r + k));
+      const rk = B + k * n;
+      for (let j = 0; j < n; j += 2) sv(C + r + j, f64x2.add(lv(C + r + j), f64x2.mul(f, lv(rk + j))));
+    }
+  }
+}
+
+/**
+ * Φ and Qd (slots F_PHI, F_QD) for a step Δt = t from F (slot F_F) and the diagonal Qc (slot F_QC):
+ * Φ = I + FΔt + ½F²Δt² + ⅙F³Δt³, Qd = QcΔt + ½(FQc + QcFᵀ)Δt² + ⅓FQcFᵀΔt³, the Gauss–Markov block
+ * exactly: φ = phiGm, q = qGmH (east, north) and qGmV (up), both floored by the caller.
+ */
+export function discretize(t: f64, phiGm: f64, qGmH: f64, qGmV: f64): void {
+  const t2 = t * t, t3 = t2 * t;
+  findNonzeros(F_F, NZ_F);
+  mulSparseLeft(F_F, NZ_F, F_F, F_F2);
+  findNonzeros(F_F2, NZ_F2);
+  mulSparseLeft(F_F2, NZ_F2, F_F, F_F3);
+  const vt = f64x2.splat(t), vt2 = f64x2.splat(t2), vt3 = f64x2.splat(t3), half = f64x2.splat(0.5), six = f64x2.splat(6);
+  for (let i = 0; i < NN; i += 2)
+    sv(F_PHI + i, f64x2.add(f64x2.add(f64x2.mul(lv(F_F + i), vt), f64x2.mul(f64x2.mul(half, lv(F_F2 + i)), vt2)), f64x2.div(f64x2.mul(lv(F_F3 + i), vt3), six)));
+  for (let i = 0; i < n; i++) st(F_PHI + i * n + i, ld(F_PHI + i * n + i) + 1);
+  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) st(F_FQ + i * n + j, ld(F_F + i * n + j) * ld(F_QC + j));
+  findNonzeros(F_FQ, NZ_FQ);
+  for (let i = 0; i < n; i++) {
+    const r = i * n;
+    const c = cnt(NZ_FQ, i);
+    for (let j = i; j < n; j++) {
+      let fqf: f64 = 0;
+      for (let m = 0; m < c; m++) {
+        const k = idx(NZ_FQ, r + m);
+        fqf += ld(F_FQ + r + k) * ld(F_F + j * n + k);
+      }
+      let v = 0.5 * (ld(F_FQ + r + j) + ld(F_FQ + j * n + i)) * t2 + (fqf * t3) / 3;
+      if (i == j) v += ld(F_QC + i) * t;
+      st(F_QD + r + j, v);
+      st(F_QD + j * n + i, v);
+    }
+  }
+  for (let i = 0; i < 3; i++) {
+    const ii = 15 + i;
+    for (let j = 0; j < n; j++) {
+      st(F_PHI + ii * n + j, 0);
+      st(F_PHI + j * n + ii, 0);
+      st(F_QD + ii * n + j, 0);
+      st(F_QD + j * n + ii, 0);
+    }
+    st(F_PHI + ii * n + ii, phiGm);
+    st(F_QD + ii * n + ii, i < 2 ? qGmH : qGmV);
+  }
+}
+
+/** P ← Φ P Φᵀ + Qd in place over the nonzeros of Φ, from the upper triangle (as propagateCovariance). */
+export function propagate(): void {
+  findNonzeros(F_PHI, NZ_PHI);
+  mulSparseLeft(F_PHI, NZ_PHI, F_P, F_TMP);
+  for (let i = 0; i < n; i++) {
+    const ri = i * n;
+    for (let j = i; j < n; j++) {
+      const rj = j * n;
+      const c = cnt(NZ_PHI, j);
+      let acc = ld(F_QD + ri + j);
+      for (let m = 0; m < c; m++) {
+        const k = idx(NZ_PHI, rj + m);
+        acc += ld(F_TMP + ri + k) * ld(F_PHI + rj + k);
+      }
+      st(F_P + ri + j, acc);
+      st(F_P + rj + i, acc);
+    }
+  }
+}
+
+/** Φ_acc ← Φ Φ_acc (after propagate, with its nonzeros of Φ), or Φ_acc ← Φ when Φ_acc is the identity. */
+export function accumulate(identity: i32): void {
+  if (identity) {
+    for (let i = 0; i < NN; i++) {
+      const v = ld(F_PHI + i);
+      st(F_ACC + i, v == 0 ? 0 : v);
+    }
+    return;
+  }
+  mulSparseLeft(F_PHI, NZ_PHI, F_ACC, F_TMP);
+  for (let i = 0; i < NN; i += 2) sv(F_ACC + i, lv(F_TMP + i));
+}
+
+/**
+ * Scalar Joseph update of δx (slot F_DX) and P with row h (slot F_H), innovation nu against the
+ * nominal and variance r: ν' = nu − hᵀδx, then as scalarJosephUpdate. Returns S = hᵀPh + r.
+ */
+export function scalarUpdate(nu: f64, r: f64): f64 {
+  let hx: f64 = 0;
+  for (let i = 0; i < n; i++) hx += ld(F_H + i) * ld(F_DX + i);
+  const nu2 = nu - hx;
+  for (let i = 0; i < n; i++) st(F_W + i, 0);
+  for (let j = 0; j < n; j++) {
+    const hj = ld(F_H + j);
+    if (hj == 0) continue;
+    for (let i = 0; i < n; i++) st(F_W + i, ld(F_W + i) + ld(F_P + i * n + j) * hj);
+  }
+  let hph: f64 = 0;
+  for (let i = 0; i < n; i++) hph += ld(F_H + i) * ld(F_W + i);
+  const S = hph + r;
+  for (let i = 0; i < n; i++) st(F_K + i, ld(F_W + i) / S);
+  for (let i = 0; i < n; i++) st(F_DX + i, ld(F_DX + i) + ld(F_K + i) * nu2);
+  for (let i = 0; i < n; i++) {
+    const ki = ld(F_K + i), wi = ld(F_W + i);
+    for (let j = i; j < n; j++) {
+      const v = ld(F_P + i * n + j) - ki * ld(F_W + j) - wi * ld(F_K + j) + S * ki * ld(F_K + j);
+      st(F_P + i * n + j, v);
+      st(F_P + j * n + i, v);
+    }
+  }
+  return S;
 }
