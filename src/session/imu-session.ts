@@ -236,7 +236,7 @@ export async function processImuSession(series: FixSeries, imuPath: string, cfg:
     const ts = performance.now();
     const sink: ImuSampleSink = (t, fx, fy, fz, wx, wy, wz) => engine.addSample(t, fx, fy, fz, wx, wy, wz);
     if (replay) {
-      replay.replay(sink);
+      replay.replayAt(engine);
       if (tm) tm.replayPasses++;
     } else {
       const rec = imuWarnings === undefined ? new ImuReplayWriter() : undefined;

@@ -48,10 +48,12 @@ export interface MechScratch {
   C: Float64Array;
   /** Specific force in the nav frame over the last step (m/s²), bias-corrected. */
   fNav: Float64Array;
+  /** mechanize's arguments for mechanizeRates. */
+  rates: Float64Array;
 }
 
 export function makeMechScratch(): MechScratch {
-  return { C: new Float64Array(9), fNav: new Float64Array(3) };
+  return { C: new Float64Array(9), fNav: new Float64Array(3), rates: new Float64Array(7) };
 }
 
 /**
@@ -67,6 +69,26 @@ export function mechanize(
   mp: MechParams,
   s: MechScratch,
 ): void {
+  const r = s.rates;
+  r[0] = fxMps2;
+  r[1] = fyMps2;
+  r[2] = fzMps2;
+  r[3] = wxRadps;
+  r[4] = wyRadps;
+  r[5] = wzRadps;
+  r[6] = dtSec;
+  mechanizeRates(x, r, mp, s);
+}
+
+/**
+ * mechanize with its rates and step in an array: rates = [fx, fy, fz, wx, wy, wz, Δt] (the filter's
+ * per-sample path: doubles in arrays, not arguments, since arguments of a call that is not inlined
+ * are boxed on the heap).
+ */
+export function mechanizeRates(x: Float64Array, rates: Float64Array, mp: MechParams, s: MechScratch): void {
+  const fxMps2 = rates[0]!, fyMps2 = rates[1]!, fzMps2 = rates[2]!;
+  const wxRadps = rates[3]!, wyRadps = rates[4]!, wzRadps = rates[5]!;
+  const dtSec = rates[6]!;
   const C = s.C;
   quatToDcm(x, NAV_Q, C);
   const we = mp.earthRateEnu;
