@@ -7,7 +7,8 @@
  * (56 bytes a sample on disk, 20 MB an hour of 100 Hz). Measured on the 1-hour bench log: reading the
  * CSV costs ~0.27 µs a sample, replaying ~0.03 µs.
  * The file lives in its own folder under the system temporary directory and is removed by `close`;
- * a write failure (disk full) drops the replay and the caller streams the CSV again.
+ * where no temporary file can be made, or writing fails (disk full), there is no replay and the caller
+ * streams the CSV again.
  */
 import { closeSync, mkdtempSync, openSync, readSync, rmSync, writeSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -31,7 +32,21 @@ export class ImuReplayWriter {
   constructor() {
     this.dir = mkdtempSync(join(tmpdir(), 'hindcast-imu-'));
     this.path = join(this.dir, 'samples.f64');
-    this.fd = openSync(this.path, 'w+', 0o600);
+    try {
+      this.fd = openSync(this.path, 'w+', 0o600);
+    } catch (e) {
+      rmSync(this.dir, { recursive: true, force: true });
+      throw e;
+    }
+  }
+
+  /** A writer, or undefined where no temporary file can be made (the later passes then read the CSV again). */
+  static tryCreate(): ImuReplayWriter | undefined {
+    try {
+      return new ImuReplayWriter();
+    } catch {
+      return undefined;
+    }
   }
 
   /** A sink that records every sample and passes it on to `next`. */

@@ -239,7 +239,7 @@ export async function processImuSession(series: FixSeries, imuPath: string, cfg:
       replay.replayAt(engine);
       if (tm) tm.replayPasses++;
     } else {
-      const rec = imuWarnings === undefined ? new ImuReplayWriter() : undefined;
+      const rec = imuWarnings === undefined ? ImuReplayWriter.tryCreate() : undefined;
       let read;
       try {
         read = await streamImuCsv(imuPath, display, cfg, rec ? rec.tee(sink) : sink);
