@@ -30,7 +30,7 @@ export class ImuReplayWriter {
   private failed = false;
 
   constructor() {
-    this.dir = mkdtempSync(join(tmpdir(), 'hindcast-imu-'));
+    this.dir = mkdtempSync(join(tmpdir(), 'hindcast-replay-'));
     this.path = join(this.dir, 'samples.f64');
     try {
       this.fd = openSync(this.path, 'w+', 0o600);
@@ -122,15 +122,16 @@ export class ImuReplay {
 
   /**
    * Hand every recorded sample to `target.addSampleAt(buffer, offset)` (t, fx, fy, fz, wx, wy, wz at
-   * buffer[offset..offset+7)), in the recorded order: the samples stay in the array instead of
-   * travelling as seven boxed doubles a call.
+   * buffer[offset..offset+7)), in the recorded order, from sample `fromSample` (0-based) on: the
+   * samples stay in the array instead of travelling as seven boxed doubles a call.
    */
-  replayAt(target: { addSampleAt(src: Float64Array, o: number): void }): void {
+  replayAt(target: { addSampleAt(src: Float64Array, o: number): void }, fromSample = 0): void {
     if (this.fd === undefined) throw new Error('IMU replay used after close');
     const b = this.buf;
     const bytes = new Uint8Array(b.buffer);
-    let pos = 0;
-    let left = this.samples;
+    const first = Math.min(Math.max(0, fromSample), this.samples);
+    let pos = first * STRIDE * 8;
+    let left = this.samples - first;
     while (left > 0) {
       const n = Math.min(left, CHUNK_SAMPLES);
       const want = n * STRIDE * 8;

@@ -22,7 +22,7 @@ import { ImuReplay, ImuReplayWriter } from '../input/imu-replay.js';
 import { earthRateEnu } from '../models/ins/gravity.js';
 import { makeMechParams } from '../models/ins/mechanization.js';
 import { yawToHeadingDeg } from '../models/ins/attitude.js';
-import { InsSmoother, newInsTimings, type InsEpochs, type InsInit, type InsHistory, type InsOptions, type InsTimings } from '../estimation/ins/ins-filter.js';
+import { InsSmoother, newInsTimings, type InsResume, type InsEpochs, type InsInit, type InsHistory, type InsOptions, type InsTimings } from '../estimation/ins/ins-filter.js';
 import { gnssReviewStatistic, makeGnssReviewScratch } from '../estimation/ins/review.js';
 import { errorEllipse } from '../output/ellipse.js';
 import { InputError } from '../errors.js';
@@ -49,6 +49,13 @@ export function imuGnssParams(calibrated: AxisParams, profile: AxisParams): Axis
     gmVerticalSigmaM: Math.max(calibrated.gmVerticalSigmaM, profile.gmVerticalSigmaM),
   };
 }
+
+/**
+ * Resumed passes (tests switch them off to compare): a pass of the review loop after the second
+ * starts from the previous pass's snapshot before the first changed decision (ins-filter.ts,
+ * InsSnapshot) instead of streaming the log from its beginning; the same results bit for bit.
+ */
+export const IMU_REVIEW_RESUME = { enabled: true };
 
 /** Most IMU streams (filter + smoother passes) of the review loop. */
 export const IMU_REVIEW_MAX_PASSES = 5;
@@ -155,10 +162,13 @@ export interface ImuStageTimings {
   passes: number;
   /** Passes that replayed the parsed samples instead of reading the CSV. */
   replayPasses: number;
+  /** Passes that started from a snapshot of the previous one, and the epochs they did not run again. */
+  resumedPasses: number;
+  resumedEpochs: number;
 }
 
 export function newImuStageTimings(): ImuStageTimings {
-  return { baselineMs: 0, streamMs: 0, ins: newInsTimings(), reviewMs: 0, productsMs: 0, passes: 0, replayPasses: 0 };
+  return { baselineMs: 0, streamMs: 0, ins: newInsTimings(), reviewMs: 0, productsMs: 0, passes: 0, replayPasses: 0, resumedPasses: 0, resumedEpochs: 0 };
 }
 
 /** Outcome of the IMU review loop: final decisions and statistics per epoch. */
@@ -231,12 +241,20 @@ export async function processImuSession(series: FixSeries, imuPath: string, cfg:
   // the first pass reads the CSV and records the parsed samples; the later ones replay them (the same
   // doubles in the same order, so the same results), or read the CSV again if recording failed
   let replay: ImuReplay | undefined;
-  const runPass = async (epochs: InsEpochs): Promise<InsSmoother> => {
-    const engine = new InsSmoother(epochs, init, opt, tm?.ins, history);
+  const runPass = async (epochs: InsEpochs, resume?: InsResume): Promise<InsSmoother> => {
+    const engine = new InsSmoother(epochs, init, opt, tm?.ins, history, resume);
     const ts = performance.now();
-    const sink: ImuSampleSink = (t, fx, fy, fz, wx, wy, wz) => engine.addSample(t, fx, fy, fz, wx, wy, wz);
+    const skip = resume ? resume.snapshot.sample : 0;
+    let seen = 0;
+    const sink: ImuSampleSink = (t, fx, fy, fz, wx, wy, wz) => {
+      if (seen++ >= skip) engine.addSample(t, fx, fy, fz, wx, wy, wz);
+    };
+    if (tm && resume) {
+      tm.resumedPasses++;
+      tm.resumedEpochs += resume.snapshot.epoch + 1;
+    }
     if (replay) {
-      replay.replayAt(engine);
+      replay.replayAt(engine, skip);
       if (tm) tm.replayPasses++;
     } else {
       const rec = imuWarnings === undefined ? ImuReplayWriter.tryCreate() : undefined;
@@ -294,9 +312,19 @@ export async function processImuSession(series: FixSeries, imuPath: string, cfg:
         break;
       }
       // decisions held fixed: kept fixes without gate, rejected ones left out
+      const prevUse = passes >= 2 ? fixed.use.slice() : undefined;
       for (let k = 0; k < N; k++) fixed.use[k] = gatedFix[k] ? (kept[k] ? 2 : 0) : offered[k]!;
+      // from the second held-fixed pass on, the pass equals the previous one up to the first epoch
+      // whose decision changed: it starts from the previous pass's last snapshot before that epoch
+      let resume: InsResume | undefined;
+      if (prevUse && IMU_REVIEW_RESUME.enabled) {
+        let k1 = 0;
+        while (k1 < N && prevUse[k1] === fixed.use[k1]) k1++;
+        const snapshot = engine.snapshotBefore(k1);
+        if (snapshot) resume = { snapshot, from: engine };
+      }
       if (tm) tm.reviewMs += lap();
-      engine = await runPass(fixed);
+      engine = await runPass(fixed, resume);
       passes++;
     }
     const review: ImuReview = { kept, gateRejected, T, dof, threshold, passes, converged, ...gateStats };

@@ -21,7 +21,7 @@ import { makeImuCase } from '../imu/helpers.js';
 const CHUNK = 8192;
 
 function replayDirs(): Set<string> {
-  return new Set(readdirSync(tmpdir()).filter((d) => d.startsWith('hindcast-imu-')));
+  return new Set(readdirSync(tmpdir()).filter((d) => d.startsWith('hindcast-replay-')));
 }
 
 /** Seeded awkward samples: ordinary rates, signed zeros, subnormals, huge and tiny magnitudes. */

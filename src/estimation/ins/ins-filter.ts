@@ -156,6 +156,40 @@ export function newInsHistory(N: number): InsHistory {
   };
 }
 
+/** Epochs between the forward pass's snapshots (one every SNAPSHOT_EVERY epochs: ~11 kB each, ~40 bytes an epoch). */
+export const SNAPSHOT_EVERY = 256;
+
+/**
+ * The forward filter's whole state after an IMU sample (`sample`: how many samples the engine had
+ * been given, skipped ones included) during whose processing epoch `epoch` was processed. A later
+ * pass whose inputs equal this pass's up to an epoch after `epoch` reaches exactly this state there,
+ * so it can start from it instead of from the beginning of the log (resume).
+ */
+export interface InsSnapshot {
+  epoch: number;
+  sample: number;
+  ke: number;
+  tNav: number;
+  sumDt: number;
+  zaruDt: number;
+  prevT: number;
+  runCount: number;
+  runStartT: number;
+  phiAccIdentity: boolean;
+  ringCap: number;
+  ringHead: number;
+  ringCount: number;
+  /** nav, P, PhiAcc, sumC, sumF, zaruSum, prevF, prevW, ring: concatenated. */
+  arrays: Float64Array;
+  stats: InsStats;
+}
+
+/** Where a pass starts: a snapshot of an earlier pass over the same grid and that pass's engine (its forward products up to the snapshot). */
+export interface InsResume {
+  snapshot: InsSnapshot;
+  from: InsSmoother;
+}
+
 export class InsSmoother {
   readonly stats: InsStats = { samples: 0, samplesSkipped: 0, imuGaps: 0, firstSampleSec: NaN, lastSampleSec: NaN, alignments: [], zuptEpochs: 0, nhcEpochs: 0, gnssRejected: 0, reacquisitions: 0, smootherFallbacks: 0 };
   readonly products: InsProducts;
@@ -211,9 +245,19 @@ export class InsSmoother {
   private ringCap = 0;
   private ringHead = 0;
   private ringCount = 0;
+  /** Samples handed to the engine (skipped ones included) and the forward pass's snapshots, by epoch. */
+  private samplesSeen = 0;
+  private lastSnapshotEpoch = -1;
+  readonly snapshots: InsSnapshot[] = [];
 
   /** `history`: a released history of an earlier pass over the same grid, to be reused. */
-  constructor(private readonly ep: InsEpochs, private readonly init: InsInit, private readonly opt: InsOptions, private readonly tm?: InsTimings, history?: InsHistory) {
+  /**
+   * `history`: a released history of an earlier pass over the same grid, to be reused. `resume`:
+   * start from a snapshot of an earlier pass (its history must be `history`, the inputs of both passes
+   * equal up to an epoch after the snapshot's); the caller then hands in the samples after
+   * `resume.snapshot.sample` only.
+   */
+  constructor(private readonly ep: InsEpochs, private readonly init: InsInit, private readonly opt: InsOptions, private readonly tm?: InsTimings, history?: InsHistory, resume?: InsResume) {
     this.kern = makeInsKernels(opt.err, opt.kernels);
     this.kf = this.kern.filter;
     this.P = this.kf.P;
@@ -223,7 +267,9 @@ export class InsSmoother {
     this.dx = this.kf.dx;
     const N = ep.N;
     let h = history;
-    if (h && h.N === N) h.chainStart.fill(0);
+    if (resume && !(h && h.N === N)) throw new Error('InsSmoother: resume needs the history of the pass it resumes');
+    // a resumed pass keeps the entries up to the snapshot's epoch (the same values it would write)
+    if (h && h.N === N) h.chainStart.fill(0, resume ? resume.snapshot.epoch + 1 : 0);
     else h = newInsHistory(N);
     this.history = h;
     this.hNav = h.nav;
@@ -240,6 +286,67 @@ export class InsSmoother {
       nis: mk(), threshold: mk(), accepted: new Uint8Array(N), stationary: new Uint8Array(N),
     };
     this.thresholds = [Infinity, 1, 2, 3].map((d, i) => (i === 0 ? Infinity : chiSquareQuantile(opt.gateProbability, d)));
+    if (resume) this.restore(resume);
+  }
+
+  private snapshot(): void {
+    const k = this.ke - 1;
+    const ring = this.ring ?? new Float64Array(0);
+    const parts = [this.nav, this.P, this.PhiAcc, this.sumC, this.sumF, this.zaruSum, this.prevF, this.prevW, ring];
+    const arrays = new Float64Array(parts.reduce((a, v) => a + v.length, 0));
+    let o = 0;
+    for (const v of parts) {
+      arrays.set(v, o);
+      o += v.length;
+    }
+    this.snapshots.push({
+      epoch: k, sample: this.samplesSeen, ke: this.ke, tNav: this.tNav, sumDt: this.sumDt, zaruDt: this.zaruDt, prevT: this.prevT,
+      runCount: this.runCount, runStartT: this.runStartT, phiAccIdentity: this.phiAccIdentity,
+      ringCap: this.ringCap, ringHead: this.ringHead, ringCount: this.ringCount, arrays,
+      stats: { ...this.stats, alignments: this.stats.alignments.slice() },
+    });
+    this.lastSnapshotEpoch = k;
+  }
+
+  private restore({ snapshot: sn, from }: InsResume): void {
+    this.mode = 2;
+    this.ke = sn.ke;
+    this.tNav = sn.tNav;
+    this.sumDt = sn.sumDt;
+    this.zaruDt = sn.zaruDt;
+    this.prevT = sn.prevT;
+    this.runCount = sn.runCount;
+    this.runStartT = sn.runStartT;
+    this.phiAccIdentity = sn.phiAccIdentity;
+    this.ringCap = sn.ringCap;
+    this.ringHead = sn.ringHead;
+    this.ringCount = sn.ringCount;
+    this.ring = sn.ringCap > 0 ? new Float64Array(6 * sn.ringCap) : null;
+    const parts = [this.nav, this.P, this.PhiAcc, this.sumC, this.sumF, this.zaruSum, this.prevF, this.prevW, ...(this.ring ? [this.ring] : [])];
+    let o = 0;
+    for (const v of parts) {
+      v.set(sn.arrays.subarray(o, o + v.length));
+      o += v.length;
+    }
+    if (o !== sn.arrays.length) throw new Error('InsSmoother: snapshot of another layout');
+    Object.assign(this.stats, { ...sn.stats, alignments: sn.stats.alignments.slice() });
+    this.samplesSeen = sn.sample;
+    this.lastSnapshotEpoch = sn.epoch;
+    // the forward products of the epochs before, and the snapshots up to this one
+    const a = from.products, b = this.products, n = sn.epoch + 1;
+    b.covered.set(a.covered.subarray(0, n));
+    b.nis.set(a.nis.subarray(0, n));
+    b.threshold.set(a.threshold.subarray(0, n));
+    b.accepted.set(a.accepted.subarray(0, n));
+    b.stationary.set(a.stationary.subarray(0, n));
+    for (const x of from.snapshots) if (x.epoch <= sn.epoch) this.snapshots.push(x);
+  }
+
+  /** The latest snapshot of this pass before epoch k (for a next pass whose inputs first differ at k), if any. */
+  snapshotBefore(k: number): InsSnapshot | undefined {
+    let best: InsSnapshot | undefined;
+    for (const x of this.snapshots) if (x.epoch < k && (!best || x.epoch > best.epoch)) best = x;
+    return best;
   }
 
   /** One IMU sample: time (UTC Unix s), specific force (m/s²) and angular rate (rad/s), body frame. */
@@ -269,6 +376,7 @@ export class InsSmoother {
    * 99 young-generation collections; the time, within the noise of the shared machine).
    */
   private onSample(): void {
+    this.samplesSeen++;
     const c = this.cur;
     const tSec = c[0]!;
     if (!(tSec > this.prevT) && Number.isFinite(this.prevT)) {
@@ -303,8 +411,10 @@ export class InsSmoother {
       if (tSec - ep.tSec[this.alignEpoch]! >= this.opt.alignSec) this.alignAndReplay();
       return;
     }
-    if (this.mode === 2) this.runSample(c, 0);
-    else this.remember(c, 0);
+    if (this.mode === 2) {
+      this.runSample(c, 0);
+      if (this.ke - 1 >= this.lastSnapshotEpoch + SNAPSHOT_EVERY) this.snapshot();
+    } else this.remember(c, 0);
   }
 
   /** End of the IMU stream: finish a pending alignment; epochs after the last sample stay uncovered. */
