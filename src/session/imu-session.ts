@@ -51,9 +51,9 @@ export function imuGnssParams(calibrated: AxisParams, profile: AxisParams): Axis
 }
 
 /**
- * Resumed passes (tests switch them off to compare): a pass of the review loop after the second
- * starts from the previous pass's snapshot before the first changed decision (ins-filter.ts,
- * InsSnapshot) instead of streaming the log from its beginning; the same results bit for bit.
+ * Resumed passes (tests switch them off to compare): a pass of the review loop starts from the
+ * previous pass's snapshot before the first changed decision (ins-filter.ts, InsSnapshot) instead
+ * of streaming the log from its beginning; the same results bit for bit.
  */
 export const IMU_REVIEW_RESUME = { enabled: true };
 
@@ -314,12 +314,15 @@ export async function processImuSession(series: FixSeries, imuPath: string, cfg:
       // decisions held fixed: kept fixes without gate, rejected ones left out
       const prevUse = passes >= 2 ? fixed.use.slice() : undefined;
       for (let k = 0; k < N; k++) fixed.use[k] = gatedFix[k] ? (kept[k] ? 2 : 0) : offered[k]!;
-      // from the second held-fixed pass on, the pass equals the previous one up to the first epoch
-      // whose decision changed: it starts from the previous pass's last snapshot before that epoch
+      // the pass equals the previous one up to the first epoch whose decision changed (after the gated
+      // first pass: the first gated fix that its gate refused or the review now rejects, since a fix
+      // the gate accepted is used alike with and without the gate), so it starts from the previous
+      // pass's last snapshot before that epoch
       let resume: InsResume | undefined;
-      if (prevUse && IMU_REVIEW_RESUME.enabled) {
+      if (IMU_REVIEW_RESUME.enabled) {
         let k1 = 0;
-        while (k1 < N && prevUse[k1] === fixed.use[k1]) k1++;
+        if (prevUse) while (k1 < N && prevUse[k1] === fixed.use[k1]) k1++;
+        else while (k1 < N && !(gatedFix[k1] && (gateRejected[k1] || !kept[k1]))) k1++;
         const snapshot = engine.snapshotBefore(k1);
         if (snapshot) resume = { snapshot, from: engine };
       }

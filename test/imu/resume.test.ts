@@ -1,7 +1,9 @@
 /**
  * Resumed passes of the IMU review loop (src/session/imu-session.ts, IMU_REVIEW_RESUME;
- * src/estimation/ins/ins-filter.ts, InsSnapshot): a pass after the second starts from the previous
- * pass's snapshot before the first changed decision. On a seeded one-hour drive at 1 Hz fixes whose
+ * src/estimation/ins/ins-filter.ts, InsSnapshot): a pass starts from the previous pass's snapshot
+ * before the first changed decision (after the gated first pass: before its first refused fix or
+ * the first fix the review rejects). On a 15-minute drive at 10 Hz fixes (two passes, the second
+ * resumed from the first) and on a seeded one-hour drive at 1 Hz fixes whose
  * review takes four passes (the IMU benchmark's log), with its fix times as simulated and shifted
  * between IMU samples, the result with resumed passes equals the one
  * with every pass run from the start, bit for bit: every array of the SessionResult (Object.is), the
@@ -36,6 +38,25 @@ describe('resumed IMU review passes', () => {
   afterAll(() => {
     IMU_REVIEW_RESUME.enabled = true;
   });
+
+  it('15 minutes at 10 Hz fixes, two passes: the second resumes from the gated first, bit for bit', async () => {
+    const c = makeImuCase(2, { durationSec: 900, fixRateHz: 10 }, {}, 'vehicle');
+    try {
+      IMU_REVIEW_RESUME.enabled = false;
+      const tmA = newImuStageTimings();
+      const a = await processImuSession(c.series, c.imuPath, c.cfg, 'x', undefined, tmA);
+      IMU_REVIEW_RESUME.enabled = true;
+      const tmB = newImuStageTimings();
+      const b = await processImuSession(c.series, c.imuPath, c.cfg, 'x', undefined, tmB);
+      expect(tmA.passes).toBe(2);
+      expect(tmB.passes).toBe(2);
+      expect(tmB.resumedPasses).toBe(1);
+      console.log(`10 Hz: epochs not run again ${tmB.resumedEpochs} of ${b.N}`);
+      expect(expectSameResult(a, b)).toBeGreaterThan(10);
+    } finally {
+      rmSync(dirname(c.imuPath), { recursive: true, force: true });
+    }
+  }, 120_000);
 
   // fixes at the IMU's sample times (as simulated), and 3.7 ms after them: then the filter's epochs
   // fall between samples and a snapshot holds a partly accumulated covariance step
