@@ -67,11 +67,12 @@ export function wrapLonDeg(d: number): number {
 /**
  * Centre of a set of fixes: median latitude and the median of longitudes unwrapped around the
  * first valid one (so sessions across the antimeridian get a sensible centre).
+ * `scratch`: two arrays of at least latDeg.length to select in (overwritten), instead of two new ones.
  */
-export function sessionCentre(latDeg: Float64Array, lonDeg: Float64Array, valid?: Uint8Array): [number, number] {
+export function sessionCentre(latDeg: Float64Array, lonDeg: Float64Array, valid?: Uint8Array, scratch?: [Float64Array, Float64Array]): [number, number] {
   // the values in typed arrays filled in order (what lists of them held)
-  const lats = new Float64Array(latDeg.length);
-  const lons = new Float64Array(latDeg.length);
+  const lats = scratch && scratch[0].length >= latDeg.length ? scratch[0] : new Float64Array(latDeg.length);
+  const lons = scratch && scratch[1].length >= latDeg.length ? scratch[1] : new Float64Array(latDeg.length);
   let c = 0;
   let ref = NaN;
   for (let i = 0; i < latDeg.length; i++) {

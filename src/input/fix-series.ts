@@ -48,13 +48,30 @@ class GrowF64 {
   }
 }
 
+/** Line numbers (below 2^32: a log is at most 2^29 bytes), grown like GrowF64. */
+class GrowU32 {
+  a: Uint32Array;
+  n = 0;
+  constructor(cap = 1024) {
+    this.a = new Uint32Array(cap);
+  }
+  push(v: number): void {
+    if (this.n === this.a.length) {
+      const b = new Uint32Array(this.a.length * 2);
+      b.set(this.a);
+      this.a = b;
+    }
+    this.a[this.n++] = v;
+  }
+}
+
 /** Accumulates fixes row by row; finish() sorts by time and drops duplicate times (keep first). */
 export class FixSeriesBuilder {
   private t: GrowF64;
   private lat: GrowF64;
   private lon: GrowF64;
   private h: GrowF64;
-  private ln: GrowF64;
+  private ln: GrowU32;
   private q = new Map<QualityColumn, GrowF64>();
   /** The quality columns' arrays in the order of `qualityColumns` (add() runs per row). */
   private qList: GrowF64[] = [];
@@ -69,7 +86,7 @@ export class FixSeriesBuilder {
     this.lat = new GrowF64(cap);
     this.lon = new GrowF64(cap);
     this.h = new GrowF64(cap);
-    this.ln = new GrowF64(cap);
+    this.ln = new GrowU32(cap);
     for (const c of qualityColumns) this.q.set(c, new GrowF64(cap));
     this.qList = [...this.q.values()];
   }
@@ -140,19 +157,26 @@ export class FixSeriesBuilder {
     return this.series(keep.length, keep);
   }
 
-  /** The series of the rows `keep` (in that order), or of the first n rows as they are (keep null). */
+  /**
+   * The series of the rows `keep` (in that order), or of the first n rows as they are (keep null:
+   * views of the builder's arrays, not copies; at 1M fixes the copies were ~60 MB of fresh memory
+   * to write, and the builder is done with them).
+   */
   private series(n: number, keep: number[] | null): FixSeries {
     const pick = (src: Float64Array) => {
-      if (keep === null) return src.slice(0, n);
+      if (keep === null) return src.subarray(0, n);
       const out = new Float64Array(n);
       for (let j = 0; j < n; j++) out[j] = src[keep[j]!]!;
       return out;
     };
     const quality: Partial<Record<QualityColumn, Float64Array>> = {};
     for (const [k, g] of this.q) quality[k] = pick(g.a);
-    const line = new Uint32Array(n);
-    if (keep === null) line.set(this.ln.a.subarray(0, n));
-    else for (let j = 0; j < n; j++) line[j] = this.ln.a[keep[j]!]!;
+    let line: Uint32Array;
+    if (keep === null) line = this.ln.a.subarray(0, n);
+    else {
+      line = new Uint32Array(n);
+      for (let j = 0; j < n; j++) line[j] = this.ln.a[keep[j]!]!;
+    }
     return {
       file: this.file,
       n,

@@ -19,7 +19,10 @@
  *   arithmetic; outside years 1970–9999 and for non-finite times Date is called (and throws as before).
  * Digits are written two at a time from a table of digit pairs in int32 arithmetic below 2^31 (one
  * at a time in doubles above), and the integer part of `fixed` comes from ⌊|v|⌋ with one correction
- * instead of a division (the same integers, hence the same text).
+ * instead of a division (the same integers, hence the same text). Since round 10, a scaled value
+ * n = |v|·10^d below 2^31 (metres at 3 decimals, degrees at 7) is written as n's digits with the
+ * point inserted (`pointed`), the text of its integer part and fraction written apart
+ * (test/output/byte-chunks-r10.test.ts against the previous form).
  */
 
 /** Bytes of a chunk before it is handed out (the buffer has room for a row beyond it). */
@@ -192,6 +195,7 @@ export class ByteChunks {
     if (Math.abs(frac - 0.5) <= x * 4.5e-16) return this.ascii(v.toFixed(d));
     const n = frac > 0.5 ? n0 + 1 : n0;
     if (d === 0) return this.decimal(v < 0, n, 0, 0);
+    if (n <= 0x7fffffff) return this.pointed(v < 0, n, d);
     // n = ip·f + fp with 0 ≤ fp < f, from ip ≈ ⌊|v|⌋ (n differs from |v|·f by under one unit, so
     // one correction either way makes it exact; products and differences of integers < 4e15 are exact)
     let ip = Math.floor(a);
@@ -224,6 +228,16 @@ export class ByteChunks {
     const a = n < 0 ? -n : n;
     if (!(a < 1e15) || Math.abs(x) < 1e-6) return this.ascii(String(x));
     if (d === 0) return this.decimal(n < 0, a, 0, 0);
+    if (a <= 0x7fffffff) {
+      // the fraction's trailing zeros are a's lowest zero digits (at most d of them)
+      let m = a;
+      let k = d;
+      while (k > 0 && m % 10 === 0) {
+        m /= 10;
+        k--;
+      }
+      return k > 0 ? this.pointed(n < 0, m, k) : this.decimal(n < 0, m, 0, 0);
+    }
     // a / f = |n / f| exactly (negation is exact), so ⌊|x|⌋ is ⌊a / f⌋ without a second division
     let ip = Math.floor(x < 0 ? -x : x);
     let fp = a - ip * f;
@@ -239,6 +253,36 @@ export class ByteChunks {
     }
     // fp < 10^k (it was below 10^d before k − d divisions by ten)
     this.decimal(n < 0, ip, fp, k);
+  }
+
+  /**
+   * "−"? m / 10^k with k ≥ 1 decimals, for 0 ≤ m < 2^31: m's digits (at least k + 1, zero-padded)
+   * with the point before the last k. The text of decimal(neg, ⌊m / 10^k⌋, m mod 10^k, k) in one
+   * int32 loop (no integer part and fraction apart, no second digit count).
+   */
+  private pointed(neg: boolean, n: number, k: number): void {
+    let m = n | 0;
+    let nd = k + 1;
+    // m < 2^31 < 10^10: at most ten digits
+    while (nd < 10 && m >= POW10[nd]!) nd++;
+    const len = (neg ? 1 : 0) + nd + 1;
+    this.room(len);
+    const b = this.buf;
+    const stop = this.pos + (neg ? 1 : 0);
+    let p = this.pos + len;
+    this.pos = p;
+    for (let i = 0; i < k; i++) {
+      const q = (m / 10) | 0;
+      b[--p] = C.zero + (m - q * 10);
+      m = q;
+    }
+    b[--p] = C.dot;
+    while (p > stop) {
+      const q = (m / 10) | 0;
+      b[--p] = C.zero + (m - q * 10);
+      m = q;
+    }
+    if (neg) b[--p] = C.minus;
   }
 
   /**

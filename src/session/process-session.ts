@@ -12,7 +12,7 @@ import { errorEllipse } from '../output/ellipse.js';
 import { epochGrid, nominalIntervalSec, splitSegments } from './segments.js';
 import { fixSigmaFactors } from './fix-noise.js';
 import { DEFAULT_CALIBRATION, FIRST_ROUND, calibrateSession, calibrationWindows, sliceSegment } from './calibrate.js';
-import { reviewSegment, type ReviewOptions } from './review.js';
+import { reviewSegment, type ReviewOptions, type ReviewOutcome } from './review.js';
 import { buildOutliersAndMetrics } from './products.js';
 import { STATUS, type OutlierRecord, type SessionResult } from './result.js';
 import type { StageTimings } from './timings.js';
@@ -160,18 +160,23 @@ export function prepareSession(s: FixSeries, cfg: HindcastConfig, userDecisions?
         userRejected[i] = 1;
       } else if (valid[i]) forced[i] = 1;
     }
-  const [lat0, lon0] = sessionCentre(s.latDeg, s.lonDeg, valid);
+  // e, n, u serve first as the scratch of the medians (centre, height reference), then are set to
+  // NaN and filled: the same medians, without three more arrays of fresh memory (24 MB at 1M fixes)
+  const e = new Float64Array(s.n);
+  const n = new Float64Array(s.n);
+  const u = new Float64Array(s.n);
+  const [lat0, lon0] = sessionCentre(s.latDeg, s.lonDeg, valid, [e, n]);
   const frame = makeLocalFrame(lat0, lon0);
-  const e = new Float64Array(s.n).fill(NaN);
-  const n = new Float64Array(s.n).fill(NaN);
-  const u = new Float64Array(s.n).fill(NaN);
   // the valid heights in order, in a typed array (the values a list of them would hold)
-  const hs = new Float64Array(s.heightM ? s.n : 0);
+  const hs = u;
   let nh = 0;
   if (s.heightM) for (let i = 0; i < s.n; i++) if (valid[i] && Number.isFinite(s.heightM[i]!)) hs[nh++] = s.heightM[i]!;
   // the median order statistic, selected without sorting (the value of the sorted array)
   const hasHeight = nh > 0;
   const heightRefM = hasHeight ? selectKth(hs.subarray(0, nh), nh >> 1) : 0;
+  e.fill(NaN);
+  n.fill(NaN);
+  u.fill(NaN);
   const out = [0, 0];
   for (let i = 0; i < s.n; i++) {
     if (!valid[i]) continue;
@@ -367,13 +372,24 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
   type SegOut = { data: SegmentData; fix: Int32Array; x: Float64Array[]; P: Float64Array[]; kept: Uint8Array; gateRejected: Uint8Array; T: Float64Array; thr: Float64Array; reacq: number };
   const segOuts: SegOut[] = [];
   ps.segments.forEach((seg, si) => {
-    const t0 = tm ? performance.now() : 0;
-    const { data, fix } = segmentData(ps, seg, p, cfg.segments.bridgeFactor);
-    if (tm) tm.review += performance.now() - t0;
     const plan = plans?.[si];
-    const offered = plan?.offered ?? data.use.slice();
-    // a converged review under the same parameters would only repeat itself (same decisions, same history)
-    const rev = plan?.outcome && plan.outcome.params === p ? plan.outcome.rev : reviewSegment(models, data, offered, opt, ro, plan?.decisions, tm);
+    let rev: ReviewOutcome;
+    let data: SegmentData;
+    let fix: Int32Array;
+    if (plan?.outcome && plan.outcome.params === p) {
+      // a converged review under the same parameters would only repeat itself (same decisions, same
+      // history); its data hold the epochs and times (the grid's), so the segment's filter inputs
+      // are not built again (at 1M fixes ~50 MB of fresh arrays)
+      rev = plan.outcome.rev;
+      data = rev.data;
+      fix = segmentGrid(ps, seg, cfg.segments.bridgeFactor).fix;
+    } else {
+      const t0 = tm ? performance.now() : 0;
+      ({ data, fix } = segmentData(ps, seg, p, cfg.segments.bridgeFactor));
+      if (tm) tm.review += performance.now() - t0;
+      const offered = plan?.offered ?? data.use.slice();
+      rev = reviewSegment(models, data, offered, opt, ro, plan?.decisions, tm);
+    }
     const h = rev.history;
     segOuts.push({ data, fix, x: h.x, P: h.P, kept: rev.kept, gateRejected: rev.gateRejected, T: rev.T, thr: rev.threshold, reacq: h.reacquired.length });
   });
@@ -417,8 +433,8 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
         res.velEnu[a]![j] = o.x[a]![k * n + 1]!;
         res.sdEnu[a]![j] = Math.sqrt(o.P[a]![k * covStride(n)]!);
       }
-      // independent axes: no east–north covariance
-      res.covEN[j] = 0;
+      // independent axes: no east–north covariance (covEN stays as allocated, +0 at every epoch:
+      // not writing it leaves 8 MB at 1M untouched until read)
       const ve = res.sdEnu[0]![j]! ** 2, vn = res.sdEnu[1]![j]! ** 2;
       const el = errorEllipse(ve, vn, 0);
       res.ell95MajorM[j] = el.majorM;

@@ -10,10 +10,10 @@ import type { PreparedSession } from './process-session.js';
 import { STATUS, type OutlierRecord, type SessionResult } from './result.js';
 import { selectKth } from '../estimation/select.js';
 
-function median(v: Float64Array): number {
+/** The median order statistic of v, selected without sorting (the value of the sorted array); reorders v. */
+function medianInPlace(v: Float64Array): number {
   if (v.length === 0) return NaN;
-  // the order statistic of the sorted values, selected without sorting (the same value)
-  return selectKth(v.slice(), v.length >> 1);
+  return selectKth(v, v.length >> 1);
 }
 
 /**
@@ -78,15 +78,14 @@ export function buildOutliersAndMetrics(res: SessionResult, ps: PreparedSession,
   }
   res.outliers = out;
   let kept = 0, bridged = 0;
+  // scratch for the median (selected in place: it is not needed afterwards)
   const sdH = new Float64Array(N);
-  const ellMaj = new Float64Array(N);
   let sumR2 = 0, nR = 0, sumU2 = 0, nU = 0;
   for (let j = 0; j < N; j++) {
     const st = res.status[j]!;
     if (st === STATUS.kept || st === STATUS.userKept) kept++;
     else if (st === STATUS.bridged) bridged++;
     sdH[j] = Math.sqrt(res.sdEnu[0]![j]! ** 2 + res.sdEnu[1]![j]! ** 2);
-    ellMaj[j] = res.ell95MajorM[j]!;
     const i = res.fix[j]!;
     if (i >= 0 && (st === STATUS.kept || st === STATUS.userKept)) {
       const de = ps.e[i]! - res.posEnu[0]![j]!, dn = ps.n[i]! - res.posEnu[1]![j]!;
@@ -120,9 +119,10 @@ export function buildOutliersAndMetrics(res: SessionResult, ps: PreparedSession,
     durationSec: s.n > 0 ? s.tSec[s.n - 1]! - s.tSec[0]! : 0,
     nominalIntervalSec: ps.intervalSec,
     lengthM,
-    medianSdHorizontalM: median(sdH),
-    worstEll95MajorM: ellMaj.length ? ellMaj.reduce((m, v) => (v > m ? v : m), -Infinity) : NaN,
-    medianEll95MajorM: median(ellMaj),
+    medianSdHorizontalM: medianInPlace(sdH),
+    // over the epochs in order (the first of equal maxima, as before), then the median of one copy
+    worstEll95MajorM: N ? res.ell95MajorM.reduce((m, v) => (v > m ? v : m), -Infinity) : NaN,
+    medianEll95MajorM: medianInPlace(res.ell95MajorM.slice()),
     rmsResidualHorizontalM: nR ? Math.sqrt(sumR2 / nR) : NaN,
     rmsResidualUpM: nU ? Math.sqrt(sumU2 / nU) : NaN,
     reacquisitions,

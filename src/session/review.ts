@@ -71,6 +71,8 @@ export function reviewSegment(
   let tKernel = 0;
   const N = data.N;
   let histBuf: FilterHistory | undefined;
+  // arrays of N doubles that nothing reads any more, to be reused whole
+  const spare: Float64Array[] = [];
   // buffers of the smoothed history: the time-reversed gate pass's, when there is one (only its
   // accepted flags are needed after the gate), so the review holds two full histories, not three
   let smoothBuf: FilterHistory | undefined;
@@ -95,7 +97,11 @@ export function reviewSegment(
     // its first fixes are rejected) is met from the other side by the time-reversed filter
     const t0 = tm ? performance.now() : 0;
     h = forwardFilter(models, work, opt, allocateHistory(N, models, shareP));
-    const back = forwardFilter(models, reversed(work), opt, allocateHistory(N, models, shareP));
+    const rv = reversed(work);
+    const back = forwardFilter(models, rv, opt, allocateHistory(N, models, shareP));
+    // the reversed data's arrays are not read again (the histories hold no data): two of them
+    // become T and threshold below (memory already written instead of 16 MB fresh at 1M epochs)
+    spare.push(rv.z[0]!, rv.r[0]!);
     smoothBuf = back;
     // the first review pass reuses the forward history's buffers (every epoch is rewritten)
     histBuf = h;
@@ -114,9 +120,9 @@ export function reviewSegment(
   }
   const th = reviewThresholds(ro.probability);
   const thr = th.reject;
-  const T = new Float64Array(N).fill(NaN);
+  const T = (spare.pop() ?? new Float64Array(N)).fill(NaN);
   const dof = new Uint8Array(N);
-  const threshold = new Float64Array(N).fill(NaN);
+  const threshold = (spare.pop() ?? new Float64Array(N)).fill(NaN);
   const nu = new Float64Array(models.length);
   let passes = 0;
   let converged = false;

@@ -1,0 +1,108 @@
+/**
+ * src/session/fix-noise.ts as it was before round 10 of issue 8 (each median in a new array, the
+ * factors filled with 1 first), kept verbatim as the reference for test/session/scratch-medians.test.ts.
+ */
+/**
+ * Per-fix white measurement noise from the log's quality columns.
+ * Rules (documented in README):
+ * - reported sigmas (sd_east, sd_north, sd_up) are used as given, times noise.reportedSigmaScale;
+ * - otherwise the profile's sigma holds at the session's median quality and is scaled by
+ *   hdop/median(hdop) (vdop for the vertical, hdop when there is no vdop), by √(median sats / sats),
+ *   and by a factor for the fix quality indicator relative to the session's most common one.
+ * Relative scaling keeps the calibrated sigma meaningful whatever the receiver's DOP convention.
+ */
+import type { FixSeries } from '../../src/input/fix-series.js';
+import { selectKth } from '../../src/estimation/select.js';
+
+/** Sigma factor per GGA fix quality (0 invalid, 1 GPS, 2 DGPS, 3 PPS, 4 RTK fixed, 5 RTK float, 6 dead reckoning, 7 manual, 8 simulation, 9 SBAS); common practice, rounded. */
+const FIX_QUALITY_FACTOR: Record<number, number> = { 1: 1, 2: 0.6, 3: 1, 4: 0.02, 5: 0.2, 6: 5, 7: 1, 8: 1, 9: 0.6 };
+
+function median(a: Float64Array | undefined): number {
+  if (!a) return NaN;
+  let c = 0;
+  for (let i = 0; i < a.length; i++) if (Number.isFinite(a[i]!) && a[i]! > 0) c++;
+  if (c === 0) return NaN;
+  // the order statistic of the sorted values, selected without sorting (the same value)
+  const v = new Float64Array(c);
+  c = 0;
+  for (let i = 0; i < a.length; i++) if (Number.isFinite(a[i]!) && a[i]! > 0) v[c++] = a[i]!;
+  return selectKth(v, v.length >> 1);
+}
+
+function mode(a: Float64Array | undefined): number {
+  if (!a) return NaN;
+  const c = new Map<number, number>();
+  for (const x of a) if (Number.isFinite(x)) c.set(x, (c.get(x) ?? 0) + 1);
+  let best = NaN;
+  let bc = 0;
+  for (const [k, v] of c) if (v > bc) {
+    best = k;
+    bc = v;
+  }
+  return best;
+}
+
+interface FixSigmaFactors {
+  /**
+   * Per-fix factor on the base sigma of each axis (east, north, up). With reported sigmas the factor
+   * is the reported sigma itself (m) and the base is a dimensionless scale; otherwise it is a relative
+   * factor (1 at the session's median quality) and the base is the white sigma (m).
+   */
+  perAxis: [Float64Array, Float64Array, Float64Array];
+  /** True when the factors are reported sigmas (the base is then a scale). */
+  reported: boolean;
+  /** Which columns were used. */
+  used: string[];
+}
+
+export function refFixSigmaFactors(s: FixSeries): FixSigmaFactors {
+  const n = s.n;
+  const fh = new Float64Array(n).fill(1);
+  const fv = new Float64Array(n).fill(1);
+  const used: string[] = [];
+  const q = s.quality;
+  const hd = q.hdop, vd = q.vdop, sats = q.sats, fq = q.fixQuality;
+  const mh = median(hd), mv = median(vd), ms = median(sats), mq = mode(fq);
+  if (hd && Number.isFinite(mh)) used.push('hdop');
+  if (vd && Number.isFinite(mv)) used.push('vdop');
+  if (sats && Number.isFinite(ms)) used.push('sats');
+  if (fq && Number.isFinite(mq)) used.push('fix_quality');
+  const qRef = FIX_QUALITY_FACTOR[mq] ?? 1;
+  for (let i = 0; i < n; i++) {
+    let h = 1, v = 1;
+    if (hd && Number.isFinite(mh) && hd[i]! > 0) h *= hd[i]! / mh;
+    if (vd && Number.isFinite(mv) && vd[i]! > 0) v *= vd[i]! / mv;
+    else if (hd && Number.isFinite(mh) && hd[i]! > 0) v *= hd[i]! / mh;
+    if (sats && Number.isFinite(ms) && sats[i]! > 0) {
+      const f = Math.sqrt(ms / Math.max(sats[i]!, 3));
+      h *= f;
+      v *= f;
+    }
+    if (fq && Number.isFinite(mq) && Number.isFinite(fq[i]!)) {
+      const f = (FIX_QUALITY_FACTOR[fq[i]!] ?? 1) / qRef;
+      h *= f;
+      v *= f;
+    }
+    fh[i] = h;
+    fv[i] = v;
+  }
+  if (q.sdEast && q.sdNorth) {
+    // reported sigmas: absolute per fix; a row without them gets the session median times its relative factor
+    used.push('sd_east', 'sd_north');
+    if (q.sdUp) used.push('sd_up');
+    const src = [q.sdEast, q.sdNorth, q.sdUp];
+    const med = src.map((a) => median(a));
+    const out = [0, 1, 2].map((a) => {
+      const f = new Float64Array(n);
+      const arr = src[a];
+      const m = Number.isFinite(med[a]!) ? med[a]! : a < 2 ? 1 : 2 * (Number.isFinite(med[0]!) ? med[0]! : 1);
+      for (let i = 0; i < n; i++) {
+        const v = arr ? arr[i]! : NaN;
+        f[i] = Number.isFinite(v) && v > 0 ? v : m * (a < 2 ? fh[i]! : fv[i]!);
+      }
+      return f;
+    }) as [Float64Array, Float64Array, Float64Array];
+    return { perAxis: out, reported: true, used };
+  }
+  return { perAxis: [fh, fh, fv], reported: false, used };
+}
