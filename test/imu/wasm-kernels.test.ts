@@ -13,7 +13,7 @@
  */
 import { afterAll, describe, expect, it } from 'vitest';
 import { NE } from '../../src/estimation/ins/error-model.js';
-import { E_A, E_BA, E_GM, E_P, E_V, fillErrorF, type ErrorModelParams } from '../../src/estimation/ins/error-model.js';
+import { E_A, E_BA, E_GM, E_P, E_V, fillErrorF, NE_PACKED, packPhi, packSym, PHI_COMPACT, type ErrorModelParams } from '../../src/estimation/ins/error-model.js';
 import { insKernelKind, makeInsKernels, makeInsRtsKernel, preferInsKernels, type InsFilterKernel, type InsRtsKernel } from '../../src/estimation/ins/kernels.js';
 import { quatFromEuler, quatRotateBody, quatToDcm } from '../../src/models/ins/attitude.js';
 import { processImuSession } from '../../src/session/imu-session.js';
@@ -176,6 +176,36 @@ describe('WebAssembly kernels = TypeScript kernels, bit for bit', () => {
       }
       expectSame(w.dx, j.dx, `dx ${t}`);
       expectSame(w.Ps, j.Ps, `Ps ${t}`);
+    }
+  });
+
+  it('from the packed history: loadPf and stepPacked unpack as unpackSym and unpackPhi, and step alike', () => {
+    const rng = new Rng(11);
+    const w = makeInsRtsKernel('wasm'), j = makeInsRtsKernel('js');
+    const K = 5;
+    const hP = new Float64Array(K * NE_PACKED), hM = new Float64Array(K * NE_PACKED), hPhi = new Float64Array(K * PHI_COMPACT);
+    for (let k = 0; k < K; k++) {
+      const Pf = spd(rng, SCALES[1]!), Phi = phiOf(rng);
+      packSym(Pf, hP, k * NE_PACKED);
+      packSym(predicted(Phi, Pf, 1e-3), hM, k * NE_PACKED);
+      packPhi(Phi, hPhi, k * PHI_COMPACT);
+    }
+    const Ps0 = spd(rng, SCALES[1]!);
+    for (const k of [w, j]) {
+      k.Ps.set(Ps0);
+      k.Phi.fill(7); // stale values the unpacking must clear
+    }
+    for (let k = K - 2; k >= 0; k--) {
+      for (const kk of [w, j]) {
+        kk.loadPf(hP, k * NE_PACKED);
+        kk.dNext.fill(0.1);
+        expect(kk.stepPacked(hM, (k + 1) * NE_PACKED, hPhi, (k + 1) * PHI_COMPACT)).toBe(true);
+      }
+      expectSame(w.Pf, j.Pf, `Pf ${k}`);
+      expectSame(w.Pm, j.Pm, `Pm ${k}`);
+      expectSame(w.Phi, j.Phi, `Phi ${k}`);
+      expectSame(w.Ps, j.Ps, `Ps ${k}`);
+      expectSame(w.dx, j.dx, `dx ${k}`);
     }
   });
 

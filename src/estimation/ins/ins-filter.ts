@@ -19,7 +19,7 @@ import { cholesky } from '../cholesky.js';
 import { quatFromEuler, quatRotateNav, quatToDcm, dcmToEuler } from '../../models/ins/attitude.js';
 import { makeMechScratch, mechanizeRates, NAV_BA, NAV_BG, NAV_GM, NAV_LEN, NAV_P, NAV_Q, NAV_V, type MechParams, type MechScratch } from '../../models/ins/mechanization.js';
 import { gmPhi } from '../../models/gauss-markov.js';
-import { E_A, E_BA, E_BG, E_GM, E_P, E_V, fillErrorF, NE, NE_PACKED, packPhi, packSym, PHI_COMPACT, unpackPhi, unpackSym, type ErrorModelParams } from './error-model.js';
+import { E_A, E_BA, E_BG, E_GM, E_P, E_V, fillErrorF, NE, NE_PACKED, packPhi, packSym, PHI_COMPACT, type ErrorModelParams } from './error-model.js';
 import { bodyVelocityRow, gnssRow, gyroBiasRow, velocityRow } from './measurements.js';
 import { makeInsKernels, type InsFilterKernel, type InsRtsKernel, type KernelKind } from './kernels.js';
 
@@ -829,7 +829,7 @@ export class InsSmoother {
     const pr = this.products;
     // the step's slots (WebAssembly memory where the kernel loads: ./rts-kernel.ts)
     const rk = this.kern.rts;
-    const { Pf, Pm, Phi, Ps, dNext } = rk;
+    const { Pf, Ps, dNext } = rk;
     const dxs = rk.dx;
     const navS = new Float64Array(NAV_LEN);
     const ex = makeExtractScratch();
@@ -839,15 +839,13 @@ export class InsSmoother {
         linked = false;
         continue;
       }
-      unpackSym(this.hPplus, k * NE_PACKED, Pf);
+      rk.loadPf(this.hPplus, k * NE_PACKED);
       if (!linked) {
         Ps.set(Pf);
         dxs.fill(0);
       } else {
-        unpackSym(this.hPminus, (k + 1) * NE_PACKED, Pm);
-        unpackPhi(this.hPhi, (k + 1) * PHI_COMPACT, Phi);
         for (let i = 0; i < NE; i++) dNext[i] = dxs[i]! + this.hDx[(k + 1) * NE + i]!;
-        if (!rk.step()) {
+        if (!rk.stepPacked(this.hPminus, (k + 1) * NE_PACKED, this.hPhi, (k + 1) * PHI_COMPACT)) {
           // not positive definite: keep the filtered estimate here and restart the chain
           this.stats.smootherFallbacks++;
           Ps.set(Pf);

@@ -12,7 +12,8 @@ import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { gmPhi, gmQ } from '../../models/gauss-markov.js';
 import {
-  discretize, fillQcDiag, leftMultiply, makeDiscScratch, makeNonzeros, NE, propagateCovariance, setFromIdentityProduct, type ErrorModelParams,
+  discretize, fillQcDiag, leftMultiply, makeDiscScratch, makeNonzeros, NE, NE_PACKED, PHI_COMPACT, propagateCovariance, setFromIdentityProduct,
+  unpackPhi, unpackSym, type ErrorModelParams,
 } from './error-model.js';
 import { insRtsStep, makeInsRtsScratch } from './rts.js';
 import { makeScalarScratch, scalarJosephUpdate } from './scalar-update.js';
@@ -49,6 +50,10 @@ export interface InsRtsKernel {
   readonly dx: Float64Array;
   /** One step on the slots; false (Ps and dx untouched) when P⁻ₖ₊₁ is not positive definite. */
   step(): boolean;
+  /** Pf from the history's packed P⁺ at src[off..off+171) (error-model.ts unpackSym). */
+  loadPf(src: Float64Array, off: number): void;
+  /** Pm and Φ from the history's packed forms (unpackSym, unpackPhi), then step. */
+  stepPacked(pm: Float64Array, offPm: number, phi: Float64Array, offPhi: number): boolean;
 }
 
 /** The forward filter's covariance kernels on its slots. */
@@ -76,6 +81,8 @@ export interface InsFilterKernel {
 interface KernelExports {
   memory: WebAssembly.Memory;
   rtsStep(): number;
+  unpackPf(): void;
+  unpackStep(): number;
   discretize(t: number, phiGm: number, qGmH: number, qGmV: number): void;
   propagate(): void;
   accumulate(identity: number): void;
@@ -126,10 +133,21 @@ export function makeInsRtsKernel(prefer: KernelKind = defaultKind): InsRtsKernel
   const dNext = new Float64Array(NE), dx = new Float64Array(NE);
   const s = makeInsRtsScratch();
   // insRtsStep fails before it writes anything, as the WebAssembly step does
-  return { kind: 'js', Pf, Pm, Phi, Ps, dNext, dx, step: () => insRtsStep(Pf, Pm, Phi, Ps, dNext, dx, Ps, s) };
+  const step = () => insRtsStep(Pf, Pm, Phi, Ps, dNext, dx, Ps, s);
+  return {
+    kind: 'js', Pf, Pm, Phi, Ps, dNext, dx, step,
+    loadPf: (src, off) => unpackSym(src, off, Pf),
+    stepPacked: (pm, offPm, phi, offPhi) => {
+      unpackSym(pm, offPm, Pm);
+      unpackPhi(phi, offPhi, Phi);
+      return step();
+    },
+  };
 }
 
 function wasmRts(ex: KernelExports): InsRtsKernel {
+  // the packed forms are copied in (memcpy) and unpacked by the module
+  const pkF = slot(ex, 'PK_F', NE_PACKED), pkM = slot(ex, 'PK_M', NE_PACKED), pkPhi = slot(ex, 'PK_PHI', PHI_COMPACT);
   return {
     kind: 'wasm',
     Pf: slot(ex, 'PF', NN),
@@ -139,6 +157,15 @@ function wasmRts(ex: KernelExports): InsRtsKernel {
     dNext: slot(ex, 'DN', NE),
     dx: slot(ex, 'DX', NE),
     step: () => ex.rtsStep() === 1,
+    loadPf: (src, off) => {
+      pkF.set(src.subarray(off, off + NE_PACKED));
+      ex.unpackPf();
+    },
+    stepPacked: (pm, offPm, phi, offPhi) => {
+      pkM.set(pm.subarray(offPm, offPm + NE_PACKED));
+      pkPhi.set(phi.subarray(offPhi, offPhi + PHI_COMPACT));
+      return ex.unpackStep() === 1;
+    },
   };
 }
 

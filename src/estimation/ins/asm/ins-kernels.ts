@@ -29,9 +29,13 @@ const GT: i32 = 5 * NN + 36;
 const D: i32 = 6 * NN + 36;
 const GD: i32 = 7 * NN + 36;
 const ROW: i32 = 8 * NN + 36;
+// packed inputs of the smoother (the filter history's layout, ../error-model.ts packSym and packPhi)
+export const PK_F: i32 = 8 * NN + 54; // Pₖ⁺ packed (171)
+export const PK_M: i32 = PK_F + 171; // P⁻ₖ₊₁ packed (171)
+export const PK_PHI: i32 = PK_M + 171; // Φ compact (144)
 
 // filter slots (offsets in doubles): F, Φ, Qd, P, Φ accumulated since the last epoch, scratch; vectors
-const FB: i32 = 2700;
+const FB: i32 = 3200;
 export const F_F: i32 = FB;
 export const F_PHI: i32 = FB + NN;
 export const F_QD: i32 = FB + 2 * NN;
@@ -47,7 +51,7 @@ const F_W: i32 = F_H + 36;
 const F_K: i32 = F_H + 54;
 export const F_QC: i32 = F_H + 72; // diagonal of the continuous noise Qc (18)
 // nonzero lists (bytes): per list 18 counts then 18×18 column indices
-const NZ_BYTES: i32 = 5760 * 8;
+const NZ_BYTES: i32 = 6256 * 8;
 const NZ_F: i32 = NZ_BYTES;
 const NZ_F2: i32 = NZ_BYTES + 342;
 const NZ_FQ: i32 = NZ_BYTES + 2 * 342;
@@ -296,4 +300,32 @@ export function scalarUpdate(nu: f64, r: f64): f64 {
     }
   }
   return S;
+}
+
+// ---------------------------------------------------------------- smoother inputs from the history
+
+/** Symmetric 18×18 at A from its packed upper triangle at src (as unpackSym). */
+function unpackSym(src: i32, A: i32): void {
+  let m = src;
+  for (let i = 0; i < n; i++)
+    for (let j = i; j < n; j++) {
+      const v = ld(m++);
+      st(A + i * n + j, v);
+      st(A + j * n + i, v);
+    }
+}
+
+/** Pₖ⁺ (slot PF) from its packed form (slot PK_F). */
+export function unpackPf(): void {
+  unpackSym(PK_F, PF);
+}
+
+/** P⁻ₖ₊₁ and Φ from their packed forms (slots PK_M, PK_PHI; as unpackSym, unpackPhi), then rtsStep. */
+export function unpackStep(): i32 {
+  unpackSym(PK_M, PM);
+  for (let i = 0; i < NN; i += 2) sv(PHI + i, f64x2.splat(0));
+  let m = PK_PHI;
+  for (let i = 0; i < 9; i++) for (let j = 0; j < 15; j++) st(PHI + i * n + j, ld(m++));
+  for (let i = 9; i < n; i++) st(PHI + i * n + i, ld(m++));
+  return rtsStep();
 }
