@@ -11,10 +11,10 @@
  */
 import { rmSync } from 'node:fs';
 import { dirname } from 'node:path';
-import { afterAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { IMU_REVIEW_RESUME, newImuStageTimings, processImuSession } from '../../src/session/imu-session.js';
 import type { SessionResult } from '../../src/session/result.js';
-import { makeImuCase } from './helpers.js';
+import { makeImuCase, type ImuCase } from './helpers.js';
 
 function expectSameResult(a: SessionResult, b: SessionResult): number {
   let arrays = 0;
@@ -34,28 +34,31 @@ function expectSameResult(a: SessionResult, b: SessionResult): number {
   return arrays;
 }
 
-describe('resumed IMU review passes', () => {
-  afterAll(() => {
+/** The case processed with every pass from the start, then with resumed passes: both results and their timings. */
+async function bothWays(c: ImuCase) {
+  try {
+    IMU_REVIEW_RESUME.enabled = false;
+    const tmA = newImuStageTimings();
+    const a = await processImuSession(c.series, c.imuPath, c.cfg, 'x', undefined, tmA);
     IMU_REVIEW_RESUME.enabled = true;
-  });
+    const tmB = newImuStageTimings();
+    const b = await processImuSession(c.series, c.imuPath, c.cfg, 'x', undefined, tmB);
+    expect(tmA.resumedPasses).toBe(0);
+    expect(tmB.passes).toBe(tmA.passes);
+    return { a, b, tmA, tmB };
+  } finally {
+    IMU_REVIEW_RESUME.enabled = true;
+    rmSync(dirname(c.imuPath), { recursive: true, force: true });
+  }
+}
 
+describe('resumed IMU review passes', () => {
   it('15 minutes at 10 Hz fixes, two passes: the second resumes from the gated first, bit for bit', async () => {
-    const c = makeImuCase(2, { durationSec: 900, fixRateHz: 10 }, {}, 'vehicle');
-    try {
-      IMU_REVIEW_RESUME.enabled = false;
-      const tmA = newImuStageTimings();
-      const a = await processImuSession(c.series, c.imuPath, c.cfg, 'x', undefined, tmA);
-      IMU_REVIEW_RESUME.enabled = true;
-      const tmB = newImuStageTimings();
-      const b = await processImuSession(c.series, c.imuPath, c.cfg, 'x', undefined, tmB);
-      expect(tmA.passes).toBe(2);
-      expect(tmB.passes).toBe(2);
-      expect(tmB.resumedPasses).toBe(1);
-      console.log(`10 Hz: epochs not run again ${tmB.resumedEpochs} of ${b.N}`);
-      expect(expectSameResult(a, b)).toBeGreaterThan(10);
-    } finally {
-      rmSync(dirname(c.imuPath), { recursive: true, force: true });
-    }
+    const { a, b, tmA, tmB } = await bothWays(makeImuCase(2, { durationSec: 900, fixRateHz: 10 }, {}, 'vehicle'));
+    expect(tmA.passes).toBe(2);
+    expect(tmB.resumedPasses).toBe(1);
+    console.log(`10 Hz: epochs not run again ${tmB.resumedEpochs} of ${b.N}`);
+    expect(expectSameResult(a, b)).toBeGreaterThan(10);
   }, 120_000);
 
   // fixes at the IMU's sample times (as simulated), and 3.7 ms after them: then the filter's epochs
@@ -63,22 +66,11 @@ describe('resumed IMU review passes', () => {
   it.each([0, 0.0037])('one hour at 1 Hz fixes, four passes, fix times shifted by %s s: resumed = every pass from the start, bit for bit', async (shiftSec) => {
     const c = makeImuCase(4242, { durationSec: 3600 }, {}, 'vehicle');
     for (let i = 0; i < c.series.n; i++) c.series.tSec[i] += shiftSec;
-    try {
-      IMU_REVIEW_RESUME.enabled = false;
-      const tmA = newImuStageTimings();
-      const a = await processImuSession(c.series, c.imuPath, c.cfg, 'x', undefined, tmA);
-      IMU_REVIEW_RESUME.enabled = true;
-      const tmB = newImuStageTimings();
-      const b = await processImuSession(c.series, c.imuPath, c.cfg, 'x', undefined, tmB);
-      expect(tmA.passes).toBeGreaterThanOrEqual(3);
-      expect(tmB.passes).toBe(tmA.passes);
-      expect(tmA.resumedPasses).toBe(0);
-      expect(tmB.resumedPasses).toBeGreaterThanOrEqual(1);
-      expect(tmB.resumedEpochs).toBeGreaterThan(0);
-      console.log(`shift ${shiftSec} s: passes ${tmB.passes}, resumed ${tmB.resumedPasses}, epochs not run again ${tmB.resumedEpochs} of ${b.N * (tmB.passes - 1)}`);
-      expect(expectSameResult(a, b)).toBeGreaterThan(10);
-    } finally {
-      rmSync(dirname(c.imuPath), { recursive: true, force: true });
-    }
+    const { a, b, tmA, tmB } = await bothWays(c);
+    expect(tmA.passes).toBeGreaterThanOrEqual(3);
+    expect(tmB.resumedPasses).toBeGreaterThanOrEqual(1);
+    expect(tmB.resumedEpochs).toBeGreaterThan(0);
+    console.log(`shift ${shiftSec} s: passes ${tmB.passes}, resumed ${tmB.resumedPasses}, epochs not run again ${tmB.resumedEpochs} of ${b.N * (tmB.passes - 1)}`);
+    expect(expectSameResult(a, b)).toBeGreaterThan(10);
   }, 120_000);
 });

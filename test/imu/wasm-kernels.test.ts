@@ -18,29 +18,10 @@ import { insKernelKind, makeInsKernels, makeInsRtsKernel, preferInsKernels, type
 import { quatFromEuler, quatRotateBody, quatToDcm } from '../../src/models/ins/attitude.js';
 import { processImuSession } from '../../src/session/imu-session.js';
 import { Rng } from '../../src/simulate/rng.js';
+import { phiOf, spd } from './matrices.js';
 import { makeImuCase } from './helpers.js';
 
 const n = NE;
-
-/** SPD A Aᵀ + εI with per-row scales of metres to micro-radians (like P). */
-function spd(rng: Rng, scale: number[]): Float64Array {
-  const A = new Float64Array(n * n).map(() => rng.normal());
-  const P = new Float64Array(n * n);
-  for (let i = 0; i < n; i++)
-    for (let j = 0; j < n; j++) {
-      let s = i === j ? 0.1 : 0;
-      for (let k = 0; k < n; k++) s += A[i * n + k]! * A[j * n + k]!;
-      P[i * n + j] = s * scale[i]! * scale[j]!;
-    }
-  return P;
-}
-
-function phiOf(rng: Rng): Float64Array {
-  const F = new Float64Array(n * n);
-  for (let i = 0; i < 9; i++) for (let j = 0; j < 15; j++) F[i * n + j] = (i === j ? 1 : 0) + (rng.next() < 0.3 ? 0 : 0.1 * rng.normal());
-  for (let i = 9; i < n; i++) F[i * n + i] = i >= 15 ? 0.99 : 1;
-  return F;
-}
 
 /** Φ P Φᵀ + Q (plain loops): a P⁻ consistent with Pf and Φ. */
 function predicted(Phi: Float64Array, Pf: Float64Array, q: number): Float64Array {
