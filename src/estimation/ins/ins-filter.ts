@@ -8,7 +8,10 @@
  * when the IMU shows the vehicle stationary, or the non-holonomic constraint. Each epoch stores the
  * corrected nominal state, P⁺, P⁻, the transition Φ accumulated since the previous epoch and the
  * applied correction: memory per epoch (about 4 kB), none per IMU sample. The backward pass runs
- * the error-state RTS step (./rts.ts) and turns smoothed states into per-epoch products.
+ * the error-state RTS step (./rts.ts) and turns smoothed states into per-epoch products. The
+ * covariance arithmetic runs in ./kernels.ts (WebAssembly, or the TypeScript kernels: the same
+ * results). Every SNAPSHOT_EVERY epochs the forward pass keeps its whole state, so that a later pass
+ * whose inputs first differ after a snapshot can start there (InsResume).
  * Initial alignment: roll and pitch from the accelerometer mean while static (Groves 2013 §5.6.2,
  * "levelling"), heading from the first motion of the GNSS track (given by the caller).
  * Scalar updates use the Joseph form (./scalar-update.ts): the many small, highly correlated
@@ -250,7 +253,6 @@ export class InsSmoother {
   private lastSnapshotEpoch = -1;
   readonly snapshots: InsSnapshot[] = [];
 
-  /** `history`: a released history of an earlier pass over the same grid, to be reused. */
   /**
    * `history`: a released history of an earlier pass over the same grid, to be reused. `resume`:
    * start from a snapshot of an earlier pass (its history must be `history`, the inputs of both passes
