@@ -1,5 +1,5 @@
 /** Shared test helpers: a simulated IMU session on disk and scoring against the truth. */
-import { mkdtempSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { loadConfig } from '../../src/config/load.js';
@@ -16,9 +16,16 @@ export interface ImuCase {
   cfg: HindcastConfig;
 }
 
+// the cases' folders go when the test process ends (vitest runs each file in a forked process)
+const made: string[] = [];
+process.once('exit', () => {
+  for (const d of made) rmSync(d, { recursive: true, force: true });
+});
+
 export function makeImuCase(seed: number, over: Partial<ImuScenarioSpec> = {}, overrides: Record<string, unknown> = {}, profile = 'vehicle'): ImuCase {
   const sc = simulateImuScenario(defaultImuSpec(seed, over));
   const dir = mkdtempSync(join(tmpdir(), 'hindcast-imu-'));
+  made.push(dir);
   const cfg = loadConfig({ profile, overrides });
   const fixPath = join(dir, 'drive.csv');
   writeFileSync(fixPath, imuScenarioFixCsv(sc));
