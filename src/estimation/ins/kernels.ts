@@ -148,8 +148,11 @@ export function makeInsRtsKernel(prefer: KernelKind = defaultKind): InsRtsKernel
 }
 
 function wasmRts(ex: KernelExports): InsRtsKernel {
-  // the packed forms are copied in (memcpy) and unpacked by the module
+  // the packed forms are copied in and unpacked by the module (a loop, not subarray + set: no view object per epoch)
   const pkF = slot(ex, 'PK_F', NE_PACKED), pkM = slot(ex, 'PK_M', NE_PACKED), pkPhi = slot(ex, 'PK_PHI', PHI_COMPACT);
+  const copy = (dst: Float64Array, src: Float64Array, off: number) => {
+    for (let i = 0, n = dst.length; i < n; i++) dst[i] = src[off + i]!;
+  };
   return {
     kind: 'wasm',
     Pf: slot(ex, 'PF', NN),
@@ -160,12 +163,12 @@ function wasmRts(ex: KernelExports): InsRtsKernel {
     dx: slot(ex, 'DX', NE),
     step: () => ex.rtsStep() === 1,
     loadPf: (src, off) => {
-      pkF.set(src.subarray(off, off + NE_PACKED));
+      copy(pkF, src, off);
       ex.unpackPf();
     },
     stepPacked: (pm, offPm, phi, offPhi) => {
-      pkM.set(pm.subarray(offPm, offPm + NE_PACKED));
-      pkPhi.set(phi.subarray(offPhi, offPhi + PHI_COMPACT));
+      copy(pkM, pm, offPm);
+      copy(pkPhi, phi, offPhi);
       return ex.unpackStep() === 1;
     },
   };
