@@ -291,10 +291,16 @@ export class InsSmoother {
     if (resume) this.restore(resume);
   }
 
+  /** The array part of the forward state, in the order a snapshot holds it (InsSnapshot.arrays). */
+  private stateArrays(): Float64Array[] {
+    const parts = [this.nav, this.P, this.PhiAcc, this.sumC, this.sumF, this.zaruSum, this.prevF, this.prevW];
+    if (this.ring) parts.push(this.ring);
+    return parts;
+  }
+
   private snapshot(): void {
     const k = this.ke - 1;
-    const ring = this.ring ?? new Float64Array(0);
-    const parts = [this.nav, this.P, this.PhiAcc, this.sumC, this.sumF, this.zaruSum, this.prevF, this.prevW, ring];
+    const parts = this.stateArrays();
     const arrays = new Float64Array(parts.reduce((a, v) => a + v.length, 0));
     let o = 0;
     for (const v of parts) {
@@ -324,9 +330,8 @@ export class InsSmoother {
     this.ringHead = sn.ringHead;
     this.ringCount = sn.ringCount;
     this.ring = sn.ringCap > 0 ? new Float64Array(6 * sn.ringCap) : null;
-    const parts = [this.nav, this.P, this.PhiAcc, this.sumC, this.sumF, this.zaruSum, this.prevF, this.prevW, ...(this.ring ? [this.ring] : [])];
     let o = 0;
-    for (const v of parts) {
+    for (const v of this.stateArrays()) {
       v.set(sn.arrays.subarray(o, o + v.length));
       o += v.length;
     }
