@@ -2,8 +2,8 @@
 export interface BenchResult {
   /** Lines to print (figures and the target). */
   lines: string[];
-  /** The part's target was met. */
-  ok: boolean;
+  /** The part's target was met; null for a part without a target (figures that explain the others). */
+  ok: boolean | null;
 }
 
 export interface BenchPart {

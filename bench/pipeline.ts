@@ -11,7 +11,7 @@
  * Run alone: `npm run build && node dist/bench/pipeline.js [sizes…]`.
  */
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, rmSync, writeFileSync, mkdirSync } from 'node:fs';
+import { mkdtempSync, rmSync, writeFileSync, mkdirSync, readdirSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
@@ -47,6 +47,10 @@ export interface SizeResult {
   totalSec: number;
   fixesPerSec: number;
   peakRssMB: number;
+  /** Minor page faults of the whole child process (each a first touch of a 4 KiB page; bench/floors.ts prices them). */
+  minorFaults: number;
+  /** Bytes of the output files (track CSV, outliers CSV, GeoJSON, summary). */
+  outputBytes: number;
   filterPasses: number;
   smoothPasses: number;
   kernel: { epochs: number; sec: number; epochsPerSec: number };
@@ -77,7 +81,10 @@ async function runOne(path: string, out: string): Promise<SizeResult> {
   const summary = okEntry(r, 'bench.csv', outputs.map((o) => o.file), (t2 - t0) / 1000);
   writeFileSync(join(out, 'summary.json'), JSON.stringify({ sessions: [summary], payloadPoints: (payload as { plot?: { t?: ArrayLike<number> } }).plot?.t?.length }));
   const t3 = performance.now();
-  const peakRssMB = process.resourceUsage().maxRSS / 1024;
+  const ru = process.resourceUsage();
+  const peakRssMB = ru.maxRSS / 1024;
+  const minorFaults = ru.minorPageFault;
+  const outputBytes = readdirSync(out).reduce((a, f) => a + statSync(join(out, f)).size, 0);
   // kernel alone: the longest segment under the calibrated model, every fix gated
   const p = r.info.model as AxisParams;
   const ps = prepareSession(series, cfg);
@@ -112,11 +119,13 @@ async function runOne(path: string, out: string): Promise<SizeResult> {
   return {
     fixes: series.n,
     epochs: r.N,
-    bytes: 0,
+    bytes: statSync(path).size,
     stages,
     totalSec,
     fixesPerSec: series.n / totalSec,
     peakRssMB,
+    minorFaults,
+    outputBytes,
     filterPasses: tm.filterPasses,
     smoothPasses: tm.smoothPasses,
     kernel: { epochs: data.N, sec: kSec, epochsPerSec: data.N / kSec },

@@ -5,19 +5,27 @@
  * memory (a high-water mark) go first.
  */
 import { batchBench } from './batch.js';
+import { floorsBench } from './floors.js';
 import { imuBench } from './imu.js';
 import { pipelineBench } from './pipeline.js';
 import type { BenchPart } from './part.js';
 
-const PARTS: BenchPart[] = [imuBench, pipelineBench, batchBench];
+// floors after the pipeline part: it prices the pipeline's 1M run (bench/results.json)
+const PARTS: BenchPart[] = [imuBench, pipelineBench, floorsBench, batchBench];
 
 let failed = 0;
+let targets = 0;
 for (const part of PARTS) {
   process.stdout.write(`## ${part.name}\n`);
   const r = await part.run();
   for (const l of r.lines) process.stdout.write(`${l}\n`);
+  if (r.ok === null) {
+    process.stdout.write('(no target)\n\n');
+    continue;
+  }
+  targets++;
   process.stdout.write(`${r.ok ? 'target met' : 'TARGET MISSED'}\n\n`);
   if (!r.ok) failed++;
 }
-process.stdout.write(`${PARTS.length - failed} of ${PARTS.length} benchmark targets met\n`);
+process.stdout.write(`${targets - failed} of ${targets} benchmark targets met\n`);
 process.exitCode = failed > 0 ? 1 : 0;
