@@ -14,7 +14,7 @@ import { resmoothWindows, smoothInto } from '../estimation/track-smoother.js';
 import { allocateHistory, historyOf, horizontalShare } from '../estimation/track-filter.js';
 import { reviewStatisticsRange } from '../estimation/review.js';
 import { applyReviewDecisions, reviewThresholds } from './review-decisions.js';
-import { applySwap, findSwaps, swapCost, type Swap } from './review-swaps.js';
+import { findSwaps, makeSwapTrial, trySwap } from './review-swaps.js';
 import type { StageTimings } from './timings.js';
 
 /**
@@ -126,9 +126,9 @@ export function reviewSegment(
   const nu = new Float64Array(models.length);
   let passes = 0;
   let converged = false;
-  let swapState: 'none' | 'pending' | 'done' = 'none';
-  let swaps: Swap[] = [];
-  let costBefore: number[] = [];
+  let swapState: 'none' | 'done' = 'none';
+  // the swap test's trial (review-swaps.ts, trySwap), on the current histories hf and hs
+  const trial = makeSwapTrial(models);
   // after the first pass, the filter and smoother re-run only where a decision changed (FilterResume,
   // resmoothWindows): hf keeps the filtered states, hs the smoothed ones; with RERUN_TOL = 0 the
   // skipped epochs are bit for bit those of a full pass
@@ -186,38 +186,24 @@ export function reviewSegment(
       tm.filterEpochs += nf;
       tm.smoothEpochs += ns;
     }
-    // the swap test (review-swaps.ts) may take two passes beyond the budget
+    // the swap test (review-swaps.ts) may take two passes beyond the budget (the re-run of the swaps
+    // it kept, and one more round of decisions)
     if (passes > ro.maxPasses + (swapState === 'none' ? 0 : 2)) break;
     converged = false;
     // test every offered fix whose smoothed state or decision changed (the others keep their statistic)
     for (let i = 0; i < smoothed.length; i += 2) reviewStatisticsRange(models, h.x, h.P, smoothed[i + 1]!, smoothed[i]!, data.z, data.r, offered, kept, T, dof, threshold, thr, nu);
     for (const k of changed) reviewStatisticsRange(models, h.x, h.P, k, k, data.z, data.r, offered, kept, T, dof, threshold, thr, nu);
-    if (swapState === 'pending') {
-      // keep a swap only where it lowered its neighbourhood's robust cost; undo the others
-      swapState = 'done';
-      let undone = false;
-      swaps.forEach((sw, i) => {
-        if (swapCost(sw, offered, kept, T, threshold) >= costBefore[i]!) {
-          applySwap(sw, kept, true);
-          undone = true;
-        }
-      });
-      // the statistics of undone swaps belong to the swapped track: re-run before judging again
-      if (undone) continue;
-    }
     // re-admit the clearly consistent, reject the worst failing fix per guard window
     const changedAny = applyReviewDecisions(N, offered, kept, T, dof, threshold, data.tSec, th, ro.guardSec);
     if (!changedAny) {
       if (swapState === 'none' && ro.swaps !== false) {
-        // converged: try every kept run sandwiched between rejections the other way round
-        swaps = findSwaps(N, offered, kept, data.tSec, ro.guardSec);
-        if (swaps.length > 0) {
-          costBefore = swaps.map((sw) => swapCost(sw, offered, kept, T, threshold));
-          for (const sw of swaps) applySwap(sw, kept, false);
-          swapState = 'pending';
-          continue;
-        }
+        // converged: try every kept run sandwiched between rejections the other way round, each on
+        // its own neighbourhood (windowTrial); the swaps that lower their robust cost stay, and the
+        // next pass re-runs where they changed the decisions
         swapState = 'done';
+        let keptAny = false;
+        for (const sw of findSwaps(N, offered, kept, data.tSec, ro.guardSec)) if (trySwap(trial, sw, models, work, opt, hf!, hs!, offered, kept, T, threshold, thr, nu)) keptAny = true;
+        if (keptAny) continue;
       }
       converged = true;
       break;
