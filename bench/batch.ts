@@ -91,23 +91,22 @@ export function kernelThreads(threads: number): Promise<number> {
  * so the numerics themselves scale; what holds the batch back is the CPU time printed beside it
  * (one worker already keeps ~1.26 cores busy, and two workers spend ~1.15× the CPU on the same work).
  */
-export async function kernelCeiling(): Promise<number> {
-  let one = Infinity;
-  let two = Infinity;
-  for (let i = 0; i < REPEAT; i++) {
-    one = Math.min(one, await kernelThreads(1));
-    two = Math.min(two, await kernelThreads(2));
-  }
-  return (2 * one) / two;
+export function kernelCeiling(): Promise<number> {
+  return twoThreadSpeedup(kernelThreads);
 }
 
 /** What the machine gives two threads at the moment: the speed-up of a pure CPU loop (ideal 2). */
-async function machineCeiling(): Promise<number> {
+function machineCeiling(): Promise<number> {
+  return twoThreadSpeedup(spin);
+}
+
+/** 2 × (best time of 1 thread) / (best time of 2 threads each doing the same work), REPEAT runs alternating. */
+async function twoThreadSpeedup(run: (threads: number) => Promise<number>): Promise<number> {
   let one = Infinity;
   let two = Infinity;
   for (let i = 0; i < REPEAT; i++) {
-    one = Math.min(one, await spin(1));
-    two = Math.min(two, await spin(2));
+    one = Math.min(one, await run(1));
+    two = Math.min(two, await run(2));
   }
   return (2 * one) / two;
 }
