@@ -126,9 +126,7 @@ export function reviewSegment(
   const nu = new Float64Array(models.length);
   let passes = 0;
   let converged = false;
-  let swapState: 'none' | 'done' = 'none';
-  // the swap test's trial (review-swaps.ts, trySwap), on the current histories hf and hs
-  const trial = makeSwapTrial(models);
+  let swapsTried = false;
   // after the first pass, the filter and smoother re-run only where a decision changed (FilterResume,
   // resmoothWindows): hf keeps the filtered states, hs the smoothed ones; with RERUN_TOL = 0 the
   // skipped epochs are bit for bit those of a full pass
@@ -188,7 +186,7 @@ export function reviewSegment(
     }
     // the swap test (review-swaps.ts) may take two passes beyond the budget (the re-run of the swaps
     // it kept, and one more round of decisions)
-    if (passes > ro.maxPasses + (swapState === 'none' ? 0 : 2)) break;
+    if (passes > ro.maxPasses + (swapsTried ? 2 : 0)) break;
     converged = false;
     // test every offered fix whose smoothed state or decision changed (the others keep their statistic)
     for (let i = 0; i < smoothed.length; i += 2) reviewStatisticsRange(models, h.x, h.P, smoothed[i + 1]!, smoothed[i]!, data.z, data.r, offered, kept, T, dof, threshold, thr, nu);
@@ -196,12 +194,13 @@ export function reviewSegment(
     // re-admit the clearly consistent, reject the worst failing fix per guard window
     const changedAny = applyReviewDecisions(N, offered, kept, T, dof, threshold, data.tSec, th, ro.guardSec);
     if (!changedAny) {
-      if (swapState === 'none' && ro.swaps !== false) {
+      if (!swapsTried && ro.swaps !== false) {
         // converged: try every kept run sandwiched between rejections the other way round, each on
-        // its own neighbourhood (windowTrial); the swaps that lower their robust cost stay, and the
-        // next pass re-runs where they changed the decisions
-        swapState = 'done';
+        // its own neighbourhood (trySwap, on the current histories hf and hs); the swaps that lower
+        // their robust cost stay, and the next pass re-runs where they changed the decisions
+        swapsTried = true;
         let keptAny = false;
+        const trial = makeSwapTrial(models);
         for (const sw of findSwaps(N, offered, kept, data.tSec, ro.guardSec)) if (trySwap(trial, sw, models, work, opt, hf!, hs!, offered, kept, T, threshold, thr, nu)) keptAny = true;
         if (keptAny) continue;
       }
