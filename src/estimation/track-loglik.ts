@@ -15,6 +15,7 @@
 import type { AxisModel } from '../models/axis-model.js';
 import { chiSquareQuantile } from './chi-square.js';
 import { allocateHistory, ensureStep, makeStepCache, writePrior, type FilterHistory, type FilterOptions, type SegmentData, type StepCache } from './track-filter.js';
+import { makeLogLikKernel, runLogLikKernel, type LogLikKernel } from './loglik-wasm.js';
 
 const LOG_2PI = Math.log(2 * Math.PI);
 
@@ -32,6 +33,8 @@ export interface LogLikWork {
   gateProbability: number;
   /** The state of the current epoch and the running sum (see forwardLogLik); after a call, the last epoch's filtered x and P. */
   st: Float64Array;
+  /** The loop's WebAssembly form (./loglik-wasm.ts: the same bits), or null: the TypeScript loop below. */
+  kernel: LogLikKernel | null;
 }
 
 export function makeLogLikWork(nAxes: number): LogLikWork {
@@ -46,6 +49,7 @@ export function makeLogLikWork(nAxes: number): LogLikWork {
     thresholds: [],
     gateProbability: NaN,
     st: new Float64Array(22),
+    kernel: makeLogLikKernel(),
   };
 }
 
@@ -109,6 +113,7 @@ export function forwardLogLik(models: AxisModel[], data: SegmentData, opt: Filte
   } else st.fill(0, 6, 9), st.fill(0, 15, 21);
   // totalLogLik's sum; epochs without a contribution add 0, which leaves a sum that starts at +0 unchanged
   st[21] = 0;
+  if (w.kernel) return runLogLikKernel(w.kernel, models, data, thresholds, rScale, st);
   let lastDt = NaN;
   let FH = w.F[0]!, QH = w.Q[0]!, FV = up ? w.F[2]! : FH, QV = up ? w.Q[2]! : QH;
   for (let k = 0; k < N; k++) {
