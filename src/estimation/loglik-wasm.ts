@@ -12,44 +12,20 @@
  * evaluates the same chunks ~1,000 times); F and Q of every distinct Δt are computed per call in
  * JavaScript by the models (the exponentials stay JavaScript's) and passed in a table.
  */
-import { readFileSync } from 'node:fs';
-import { fileURLToPath } from 'node:url';
 import type { AxisModel } from '../models/axis-model.js';
+import { wasmInstance, wasmModule, type WasmMemory, type WasmModule } from './wasm-module.js';
 import type { SegmentData } from './track-filter.js';
 
-// the WebAssembly API as used here (the project's TypeScript libraries do not declare it)
-declare namespace WebAssembly {
-  class Module {
-    constructor(bytes: Uint8Array);
-  }
-  class Instance {
-    constructor(module: Module, imports: object);
-    readonly exports: unknown;
-  }
-  interface Memory {
-    readonly buffer: ArrayBuffer;
-    grow(pages: number): number;
-  }
-}
-
 interface Exports {
-  memory: WebAssembly.Memory;
+  memory: WasmMemory;
   run(N: number, pSt: number, pPar: number, pTab: number, pSlot: number, pUse: number, pZE: number, pZN: number, pZU: number, pRE: number, pRU: number): number;
   logLn(x: number): number;
   log2pi(): number;
 }
 
-let compiled: WebAssembly.Module | null | undefined;
-
-function kernelModule(): WebAssembly.Module | null {
-  if (compiled !== undefined) return compiled;
-  try {
-    compiled = new WebAssembly.Module(readFileSync(fileURLToPath(new URL('./asm/loglik-kernel.wasm', import.meta.url))));
-  } catch {
-    // not built: forwardLogLik's TypeScript loop gives the same results, slower
-    compiled = null;
-  }
-  return compiled;
+/** The compiled module, or null where it is missing (not built): forwardLogLik's TypeScript loop gives the same results, slower. */
+function kernelModule(): WasmModule | null {
+  return wasmModule(new URL('./asm/loglik-kernel.wasm', import.meta.url));
 }
 
 /** Tests and troubleshooting: 'js' makes forwardLogLik run its TypeScript loop (results do not depend on it). */
@@ -84,7 +60,7 @@ export function makeLogLikKernel(): LogLikKernel | null {
   if (LOGLIK_KERNEL.prefer !== 'wasm') return null;
   const m = kernelModule();
   if (!m) return null;
-  const ex = new WebAssembly.Instance(m, { env: { abort: () => { throw new Error('loglik-kernel: abort'); } } }).exports as Exports;
+  const ex = wasmInstance<Exports>(m, 'loglik-kernel');
   return { ex, loaded: new Map(), top: 0, f64: new Float64Array(ex.memory.buffer) };
 }
 

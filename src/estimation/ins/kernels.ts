@@ -10,8 +10,6 @@
  * for the TypeScript kernels) that the caller fills and reads in place, so nothing is copied. One
  * instance per filter (each has its own memory).
  */
-import { readFileSync } from 'node:fs';
-import { fileURLToPath } from 'node:url';
 import { gmPhi, gmQ } from '../../models/gauss-markov.js';
 import {
   discretize, fillQcDiag, leftMultiply, makeDiscScratch, makeNonzeros, NE, NE_PACKED, PHI_COMPACT, propagateCovariance, setFromIdentityProduct,
@@ -19,23 +17,7 @@ import {
 } from './error-model.js';
 import { insRtsStep, makeInsRtsScratch } from './rts.js';
 import { makeScalarScratch, scalarJosephUpdate } from './scalar-update.js';
-
-// the WebAssembly API as used here (the project's TypeScript libraries do not declare it)
-declare namespace WebAssembly {
-  class Module {
-    constructor(bytes: Uint8Array);
-  }
-  class Instance {
-    constructor(module: Module, imports: object);
-    readonly exports: unknown;
-  }
-  interface Memory {
-    readonly buffer: ArrayBuffer;
-  }
-  interface Global {
-    readonly value: unknown;
-  }
-}
+import { wasmInstance, wasmModule, type WasmGlobal, type WasmMemory, type WasmModule } from '../wasm-module.js';
 
 export type KernelKind = 'wasm' | 'js';
 
@@ -81,7 +63,7 @@ export interface InsFilterKernel {
 }
 
 interface KernelExports {
-  memory: WebAssembly.Memory;
+  memory: WasmMemory;
   rtsStep(): number;
   unpackPf(): void;
   unpackStep(): number;
@@ -92,19 +74,9 @@ interface KernelExports {
   [slot: string]: unknown;
 }
 
-let compiled: WebAssembly.Module | null | undefined;
-
-/** The compiled module, or null where it is missing or this runtime cannot run it (compiled once per thread). */
-function kernelModule(): WebAssembly.Module | null {
-  if (compiled !== undefined) return compiled;
-  try {
-    const bytes = readFileSync(fileURLToPath(new URL('./asm/ins-kernels.wasm', import.meta.url)));
-    compiled = new WebAssembly.Module(bytes);
-  } catch {
-    // not built, or no WebAssembly SIMD here: the TypeScript kernels give the same results, slower
-    compiled = null;
-  }
-  return compiled;
+/** The compiled module, or null where it is missing or this runtime cannot run it (not built, or no WebAssembly SIMD here: the TypeScript kernels give the same results, slower). */
+function kernelModule(): WasmModule | null {
+  return wasmModule(new URL('./asm/ins-kernels.wasm', import.meta.url));
 }
 
 let defaultKind: KernelKind = 'wasm';
@@ -120,11 +92,11 @@ export function insKernelKind(): KernelKind {
 }
 
 function instance(): KernelExports {
-  return new WebAssembly.Instance(kernelModule()!, { env: { abort: () => { throw new Error('ins-kernels: abort'); } } }).exports as KernelExports;
+  return wasmInstance<KernelExports>(kernelModule()!, 'ins-kernels');
 }
 
 function slot(ex: KernelExports, name: string, len: number): Float64Array {
-  return new Float64Array(ex.memory.buffer, ((ex[name] as WebAssembly.Global).value as number) * 8, len);
+  return new Float64Array(ex.memory.buffer, ((ex[name] as WasmGlobal).value as number) * 8, len);
 }
 
 const NN = NE * NE;
