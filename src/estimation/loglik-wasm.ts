@@ -53,6 +53,9 @@ export interface LogLikKernel {
   /** First free byte of the module's memory (segments are laid out one after another). */
   top: number;
   f64: Float64Array;
+  /** Scratch for one step's F and Q. */
+  F: Float64Array;
+  Q: Float64Array;
 }
 
 /** A kernel instance, or null where the module is missing or not preferred. */
@@ -61,7 +64,7 @@ export function makeLogLikKernel(): LogLikKernel | null {
   const m = kernelModule();
   if (!m) return null;
   const ex = wasmInstance<Exports>(m, 'loglik-kernel');
-  return { ex, loaded: new Map(), top: 0, f64: new Float64Array(ex.memory.buffer) };
+  return { ex, loaded: new Map(), top: 0, f64: new Float64Array(ex.memory.buffer), F: new Float64Array(9), Q: new Float64Array(9) };
 }
 
 /** The module's logarithm and log 2π (for the test against Math.log). */
@@ -135,7 +138,7 @@ export function runLogLikKernel(k: LogLikKernel, models: AxisModel[], data: Segm
   const ou = l.pUse / 8, N = data.N, use = data.use;
   for (let i = 0; i < N; i++) f[ou + i] = use[i]!;
   // F, Q of every distinct step, east then up (the models' own functions: the bits ensureStep gives)
-  const F = new Float64Array(9), Q = new Float64Array(9);
+  const F = k.F, Q = k.Q;
   for (let s = 0; s < l.dts.length; s++) {
     const o = l.pTab / 8 + s * 36;
     const dt = l.dts[s]!;
