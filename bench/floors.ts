@@ -46,9 +46,10 @@ function best(f: () => number): number {
   for (let i = 0; i < REPEAT; i++) m = Math.min(m, f());
   return m;
 }
-// (each measurement keeps what it made, see below: this child holds ~1.2 GB at its peak)
-
-/** Child: measure the floors for an input of inBytes and outputs of outBytes. */
+/**
+ * Child: measure the floors for an input of inBytes and outputs of outBytes. Each measurement keeps
+ * what it made (see below), so this child holds ~1.2 GB at its peak.
+ */
 function measure(inBytes: number, outBytes: number): Floors {
   let sink = 0;
   const keep: Float64Array[] = [];

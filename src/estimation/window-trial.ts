@@ -143,8 +143,6 @@ export function windowTrial(
     X.push(wk.x[a]!);
     PP.push(wk.P[a]!);
   }
-  /** Doubles of a covariance in the window's layout of axis a. */
-  const stride = (n: number) => (n === 3 ? 6 : n * n);
   // copy epoch k of a history axis into window slot i
   const load = (a: number, src: FilterHistory, k: number, i: number) => {
     const n = models[a]!.n;
@@ -166,7 +164,8 @@ export function windowTrial(
       stepMatrices(models, data, hf, k, opt.qScale, wk.F, wk.Q, wk.cache);
       for (let a = 0; a < nAx; a++) {
         const n = models[a]!.n;
-        const ps = stride(n);
+        // doubles of a covariance in the window's layout: packed for n = 3, full otherwise (covStride)
+        const ps = covStride(n);
         const F = wk.F[a]!, Q = wk.Q[a]!, xa = X[a]!, Pa = PP[a]!;
         // the step from w0 − 1 (outside the window) reads the history
         const from = k === w0;
