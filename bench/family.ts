@@ -1,0 +1,49 @@
+/**
+ * The scenario family's pooled table: every log of the family (src/simulate/family.ts) read and
+ * processed with the default configuration, scored against its truth, pooled per kind
+ * (test/helpers/family-score.ts). Build first (`npm run build`), then:
+ *
+ *   node dist/bench/family.js [--seed N] [--logs] [--only kind,kind] [--markdown docs/validation-family.md]
+ *
+ * --seed draws another family (the default, 1, is the one the test suite judges); --logs adds the
+ * per-log table; --markdown writes the generated validation page.
+ */
+import { writeFileSync } from 'node:fs';
+import { dirname, join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { FAMILY_COUNTS, familySpecs, type FamilyKind } from '../src/simulate/family-spec.js';
+import { LOG_COLUMNS, logRow, poolByKind, POOLED_COLUMNS, pooledRow, runFamily, textTable } from '../test/helpers/family-run.js';
+import { validationMarkdown } from '../test/helpers/family-doc.js';
+
+function repoRoot(): string {
+  // dist/bench/family.js → the package root
+  return join(dirname(fileURLToPath(import.meta.url)), '..', '..');
+}
+
+function main(argv: string[]): void {
+  const arg = (name: string) => {
+    const i = argv.indexOf(name);
+    return i >= 0 ? argv[i + 1] : undefined;
+  };
+  const seed = Number(arg('--seed') ?? 1);
+  const only = arg('--only')?.split(',') as FamilyKind[] | undefined;
+  const counts = only ? Object.fromEntries(only.map((k) => [k, FAMILY_COUNTS[k]])) : FAMILY_COUNTS;
+  const specs = familySpecs(seed, counts);
+  const t0 = performance.now();
+  const scores = runFamily(specs, repoRoot(), (s) => process.stderr.write(`${s.id} ${s.elapsedSec.toFixed(2)} s\r`));
+  process.stderr.write('\n');
+  const pooled = poolByKind(scores);
+  console.log(`scenario family, base seed ${seed}: ${scores.length} logs, ${((performance.now() - t0) / 1000).toFixed(1)} s`);
+  console.log(textTable(POOLED_COLUMNS, pooled.map(pooledRow)));
+  if (argv.includes('--logs')) {
+    console.log('');
+    console.log(textTable(LOG_COLUMNS, scores.map(logRow)));
+  }
+  const md = arg('--markdown');
+  if (md) {
+    writeFileSync(md, validationMarkdown(seed, scores));
+    console.log(`wrote ${md}`);
+  }
+}
+
+main(process.argv.slice(2));
