@@ -1,5 +1,5 @@
 /**
- * calibrateSession with the objective evaluated by forwardLogLik (round 8 of issue 8) against its
+ * calibrateSession with the objective evaluated by forwardLogLik against its
  * previous form, kept verbatim in test/helpers/reference-calibrate.ts (forwardFilter with the
  * likelihood and totalLogLik at every evaluation): parameters, estimates, standard errors,
  * log-likelihood and evaluation counts compared with Object.is. Cases: a log used whole (short),

@@ -1,5 +1,5 @@
 /**
- * flagHeightJumps (round 8 of issue 8: the neighbours' range rules out a jump before any median is
+ * flagHeightJumps (the neighbours' range rules out a jump before any median is
  * taken) against its previous form, kept verbatim in test/helpers/reference-height-jumps.ts: the
  * validity flags and the reasons, element for element. Cases: seeded heights with single spikes,
  * bursts of bad heights, spikes right at the limit (slack plus climb rate over the span, in both

@@ -1,11 +1,11 @@
 /**
- * reviewSegment with one covariance array for east and north (round 9 of issue 8: where
+ * reviewSegment with one covariance array for east and north (where
  * horizontalShare holds, every pass writes north's covariance as a copy of east's, so the histories
  * hold one array for both) against its previous form, kept verbatim in
  * test/helpers/reference-review-segment.ts: the same passes, decisions, statistics and histories,
  * compared with Object.is on every element (north's covariances against the reference's own array).
  * With the swap test off: the reference tries the sandwiches by swapping all of them and re-running
- * the segment twice, which session 5 of issue 8 replaced by a trial of each on its neighbourhood
+ * the segment twice, which the current form replaces by a trial of each on its neighbourhood
  * (test/session/review-swap-trial.test.ts checks that against whole-segment re-runs).
  */
 import { describe, expect, it } from 'vitest';

@@ -1,5 +1,5 @@
 /**
- * Round 10 of issue 8: the medians of the session centre, the height reference and the quality
+ * The medians of the session centre, the height reference and the quality
  * columns are selected in arrays the caller will fill afterwards (scratch) instead of new ones. The
  * values must be the previous form's, bit for bit (Object.is): sessionCentre with and without
  * scratch, and fixSigmaFactors against its previous form (test/helpers/reference-fix-noise.ts), on

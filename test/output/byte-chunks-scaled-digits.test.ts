@@ -1,5 +1,5 @@
 /**
- * Round 10 of issue 8: ByteChunks.fixed and .rounded write a value below 2^31 in its scaled
+ * ByteChunks.fixed and .rounded write a value below 2^31 in its scaled
  * integer form (digits with the point inserted, `pointed`) instead of through its integer part and
  * fraction apart. The text must be the previous form's, byte for byte: compared with the verbatim
  * copy in test/helpers/reference-byte-chunks.ts (and with toFixed / JSON.stringify) on edge values
