@@ -42,7 +42,7 @@ const CASES: Array<[ScenarioKind, number, number, boolean]> = [
   ['walk', 8, 1, false],
 ];
 
-describe('filter and smoother with one east/north covariance array against the previous forms', () => {
+describe('filter and smoother with one east/north covariance array against the reference forms', () => {
   it.each(CASES)('%s seed %i at %i Hz (no height: %s)', (kind, seed, rateHz, noHeight) => {
     const c = segmentCase(kind, seed, rateHz, noHeight);
     const { models, opt } = c;

@@ -18,7 +18,7 @@ function rng(seed: number): () => number {
   return () => (s = (s * 48271) % 2147483647) / 2147483647;
 }
 
-describe('reviewStatistic: the n = 3 form against the previous one', () => {
+describe('reviewStatistic: the n = 3 form against the generic reference', () => {
   it.each([
     ['vehicle', 5, 1],
     ['drone', 7, 5],

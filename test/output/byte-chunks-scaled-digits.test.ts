@@ -48,7 +48,7 @@ function edges(d: number): number[] {
   return out;
 }
 
-describe('fixed and rounded below 2^31 = the previous form', () => {
+describe('fixed and rounded below 2^31 = the reference form', () => {
   test.each([0, 1, 2, 3, 6, 7, 9, 12, 15])('edge values, %i decimals', (d) => {
     const p = new Pair();
     for (const v of edges(d)) {

@@ -48,7 +48,7 @@ function session(seed: number, rateHz: number, durationSec: number, noHeight = f
   return { cfg, ps, prior: axisParamsFromConfig(cfg) };
 }
 
-describe('calibrateSession: the objective without histories against the previous form', () => {
+describe('calibrateSession: the objective without histories against the reference form', () => {
   it.each([
     ['whole log (1 Hz, 20 min)', 5, 1, 1200, false],
     ['chunks of a longer log (5 Hz, 20 min)', 6, 5, 1200, false],

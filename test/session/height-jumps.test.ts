@@ -34,7 +34,7 @@ function compare(s: FixSeries, valid0: Uint8Array): number {
   return flagged;
 }
 
-describe('flagHeightJumps against its previous form', () => {
+describe('flagHeightJumps against its reference form', () => {
   it.each([1, 2, 3, 4, 5, 6])('seeded log %i: the same flags and reasons', (seed) => {
     const r = rng(seed * 104729);
     const n = 20000;

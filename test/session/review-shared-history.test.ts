@@ -42,7 +42,7 @@ const CASES: Array<[ScenarioKind, number, number, boolean]> = [
   ['drone', 6, 5, true],
 ];
 
-describe('review with one east/north covariance array against the previous form', () => {
+describe('review with one east/north covariance array against the reference form', () => {
   it.each(CASES)('%s seed %i at %i Hz (no height: %s): the same outcome bit for bit', (kind, seed, rateHz, noHeight) => {
     const { models, data, opt } = segmentCase(kind, seed, rateHz, noHeight);
     const ro: ReviewOptions = { ...reviewOptions(loadConfig({ profile: kind === 'walk' ? 'pedestrian' : kind }), 1 / rateHz), swaps: false };
