@@ -1,14 +1,13 @@
 /**
  * Batch engine benchmark: a batch of 24 equal sessions (one seeded simulated log, copied) on one
- * worker thread and on two; target: two workers at least 1.6× faster than one (issue 6). The two
+ * worker thread and on two; target: two workers at least 1.6× faster than one. The two
  * settings are timed in turn REPEAT times (every session redone, report off) and the best time of
  * each is kept, so a moment of load from other programs on the machine counts less. The figure
  * means something only on an otherwise idle machine with at least two cores. Sessions are two
  * hours of 1 Hz fixes (HC_BATCH_SEC overrides): each worker thread first spends about a second
  * loading and warming up (JIT, whose background compiler also competes for the cores), a fixed cost
- * that short sessions let dominate. They were half an hour until session 4 of issue 8, when such a
- * session had become 0.22 s of work (5.2–5.5 s for 24 on one worker) and the speed-up read
- * 0.98–1.12× for the current and the previous build alike; two-hour sessions are ~0.55 s each.
+ * that short sessions let dominate: a half-hour session is 0.22 s of work (5.2–5.5 s for 24 on one
+ * worker), and with such sessions the speed-up read 0.98–1.12×; two-hour sessions are ~0.55 s each.
  */
 import { availableParallelism, loadavg, tmpdir } from 'node:os';
 import { mkdtemp, mkdir, rm, writeFile } from 'node:fs/promises';
@@ -87,7 +86,7 @@ export function kernelThreads(threads: number): Promise<number> {
 /**
  * What the machine gives two threads of the session's own numerics: the speed-up of the filter and
  * smoother kernel alone (memory already touched, no I/O, no allocation), 2 threads against 1, best
- * of REPEAT. Measured in session 5 of issue 8: 1.74–2.17× (ten alternating runs, most 1.8–1.97×),
+ * of REPEAT. Measured: 1.74–2.17× (ten alternating runs, most 1.8–1.97×),
  * so the numerics themselves scale; what holds the batch back is the CPU time printed beside it
  * (one worker already keeps ~1.26 cores busy, and two workers spend ~1.15× the CPU on the same work).
  */

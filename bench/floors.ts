@@ -1,5 +1,5 @@
 /**
- * Machine floors (issue 8): what this machine charges for the parts of a run that no code of
+ * Machine floors: what this machine charges for the parts of a run that no code of
  * Hindcast's can make cheaper — memory touched for the first time (a page fault per 4 KiB page, the
  * kernel zeroing it), reading and decoding the input's bytes, writing the outputs' bytes into new
  * files — and, priced with them, how much of the 1M-fix run's time (bench/pipeline.ts, its row in

@@ -11,7 +11,7 @@
  *   smooth   the error-state RTS pass;  review  review statistics and decisions;  products  the result
  * and, apart, the fixes-only baseline the IMU session starts from (calibration and classification of
  * the fixes, its cost is per fix: bench/pipeline.ts).
- * Targets (issue 8): ≥ 500,000 IMU samples/s on one core for the IMU part (every stage above, reading
+ * Targets: ≥ 500,000 IMU samples/s on one core for the IMU part (every stage above, reading
  * and parsing included; the fixes-only baseline is not IMU work and is reported apart, as is the end-
  * to-end figure), and memory per fix, not per IMU sample: the peak RSS grows by at most
  * TARGET_BYTES_PER_EPOCH per epoch from 1 h to 6 h.
@@ -53,7 +53,7 @@ export const TARGET_SAMPLES_PER_SEC = 500_000;
  * that with room to spare, and an IMU log held in memory would add ten 56-byte samples per epoch.
  */
 export const TARGET_BYTES_PER_EPOCH = 16_384;
-/** Issue 4's memory target at 1 h. */
+/** The memory target at 1 h. */
 export const TARGET_MB_1H = 500;
 
 const STAGES = ['read', 'mech', 'propagate', 'updates', 'smooth', 'review', 'products'] as const;

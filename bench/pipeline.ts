@@ -1,12 +1,12 @@
 /**
- * Benchmark of the fixes-only pipeline (issue 8): fix CSVs of 10k, 100k and 1M fixes (10 Hz
+ * Benchmark of the fixes-only pipeline: fix CSVs of 10k, 100k and 1M fixes (10 Hz
  * vehicle scenarios from the seeded simulator, src/simulate/scenario.ts), each processed in its own
  * child process (so its peak RSS is its own) from CSV in to all outputs out (track CSV, outliers
  * CSV, GeoJSON, summary entry and report payload), with the time of every stage (processSession's
  * optional StageTimings), the whole run, peak memory, and the filter+smoother kernel alone
  * (forwardFilter + smoothInPlace over the session's longest segment under its calibrated model).
  * Results go to bench/results.json and a markdown table on stdout.
- * Targets (issue 8): 1M fixes ≥ 200,000 fixes/s end to end on one core and peak RSS < 1 GB; kernel
+ * Targets: 1M fixes ≥ 200,000 fixes/s end to end on one core and peak RSS < 1 GB; kernel
  * ≥ 2 million epochs/s; time per fix at 1M within 1.3× of that at 100k.
  * Run alone: `npm run build && node dist/bench/pipeline.js [sizes…]`.
  */

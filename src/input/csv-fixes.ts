@@ -4,7 +4,7 @@
  * GPS week + time of week columns. Positions in decimal degrees (or radians with
  * `input.angleUnit: "rad"`), WGS84; height ellipsoidal (m) when present.
  *
- * Rules (documented in README "Input formats"):
+ * Rules (documented in docs/formats.md):
  * - delimiter: `input.delimiter`, else an Excel "sep=X" first line, else the one of , ; tab | that
  *   occurs (outside quotes) in the header and the same number of times in most of the next rows;
  * - decimal comma: with a delimiter other than ",", a "," inside a number is its decimal sign; with

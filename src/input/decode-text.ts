@@ -1,5 +1,5 @@
 /**
- * Bytes of a log to text. Rules (documented in README "Input formats"):
+ * Bytes of a log to text. Rules (documented in docs/formats.md):
  * - UTF-8 with or without a byte-order mark (EF BB BF, Unicode Standard §23.8); bytes that are not
  *   valid UTF-8 become U+FFFD (a Latin-1 "°" in a header does not spoil a file);
  * - UTF-16 little or big endian with its BOM (FF FE / FE FF), or without a BOM when every other byte

@@ -6,7 +6,7 @@
  * <hdop>, <vdop>, <sat> and <fix> (none|2d|3d|dgps|pps). Route points and waypoints are not a track
  * and are ignored; so are <extensions>.
  *
- * Rules (documented in README "Input formats"):
+ * Rules (documented in docs/formats.md):
  * - <time> without a zone is UTC (GPX 1.1: "Date and time in are in Univeral Coordinated Time (UTC)").
  * - height: GPX `ele` is usually above mean sea level, so heights are marked "msl" unless
  *   `input.heightReference` says "ellipsoidal"; no geoid model is applied either way.

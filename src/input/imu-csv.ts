@@ -5,7 +5,7 @@
  * come from the `imu` config. Rows are read line by line (readline over a file stream) and handed to a
  * callback at once, so memory does not grow with the number of samples.
  * Rows that cannot be parsed are skipped with a warning (the first 20 are listed, all are counted).
- * Fast path (issue 8): the file is read as bytes and split into lines as readline splits them
+ * Fast path: the file is read as bytes and split into lines as readline splits them
  * (\r\n, \n or a lone \r); a data line whose needed cells are plain decimal numbers (sign, digits,
  * one point, an optional exponent; no spaces or quotes) is parsed from the bytes directly, every other
  * line (the header, ISO times, blanks, anything unusual) goes through the general line parser, so

@@ -7,7 +7,7 @@
  * altitude errors, m), GSA (HDOP, VDOP). Any two-letter talker (GP, GN, GL, GA, GB, BD, GQ, …).
  * Other sentences (GSV, VTG, GLL, TXT, proprietary $P…) are ignored.
  *
- * Rules (documented in README "Input formats"):
+ * Rules (documented in docs/formats.md):
  * - checksum: two hex digits after "*", the XOR of every byte strictly between "$" and "*". A
  *   sentence whose checksum is wrong is skipped and counted. When no sentence of the file carries a
  *   checksum at all, sentences are read unverified (one warning); otherwise a sentence without one is

@@ -19,10 +19,10 @@
  *   arithmetic; outside years 1970–9999 and for non-finite times Date is called (and throws as before).
  * Digits are written two at a time from a table of digit pairs in int32 arithmetic below 2^31 (one
  * at a time in doubles above), and the integer part of `fixed` comes from ⌊|v|⌋ with one correction
- * instead of a division (the same integers, hence the same text). Since round 10, a scaled value
+ * instead of a division (the same integers, hence the same text). A scaled value
  * n = |v|·10^d below 2^31 (metres at 3 decimals, degrees at 7) is written as n's digits with the
  * point inserted (`pointed`), the text of its integer part and fraction written apart
- * (test/output/byte-chunks-r10.test.ts against the previous form).
+ * (test/output/byte-chunks-scaled-digits.test.ts against the former form).
  */
 
 /** Bytes of a chunk before it is handed out (the buffer has room for a row beyond it). */

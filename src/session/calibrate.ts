@@ -75,7 +75,7 @@ export const FIRST_ROUND: CalibrationOptions = { ...DEFAULT_CALIBRATION, standar
  * from slow motion with a single receiver (the likelihood is nearly flat along "less correlated
  * error, more motion"), so its sigma is a property of the receiver class stated in the profile, which
  * the data may move by about 30% at one sigma, and its time constant by a factor of 2.
- * Measured (README, "Measured accuracy"): with a factor of 2 on the sigma, ellipse coverage on stop-
+ * Measured (docs/validation.md): with a factor of 2 on the sigma, ellipse coverage on stop-
  * and-go vehicle logs fell to 0.74–0.92 (the sigma was pulled to half its true value); with 1.3 it is
  * 0.93–0.98, at the price of over-coverage (≈0.99–1.00) for receivers better than the profile says.
  */

@@ -1,6 +1,6 @@
 /**
  * Per-fix white measurement noise from the log's quality columns.
- * Rules (documented in README):
+ * Rules (documented in docs/formats.md, "Quality columns"):
  * - reported sigmas (sd_east, sd_north, sd_up) are used as given, times noise.reportedSigmaScale;
  * - otherwise the profile's sigma holds at the session's median quality and is scaled by
  *   hdop/median(hdop) (vdop for the vertical, hdop when there is no vdop), by √(median sats / sats),

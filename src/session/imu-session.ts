@@ -38,7 +38,7 @@ const DEG = 180 / Math.PI;
  * GNSS noise of the 18-state filter: the calibrated white noise and correlation time, and the
  * calibrated sigma of the time-correlated fix error but not below the profile's. Measured
  * (test/imu/acceptance.test.ts, four seeds): the fixes-only calibration puts that sigma at 0.77–0.94 m
- * where the simulator has 1.5 m (it is weakly identified next to slow motion, README "Known
+ * where the simulator has 1.5 m (it is weakly identified next to slow motion, docs/validation.md "Known
  * shortfall"); the IMU-aided track is otherwise so precise that its 95% coverage then fell to
  * 0.53–0.77 at fix epochs and 0.81–0.88 in outages. With the floor: 0.81–1.00 and 0.92–1.00.
  */

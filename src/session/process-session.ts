@@ -274,7 +274,7 @@ interface SegmentPlan {
  * 4. classify again under the calibrated model, review, and smooth.
  * Manoeuvres are absorbed by the calibrated process-noise level (estimated on the session's own
  * turns and stops), by re-admission of fixes consistent with the smoothed track, and by
- * re-acquisition in the forward pass; see DEVELOPERS.md ("Manoeuvres") for the measured choice.
+ * re-acquisition in the forward pass; see docs/decisions/process-noise-adaptation.md for the measured choice.
  */
 export function processSession(series: FixSeries, cfg: HindcastConfig, name: string, userDecisions?: Map<number, 'keep' | 'reject'>, timings?: StageTimings): SessionResult {
   const tm = timings;

@@ -9,10 +9,10 @@
  * one-shot: each sandwich is tried alone against the converged track, on its neighbourhood only
  * (trySwap: estimation/window-trial.ts gives the smoothed track there that a re-run of the whole
  * segment with the swap would give, to rounding); the swaps that lower their cost are kept
- * together and the review's next pass re-runs where they changed the decisions. Until session 5
- * of issue 8 all sandwiches were swapped at once and the segment re-run twice (trial and undo,
- * two full passes at 1M fixes, ~1.1 s of a 9.8 s run).
- * Measured: simulated vehicle seed 5 (a 4-fix, 24 m burst during hard braking, README).
+ * together and the review's next pass re-runs where they changed the decisions. Swapping all
+ * sandwiches at once and re-running the segment twice (trial and undo) cost two full passes at 1M
+ * fixes, ~1.1 s of a 9.8 s run (docs/decisions/swap-trial-per-neighbourhood.md).
+ * Measured: simulated vehicle seed 5 (a 4-fix, 24 m burst during hard braking, docs/validation.md "Known shortfalls").
  */
 import type { AxisModel } from '../models/axis-model.js';
 import { covStride, type FilterHistory, type FilterOptions, type SegmentData } from '../estimation/track-filter.js';

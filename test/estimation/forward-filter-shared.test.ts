@@ -28,7 +28,7 @@ const CASES: Array<[ScenarioKind, number, number, boolean]> = [
   ['walk', 3, 1, false],
 ];
 
-describe('forwardFilter: the shared n = 3 loop against the previous form', () => {
+describe('forwardFilter: the shared n = 3 loop against the reference form', () => {
   it.each(CASES)('%s seed %i at %i Hz (no height: %s): gated, reversed, re-runs', (kind, seed, rateHz, noHeight) => {
     const { models, data, opt } = segmentCase(kind, seed, rateHz, noHeight);
     expect(horizontalShare(models, data, null, null)).toBe(true);

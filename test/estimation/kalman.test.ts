@@ -4,7 +4,7 @@
  * textbook form computed with ml-matrix.
  * Sources: Kalata, "The tracking index: a generalized parameter for α-β and α-β-γ target trackers",
  * IEEE Trans. AES-20(2):174–182 (1984); Bar-Shalom, Li, Kirubarajan, "Estimation with Applications
- * to Tracking and Navigation" (2001) §6.5; values in /work/shared/reference-values.md.
+ * to Tracking and Navigation" (2001) §6.5; values in test/reference/reference-values.md.
  */
 import { describe, expect, it } from 'vitest';
 import { Matrix } from 'ml-matrix';

@@ -4,7 +4,7 @@
  * Source: Durbin & Koopman, "Time Series Analysis by State Space Methods" (2nd ed. 2012), ch. 2
  * (the Nile example: r = 15099, q = 1469.1, x1 ~ N(0, 1e8) as a near-diffuse prior); the same numbers
  * are worked in the GAUSS state-space library documentation ("sskalmansmooth"). Check values from
- * /work/shared/reference-values.md; the GAUSS page itself was not at hand while writing this, but
+ * test/reference/reference-values.md; the GAUSS page itself was not at hand while writing this, but
  * every value below was reproduced independently by a plain scalar recursion (numpy) and agrees to
  * all printed digits, and the variances also follow from the closed forms quoted beside them.
  */

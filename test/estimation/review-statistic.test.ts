@@ -18,7 +18,7 @@ function rng(seed: number): () => number {
   return () => (s = (s * 48271) % 2147483647) / 2147483647;
 }
 
-describe('reviewStatistic: the n = 3 form against the previous one', () => {
+describe('reviewStatistic: the n = 3 form against the generic reference', () => {
   it.each([
     ['vehicle', 5, 1],
     ['drone', 7, 5],
@@ -40,7 +40,7 @@ describe('reviewStatistic: the n = 3 form against the previous one', () => {
   it.each([
     ['vehicle', 5, 1],
     ['drone', 7, 5],
-  ] as const)('reviewStatisticsRange = the previous reviewStatistic epoch by epoch (%s seed %i at %i Hz; n = 3 and a 4-state vertical)', (kind, seed, rateHz) => {
+  ] as const)('reviewStatisticsRange = the reference reviewStatistic epoch by epoch (%s seed %i at %i Hz; n = 3 and a 4-state vertical)', (kind, seed, rateHz) => {
     const { models, data, opt } = segmentCase(kind, seed, rateHz);
     const r = rng(seed);
     const offered = Uint8Array.from(data.use, (u) => (u === 0 ? 0 : r() < 0.05 ? 2 : 1));

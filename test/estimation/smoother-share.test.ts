@@ -34,7 +34,7 @@ function perturbNorth(h: FilterHistory, seed: number): void {
   }
 }
 
-describe('smoother: east/north sharing per epoch against the previous form', () => {
+describe('smoother: east/north sharing per epoch against the reference form', () => {
   it.each([
     ['vehicle', 5, 1, false],
     ['vehicle', 6, 10, false],

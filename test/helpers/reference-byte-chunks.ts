@@ -1,7 +1,7 @@
 /**
- * src/output/byte-chunks.ts as it was before round 10 of issue 8 (fixed and rounded through the
+ * src/output/byte-chunks.ts in its former form (fixed and rounded through the
  * integer part and fraction apart), kept verbatim as the reference for the test of the current form
- * (test/output/byte-chunks-r10.test.ts). ECMA-262 §21.1.3.3 Number.prototype.toFixed, §6.1.6.1.20
+ * (test/output/byte-chunks-scaled-digits.test.ts). ECMA-262 §21.1.3.3 Number.prototype.toFixed, §6.1.6.1.20
  * Number::toString, §21.4.4.36 Date.prototype.toISOString.
  */
 /** Bytes of a chunk before it is handed out (the buffer has room for a row beyond it). */

@@ -1,10 +1,10 @@
 /**
- * src/session/fix-noise.ts as it was before round 10 of issue 8 (each median in a new array, the
+ * src/session/fix-noise.ts in its former form (each median in a new array, the
  * factors filled with 1 first), kept verbatim as the reference for test/session/scratch-medians.test.ts.
  */
 /**
  * Per-fix white measurement noise from the log's quality columns.
- * Rules (documented in README):
+ * Rules (documented in docs/formats.md, "Quality columns"):
  * - reported sigmas (sd_east, sd_north, sd_up) are used as given, times noise.reportedSigmaScale;
  * - otherwise the profile's sigma holds at the session's median quality and is scaled by
  *   hdop/median(hdop) (vdop for the vertical, hdop when there is no vdop), by √(median sats / sats),

@@ -1,5 +1,5 @@
 /**
- * longitudeExtent of src/output/geojson.ts as it was before round 7 of issue 8 (always sorted),
+ * longitudeExtent of src/output/geojson.ts in its former form (always sorted),
  * kept verbatim as the reference for the test of the current form (test/output/geojson.test.ts).
  * RFC 7946 §5.2 (Butler et al., 2016).
  */

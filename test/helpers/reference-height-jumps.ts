@@ -1,5 +1,5 @@
 /**
- * flagHeightJumps of src/session/process-session.ts as it was before round 8 of issue 8 (every
+ * flagHeightJumps of src/session/process-session.ts in its former form (every
  * fix's neighbours insertion-sorted for their median), kept verbatim as the reference for the
  * bit-for-bit test of the current form (test/session/height-jumps.test.ts).
  */

@@ -1,5 +1,5 @@
 /**
- * reviewSegment of src/session/review.ts as it was before round 9 of issue 8 (a history of its own
+ * reviewSegment of src/session/review.ts in its former form (a history of its own
  * for north's covariances), kept verbatim as the reference for the bit-for-bit test of the current
  * form (test/session/review-shared-history.test.ts). Only the imports, the name and this header
  * differ; the source's header follows.

@@ -1,5 +1,5 @@
 /**
- * The review statistic of src/estimation/review.ts as it was before round 7 of issue 8 (generic
+ * The review statistic of src/estimation/review.ts in its former form (generic
  * loops over n with covIndex), kept verbatim as the reference for the bit-for-bit test of the
  * current form (test/estimation/review-statistic.test.ts).
  * Sources: de Jong (1988); de Jong & Penzer (1998); Teunissen (2006).

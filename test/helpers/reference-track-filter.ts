@@ -1,5 +1,5 @@
 /**
- * forwardFilter of src/estimation/track-filter.ts as it was before round 7 of issue 8 (one generic
+ * forwardFilter of src/estimation/track-filter.ts in its former form (one generic
  * loop over the axes for every case), kept verbatim as the reference for the bit-for-bit test of
  * the current form (test/estimation/forward-filter-shared.test.ts).
  * Gate: Bar-Shalom, Li, Kirubarajan (2001) §5.4. Re-acquisition: see track-filter.ts.

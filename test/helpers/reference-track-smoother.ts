@@ -1,5 +1,5 @@
 /**
- * The smoother of src/estimation/track-smoother.ts as it was before round 7 of issue 8 (whole-array
+ * The smoother of src/estimation/track-smoother.ts in its former form (whole-array
  * east/north sharing check per call), kept verbatim as the reference for the bit-for-bit tests of
  * the current form (test/estimation/smoother-share.test.ts).
  * Source: Rauch, Tung, Striebel (1965); Särkkä (2013) Theorem 8.2.

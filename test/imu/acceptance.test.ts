@@ -1,5 +1,5 @@
 /**
- * Acceptance of IMU-aided smoothing (issue 4) on the project's simulator: an urban drive of 15 min at
+ * Acceptance of IMU-aided smoothing on the project's simulator: an urban drive of 15 min at
  * 1 Hz fixes with four 25–40 s GNSS outages, a consumer-grade MEMS IMU at 100 Hz (accelerometer bias
  * 0.02–0.05 m/s², gyro bias 0.1–0.2 °/s, white noise 0.03 m/s² and 0.1 °/s per sample).
  * Fixes-only = processSession on the same fixes.

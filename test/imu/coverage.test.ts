@@ -2,7 +2,7 @@
  * Honest regions of IMU-aided smoothing, pooled over eight seeded urban drives (15 min, 1 Hz fixes,
  * four 25–40 s outages, consumer MEMS IMU at 100 Hz; half with the vehicle profile and no lever arm,
  * half with the default profile and a 1.4 m antenna lever arm). The figures printed here are the ones
- * quoted in README ("Measured accuracy", With an IMU).
+ * quoted in docs/validation.md ("With an IMU").
  * Coverage is judged pooled, as for the fixes-only scenarios (test/session/accuracy.test.ts): a
  * 15-minute drive holds only some tens of independent samples of its correlated fix error, so one
  * log's share scatters widely (0.79–1.00 here).

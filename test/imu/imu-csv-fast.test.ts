@@ -1,5 +1,5 @@
 /**
- * The IMU reader's byte-level fast path (src/input/imu-csv.ts, issue 8) against the general reader
+ * The IMU reader's byte-level fast path (src/input/imu-csv.ts) against the general reader
  * (readline + the line parser, `streamImuCsvLines`): the same samples bit for bit (Object.is), the
  * same counts, warnings (with their lines) and errors, on the sample data, on awkward IMU files, on
  * every awkward fix fixture read as an IMU file, across chunk boundaries, and on random files

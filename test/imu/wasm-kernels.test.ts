@@ -9,7 +9,7 @@
  *   accumulated transition, and scalar Joseph updates with the filter's measurement rows, in turn;
  * - whole IMU-aided sessions (every array of the result).
  * The build must have produced the module: the test fails if the TypeScript fallback is what loads,
- * since the speed figures in README depend on it.
+ * since the speed figures in docs/performance.md depend on it.
  */
 import { afterAll, describe, expect, it } from 'vitest';
 import { NE } from '../../src/estimation/ins/error-model.js';

@@ -2,7 +2,7 @@
  * The awkward-files folder (test/fixtures/awkward/, made by make-fixtures.mjs there): each file with
  * its expected outcome through readFixLog — read (fix count, warnings by code and line) or refused
  * (InputError naming the file, with the reason and line). The rules are those of the reader file
- * headers and README "Input formats"; the values are invented (see make-fixtures.mjs).
+ * headers and docs/formats.md; the values are invented (see make-fixtures.mjs).
  */
 import { join } from 'node:path';
 import { describe, expect, test } from 'vitest';

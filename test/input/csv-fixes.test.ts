@@ -1,7 +1,7 @@
 /**
  * CSV reader pieces: line splitting (RFC 4180 quoting, Shafranovich 2005), delimiter detection,
  * numbers with a decimal comma (ISO 80000-1 allows comma or point as the decimal sign), and the
- * reader's row rules (documented in src/input/csv-fixes.ts and README "Input formats").
+ * reader's row rules (documented in src/input/csv-fixes.ts and docs/formats.md).
  */
 import { describe, expect, test } from 'vitest';
 import { configSchema, type HindcastConfig } from '../../src/config/schema.js';

@@ -4,7 +4,7 @@
  * the same warnings (code, message, file and line, in order), or the same InputError. Checked over
  * every awkward fixture, the sample data, hand-made edge rows (each rule of the fast path and each
  * way out of it) and mutated files (fast-check, fixed seeds). The numbers behind the fast path are
- * in DEVELOPERS.md ("Reading and writing speed").
+ * in docs/performance.md ("Reading and writing").
  */
 import { readdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';

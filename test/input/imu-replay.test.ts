@@ -1,5 +1,5 @@
 /**
- * The IMU replay file (src/input/imu-replay.ts, issue 8): the later passes of the IMU review replay
+ * The IMU replay file (src/input/imu-replay.ts): the later passes of the IMU review replay
  * the samples the first pass parsed. Checked: the replay hands the sink exactly the recorded numbers
  * (Object.is, so -0, subnormals and the last bits survive) in the recorded order, any number of
  * times, for counts below, at and across the write chunk; the recording sink passes every sample on

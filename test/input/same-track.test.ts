@@ -1,6 +1,6 @@
 /**
  * Acceptance: one simulated session written as CSV, NMEA (GGA + RMC) and GPX 1.1 gives the same
- * smoothed track through readFixBytes + processSession — within 2 cm median horizontally (issue 5);
+ * smoothed track through readFixBytes + processSession — within 2 cm median horizontally;
  * heights are compared where the format carries ellipsoidal height (CSV, and NMEA as altitude +
  * geoid separation), not for GPX (ele above mean sea level).
  * The simulated fixes are first put on a grid that every format carries exactly — latitude and
@@ -8,8 +8,8 @@
  * heights on multiples of 1/8 m with a geoid separation of 47.25 m — so the three readers must
  * return the same numbers (to the last bits of a double), and the tracks must then agree.
  * (Without the grid, 0.1 mm rounding differences between the formats moved smoothed heights by
- * decimetres through the session's noise calibration in the working tree of this writing; that is
- * a property of the session layer, reported to the lead, not of the readers.)
+ * decimetres through the session's noise calibration; that is a property of the session layer,
+ * not of the readers.)
  */
 import { gzipSync } from 'node:zlib';
 import { describe, expect, test } from 'vitest';

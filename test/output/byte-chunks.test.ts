@@ -58,7 +58,7 @@ describe('ByteChunks.rounded = JSON of Math.round(v·10^d)/10^d', () => {
   });
 });
 
-describe('digit writers (round 7: pairs in int32, integer part from ⌊|v|⌋)', () => {
+describe('digit writers (pairs in int32, integer part from ⌊|v|⌋)', () => {
   // fractions and integer parts on both sides of 2^31 (the int32 path's limit), powers of ten,
   // and values whose rounding carries into the integer part (999.9999999996 → "1000.000000000")
   const near = [2 ** 31 - 1, 2 ** 31, 2 ** 31 + 1, 2 ** 32, 1e9 - 1, 1e9, 1e10 - 1, 1e10, 99, 100, 101, 9, 10];

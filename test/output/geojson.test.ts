@@ -54,7 +54,7 @@ describe('longitudeExtent (bbox west/east, RFC 7946 §5.2)', () => {
     expect(longitudeExtent(lons)).toEqual(we);
   });
   test('no finite longitudes', () => expect(longitudeExtent([NaN])).toBeNull());
-  test('the same values (Object.is) as the previous, always-sorting form, seeded: narrow, wide, wrapped, signed zeros, NaN', () => {
+  test('the same values (Object.is) as the always-sorting reference form, seeded: narrow, wide, wrapped, signed zeros, NaN', () => {
     let seed = 4711;
     const rnd = () => (seed = (seed * 48271) % 2147483647) / 2147483647;
     for (let t = 0; t < 3000; t++) {

@@ -1,7 +1,7 @@
 /**
  * Acceptance of the fixes-only pipeline on the project's simulator: every kind of motion, three
  * seeds, no per-scenario settings (default configuration, self-calibrated noise). The figures printed
- * here are the ones quoted in README ("Measured accuracy").
+ * here are the ones quoted in README ("Accuracy") and docs/validation.md.
  * Scoring: test/helpers/score.ts (truth from the simulator; RMSE at fix epochs vs the raw fixes'
  * RMSE; coverage over every epoch, bridged ones included).
  */
@@ -25,7 +25,7 @@ const SEEDS = [1, 2, 3, 4, 5, 6];
  * (drone) and vertical 0.749–1.000 (vehicle), while the pooled figures were 0.95–0.98. The band
  * 0.90–0.99 of the issue is therefore applied to the pooled share, and each log has a guard rail.
  * Upper side: the drone's receiver is better than the default profile assumes, and its correlated
- * error is not identifiable next to its motion, so its regions are cautious (README, "Known shortfalls").
+ * error is not identifiable next to its motion, so its regions are cautious (docs/validation.md, "Known shortfalls").
  */
 const UPPER: Record<string, number> = { walk: 0.99, vehicle: 0.99, drone: 1 };
 /** Per-log guard rails, below the oracle's own per-log minima quoted above. */

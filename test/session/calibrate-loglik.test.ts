@@ -1,5 +1,5 @@
 /**
- * calibrateSession with the objective evaluated by forwardLogLik (round 8 of issue 8) against its
+ * calibrateSession with the objective evaluated by forwardLogLik against its
  * previous form, kept verbatim in test/helpers/reference-calibrate.ts (forwardFilter with the
  * likelihood and totalLogLik at every evaluation): parameters, estimates, standard errors,
  * log-likelihood and evaluation counts compared with Object.is. Cases: a log used whole (short),
@@ -48,7 +48,7 @@ function session(seed: number, rateHz: number, durationSec: number, noHeight = f
   return { cfg, ps, prior: axisParamsFromConfig(cfg) };
 }
 
-describe('calibrateSession: the objective without histories against the previous form', () => {
+describe('calibrateSession: the objective without histories against the reference form', () => {
   it.each([
     ['whole log (1 Hz, 20 min)', 5, 1, 1200, false],
     ['chunks of a longer log (5 Hz, 20 min)', 6, 5, 1200, false],

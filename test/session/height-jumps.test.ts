@@ -1,5 +1,5 @@
 /**
- * flagHeightJumps (round 8 of issue 8: the neighbours' range rules out a jump before any median is
+ * flagHeightJumps (the neighbours' range rules out a jump before any median is
  * taken) against its previous form, kept verbatim in test/helpers/reference-height-jumps.ts: the
  * validity flags and the reasons, element for element. Cases: seeded heights with single spikes,
  * bursts of bad heights, spikes right at the limit (slack plus climb rate over the span, in both
@@ -34,7 +34,7 @@ function compare(s: FixSeries, valid0: Uint8Array): number {
   return flagged;
 }
 
-describe('flagHeightJumps against its previous form', () => {
+describe('flagHeightJumps against its reference form', () => {
   it.each([1, 2, 3, 4, 5, 6])('seeded log %i: the same flags and reasons', (seed) => {
     const r = rng(seed * 104729);
     const n = 20000;

@@ -1,11 +1,11 @@
 /**
- * reviewSegment with one covariance array for east and north (round 9 of issue 8: where
+ * reviewSegment with one covariance array for east and north (where
  * horizontalShare holds, every pass writes north's covariance as a copy of east's, so the histories
  * hold one array for both) against its previous form, kept verbatim in
  * test/helpers/reference-review-segment.ts: the same passes, decisions, statistics and histories,
  * compared with Object.is on every element (north's covariances against the reference's own array).
  * With the swap test off: the reference tries the sandwiches by swapping all of them and re-running
- * the segment twice, which session 5 of issue 8 replaced by a trial of each on its neighbourhood
+ * the segment twice, which the current form replaces by a trial of each on its neighbourhood
  * (test/session/review-swap-trial.test.ts checks that against whole-segment re-runs).
  */
 import { describe, expect, it } from 'vitest';
@@ -42,7 +42,7 @@ const CASES: Array<[ScenarioKind, number, number, boolean]> = [
   ['drone', 6, 5, true],
 ];
 
-describe('review with one east/north covariance array against the previous form', () => {
+describe('review with one east/north covariance array against the reference form', () => {
   it.each(CASES)('%s seed %i at %i Hz (no height: %s): the same outcome bit for bit', (kind, seed, rateHz, noHeight) => {
     const { models, data, opt } = segmentCase(kind, seed, rateHz, noHeight);
     const ro: ReviewOptions = { ...reviewOptions(loadConfig({ profile: kind === 'walk' ? 'pedestrian' : kind }), 1 / rateHz), swaps: false };

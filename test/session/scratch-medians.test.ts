@@ -1,5 +1,5 @@
 /**
- * Round 10 of issue 8: the medians of the session centre, the height reference and the quality
+ * The medians of the session centre, the height reference and the quality
  * columns are selected in arrays the caller will fill afterwards (scratch) instead of new ones. The
  * values must be the previous form's, bit for bit (Object.is): sessionCentre with and without
  * scratch, and fixSigmaFactors against its previous form (test/helpers/reference-fix-noise.ts), on
@@ -48,7 +48,7 @@ describe('medians selected in scratch arrays = in new arrays', () => {
       expect(Object.is(a[0], b[0]) && Object.is(a[1], b[1])).toBe(true);
     }
   });
-  test('fixSigmaFactors = its previous form (seeded, every quality column set)', () => {
+  test('fixSigmaFactors = its reference form (seeded, every quality column set)', () => {
     const rng = new Rng(10_102);
     const sets: QualityColumn[][] = [[], ['hdop'], ['hdop', 'sats'], ['hdop', 'vdop', 'sats', 'fixQuality'], ['sats'], ['sdEast', 'sdNorth'], ['sdEast', 'sdNorth', 'sdUp', 'hdop']];
     for (let run = 0; run < 140; run++) {

@@ -1,5 +1,5 @@
 /**
- * segmentDataRange (the filter inputs of a range of a segment's epochs, round 8 of issue 8) equals
+ * segmentDataRange (the filter inputs of a range of a segment's epochs) equals
  * the slice of the whole segment's data (segmentData, then sliceSegment), element for element with
  * Object.is: ranges at the start, the end, inside, of one epoch and empty, over logs with gaps,
  * invalid fixes, user decisions and without height. Seeded.

@@ -155,8 +155,8 @@ function fmt(v: number): string {
 }
 
 /**
- * The calibration of a session in one line (issue 3: "the estimates and their standard errors in a
- * per-session line of the report"): white noise, correlated error (sigma, time constant) and
+ * The calibration of a session in one line (the estimates and their standard errors in a
+ * per-session line of the report): white noise, correlated error (sigma, time constant) and
  * process noise, horizontal / vertical, each "value ± standard error"; "profile values (reason)"
  * for a fallback; null without a calibration record.
  */

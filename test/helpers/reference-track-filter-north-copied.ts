@@ -1,5 +1,5 @@
 /**
- * src/estimation/track-filter.ts as it was before round 9 of issue 8 (north's covariance copied
+ * src/estimation/track-filter.ts in its former form (north's covariance copied
  * from east's at every epoch of forwardShared3), kept verbatim as the reference for the bit-for-bit
  * test of the current form (test/estimation/one-horizontal-cov.test.ts). Only the imports, the name
  * of the entry point and this header differ; the source's header follows.
@@ -388,7 +388,7 @@ function recordReacquisition(models: AxisModel[], data: SegmentData, h: FilterHi
  * Run the forward filter over a segment. The first epoch must carry a fix (use ≠ 0).
  * With `resume`, only the epochs affected by a change of use are recomputed (see FilterResume).
  */
-export function refR8ForwardFilter(models: AxisModel[], data: SegmentData, opt: FilterOptions, history?: FilterHistory, resume?: FilterResume): FilterHistory {
+export function refNorthCopiedForwardFilter(models: AxisModel[], data: SegmentData, opt: FilterOptions, history?: FilterHistory, resume?: FilterResume): FilterHistory {
   const N = data.N;
   const h = history ?? allocateHistory(N, models);
   const w = makeWork(models);

@@ -1,5 +1,5 @@
 /**
- * Round 10 of issue 8: ByteChunks.fixed and .rounded write a value below 2^31 in its scaled
+ * ByteChunks.fixed and .rounded write a value below 2^31 in its scaled
  * integer form (digits with the point inserted, `pointed`) instead of through its integer part and
  * fraction apart. The text must be the previous form's, byte for byte: compared with the verbatim
  * copy in test/helpers/reference-byte-chunks.ts (and with toFixed / JSON.stringify) on edge values
@@ -48,7 +48,7 @@ function edges(d: number): number[] {
   return out;
 }
 
-describe('fixed and rounded below 2^31 = the previous form', () => {
+describe('fixed and rounded below 2^31 = the reference form', () => {
   test.each([0, 1, 2, 3, 6, 7, 9, 12, 15])('edge values, %i decimals', (d) => {
     const p = new Pair();
     for (const v of edges(d)) {

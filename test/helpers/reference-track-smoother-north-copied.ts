@@ -1,5 +1,5 @@
 /**
- * src/estimation/track-smoother.ts as it was before round 9 of issue 8 (ensureStep called at every
+ * src/estimation/track-smoother.ts in its former form (ensureStep called at every
  * epoch, north's covariance copied from east's), kept verbatim as the reference for the bit-for-bit
  * test of the current form (test/estimation/one-horizontal-cov.test.ts). Only the imports, the
  * names of the entry points and this header differ; the source's header follows.
@@ -56,7 +56,7 @@ function rtsEpoch(models: AxisModel[], F: Float64Array[], Q: Float64Array[], h: 
   }
 }
 
-export function refR8SmoothInPlace(models: AxisModel[], data: SegmentData, h: FilterHistory, qScale?: Float64Array[] | null): void {
+export function refNorthCopiedSmoothInPlace(models: AxisModel[], data: SegmentData, h: FilterHistory, qScale?: Float64Array[] | null): void {
   const F = models.map((m) => new Float64Array(m.n * m.n));
   const Q = models.map((m) => new Float64Array(m.n * m.n));
   const rs = models.map((m) => makeRtsScratch(m.n, makeScratch(m.n)));
@@ -81,7 +81,7 @@ export function refR8SmoothInPlace(models: AxisModel[], data: SegmentData, h: Fi
  * Smoothed states of the filtered history `f` into `s` (out of place: `f` keeps the filtered values,
  * for a later re-run with resmoothWindows). Same arithmetic as smoothInPlace on a copy.
  */
-export function refR8SmoothInto(models: AxisModel[], data: SegmentData, f: FilterHistory, s: FilterHistory, qScale?: Float64Array[] | null): void {
+export function refNorthCopiedSmoothInto(models: AxisModel[], data: SegmentData, f: FilterHistory, s: FilterHistory, qScale?: Float64Array[] | null): void {
   const nAx = models.length;
   if (smootherCanShare(models, qScale) && (nAx === 2 || (nAx === 3 && models[2]!.n === 3)) && f.N > 0) return smoothIntoShared3(models, data, f, s, qScale);
   for (let a = 0; a < models.length; a++) {
@@ -89,7 +89,7 @@ export function refR8SmoothInto(models: AxisModel[], data: SegmentData, f: Filte
     s.P[a]!.set(f.P[a]!);
   }
   s.extraQ = f.extraQ;
-  refR8SmoothInPlace(models, data, s, qScale);
+  refNorthCopiedSmoothInPlace(models, data, s, qScale);
 }
 
 /**
@@ -101,7 +101,7 @@ export function refR8SmoothInto(models: AxisModel[], data: SegmentData, f: Filte
  * bit, and then the result is the one of a full pass). `changedOut` receives [first, last] pairs
  * (descending) of the epochs recomputed. Returns the number of epochs recomputed.
  */
-export function refR8ResmoothWindows(
+export function refNorthCopiedResmoothWindows(
   models: AxisModel[],
   data: SegmentData,
   f: FilterHistory,
