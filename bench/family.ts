@@ -3,15 +3,17 @@
  * processed with the default configuration, scored against its truth, pooled per kind
  * (test/helpers/family-score.ts). Build first (`npm run build`), then:
  *
- *   node dist/bench/family.js [--seed N] [--logs] [--only kind,kind] [--markdown docs/validation-family.md]
+ *   node dist/bench/family.js [--seed N] [--logs] [--only kind,kind] [--without habit,habit] [--markdown docs/validation-family.md]
  *
  * --seed draws another family (the default, 1, is the one the test suite judges); --logs adds the
- * per-log table; --markdown writes the generated validation page.
+ * per-log table; --without switches habits off for a diagnosis (bursts, tails, steps, drift, quality,
+ * gaps, invalid: simulate/family-spec.ts familyVariant); --markdown writes the generated validation
+ * page (of the full family only).
  */
 import { writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { FAMILY_COUNTS, familySpecs, type FamilyKind } from '../src/simulate/family-spec.js';
+import { FAMILY_COUNTS, FAMILY_HABITS, familySpecs, familyVariant, type FamilyHabit, type FamilyKind } from '../src/simulate/family-spec.js';
 import { LOG_COLUMNS, logRow, poolByKind, POOLED_COLUMNS, pooledRow, runFamily, textTable } from '../test/helpers/family-run.js';
 import { validationMarkdown } from '../test/helpers/family-doc.js';
 
@@ -28,18 +30,21 @@ function main(argv: string[]): void {
   const seed = Number(arg('--seed') ?? 1);
   const only = arg('--only')?.split(',') as FamilyKind[] | undefined;
   const counts = only ? Object.fromEntries(only.map((k) => [k, FAMILY_COUNTS[k]])) : FAMILY_COUNTS;
-  const specs = familySpecs(seed, counts);
+  const without = (arg('--without')?.split(',') ?? []) as FamilyHabit[];
+  for (const h of without) if (!FAMILY_HABITS.includes(h)) throw new Error(`--without: unknown habit "${h}" (${FAMILY_HABITS.join(', ')})`);
+  const specs = familySpecs(seed, counts).map((s) => familyVariant(s, without));
   const t0 = performance.now();
   const scores = runFamily(specs, repoRoot(), (s) => process.stderr.write(`${s.id} ${s.elapsedSec.toFixed(2)} s\r`));
   process.stderr.write('\n');
   const pooled = poolByKind(scores);
-  console.log(`scenario family, base seed ${seed}: ${scores.length} logs, ${((performance.now() - t0) / 1000).toFixed(1)} s`);
+  console.log(`scenario family, base seed ${seed}${without.length ? `, without ${without.join(', ')}` : ''}: ${scores.length} logs, ${((performance.now() - t0) / 1000).toFixed(1)} s`);
   console.log(textTable(POOLED_COLUMNS, pooled.map(pooledRow)));
   if (argv.includes('--logs')) {
     console.log('');
     console.log(textTable(LOG_COLUMNS, scores.map(logRow)));
   }
   const md = arg('--markdown');
+  if (md && (without.length || only)) throw new Error('--markdown writes the full family only (no --without, no --only)');
   if (md) {
     writeFileSync(md, validationMarkdown(seed, scores));
     console.log(`wrote ${md}`);

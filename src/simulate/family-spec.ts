@@ -276,3 +276,28 @@ export function familySpecs(baseSeed = 1, counts: Partial<Record<FamilyKind, num
   });
   return out;
 }
+
+/** Habits that can be switched off for a diagnosis (familyVariant). */
+export const FAMILY_HABITS = ['bursts', 'tails', 'steps', 'drift', 'quality', 'gaps', 'invalid'] as const;
+export type FamilyHabit = (typeof FAMILY_HABITS)[number];
+
+/**
+ * A log without some of its habits, the rest of its specification unchanged (the noise itself is
+ * drawn anew from the same seed, so it differs fix by fix):
+ * bursts (none), tails (normal white noise), steps (no fix-mode steps), drift (no drifting bias),
+ * quality (HDOP informative with α = 1 and no unwritten factor), gaps (no outages), invalid (no
+ * invalid rows). For telling which habit a shortfall comes from; the acceptance uses the full logs.
+ */
+export function familyVariant(spec: FamilyLogSpec, without: readonly FamilyHabit[]): FamilyLogSpec {
+  const s: FamilyLogSpec = structuredClone(spec);
+  for (const h of without) {
+    if (h === 'bursts') s.bursts.perMinute = 0;
+    if (h === 'tails') s.receiver.tail = { kind: 'normal' };
+    if (h === 'steps') s.receiver.modeSteps = [];
+    if (h === 'drift') s.receiver.correlatedH.drift10MinM = s.receiver.correlatedV.drift10MinM = 0;
+    if (h === 'quality') s.quality = { ...s.quality, mode: 'informative', alpha: 1, hiddenLogSd: 0 };
+    if (h === 'gaps') s.gaps = [];
+    if (h === 'invalid') s.zeroRows = s.emptyRows = 0;
+  }
+  return s;
+}

@@ -62,6 +62,11 @@ alarms ≤ 2× nominal; the degraded deep-urban logs named as such in summary.js
 \`test/session/family.test.ts\` checks these; criteria the processor does not meet yet are kept there
 as expected failures.
 
+To measure a change: \`npm run build && node dist/bench/family.js\` prints the pooled table
+(\`--logs\` adds the per-log one, \`--seed N\` draws a new family, \`--only walk,van\` runs some kinds);
+\`--without bursts,tails,steps,drift,quality,gaps,invalid\` switches habits off to tell which one a
+shortfall comes from.
+
 ## Pooled per kind
 
 ${markdownTable(POOLED_COLUMNS, pooled.map(pooledRow))}

@@ -62,7 +62,7 @@ export function pooledRow(p: PooledScore): string[] {
 export const LOG_COLUMNS = ['log', 'grade', 'Hz', 'fixes', 'raw RMSE m', 'ratio', 'cover H95', 'cover U95', 'recall', 'precision', 'false alarms / clean'];
 
 export function logRow(s: FamilyScore): string[] {
-  return [s.id, s.grade, String(s.rateHz), String(s.fixes), f2(s.rmseRawH), f3(s.ratio), f3(s.coverH95), f3(s.coverU95), f3(s.recall), f3(s.precision), `${s.fp} / ${s.clean}`];
+  return [s.id, s.grade, String(s.rateHz), String(s.fixes), f2(s.rmseRawH), f3(s.ratio), f3(s.coverH95), f3(s.coverU95), s.tp + s.fn ? f3(s.recall) : '–', s.tp + s.fp ? f3(s.precision) : '–', `${s.fp} / ${s.clean}`];
 }
 
 export function markdownTable(head: string[], rows: string[][]): string {

@@ -9,7 +9,7 @@ import { describe, expect, test } from 'vitest';
 import { loadConfig } from '../../src/config/load.js';
 import { readFixCsv } from '../../src/input/csv-fixes.js';
 import { generateFamilyLog } from '../../src/simulate/family.js';
-import { FAMILY_COUNTS, familySpecs, type FamilyLogSpec } from '../../src/simulate/family-spec.js';
+import { FAMILY_COUNTS, familySpecs, familyVariant, type FamilyLogSpec } from '../../src/simulate/family-spec.js';
 import { familyTruth } from '../../src/simulate/family-motion.js';
 
 const DIR = join(import.meta.dirname, '..', 'fixtures', 'smartloc');
@@ -141,5 +141,20 @@ describe('motion kinds', () => {
     }
     // at least three minutes of tight circling in fifteen
     expect(tight).toBeGreaterThanOrEqual(180);
+  });
+});
+
+describe('variants', () => {
+  test('a variant without bursts, tails and steps changes only those draws', () => {
+    const spec = specs.find((s) => s.receiver.tail.kind !== 'normal' && s.receiver.modeSteps.length > 0)!;
+    const v = familyVariant(spec, ['bursts', 'tails', 'steps']);
+    expect(v.bursts.perMinute).toBe(0);
+    expect(v.receiver.tail).toEqual({ kind: 'normal' });
+    expect(v.receiver.modeSteps).toEqual([]);
+    expect({ ...v, bursts: spec.bursts, receiver: { ...v.receiver, tail: spec.receiver.tail, modeSteps: spec.receiver.modeSteps } }).toEqual(spec);
+    const log = generateFamilyLog(v, read);
+    expect(log.fixes.filter((f) => f.label === 'outlier' || f.label === 'ambiguous')).toEqual([]);
+    // the original is untouched
+    expect(spec.bursts.perMinute).toBeGreaterThan(0);
   });
 });
