@@ -7,11 +7,12 @@
 import { batchBench } from './batch.js';
 import { floorsBench } from './floors.js';
 import { imuBench } from './imu.js';
+import { manyLogsBench } from './many-logs.js';
 import { pipelineBench } from './pipeline.js';
 import type { BenchPart } from './part.js';
 
 // floors after the pipeline part: it prices the pipeline's 1M run (bench/results.json)
-const PARTS: BenchPart[] = [imuBench, pipelineBench, floorsBench, batchBench];
+const PARTS: BenchPart[] = [imuBench, pipelineBench, floorsBench, batchBench, manyLogsBench];
 
 let failed = 0;
 let targets = 0;
