@@ -198,6 +198,8 @@ export class LocalTimeReader {
       if (!dt.isValid) return null;
       wall = dt.toMillis();
     } else {
+      // ISO 8601 allows "," before the fraction; spreadsheets write a space for the "T"
+      text = text.replace(/(\d{2}:\d{2}:\d{2}),(\d)/, '$1.$2').replace(/^(\d{4}-\d{2}-\d{2}) (\d{2}:)/, '$1T$2');
       if (ISO_OFFSET.test(text)) {
         const dt = DateTime.fromISO(text, { zone: 'UTC' });
         return dt.isValid ? { utcMs: dt.toMillis() } : null;
