@@ -44,7 +44,7 @@ describe('per-session line', () => {
 
     const v = hindcast('run', input, '--out', join(root, 'o2'), '--config', settings, '--jobs', '1', '--verbose');
     expect(v.status).toBe(0);
-    expect(v.stdout).toMatch(/^ {4}fallback: calibration fell back to the profile values \(only \d+ s of fixes \(needs 180 s\)\)$/m);
+    expect(v.stdout).toMatch(/^ {4}fallback: calibration fell back to the profile values \(only \d+ usable fixes \(needs 120\)\)$/m);
     expect(v.stdout).toMatch(/^ {4}warning duplicate-time: short\.csv:\d+: 1 row\(s\) repeat an earlier time/m);
     expect(v.stdout).toMatch(/^ {4}warning calibration: /m);
   });
