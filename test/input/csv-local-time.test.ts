@@ -105,3 +105,26 @@ describe('input.timeFormat', () => {
     expect(Array.from(s.tSec)).toEqual([U(2025, 6, 18, 14, 5, 0), U(2025, 6, 18, 14, 5, 1)]);
   });
 });
+
+describe('the autumn log through the whole session', () => {
+  test('a 600 s drive written in Berlin local time: as long as its UTC copy, one segment, the same epochs', async () => {
+    const { defaultSpec, scenarioCsv, simulate } = await import('../../src/simulate/scenario.js');
+    const { processSession } = await import('../../src/session/process-session.js');
+    const { loadConfig } = await import('../../src/config/load.js');
+    // 02:55:00–02:59:59 CEST, then 02:00:00–02:04:59 CET (2025-10-26)
+    const sc = simulate(defaultSpec('vehicle', 3, { durationSec: 600, startUnixSec: U(2025, 10, 26, 0, 55) }));
+    const utcText = scenarioCsv(sc);
+    const localText = utcText.replace(/^(\d{4}-\d{2}-\d{2}T[\d:.]+)Z/gm, (_m, iso: string) =>
+      DateTime.fromISO(iso + 'Z').setZone('Europe/Berlin').toFormat("yyyy-MM-dd'T'HH:mm:ss.SSS"),
+    );
+    expect(localText).toContain('T02:59:59.000,');
+    const c = loadConfig({ overrides: { input: { timeZone: 'Europe/Berlin' } } });
+    const local = processSession(readFixCsv(localText, 'night.csv', c), c, 'night');
+    const utc = processSession(readFixCsv(utcText, 'night.csv', c), c, 'night');
+    expect(local.metrics.durationSec).toBe(utc.metrics.durationSec); // exact
+    expect(local.metrics.durationSec).toBeLessThan(600);
+    expect(local.metrics.segmentCount).toBe(1);
+    expect(Array.from(local.tSec)).toEqual(Array.from(utc.tSec));
+    expect(local.warnings.map((w) => w.code)).not.toContain('rows-sorted');
+  });
+});
