@@ -53,4 +53,5 @@ for (const k of KERNELS) {
 }
 mkdirSync('dist', { recursive: true });
 writeFileSync(STAMP, JSON.stringify(next, null, 2) + '\n');
-if (built === 0 && !process.argv.includes('--silent')) console.log('WebAssembly kernels up to date');
+// on stderr: `npm pack --json` runs the build (prepack) and its stdout must stay JSON
+if (built === 0) process.stderr.write('WebAssembly kernels up to date\n');
