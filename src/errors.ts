@@ -33,6 +33,19 @@ export class InputError extends Error {
   }
 }
 
+/**
+ * Several problems found in one file, reported together (so that a file with three typos needs
+ * one run to fix, not three). `errors` holds each, with its line.
+ */
+export class InputErrorList extends InputError {
+  readonly errors: InputError[];
+  constructor(file: string, errors: InputError[], what = 'problems') {
+    super({ file }, `${errors.length} ${what}:\n  ${errors.map((e) => e.message).join('\n  ')}`);
+    this.name = 'InputErrorList';
+    this.errors = errors;
+  }
+}
+
 /** A configuration or profile that does not validate. */
 export class ConfigError extends Error {
   readonly source: string;

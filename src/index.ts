@@ -17,5 +17,5 @@ export { trackCsv } from './output/track-csv.js';
 export { outliersCsv } from './output/outliers-csv.js';
 export { sessionGeoJson } from './output/geojson.js';
 export { sessionGpx } from './output/gpx.js';
-export { InputError, ConfigError, UsageError, NumericalError } from './errors.js';
+export { InputError, InputErrorList, ConfigError, UsageError, NumericalError } from './errors.js';
 export { CAUTION } from './output/caution.js';

@@ -48,6 +48,38 @@ export async function writeChunksAtomic(path: string, chunks: Iterable<string | 
   }
 }
 
+/**
+ * Stream chunks to a temporary beside `path` and return the temporary's path, without renaming it:
+ * several files written this way can be put in place together (`commitTemporaries`) once all of
+ * them are complete, so a failure while writing any of them leaves every earlier file untouched.
+ */
+export async function writeChunksToTemporary(path: string, chunks: Iterable<string | Uint8Array>): Promise<string> {
+  await mkdir(dirname(path), { recursive: true });
+  const tmp = tempPath(path);
+  const ws = createWriteStream(tmp);
+  try {
+    for (const c of chunks) if (!ws.write(c)) await once(ws, 'drain');
+    ws.end();
+    await once(ws, 'finish');
+    return tmp;
+  } catch (e) {
+    ws.destroy();
+    await rm(tmp, { force: true });
+    throw e;
+  }
+}
+
+/** Rename each temporary onto its final path (each rename atomic); on a failure the remaining temporaries are removed. */
+export async function commitTemporaries(pairs: ReadonlyArray<{ tmp: string; path: string }>): Promise<void> {
+  let i = 0;
+  try {
+    for (; i < pairs.length; i++) await rename(pairs[i]!.tmp, pairs[i]!.path);
+  } catch (e) {
+    for (const p of pairs.slice(i)) await rm(p.tmp, { force: true });
+    throw e;
+  }
+}
+
 /** The final file name a temporary stands for, or null when `name` is not a temporary. */
 export function finalNameOfTemp(name: string): string | null {
   const m = /^\.hindcast-tmp-[0-9a-f]{8}-(.+)$/.exec(name);

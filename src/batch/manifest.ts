@@ -135,7 +135,8 @@ export async function staleReason(out: string, e: ManifestEntry | null, want: Cu
   const a = e.inputs.map((i) => `${i.file}\0${i.sha256}`).join('\n');
   const b = want.inputs.map((i) => `${i.file}\0${i.sha256}`).join('\n');
   if (a !== b) return 'input changed';
-  if (e.summary.status === 'failed') return e.settled ? null : 'failed before';
+  if (e.summary.status === 'failed' && !e.settled) return 'failed before';
+  // for a failed session: the earlier outputs kept in place (stale), which must still be as listed
   for (const o of e.outputs) {
     try {
       const st = await stat(join(out, ...o.file.split('/')));
@@ -144,6 +145,7 @@ export async function staleReason(out: string, e: ManifestEntry | null, want: Cu
       return `output ${o.file} missing`;
     }
   }
+  if (e.summary.status === 'failed') return null;
   if (want.needPayload && !e.payload) return 'no report data';
   if (e.payload) {
     try {

@@ -4,16 +4,18 @@
  * last, then the report. One session's failure, or its worker's crash, never stops the others;
  * a kill at any moment leaves only complete outputs plus temporaries that the next run removes.
  *
- * Order of writes for one session: manifest entry removed → outputs (each temp + rename) →
- * report payload → manifest entry. So an entry exists only for outputs that are complete and
- * belong to the inputs it names.
+ * Order of writes for one session: manifest entry removed → outputs (all to temporaries, then
+ * renamed) → report payload → manifest entry. So an entry exists only for outputs that are
+ * complete and belong to the inputs it names. A session that fails leaves the outputs of an
+ * earlier run in place: its summary entry says so (`stale`, `staleOutputs`) and its manifest entry
+ * lists them, so a later run redoes the session when they are changed or gone.
  */
 import { mkdir, realpath, rm, stat } from 'node:fs/promises';
 import { dirname, join, resolve, sep } from 'node:path';
 import pLimit from 'p-limit';
 import type { HindcastConfig } from '../config/schema.js';
 import { UsageError } from '../errors.js';
-import { buildSummary, toJson, type BatchSummary, type SessionSummary } from '../output/summary.js';
+import { buildSummary, markStale, toJson, type BatchSummary, type SessionSummary } from '../output/summary.js';
 import type { ReportPayload } from '../output/report/payload.js';
 import { VERSION } from '../version.js';
 import { cleanTemporaries, writeFileAtomic } from './atomic-write.js';
@@ -33,7 +35,7 @@ import {
   type ManifestEntry,
 } from './manifest.js';
 import { inProcessRunner, threadRunner, type SessionRunner } from './runner.js';
-import { failedEntry, outputNames, outputPaths, removeSessionOutputs, type SessionTask } from './session-task.js';
+import { existingSessionOutputs, failedEntry, outputNames, outputPaths, type SessionTask } from './session-task.js';
 import { inShard, shardOf, shardSummaryName, SHARD_SUMMARY_RE, type Shard } from './shard.js';
 
 export { outputPaths, writeSessionOutputs, failureReason } from './session-task.js';
@@ -254,7 +256,14 @@ export async function runBatch(opt: BatchOptions): Promise<BatchResult> {
             withPayload: report,
           };
           const r = await runner!.run(task);
-          if (r.summary.status === 'failed') await removeSessionOutputs(out, name);
+          if (r.summary.status === 'failed') {
+            // never lose work: the outputs of an earlier run stay in place, marked stale
+            const kept = await existingSessionOutputs(out, name);
+            if (kept.length > 0) {
+              r.summary = markStale(r.summary, kept.map((o) => o.file));
+              r.outputs = kept;
+            }
+          }
           if (r.summary.status === 'ok' && r.payload !== undefined) await writePayload(out, name, r.payload);
           if (r.summary.status === 'ok' || r.settled)
             await writeEntry(out, {

@@ -21,7 +21,7 @@ import { geoJsonOptions, sessionGeoJsonChunks } from '../output/geojson.js';
 import { sessionGpxChunks } from '../output/gpx.js';
 import { reportPayload } from '../output/report/payload.js';
 import { okEntry, type SessionSummary } from '../output/summary.js';
-import { writeChunksAtomic } from './atomic-write.js';
+import { commitTemporaries, writeChunksToTemporary } from './atomic-write.js';
 import type { OutputFile } from './manifest.js';
 
 export interface SessionTask {
@@ -69,28 +69,57 @@ export function outputPaths(out: string, name: string): SessionFiles {
 }
 
 /**
- * Write the outputs of one session (each atomically, streamed in chunks of about a megabyte so no
- * output is held whole in memory); returns them relative to `out` with sizes.
+ * Write the outputs of one session (streamed in chunks of about a megabyte so no output is held
+ * whole in memory): every file goes to a temporary first, and only when all are complete are they
+ * renamed into place, so a failure while writing leaves the earlier outputs as they were. Returns
+ * them relative to `out` with sizes.
  */
 export async function writeSessionOutputs(out: string, r: SessionResult, cfg: HindcastConfig): Promise<OutputFile[]> {
   const n = outputNames(r.name);
   const p = outputPaths(out, r.name);
-  await writeChunksAtomic(p.track, trackCsvChunks(r));
-  await writeChunksAtomic(p.outliers, outliersCsvChunks(r));
-  await writeChunksAtomic(p.geojson, sessionGeoJsonChunks(r, geoJsonOptions(cfg)));
   const written: Array<keyof SessionFiles> = ['track', 'outliers', 'geojson'];
-  if (cfg.output.gpx) {
-    await writeChunksAtomic(p.gpx, sessionGpxChunks(r, { decimals: cfg.output.geojsonDecimals }));
-    written.push('gpx');
-  } else await rm(p.gpx, { force: true }); // from an earlier run with output.gpx
+  if (cfg.output.gpx) written.push('gpx');
+  const staged: Array<{ tmp: string; path: string }> = [];
+  try {
+    for (const k of written) {
+      const chunks =
+        k === 'track'
+          ? trackCsvChunks(r)
+          : k === 'outliers'
+            ? outliersCsvChunks(r)
+            : k === 'geojson'
+              ? sessionGeoJsonChunks(r, geoJsonOptions(cfg))
+              : sessionGpxChunks(r, { decimals: cfg.output.geojsonDecimals });
+      staged.push({ tmp: await writeChunksToTemporary(p[k], chunks), path: p[k] });
+    }
+  } catch (e) {
+    for (const s of staged) await rm(s.tmp, { force: true });
+    throw e;
+  }
+  await commitTemporaries(staged);
+  if (!cfg.output.gpx) await rm(p.gpx, { force: true }); // from an earlier run with output.gpx
   const files: OutputFile[] = [];
   for (const k of written) files.push({ file: n[k], size: (await stat(p[k])).size });
   return files;
 }
 
-/** Remove the outputs of a session (after a failure, so none is left that does not match its input). */
-export async function removeSessionOutputs(out: string, name: string): Promise<void> {
-  for (const p of Object.values(outputPaths(out, name))) await rm(p, { force: true });
+/**
+ * The outputs of a session that are on disk (relative to `out`, with sizes): after a failed run
+ * these are the outputs of an earlier good run, kept in place and marked stale, never deleted.
+ */
+export async function existingSessionOutputs(out: string, name: string): Promise<OutputFile[]> {
+  const n = outputNames(name);
+  const p = outputPaths(out, name);
+  const found: OutputFile[] = [];
+  for (const k of Object.keys(n) as Array<keyof SessionFiles>) {
+    try {
+      const st = await stat(p[k]);
+      if (st.isFile()) found.push({ file: n[k], size: st.size });
+    } catch {
+      /* not there */
+    }
+  }
+  return found;
 }
 
 /** A short reason for a failed session: input and config errors as they are, others named. */
@@ -108,7 +137,7 @@ export async function runSessionTask(t: SessionTask): Promise<SessionOutcome> {
   const t0 = performance.now();
   try {
     const series = await readFixLog(t.path, t.relPath, t.config);
-    const decisions = t.decisionsPath ? readDecisions(t.decisionsPath, series) : undefined;
+    const decisions = t.decisionsPath ? readDecisions(t.decisionsPath, series, t.config.input) : undefined;
     const r = t.imuPath
       ? await processImuSession(series, t.imuPath, t.config, t.name, decisions)
       : processSession(series, t.config, t.name, decisions);
@@ -117,7 +146,7 @@ export async function runSessionTask(t: SessionTask): Promise<SessionOutcome> {
     const summary = okEntry(r, t.relPath, outputs.map((o) => o.file), round3((performance.now() - t0) / 1000));
     return { summary, outputs, payload, settled: false };
   } catch (e) {
-    await removeSessionOutputs(t.out, t.name).catch(() => undefined);
+    // the outputs of an earlier run stay where they are (the batch marks them stale)
     const warnings = (e as { warnings?: InputWarning[] }).warnings ?? [];
     return { summary: failedEntry(t.name, t.relPath, failureReason(e), warnings), outputs: [], settled: e instanceof InputError || e instanceof ConfigError };
   }

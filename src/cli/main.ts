@@ -12,7 +12,7 @@ import { joinShards } from '../batch/join.js';
 import { parseShard, type Shard } from '../batch/shard.js';
 import { VERSION } from '../version.js';
 import { CAUTION } from '../output/caution.js';
-import { makeProgress } from './progress.js';
+import { batchNotes, makeProgress } from './progress.js';
 
 function positiveNumber(v: string): number {
   const n = Number(v);
@@ -38,6 +38,7 @@ interface RunOpts {
   gateProbability?: number;
   jobs?: number;
   quiet?: boolean;
+  verbose?: boolean;
   force?: boolean;
   shard?: Shard;
   strict?: boolean;
@@ -82,6 +83,7 @@ export async function main(argv: string[]): Promise<number> {
     .option('--points', 'also write every epoch as a GeoJSON point with its uncertainty')
     .option('--no-report', 'do not write report.html')
     .option('-q, --quiet', 'print nothing but errors')
+    .option('-v, --verbose', "list each session's warnings and fallbacks under its line")
     .action(async (input: string, o: RunOpts) => {
       const overrides: Record<string, unknown> = {};
       if (o.maxGap !== undefined) overrides.segments = { maxGapSec: o.maxGap };
@@ -93,7 +95,7 @@ export async function main(argv: string[]): Promise<number> {
       if (o.report === false) output.report = false;
       if (Object.keys(output).length) overrides.output = output;
       const config = loadConfig({ profile: o.profile, configFile: o.config, overrides });
-      const progress = makeProgress({ quiet: !!o.quiet, tty: !!process.stderr.isTTY, out: process.stdout, err: process.stderr });
+      const progress = makeProgress({ quiet: !!o.quiet, verbose: !!o.verbose, tty: !!process.stderr.isTTY, out: process.stdout, err: process.stderr });
       // Ctrl-C / a scheduler's TERM: every output so far is complete (atomic writes), so stop at once
       const interrupted = (signal: NodeJS.Signals): void => {
         progress.stop();
@@ -126,7 +128,7 @@ export async function main(argv: string[]): Promise<number> {
         const t = res.summary.totals;
         const where = o.shard ? `shard ${o.shard.index}/${o.shard.count}: ` : '';
         process.stdout.write(
-          `${where}${t.ok} of ${t.sessions} sessions written to ${o.out} (${res.processed.length} processed, ${res.upToDate.length} up to date; ${res.summaryPath.replace(/^.*[\\/]/, '')}).\n${CAUTION}\n`,
+          `${where}${t.ok} of ${t.sessions} sessions written to ${o.out} (${res.processed.length} processed, ${res.upToDate.length} up to date; ${res.summaryPath.replace(/^.*[\\/]/, '')}).\n${batchNotes(res.summary.sessions, !!o.verbose)}${CAUTION}\n`,
         );
       }
       code = res.exitCode;

@@ -3,6 +3,7 @@
  * Every field has a default, so an empty object is a valid configuration.
  */
 import { z } from 'zod';
+import { formatHasZone, timeFormatProblem, zoneProblem } from '../time/zones.js';
 
 const positive = z.number().positive();
 
@@ -34,7 +35,21 @@ export const configSchema = z
         /** Header names for columns the built-in aliases do not recognise. */
         columns: columnsSchema.default({}),
         /** IANA zone for ISO times written without an offset (e.g. "Europe/Berlin"). */
-        timeZone: z.string().optional(),
+        timeZone: z
+          .string()
+          .superRefine((v, ctx) => {
+            const p = zoneProblem(v);
+            if (p) ctx.addIssue({ code: 'custom', message: p });
+          })
+          .optional(),
+        /** Format of the CSV time column in luxon tokens (e.g. "dd.MM.yyyy HH:mm:ss"), read in timeZone unless it has an offset token. */
+        timeFormat: z
+          .string()
+          .superRefine((v, ctx) => {
+            const p = timeFormatProblem(v);
+            if (p) ctx.addIssue({ code: 'custom', message: p });
+          })
+          .optional(),
         /** Unit of numeric times: seconds, milliseconds, or decided from the magnitude. */
         timeUnit: z.enum(['s', 'ms', 'auto']).default('auto'),
         /** CSV delimiter; detected from the header line when absent. */
@@ -60,6 +75,10 @@ export const configSchema = z
         strict: z.boolean().default(false),
       })
       .strict()
+      .superRefine((v, ctx) => {
+        if (v.timeFormat !== undefined && v.timeZone === undefined && !formatHasZone(v.timeFormat))
+          ctx.addIssue({ code: 'custom', path: ['timeFormat'], message: 'a time format without an offset needs input.timeZone (e.g. "Europe/Berlin", or "UTC")' });
+      })
       .default({ columns: {}, timeUnit: 'auto', angleUnit: 'deg', strict: false }),
     model: z
       .object({

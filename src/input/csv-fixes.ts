@@ -22,6 +22,7 @@ import type { HindcastConfig } from '../config/schema.js';
 import { InputError } from '../errors.js';
 import { gpsWeekTowToUnixUtc } from '../time/gps-time.js';
 import { parseIsoToUnix } from '../time/parse-time.js';
+import { LocalTimeReader, lineRanges, offsetText, resolveByOrder, type PendingRow } from '../time/local-time.js';
 import { matchColumns, MSL_HEIGHT_ALIASES, type ColumnRole } from './columns.js';
 import { FixSeriesBuilder, type FixSeries, type QualityColumn } from './fix-series.js';
 import { HEIGHT_RANGE_M } from './nmea.js';
@@ -29,6 +30,8 @@ import { RowWarnings } from './row-warnings.js';
 
 const QUALITY_ROLES: QualityColumn[] = ['hdop', 'vdop', 'sats', 'fixQuality', 'sdEast', 'sdNorth', 'sdUp'];
 const DELIMITERS = [',', ';', '\t', '|'] as const;
+/** ISO text that carries its own offset (read as it is, whatever input.timeZone says). */
+const ISO_WITH_OFFSET = /T.*(Z|[+-]\d{2}(:?\d{2})?)$/;
 
 export interface CsvRow {
   fields: string[];
@@ -441,8 +444,12 @@ export function readFixCsv(text: string, file: string, cfg: HindcastConfig, opt:
   let msNoted = false;
   let rows = 0;
   const need = Math.max(index.time, index.lat, index.lon, hasWeekTow ? Math.max(index.gpsWeek, index.tow) : -1) + 1;
+  const timeFormat = cfg.input.timeFormat;
+  // local times in a zone with clock changes, or a custom format: read row by row, clock changes resolved below
+  const local = timeFormat !== undefined || (zone !== undefined && zone !== 'UTC') ? new LocalTimeReader(zone, timeFormat) : null;
+  const pending: PendingRow[] = [];
   const plain =
-    opt.plainRows !== false && delimiter === ','
+    opt.plainRows !== false && delimiter === ',' && timeFormat === undefined
       ? plainRowReader(b, header.length, index, qualityPresent, { rad, unitMs: unit === 'ms' })
       : null;
   for (let j = li + 1; j < lines.length; j++) {
@@ -471,8 +478,20 @@ export function readFixCsv(text: string, file: string, cfg: HindcastConfig, opt:
     let t: number;
     if (index.time >= 0 && !(hasWeekTow && (rec[index.time] ?? '') === '')) {
       const rawT = rec[index.time] ?? '';
-      const v = parseCsvNumber(rawT, false);
-      if (Number.isFinite(v)) {
+      const v = timeFormat !== undefined ? NaN : parseCsvNumber(rawT, false);
+      // ISO 8601 allows "," before the fraction; spreadsheets write a space for the "T"
+      const iso = timeFormat !== undefined ? rawT : rawT.replace(/(\d{2}:\d{2}:\d{2}),(\d)/, '$1.$2').replace(/^(\d{4}-\d{2}-\d{2}) (\d{2}:)/, '$1T$2');
+      if (local !== null && !Number.isFinite(v) && (timeFormat !== undefined || !ISO_WITH_OFFSET.test(iso))) {
+        const r = local.read(iso);
+        if (r === null) {
+          w.add('row-skipped', timeFormat !== undefined ? `time "${rawT.slice(0, 40)}" does not match input.timeFormat "${timeFormat}"` : `time "${rawT.slice(0, 40)}" is not ISO 8601 nor Unix seconds`, line);
+          continue;
+        }
+        if ('kind' in r && r.kind !== 'unique') {
+          pending.push({ index: b.count, tSec: [r.utcMs[0]! / 1000, r.utcMs[1]! / 1000], offsetMin: [r.offsetMin[0]!, r.offsetMin[1]!], kind: r.kind, line });
+          t = r.utcMs[0]! / 1000; // provisional, decided after the last row
+        } else t = ('kind' in r ? r.utcMs[0]! : r.utcMs) / 1000;
+      } else if (Number.isFinite(v)) {
         const ms = unit === 'ms' || (unit === 'auto' && Math.abs(v) > 1e11);
         if (ms && unit === 'auto' && !msNoted) {
           b.warn('time-unit', 'numeric times larger than 1e11 read as Unix milliseconds');
@@ -480,8 +499,6 @@ export function readFixCsv(text: string, file: string, cfg: HindcastConfig, opt:
         }
         t = ms ? v / 1000 : v;
       } else {
-        // ISO 8601 allows "," before the fraction; spreadsheets write a space for the "T"
-        const iso = rawT.replace(/(\d{2}:\d{2}:\d{2}),(\d)/, '$1.$2').replace(/^(\d{4}-\d{2}-\d{2}) (\d{2}:)/, '$1T$2');
         t = parseIsoToUnix(iso, zone);
         if (Number.isNaN(t)) {
           w.add('row-skipped', `time "${rawT.slice(0, 40)}" is not ISO 8601 with a zone or offset, nor Unix seconds${zone ? '' : ' (set input.timeZone for local times)'}`, line);
@@ -526,6 +543,7 @@ export function readFixCsv(text: string, file: string, cfg: HindcastConfig, opt:
     }
     b.add(t, lat, lon, h, line, qv);
   }
+  if (pending.length > 0) resolveLocalTimes(b, pending, zone ?? 'UTC', cfg.segments.maxGapSec);
   w.finish();
   if (b.count === 0) {
     if (rows === 0) throw new InputError({ file, line: headerLineNo }, 'header only: the file has no fix rows');
@@ -534,4 +552,43 @@ export function readFixCsv(text: string, file: string, cfg: HindcastConfig, opt:
   const s = b.finish();
   if (s.n < 2) throw new InputError({ file, line: s.line[0] }, `only ${s.n} fix: a session needs at least two fixes at distinct times`);
   return s;
+}
+
+/**
+ * Decide the rows whose local time occurs twice or not at all in the zone (clock changes) by the
+ * order of the rows (time/local-time.ts), with one warning per kind naming the lines; the rows the
+ * order does not decide are left out with a warning.
+ */
+function resolveLocalTimes(b: FixSeriesBuilder, pending: PendingRow[], zone: string, maxGapSec: number): void {
+  const r = resolveByOrder(pending, (i) => b.timeAt(i), b.count, maxGapSec);
+  const what = { ambiguous: `occur twice in ${zone} (the clocks went back)`, nonexistent: `do not exist in ${zone} (the clocks went forward)` };
+  for (const kind of ['ambiguous', 'nonexistent'] as const) {
+    const byOffset = new Map<number, number[]>();
+    const undecided: number[] = [];
+    pending.forEach((p, j) => {
+      if (p.kind !== kind) return;
+      const c = r.choice[j]!;
+      if (c < 0) {
+        undecided.push(p.line);
+        b.discard(p.index);
+        return;
+      }
+      b.setTime(p.index, r.tSec[j]!);
+      const o = p.offsetMin[c]!;
+      if (!byOffset.has(o)) byOffset.set(o, []);
+      byOffset.get(o)!.push(p.line);
+    });
+    const decided = [...byOffset.values()].reduce((a, l) => a + l.length, 0);
+    if (decided > 0) {
+      const parts = [...byOffset].map(([o, lines]) => `lines ${lineRanges(lines)} as ${offsetText(o)}`);
+      const first = Math.min(...[...byOffset.values()].map((l) => l[0]!));
+      b.warn(`local-time-${kind}`, `${decided} row(s) at local times that ${what[kind]}, read by the order of the rows: ${parts.join(', ')}`, first);
+    }
+    if (undecided.length > 0)
+      b.warn(
+        `local-time-${kind}-skipped`,
+        `${undecided.length} row(s) at local times that ${what[kind]} skipped: the order of the rows does not tell which instant they are (write the times with an offset or in UTC); lines ${lineRanges(undecided)}`,
+        undecided[0],
+      );
+  }
 }

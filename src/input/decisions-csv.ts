@@ -3,19 +3,25 @@
  * columns `time`, `decision` and (optionally) `note`, in any order and any letter case, then one row
  * per fix. `time` is ISO 8601 with a zone, as written in track.csv and outliers.csv (UTC with
  * milliseconds and Z); `decision` is `keep` (use the fix, no gate) or `reject` (leave it out).
- * Each row is matched to the fix of the log with that time, within 1 ms.
+ * Each row is matched to the fix of the log with that time, within 1 ms. A time may also be written
+ * as the log writes its times: in `input.timeFormat` and/or without an offset in `input.timeZone`
+ * (a local time that occurs twice at a clock change is matched to whichever reading is a fix of
+ * the log; if both are, the row is an error asking for an offset).
  *
  * Rules: RFC 4180 quoting (a note may hold commas when quoted); "," or, when the header has none,
  * ";" as delimiter; a byte-order mark, blank lines and lines starting with "#" are ignored; the
  * same fix named twice with the same decision is fine, with different decisions an error. Any row
  * that cannot be applied (bad time, unknown decision, no fix at that time, extra fields) is an
- * InputError naming the file and line: a decision must never be dropped silently.
+ * InputError naming the file and line: a decision must never be dropped silently. The whole file
+ * is checked before failing, and every such row is reported at once (InputErrorList).
  */
 import { readFileSync } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
 import { parse } from 'csv-parse/sync';
-import { InputError } from '../errors.js';
-import { parseIsoToUnix } from '../time/parse-time.js';
+import type { HindcastConfig } from '../config/schema.js';
+import { InputError, InputErrorList } from '../errors.js';
+import { LocalTimeReader } from '../time/local-time.js';
+import { formatIsoUtc, parseIsoToUnix } from '../time/parse-time.js';
 import type { FixSeries } from './fix-series.js';
 import { sessionStem } from './read-log.js';
 
@@ -52,8 +58,33 @@ export function fixAtTime(tSecSorted: Float64Array, tSec: number, tolSec = DECIS
   return bestD <= tolSec + 1e-6 ? best : -1;
 }
 
-/** Parse decisions text; `file` names it in errors. */
-export function parseDecisions(text: string, file: string, series: FixSeries): Map<number, Decision> {
+/** How the log writes its times (input.timeZone, input.timeFormat), for decision times written the same way. */
+export type LogTimeSettings = Pick<HindcastConfig['input'], 'timeZone' | 'timeFormat'>;
+
+/**
+ * The fix of `series` a decision time names: the index, or a reason. ISO 8601 with an offset first,
+ * then the log's own format and zone.
+ */
+function matchTime(timeText: string, series: FixSeries, local: LocalTimeReader | null): number | string {
+  const t = parseIsoToUnix(timeText);
+  if (Number.isFinite(t)) {
+    const i = fixAtTime(series.tSec, t);
+    return i >= 0 ? i : `no fix of ${series.file} at ${timeText} (within 1 ms)`;
+  }
+  const r = local?.read(timeText) ?? null;
+  if (r === null) {
+    const alt = local === null ? '' : local.format !== undefined ? ` nor in input.timeFormat "${local.format}"` : ` nor a local time in ${local.zoneName}`;
+    return `"${timeText}" is not an ISO 8601 time with a zone${alt} (write it as in track.csv, e.g. 2026-05-13T09:31:19.000Z)`;
+  }
+  const candidates = 'kind' in r ? r.utcMs : [r.utcMs];
+  const hits = [...new Set(candidates.map((ms) => fixAtTime(series.tSec, ms / 1000)).filter((i) => i >= 0))];
+  if (hits.length === 1) return hits[0]!;
+  if (hits.length === 0) return `no fix of ${series.file} at ${timeText} (${candidates.map((ms) => formatIsoUtc(ms / 1000)).join(' or ')}, within 1 ms)`;
+  return `${timeText} occurs twice in ${local!.zoneName} (the clocks went back) and both are fixes of ${series.file}; write it with an offset or in UTC (${candidates.map((ms) => formatIsoUtc(ms / 1000)).join(' or ')})`;
+}
+
+/** Parse decisions text; `file` names it in errors; `logTimes` how the log writes its times. */
+export function parseDecisions(text: string, file: string, series: FixSeries, logTimes: LogTimeSettings = {}): Map<number, Decision> {
   const body = text.replace(/^\uFEFF/, '');
   const firstLine = body.split(/\r?\n/).find((l) => l.trim() !== '' && !l.trimStart().startsWith('#')) ?? '';
   const delimiter = !firstLine.includes(',') && firstLine.includes(';') ? ';' : ',';
@@ -82,37 +113,49 @@ export function parseDecisions(text: string, file: string, series: FixSeries): M
     throw new InputError({ file, line: headerLine }, `the header must name the columns time and decision (and optionally note); found: ${header.join(', ') || 'nothing'}`);
   const unknown = header.filter((h, i) => i !== iTime && i !== iDecision && i !== iNote && h !== '');
   if (unknown.length) throw new InputError({ file, line: headerLine }, `unknown column(s) ${unknown.join(', ')}: expected time, decision, note`);
+  const local = logTimes.timeFormat !== undefined || logTimes.timeZone !== undefined ? new LocalTimeReader(logTimes.timeZone, logTimes.timeFormat) : null;
   const lineOf = new Map<number, number>();
+  const errors: InputError[] = [];
   for (const { record, info } of records.slice(1)) {
     const line = info.lines;
-    if (record.length > header.length)
-      throw new InputError({ file, line }, `${record.length} fields but the header has ${header.length}; quote a note that holds the delimiter`);
+    if (record.length > header.length) {
+      errors.push(new InputError({ file, line }, `${record.length} fields but the header has ${header.length}; quote a note that holds the delimiter`));
+      continue;
+    }
     const timeText = record[iTime] ?? '';
     const decisionText = (record[iDecision] ?? '').toLowerCase();
-    if (timeText === '') throw new InputError({ file, line, column: 'time' }, 'the time is empty');
-    const t = parseIsoToUnix(timeText);
-    if (!Number.isFinite(t))
-      throw new InputError({ file, line, column: 'time' }, `"${timeText}" is not an ISO 8601 time with a zone (write it as in track.csv, e.g. 2026-05-13T09:31:19.000Z)`);
+    // both fields of a row are checked, so one run names every problem
+    const before = errors.length;
+    let i = -1;
+    if (timeText === '') errors.push(new InputError({ file, line, column: 'time' }, 'the time is empty'));
+    else {
+      const m = matchTime(timeText, series, local);
+      if (typeof m === 'string') errors.push(new InputError({ file, line, column: 'time' }, m));
+      else i = m;
+    }
     if (decisionText !== 'keep' && decisionText !== 'reject')
-      throw new InputError({ file, line, column: 'decision' }, `"${record[iDecision] ?? ''}" is not a decision: write keep or reject`);
-    const i = fixAtTime(series.tSec, t);
-    if (i < 0) throw new InputError({ file, line, column: 'time' }, `no fix of ${series.file} at ${timeText} (within 1 ms)`);
+      errors.push(new InputError({ file, line, column: 'decision' }, `"${record[iDecision] ?? ''}" is not a decision: write keep or reject`));
+    if (errors.length > before) continue;
     const prev = out.get(i);
-    if (prev !== undefined && prev !== decisionText)
-      throw new InputError({ file, line }, `the fix at ${timeText} is already decided "${prev}" on line ${lineOf.get(i)}; one decision per fix`);
-    out.set(i, decisionText);
+    if (prev !== undefined && prev !== decisionText) {
+      errors.push(new InputError({ file, line }, `the fix at ${timeText} is already decided "${prev}" on line ${lineOf.get(i)}; one decision per fix`));
+      continue;
+    }
+    out.set(i, decisionText as Decision);
     if (!lineOf.has(i)) lineOf.set(i, line);
   }
+  if (errors.length === 1) throw errors[0]!;
+  if (errors.length > 1) throw new InputErrorList(file, errors, 'rows cannot be applied (no decision of the file was used)');
   return out;
 }
 
 /** Read `<stem>.decisions.csv` (path as given) and match its rows to the fixes of `series`. */
-export function readDecisions(path: string, series: FixSeries): Map<number, Decision> {
+export function readDecisions(path: string, series: FixSeries, logTimes: LogTimeSettings = {}): Map<number, Decision> {
   let text: string;
   try {
     text = readFileSync(path, 'utf8');
   } catch (e) {
     throw new InputError({ file: path }, `cannot read the decisions file: ${(e as Error).message}`);
   }
-  return parseDecisions(text, path, series);
+  return parseDecisions(text, path, series, logTimes);
 }

@@ -95,6 +95,24 @@ export class FixSeriesBuilder {
     return this.t.n;
   }
 
+  /** Rows added but left out by finish() (a time the reader could not decide). */
+  private readonly discarded = new Set<number>();
+
+  /** Time (s) of the i-th row added. */
+  timeAt(i: number): number {
+    return this.t.a[i]!;
+  }
+
+  /** Set the time of the i-th row added (a reader deciding a provisional time). */
+  setTime(i: number, tSec: number): void {
+    this.t.a[i] = tSec;
+  }
+
+  /** Leave the i-th row added out of the series. */
+  discard(i: number): void {
+    this.discarded.add(i);
+  }
+
   warn(code: string, message: string, line?: number): void {
     this.warnings.push({ file: this.file, line, code, message });
   }
@@ -116,24 +134,36 @@ export class FixSeriesBuilder {
    * time the first is kept and the others are dropped with a warning naming their lines.
    */
   finish(): FixSeries {
-    const n0 = this.t.n;
     const t = this.t.a;
+    let idx: Uint32Array;
+    if (this.discarded.size === 0) {
+      idx = new Uint32Array(0);
+    } else {
+      const rest: number[] = [];
+      for (let i = 0; i < this.t.n; i++) if (!this.discarded.has(i)) rest.push(i);
+      idx = Uint32Array.from(rest);
+    }
+    const all = this.discarded.size === 0;
+    const n0 = all ? this.t.n : idx.length;
+    const at = (j: number): number => (all ? j : idx[j]!);
     let ordered = true;
     let repeats = false;
-    for (let i = 1; i < n0; i++) {
-      if (t[i]! < t[i - 1]!) {
+    for (let j = 1; j < n0; j++) {
+      if (t[at(j)]! < t[at(j - 1)]!) {
         ordered = false;
         break;
       }
-      if (t[i] === t[i - 1]) repeats = true;
+      if (t[at(j)] === t[at(j - 1)]) repeats = true;
     }
     // in order and no repeated time (the usual log): every row is kept where it is
-    if (ordered && !repeats) return this.series(n0, null);
-    let idx: Uint32Array = new Uint32Array(n0);
-    for (let i = 0; i < n0; i++) idx[i] = i;
+    if (all && ordered && !repeats) return this.series(n0, null);
+    if (all) {
+      idx = new Uint32Array(n0);
+      for (let i = 0; i < n0; i++) idx[i] = i;
+    }
     if (!ordered) {
       let outOfOrder = 0;
-      for (let i = 1; i < n0; i++) if (t[i]! < t[i - 1]!) outOfOrder++;
+      for (let j = 1; j < n0; j++) if (t[idx[j]!]! < t[idx[j - 1]!]!) outOfOrder++;
       const arr = Array.from(idx);
       arr.sort((a, b) => t[a]! - t[b]! || a - b);
       idx = Uint32Array.from(arr);

@@ -1,7 +1,8 @@
 /**
  * Streaming reader of `<stem>.imu.csv`: a header row, then one IMU sample a row:
- * time (ISO 8601 with a zone/offset, or in input.timeZone; or Unix seconds/milliseconds as for fix
- * CSVs), ax, ay, az (specific force), gx, gy, gz (angular rate). Units and the sensor-to-body rotation
+ * time (ISO 8601 with a zone/offset, or in input.timeZone, or text in input.timeFormat; or Unix
+ * seconds/milliseconds as for fix CSVs; a local time repeated or skipped by a clock change takes the
+ * one reading that follows the previous sample within a minute, else the row is skipped), ax, ay, az (specific force), gx, gy, gz (angular rate). Units and the sensor-to-body rotation
  * come from the `imu` config. Rows are read line by line (readline over a file stream) and handed to a
  * callback at once, so memory does not grow with the number of samples.
  * Rows that cannot be parsed are skipped with a warning (the first 20 are listed, all are counted).
@@ -20,6 +21,10 @@ import type { HindcastConfig } from '../config/schema.js';
 import { InputError, type InputWarning } from '../errors.js';
 import { rotationZyx } from '../models/ins/attitude.js';
 import { parseIsoToUnix } from '../time/parse-time.js';
+import { LocalTimeReader } from '../time/local-time.js';
+
+/** ISO text that carries its own offset (read as it is, whatever input.timeZone says). */
+const ISO_WITH_OFFSET = /T.*(Z|[+-]\d{2}(:?\d{2})?)$/;
 
 /** Standard gravity (m/s² per g), the conventional unit of accelerometers (CGPM 1901). */
 export const STANDARD_GRAVITY_MPS2 = 9.80665;
@@ -66,6 +71,10 @@ export function makeImuLineParser(file: string, cfg: HindcastConfig, sink: ImuSa
   let msNoted = false;
   const zone = cfg.input.timeZone;
   const unit = cfg.input.timeUnit;
+  // local times in a zone with clock changes, or a custom format (text times only)
+  const local = cfg.input.timeFormat !== undefined || (zone !== undefined && zone !== 'UTC') ? new LocalTimeReader(zone, cfg.input.timeFormat) : null;
+  let prevT = -Infinity;
+  let clockChangeRows = 0;
   const v = new Float64Array(6);
   // fast path: the cell index of each needed value (slot 0 time, 1..6 the axes), set with the header
   let slotOf = new Int8Array(0);
@@ -109,8 +118,25 @@ export function makeImuLineParser(file: string, cfg: HindcastConfig, sink: ImuSa
           stats.warnings.push({ file, code: 'time-unit', message: 'numeric IMU times larger than 1e11 read as Unix milliseconds' });
         }
       }
-    } else t = parseIsoToUnix(tt.replace(/^"|"$/g, ''), zone);
-    if (!Number.isFinite(t)) return skip(`time "${tt}" is not an ISO 8601 time with a zone nor a Unix time`);
+    } else {
+      const text = tt.replace(/^"|"$/g, '');
+      if (local === null || (cfg.input.timeFormat === undefined && ISO_WITH_OFFSET.test(text))) t = parseIsoToUnix(text, zone);
+      else {
+        const r = local.read(text);
+        if (r === null) t = NaN;
+        else if (!('kind' in r)) t = r.utcMs / 1000;
+        else if (r.kind === 'unique') t = r.utcMs[0]! / 1000;
+        else {
+          // a clock change: the one reading that follows the previous sample within a minute, else skipped
+          const fits = r.utcMs.map((ms) => ms / 1000).filter((x) => x >= prevT && x - prevT <= 60);
+          if (fits.length !== 1)
+            return skip(`local time "${tt}" ${r.kind === 'ambiguous' ? 'occurs twice' : 'does not exist'} in ${zone} (clock change) and the order of the samples does not decide it; write IMU times with an offset or in UTC`);
+          t = fits[0]!;
+          clockChangeRows++;
+        }
+      }
+    }
+    if (!Number.isFinite(t)) return skip(`time "${tt}" is not an ISO 8601 time with a zone nor a Unix time${cfg.input.timeFormat !== undefined ? ` nor in input.timeFormat "${cfg.input.timeFormat}"` : ''}`);
     for (let j = 0; j < 6; j++) {
       const c = cells[iAx[j]!];
       const x = c === undefined || c.trim() === '' ? NaN : Number(c);
@@ -122,6 +148,7 @@ export function makeImuLineParser(file: string, cfg: HindcastConfig, sink: ImuSa
   /** Hand the sample in v (sensor axes, SI units) at time t to the sink in the body frame. */
   const emit = (t: number): void => {
     stats.samples++;
+    prevT = t;
     if (identity) sink(t, v[0]!, v[1]!, v[2]!, v[3]!, v[4]!, v[5]!);
     else {
       // body = C_bs · sensor
@@ -218,6 +245,8 @@ export function makeImuLineParser(file: string, cfg: HindcastConfig, sink: ImuSa
   const finish = (): ImuReadStats => {
     if (!headerDone) throw new InputError({ file }, 'empty IMU file');
     if (stats.skipped > 20) stats.warnings.push({ file, code: 'row-skipped', message: `${stats.skipped} IMU rows skipped in all (first 20 listed)` });
+    if (clockChangeRows > 0)
+      stats.warnings.push({ file, code: 'local-time-clock-change', message: `${clockChangeRows} IMU row(s) at local times repeated or skipped by a clock change in ${zone}, read by the order of the samples` });
     return stats;
   };
   return { line, fastLine, finish };

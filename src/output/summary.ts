@@ -19,6 +19,9 @@ export interface SessionSummary {
   metrics?: SessionResult['metrics'];
   info?: Record<string, unknown>;
   elapsedSec?: number;
+  /** Failed this run; the outputs of an earlier run (staleOutputs) are kept but no longer match the inputs or settings. */
+  stale?: boolean;
+  staleOutputs?: string[];
 }
 
 /** How this summary came about (differs between a clean run and a resumed one). */
@@ -50,6 +53,11 @@ export interface BatchSummary {
 
 export function okEntry(r: SessionResult, input: string, outputs: string[], elapsedSec: number): SessionSummary {
   return { name: r.name, input, status: 'ok', warnings: r.warnings, outputs, metrics: r.metrics, info: r.info, elapsedSec };
+}
+
+/** A failed entry whose earlier outputs were kept in place. */
+export function markStale(s: SessionSummary, outputs: string[]): SessionSummary {
+  return { ...s, stale: true, staleOutputs: outputs };
 }
 
 export function buildSummary(

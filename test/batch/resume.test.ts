@@ -128,13 +128,15 @@ describe('failures and safety', () => {
     expect(fixed.summary.totals).toMatchObject({ ok: 4, failed: 1 });
   });
 
-  it('a session that fails after an earlier success leaves none of its old outputs', async () => {
+  it('a session that fails after an earlier success keeps its old outputs, marked stale', async () => {
     await writeSessions(input, 2);
     await runBatch({ input, out, config: cfg });
+    const before = await readFile(join(out, 'log01.track.csv'));
     await writeFile(join(input, 'log01.csv'), 'garbage\n');
     const r = await runBatch({ input, out, config: cfg });
     expect(r.processed).toEqual(['log01']);
-    await expect(readFile(join(out, 'log01.track.csv'))).rejects.toThrow();
+    expect(await readFile(join(out, 'log01.track.csv'))).toEqual(before);
+    expect(r.summary.sessions[1]).toMatchObject({ status: 'failed', stale: true, staleOutputs: ['log01.track.csv', 'log01.outliers.csv', 'log01.geojson'] });
     await readFile(join(out, 'log00.track.csv'));
   });
 

@@ -1,7 +1,7 @@
 /** Progress output: durations, rate and time left, the in-progress list, and the plain log lines. */
 import { describe, expect, it } from 'vitest';
 import { PassThrough } from 'node:stream';
-import { formatDuration, makeProgress, progressFields, sessionLine } from '../../src/cli/progress.js';
+import { batchNotes, formatDuration, makeProgress, progressFields, sessionLine } from '../../src/cli/progress.js';
 import type { SessionSummary } from '../../src/output/summary.js';
 
 describe('formatDuration', () => {
@@ -80,5 +80,41 @@ describe('plain lines (not a terminal)', () => {
     p.stop();
     const text = String(err.read());
     expect(text).toMatch(/1\/4 sessions \| [\d.]+\/(s|min) \| ETA \S+ \| day1\/van/);
+  });
+});
+
+describe('warnings, fallbacks and stale outputs on the line', () => {
+  const warned: SessionSummary = {
+    ...ok,
+    warnings: [
+      { file: 'day1/van.csv', line: 12, code: 'row-skipped', message: 'time "x" is not ISO 8601' },
+      { file: 'day1/van.csv', code: 'rows-sorted', message: '1 row(s) out of time order; rows sorted by time' },
+    ],
+    info: { calibration: { status: 'fallback', reason: 'only 120 s of fixes (needs 180 s)' } },
+  };
+  it('counts on the line, details with verbose', () => {
+    expect(sessionLine(warned, 1, 1)).toBe('[1/1] day1/van: ok  900 fixes, 7 flagged, 3 bridged; 2 warnings, calibration fallback (1.3 s)');
+    expect(sessionLine(warned, 1, 1, true).split('\n')).toEqual([
+      '[1/1] day1/van: ok  900 fixes, 7 flagged, 3 bridged; 2 warnings, calibration fallback (1.3 s)',
+      '    fallback: calibration fell back to the profile values (only 120 s of fixes (needs 180 s))',
+      '    warning row-skipped: day1/van.csv:12: time "x" is not ISO 8601',
+      '    warning rows-sorted: 1 row(s) out of time order; rows sorted by time',
+    ]);
+  });
+  it('IMU fallbacks are named and counted', () => {
+    const imu: SessionSummary = { ...ok, info: { imu: { smootherFallbacks: 3, reviewConverged: false } } };
+    expect(sessionLine(imu, 1, 1)).toBe('[1/1] day1/van: ok  900 fixes, 7 flagged, 3 bridged; 2 fallbacks (1.3 s)');
+  });
+  it('a failed session with kept outputs says they are stale', () => {
+    const s: SessionSummary = { ...failed, stale: true, staleOutputs: ['bad.track.csv', 'bad.geojson'] };
+    expect(sessionLine(s, 1, 1)).toBe('[1/1] bad: FAILED  bad.csv:1: empty file\n    the outputs of an earlier run are kept and now stale: bad.track.csv, bad.geojson');
+  });
+  it('the closing notes over the batch', () => {
+    expect(batchNotes([ok], false)).toBe('');
+    expect(batchNotes([warned, ok, { ...failed, stale: true }], false)).toBe(
+      '2 warning(s) in 1 session(s): day1/van (summary.json; --verbose lists them)\n' +
+        'fallbacks in 1 session(s): day1/van\n' +
+        '1 failed session(s) keep the outputs of an earlier run, now stale: bad\n',
+    );
   });
 });

@@ -4,7 +4,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { decisionsPathFor, fixAtTime, parseDecisions, readDecisions } from '../../src/input/decisions-csv.js';
 import { FixSeriesBuilder } from '../../src/input/fix-series.js';
-import { InputError } from '../../src/errors.js';
+import { InputError, InputErrorList } from '../../src/errors.js';
 
 // five fixes one second apart from 2026-05-13T09:30:00Z, the third at a fraction of a second
 const T0 = Date.UTC(2026, 4, 13, 9, 30, 0) / 1000;
@@ -85,4 +85,59 @@ describe('decisions file', () => {
     ['logs/trip.nmea.gz', 'logs/trip.decisions.csv'],
     ['/a/b/day1.gpx', '/a/b/day1.decisions.csv'],
   ])('decisionsPathFor(%s) = %s', (log, want) => expect(decisionsPathFor(log)).toBe(want));
+});
+
+describe('the whole decisions file is checked at once', () => {
+  test('every bad row is reported in one error, each with its file, line and column', () => {
+    const text = `time,decision,note\n${iso(0)},keep,\n2026-05-13T09:30:01.5Z,reject,no such fix\n${iso(2.25)},rejcet,typo\nyesterday,maybe,two problems\n${iso(3)},keep,\n`;
+    let err: unknown;
+    try {
+      parseDecisions(text, 'trip.decisions.csv', series());
+    } catch (e) {
+      err = e;
+    }
+    expect(err).toBeInstanceOf(InputErrorList);
+    const list = (err as InputErrorList).errors.map((e) => [e.line, e.column]);
+    expect(list).toEqual([
+      [3, 'time'],
+      [4, 'decision'],
+      [5, 'time'],
+      [5, 'decision'],
+    ]);
+    const msg = (err as Error).message;
+    expect(msg).toMatch(/^trip\.decisions\.csv: 4 rows cannot be applied/);
+    for (const l of [3, 4, 5]) expect(msg).toContain(`trip.decisions.csv:${l} (column`);
+  });
+});
+
+describe('decision times written as the log writes them', () => {
+  // the series' times are 09:30:00Z…; in Europe/Berlin (CEST, UTC+02:00 in May) 11:30:00
+  test.each([
+    { why: 'local ISO in the log zone', settings: { timeZone: 'Europe/Berlin' }, text: '2026-05-13T11:30:01', want: 1 },
+    { why: 'local with a space', settings: { timeZone: 'Europe/Berlin' }, text: '2026-05-13 11:30:03', want: 3 },
+    { why: 'the log format', settings: { timeZone: 'Europe/Berlin', timeFormat: 'dd.MM.yyyy HH:mm:ss.SSS' }, text: '13.05.2026 11:30:02.250', want: 2 },
+    { why: 'UTC still accepted with a format', settings: { timeZone: 'Europe/Berlin', timeFormat: 'dd.MM.yyyy HH:mm:ss' }, text: iso(4), want: 4 },
+  ])('$why', ({ settings, text, want }) => {
+    expect(parseDecisions(`time,decision\n${text},reject\n`, 'd.csv', series(), settings)).toEqual(new Map([[want, 'reject']]));
+  });
+
+  test('a local time that occurs twice matches the one reading that is a fix; both fixes → error asking for an offset', () => {
+    // fixes at 00:30:00Z and 01:30:00Z on 2025-10-26 are both 02:30:00 in Europe/Berlin
+    const t0 = Date.UTC(2025, 9, 26, 0, 30) / 1000;
+    const b = new FixSeriesBuilder('log.csv');
+    b.add(t0, 52.5, 13.4, 40, 2);
+    b.add(t0 + 1, 52.5, 13.4, 40, 3);
+    const one = b.finish();
+    expect(parseDecisions('time,decision\n2025-10-26 02:30:00,reject\n', 'd.csv', one, { timeZone: 'Europe/Berlin' })).toEqual(new Map([[0, 'reject']]));
+    const b2 = new FixSeriesBuilder('log.csv');
+    b2.add(t0, 52.5, 13.4, 40, 2);
+    b2.add(t0 + 3600, 52.5, 13.4, 40, 3);
+    expect(() => parseDecisions('time,decision\n2025-10-26 02:30:00,reject\n', 'd.csv', b2.finish(), { timeZone: 'Europe/Berlin' })).toThrow(
+      /occurs twice in Europe\/Berlin.*2025-10-26T00:30:00.000Z or 2025-10-26T01:30:00.000Z/,
+    );
+  });
+
+  test('a local time without a zone setting is still refused', () => {
+    expect(() => parseDecisions('time,decision\n2026-05-13 11:30:01,reject\n', 'd.csv', series())).toThrow(/with a zone/);
+  });
 });

@@ -21,7 +21,7 @@ interface Column {
 
 /** What to look at in a session, in words (empty when nothing stands out). */
 export function attention(s: SessionSummary, p: ReportPayload | undefined): string[] {
-  if (s.status === 'failed') return ['failed'];
+  if (s.status === 'failed') return s.stale ? ['failed', 'outputs of an earlier run kept (stale)'] : ['failed'];
   const m = s.metrics;
   const out: string[] = [];
   if (m && m.outlierCount > 0) out.push(`${m.outlierCount} flagged`);
@@ -43,7 +43,7 @@ const COLUMNS: Column[] = [
     head: 'session', type: 'text',
     cell: (s, _p, i) => ({ text: s.name, sort: s.name, html: `<a href="#${sessionAnchor(i)}">${esc(s.name)}</a>` }),
   },
-  { head: 'status', type: 'text', cell: (s) => ({ text: s.status, sort: s.status }) },
+  { head: 'status', type: 'text', cell: (s) => ({ text: s.stale ? 'failed, stale outputs kept' : s.status, sort: s.status }) },
   {
     head: 'look at', type: 'text',
     cell: (s, p) => {
