@@ -84,8 +84,10 @@ export const configSchema = z
         /** Time-correlated (first-order Gauss–Markov) fix error, 1-sigma horizontal per axis (m); 0 for none. */
         correlatedHorizontalSigmaM: z.number().min(0).default(1.5),
         correlatedVerticalSigmaM: z.number().min(0).default(3),
-        /** Its correlation time (s). */
+        /** Its correlation time (s), horizontal (east and north share it). */
         correlationTimeSec: positive.default(60),
+        /** The vertical correlated error's own correlation time (s); correlationTimeSec when absent. */
+        verticalCorrelationTimeSec: positive.optional(),
         /** Multiplier of reported per-fix sigmas (sd_east, sd_north, sd_up) when the log has them. */
         reportedSigmaScale: positive.default(1),
       })
