@@ -135,8 +135,8 @@ function usableSegments(ps: PreparedSession, bridgeFactor: number): { segs: Arra
 export function calibrationStride(ps: PreparedSession, bridgeFactor: number, maxEpochs: number): number {
   const { total } = usableSegments(ps, bridgeFactor);
   if (total <= maxEpochs || !(ps.intervalSec > 0)) return 1;
-  // 1e-9: an interval of 0.1 s read as 0.09999… must still give 10
-  const maxStride = Math.max(1, Math.floor(CALIBRATION_MAX_INTERVAL_SEC / ps.intervalSec + 1e-9));
+  // + 0.01: an interval of 0.2 s measured as 0.2000001 (times in ms) must still give 5
+  const maxStride = Math.max(1, Math.floor(CALIBRATION_MAX_INTERVAL_SEC / ps.intervalSec + 0.01));
   return Math.min(maxStride, Math.ceil(total / maxEpochs));
 }
 
