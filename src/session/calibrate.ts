@@ -277,7 +277,10 @@ export function calibrateSession(
   if (t1 - t0 < opt.minDurationSec) return fallback(`only ${Math.round(t1 - t0)} s of fixes (needs ${opt.minDurationSec} s)`);
 
   const names: ParamName[] = ['sigmaHorizontalM', 'gmHorizontalSigmaM', 'gmTauSec'];
-  if (ps.hasHeight) names.splice(1, 0, 'sigmaVerticalM'), names.push('gmVerticalSigmaM', 'gmVerticalTauSec');
+  // the vertical correlation time: its own parameter, or the horizontal one's value (noise.verticalCorrelationTime)
+  const ownTauV = ps.hasHeight && cfg.noise.verticalCorrelationTime === 'own';
+  if (ps.hasHeight) names.splice(1, 0, 'sigmaVerticalM'), names.push('gmVerticalSigmaM');
+  if (ownTauV) names.push('gmVerticalTauSec');
   // A static log is estimated like any other: its process noise goes to (near) its lower bound, and
   // with the motion model still, the wander of the fixes is the correlated error, which is then well
   // identified. Measured on 2-hour static logs (test/session/consistency.test.ts): holding q at the
@@ -342,8 +345,10 @@ export function calibrateSession(
   const toParams = (x: number[]): AxisParams => {
     const p = { ...base };
     names.forEach((nm, i) => ((p as Record<ParamName, number>)[nm] = fromX(nm, x[i]!)));
+    if (!ownTauV) p.gmVerticalTauSec = p.gmTauSec;
     return p;
   };
+  const iTauH = names.indexOf('gmTauSec'), iTauV = names.indexOf('gmVerticalTauSec');
   // the exponents the subset's r holds (NaN: not yet written)
   let rExp = [NaN, NaN];
   const negLogLik = (x: number[]): number => {
@@ -396,10 +401,13 @@ export function calibrateSession(
       ll += totalLogLik(h);
     }
     // weak log-normal prior around the profile (none on the exponents: flat between their bounds)
+    // (the vertical time constant's is centred on the horizontal one: it departs from it where the
+    // vertical series says so, and follows it where that series says little)
     let pen = 0;
     for (let i = 0; i < names.length; i++) {
       const sd = PRIOR_LOG_SD[names[i]!];
-      if (Number.isFinite(sd)) pen += 0.5 * ((x[i]! - xPrior[i]!) / sd) ** 2;
+      const centre = i === iTauV ? x[iTauH]! : xPrior[i]!;
+      if (Number.isFinite(sd)) pen += 0.5 * ((x[i]! - centre) / sd) ** 2;
     }
     return -ll + pen;
   };
