@@ -71,7 +71,7 @@ export interface CalibrationOptions {
   standardErrors?: boolean;
 }
 
-export const DEFAULT_CALIBRATION: CalibrationOptions = { maxEpochs: 4000, minFixes: 120, minDurationSec: 180, maxEvaluations: 500 };
+export const DEFAULT_CALIBRATION: CalibrationOptions = { maxEpochs: 4000, minFixes: 120, minDurationSec: 180, maxEvaluations: 1200 };
 
 /** The first of processSession's two rounds: its estimates start the second, which replaces them, so no standard errors. */
 export const FIRST_ROUND: CalibrationOptions = { ...DEFAULT_CALIBRATION, standardErrors: false };
