@@ -103,8 +103,16 @@ export const configSchema = z
         /** Time-correlated (first-order Gauss–Markov) fix error, 1-sigma horizontal per axis (m); 0 for none. */
         correlatedHorizontalSigmaM: z.number().min(0).default(1.5),
         correlatedVerticalSigmaM: z.number().min(0).default(3),
-        /** Its correlation time (s). */
+        /** Its correlation time (s), horizontal (east and north share it). */
         correlationTimeSec: positive.default(60),
+        /** The vertical correlated error's own correlation time (s); correlationTimeSec when absent. */
+        verticalCorrelationTimeSec: positive.optional(),
+        /**
+         * Whether the calibration estimates the vertical correlation time on its own ('own') or
+         * keeps it equal to the horizontal one ('shared', the default; docs/noise-model.md has the
+         * measurements behind the default).
+         */
+        verticalCorrelationTime: z.enum(['shared', 'own']).default('shared'),
         /** Multiplier of reported per-fix sigmas (sd_east, sd_north, sd_up) when the log has them. */
         reportedSigmaScale: positive.default(1),
       })
@@ -115,6 +123,7 @@ export const configSchema = z
         correlatedHorizontalSigmaM: 1.5,
         correlatedVerticalSigmaM: 3,
         correlationTimeSec: 60,
+        verticalCorrelationTime: 'shared',
         reportedSigmaScale: 1,
       }),
     gate: z

@@ -79,9 +79,9 @@ export function kernelLog2Pi(k: LogLikKernel): number {
 const MAX_LOADED = 16;
 
 /**
- * Copy a segment's fixed inputs into the module (once per SegmentData object: its tSec, z and r are
+ * Copy a segment's fixed inputs into the module (once per SegmentData object: its tSec and z are
  * taken as fixed while the same object is passed, as the calibration's chunks are): z, r per epoch
- * and each epoch's step index. `use` is copied at every call (runLogLikKernel).
+ * and each epoch's step index. `use` and r are copied again at every call (runLogLikKernel).
  */
 function load(k: LogLikKernel, data: SegmentData, up: boolean): Loaded {
   const N = data.N;
@@ -137,6 +137,9 @@ export function runLogLikKernel(k: LogLikKernel, models: AxisModel[], data: Segm
   const f = k.f64;
   const ou = l.pUse / 8, N = data.N, use = data.use;
   for (let i = 0; i < N; i++) f[ou + i] = use[i]!;
+  // r too (the calibration rewrites it in place when it estimates the quality columns' exponents)
+  f.set(data.r[0]!, l.pR[0] / 8);
+  if (up) f.set(data.r[2]!, l.pR[1] / 8);
   // F, Q of every distinct step, east then up (the models' own functions: the bits ensureStep gives)
   const F = k.F, Q = k.Q;
   for (let s = 0; s < l.dts.length; s++) {

@@ -1,10 +1,13 @@
 /**
  * Per-fix white measurement noise from the log's quality columns.
- * Rules (documented in docs/formats.md, "Quality columns"):
+ * Rules (docs/noise-model.md; columns in docs/formats.md, "Quality columns"):
  * - reported sigmas (sd_east, sd_north, sd_up) are used as given, times noise.reportedSigmaScale;
  * - otherwise the profile's sigma holds at the session's median quality and is scaled by
- *   hdop/median(hdop) (vdop for the vertical, hdop when there is no vdop), by √(median sats / sats),
- *   and by a factor for the fix quality indicator relative to the session's most common one.
+ *   (hdop/median(hdop))^αₕ (vdop for the vertical, hdop when there is no vdop), by
+ *   (median sats / sats)^(αₛ/2), and by a factor for the fix quality indicator relative to the
+ *   session's most common one. The exponents run from 0 (the column says nothing about the error)
+ *   to 1 (the error is proportional to it); the calibration estimates them by maximum likelihood
+ *   (calibrate.ts). perAxis holds the factors at αₕ = αₛ = 1, factorsWithExponents the others.
  * Relative scaling keeps the calibrated sigma meaningful whatever the receiver's DOP convention.
  */
 import type { FixSeries } from '../input/fix-series.js';
@@ -50,6 +53,57 @@ export interface FixSigmaFactors {
   reported: boolean;
   /** Which columns were used. */
   used: string[];
+  /** The quality columns the exponents apply to (none with reported sigmas). */
+  exponents: { hdop: boolean; sats: boolean };
+  /** The session medians the relative factors are taken against (NaN where a column is absent). */
+  medians: { hdop: number; vdop: number; sats: number; fixQualityMode: number };
+}
+
+/**
+ * The logarithms of the relative quality terms of fix i, as written into `out`: [log of the
+ * horizontal DOP ratio, log of the vertical one (hdop's where there is no vdop), ½ log(median sats /
+ * sats), log of the fix quality factor ratio]; 0 for a term whose column is absent or empty.
+ * The factor of axis a under exponents (αₕ, αₛ) is exp(αₕ·out[a<2 ? 0 : 1] + αₛ·out[2] + out[3]).
+ */
+export function qualityLogTerms(s: FixSeries, f: FixSigmaFactors, i: number, out: Float64Array): void {
+  const q = s.quality;
+  const hd = q.hdop, vd = q.vdop, sats = q.sats, fq = q.fixQuality;
+  const { hdop: mh, vdop: mv, sats: ms, fixQualityMode: mq } = f.medians;
+  let lh = 0, lv = 0, ls = 0, lq = 0;
+  if (hd && Number.isFinite(mh) && hd[i]! > 0) lh = Math.log(hd[i]! / mh);
+  if (vd && Number.isFinite(mv) && vd[i]! > 0) lv = Math.log(vd[i]! / mv);
+  else lv = lh;
+  if (sats && Number.isFinite(ms) && sats[i]! > 0) ls = 0.5 * Math.log(ms / Math.max(sats[i]!, 3));
+  if (fq && Number.isFinite(mq) && Number.isFinite(fq[i]!)) lq = Math.log((FIX_QUALITY_FACTOR[fq[i]!] ?? 1) / (FIX_QUALITY_FACTOR[mq] ?? 1));
+  out[0] = lh;
+  out[1] = lv;
+  out[2] = ls;
+  out[3] = lq;
+}
+
+/** The last exponents' factors of each FixSigmaFactors (the final run and the review build them once). */
+const withExponents = new WeakMap<FixSigmaFactors, { aH: number; aS: number; perAxis: [Float64Array, Float64Array, Float64Array] }>();
+
+/**
+ * Per-fix factors (east, north, up) under exponents αₕ (DOP) and αₛ (satellite count): perAxis itself
+ * at 1 and 1 (or where the exponents do not apply), otherwise exp(αₕ·log DOP ratio + αₛ·½ log sats
+ * ratio + log fix quality ratio) per fix (qualityLogTerms). The last result is kept.
+ */
+export function factorsWithExponents(s: FixSeries, f: FixSigmaFactors, aH = 1, aS = 1): [Float64Array, Float64Array, Float64Array] {
+  if ((aH === 1 || !f.exponents.hdop) && (aS === 1 || !f.exponents.sats)) return f.perAxis;
+  const c = withExponents.get(f);
+  if (c && c.aH === aH && c.aS === aS) return c.perAxis;
+  const n = s.n;
+  const fh = new Float64Array(n), fv = new Float64Array(n);
+  const t = new Float64Array(4);
+  for (let i = 0; i < n; i++) {
+    qualityLogTerms(s, f, i, t);
+    fh[i] = Math.exp(aH * t[0]! + aS * t[2]! + t[3]!);
+    fv[i] = Math.exp(aH * t[1]! + aS * t[2]! + t[3]!);
+  }
+  const perAxis: [Float64Array, Float64Array, Float64Array] = [fh, fh, fv];
+  withExponents.set(f, { aH, aS, perAxis });
+  return perAxis;
 }
 
 export function fixSigmaFactors(s: FixSeries): FixSigmaFactors {
@@ -67,6 +121,7 @@ export function fixSigmaFactors(s: FixSeries): FixSigmaFactors {
   if (sats && Number.isFinite(ms)) used.push('sats');
   if (fq && Number.isFinite(mq)) used.push('fix_quality');
   const qRef = FIX_QUALITY_FACTOR[mq] ?? 1;
+  const medians = { hdop: mh, vdop: mv, sats: ms, fixQualityMode: mq };
   for (let i = 0; i < n; i++) {
     let h = 1, v = 1;
     if (hd && Number.isFinite(mh) && hd[i]! > 0) h *= hd[i]! / mh;
@@ -101,7 +156,8 @@ export function fixSigmaFactors(s: FixSeries): FixSigmaFactors {
       }
       return f;
     }) as [Float64Array, Float64Array, Float64Array];
-    return { perAxis: out, reported: true, used };
+    return { perAxis: out, reported: true, used, exponents: { hdop: false, sats: false }, medians };
   }
-  return { perAxis: [fh, fh, fv], reported: false, used };
+  const exponents = { hdop: used.includes('hdop') || used.includes('vdop'), sats: used.includes('sats') };
+  return { perAxis: [fh, fh, fv], reported: false, used, exponents, medians };
 }

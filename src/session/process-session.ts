@@ -10,7 +10,7 @@ import type { SegmentData, FilterOptions } from '../estimation/track-filter.js';
 import { covStride } from '../estimation/track-filter.js';
 import { errorEllipse } from '../output/ellipse.js';
 import { epochGrid, nominalIntervalSec, splitSegments } from './segments.js';
-import { fixSigmaFactors } from './fix-noise.js';
+import { factorsWithExponents, fixSigmaFactors } from './fix-noise.js';
 import { DEFAULT_CALIBRATION, FIRST_ROUND, calibrateSession, calibrationWindows, sliceSegment } from './calibrate.js';
 import { reviewSegment, type ReviewOptions, type ReviewOutcome } from './review.js';
 import { buildOutliersAndMetrics } from './products.js';
@@ -100,7 +100,13 @@ export interface AxisParams {
   sigmaVerticalM: number;
   gmHorizontalSigmaM: number;
   gmVerticalSigmaM: number;
+  /** Time constant of the horizontal (east, north) correlated error (s). */
   gmTauSec: number;
+  /** Time constant of the vertical correlated error (s); gmTauSec when absent. */
+  gmVerticalTauSec?: number;
+  /** Exponents of the quality columns in the per-fix white sigma (fix-noise.ts); 1 (proportional) when absent. */
+  hdopExponent?: number;
+  satsExponent?: number;
 }
 
 /** Model parameters from the configuration; with reported per-fix sigmas the white "sigma" is their scale. */
@@ -114,13 +120,14 @@ export function axisParamsFromConfig(cfg: HindcastConfig, reportedSigmas = false
     gmHorizontalSigmaM: cfg.noise.correlatedHorizontalSigmaM,
     gmVerticalSigmaM: cfg.noise.correlatedVerticalSigmaM,
     gmTauSec: cfg.noise.correlationTimeSec,
+    gmVerticalTauSec: cfg.noise.verticalCorrelationTimeSec ?? cfg.noise.correlationTimeSec,
   };
 }
 
 export function buildAxisModels(p: AxisParams, withHeight: boolean): AxisModel[] {
   const h = makeAxisModel({ motion: p.motion, q: p.qHorizontal, gm: { sigmaM: p.gmHorizontalSigmaM, tauSec: p.gmTauSec } });
   const models = [h, h];
-  if (withHeight) models.push(makeAxisModel({ motion: p.motion, q: p.qVertical, gm: { sigmaM: p.gmVerticalSigmaM, tauSec: p.gmTauSec } }));
+  if (withHeight) models.push(makeAxisModel({ motion: p.motion, q: p.qVertical, gm: { sigmaM: p.gmVerticalSigmaM, tauSec: p.gmVerticalTauSec ?? p.gmTauSec } }));
   return models;
 }
 
@@ -227,7 +234,8 @@ function fillSegment(ps: PreparedSession, fix: Int32Array, p: AxisParams, from: 
   const z = Array.from({ length: nAx }, () => new Float64Array(N).fill(NaN));
   const r = Array.from({ length: nAx }, () => new Float64Array(N).fill(NaN));
   const use = new Uint8Array(N);
-  const f = ps.factors;
+  // the per-fix factors under the parameters' quality-column exponents (perAxis itself at 1, 1)
+  const perAxis = factorsWithExponents(ps.series, ps.factors, p.hdopExponent, p.satsExponent);
   for (let k = 0; k < N; k++) {
     const i = fix[from + k]!;
     if (i < 0 || !ps.offered[i]) continue;
@@ -237,7 +245,7 @@ function fillSegment(ps: PreparedSession, fix: Int32Array, p: AxisParams, from: 
     if (nAx === 3) z[2]![k] = ps.u[i]!;
     for (let a = 0; a < nAx; a++) {
       // σ = base · factor (base: white sigma in m, or the scale of reported sigmas)
-      const sigma = (a < 2 ? p.sigmaHorizontalM : p.sigmaVerticalM) * f.perAxis[a]![i]!;
+      const sigma = (a < 2 ? p.sigmaHorizontalM : p.sigmaVerticalM) * perAxis[a]![i]!;
       r[a]![k] = sigma * sigma;
     }
   }

@@ -14,6 +14,8 @@ export interface ErrorModel {
   gmSigmaHM: number;
   gmSigmaVM: number;
   gmTauSec: number;
+  /** Time constant of the vertical correlated error (s); gmTauSec when absent. */
+  gmTauVSec?: number;
   /** Mean number of outlier bursts per 100 fixes. */
   burstsPer100: number;
   burstMinM: number;
@@ -25,6 +27,12 @@ export interface ErrorModel {
   nullIslandRows: number;
   /** Scale the white noise by a varying HDOP (and write it). */
   varyHdop: boolean;
+  /**
+   * How strongly the white noise follows the written HDOP: its sigma is scaled by (hdop/1.1)^this
+   * (1 when absent: proportional; 0: the column varies but says nothing about the error; the
+   * satellite count follows HDOP either way).
+   */
+  hdopInfluence?: number;
 }
 
 export interface ScenarioSpec {
@@ -136,12 +144,15 @@ export function degradeAlong(rng: Rng, E: ErrorModel, o: DegradeOptions): Simula
   let burst: [number, number, number] = [0, 0, 0];
   const fixes: SimulatedFix[] = [];
   const dt = o.dtSec;
-  const phi = Math.exp(-dt / E.gmTauSec);
+  const phiH = Math.exp(-dt / E.gmTauSec);
+  const phiV = Math.exp(-dt / (E.gmTauVSec ?? E.gmTauSec));
+  const influence = E.hdopInfluence ?? 1;
   for (let k = 0; k < o.count; k++) {
     const tRel = k * dt;
     // time-correlated error evolves every epoch, also through gaps
     for (let a = 0; a < 3; a++) {
       const s = a < 2 ? E.gmSigmaHM : E.gmSigmaVM;
+      const phi = a < 2 ? phiH : phiV;
       gm[a] = phi * gm[a]! + Math.sqrt(1 - phi * phi) * s * rng.normal();
     }
     if (E.varyHdop) hdop = Math.min(3, Math.max(0.7, hdop + 0.03 * rng.normal() * Math.sqrt(dt) + 0.01 * (1.1 - hdop) * dt));
@@ -156,7 +167,8 @@ export function degradeAlong(rng: Rng, E: ErrorModel, o: DegradeOptions): Simula
     if (burstLeft > 0) burstLeft--;
     if (inGap) continue;
     const tr = o.truthEnuAt(tRel);
-    const wf = E.varyHdop ? hdop / 1.1 : 1;
+    // the white sigma follows HDOP to the power `influence` (1: exactly, as written to the column)
+    const wf = E.varyHdop ? (influence === 1 ? hdop / 1.1 : Math.pow(hdop / 1.1, influence)) : 1;
     const eM = tr[0] + gm[0]! + wf * E.whiteSigmaHM * rng.normal() + (isOutlier ? burst[0] : 0);
     const nM = tr[1] + gm[1]! + wf * E.whiteSigmaHM * rng.normal() + (isOutlier ? burst[1] : 0);
     const uM = tr[2] + gm[2]! + wf * E.whiteSigmaVM * rng.normal() + (isOutlier ? burst[2] : 0);

@@ -1,20 +1,76 @@
 /**
- * calibrateSession of src/session/calibrate.ts in its former form (every
- * evaluation of the objective ran forwardFilter with the likelihood over the subset and summed its
- * history with totalLogLik), kept verbatim as the reference for the bit-for-bit test of the current
- * form (test/session/calibrate-loglik.test.ts). The helpers it shares with the current module
- * (bounds, windows, slicing) are imported from there unchanged.
+ * calibrateSession of src/session/calibrate.ts with the objective in its general form (every
+ * evaluation runs forwardFilter with the likelihood over the subset and sums its history with
+ * totalLogLik), kept as the reference for the bit-for-bit test of the module's objective, which
+ * takes forwardLogLik where it applies (test/session/calibrate-loglik.test.ts). It carries the
+ * module's parameters (the vertical time constant, the quality columns' exponents, the thinning of
+ * fast logs); only the objective's evaluation differs.
  * Sources: as calibrate.ts (Schweppe 1965; Harvey 1989 §3.4; Nelder & Mead 1965).
  */
 import { Matrix, inverse } from 'ml-matrix';
 import type { HindcastConfig } from '../../src/config/schema.js';
 import { nelderMead, numericalHessian } from '../../src/estimation/nelder-mead.js';
-import { allocateHistory, forwardFilter, totalLogLik, type FilterHistory, type SegmentData } from '../../src/estimation/track-filter.js';
-import { buildAxisModels, filterOptions, segmentData, type AxisParams, type PreparedSession } from '../../src/session/process-session.js';
+import { allocateHistory, forwardFilter, sameHorizontalInputs, totalLogLik, type FilterHistory, type SegmentData } from '../../src/estimation/track-filter.js';
+import { buildAxisModels, filterOptions, segmentData, segmentDataRange, segmentGrid, type AxisParams, type PreparedSession } from '../../src/session/process-session.js';
 import { selectKth } from '../../src/estimation/select.js';
-import { DEFAULT_CALIBRATION, PARAM_BOUNDS, calibrationWindows, sliceSegment, type CalibrationInfo, type CalibrationOptions } from '../../src/session/calibrate.js';
+import { qualityLogTerms } from '../../src/session/fix-noise.js';
+import { DEFAULT_CALIBRATION, type CalibrationInfo, type CalibrationOptions } from '../../src/session/calibrate.js';
 
-type ParamName = 'sigmaHorizontalM' | 'sigmaVerticalM' | 'gmHorizontalSigmaM' | 'gmVerticalSigmaM' | 'gmTauSec' | 'qHorizontal' | 'qVertical';
+type ParamName = 'sigmaHorizontalM' | 'sigmaVerticalM' | 'gmHorizontalSigmaM' | 'gmVerticalSigmaM' | 'gmTauSec' | 'gmVerticalTauSec' | 'qHorizontal' | 'qVertical' | 'hdopExponent' | 'satsExponent';
+
+/** Parameters searched on their own scale (the exponents of the quality columns, 0 to 1); the others in log space. */
+const LINEAR: ReadonlySet<ParamName> = new Set(['hdopExponent', 'satsExponent']);
+
+/** Physical bounds of each parameter. */
+export const PARAM_BOUNDS: Record<ParamName, [number, number]> = {
+  sigmaHorizontalM: [0.005, 200],
+  sigmaVerticalM: [0.005, 400],
+  gmHorizontalSigmaM: [0.01, 100],
+  gmVerticalSigmaM: [0.01, 200],
+  gmTauSec: [2, 3600],
+  gmVerticalTauSec: [2, 3600],
+  qHorizontal: [1e-6, 1e3],
+  qVertical: [1e-7, 1e3],
+  hdopExponent: [0, 1],
+  satsExponent: [0, 1],
+};
+
+interface ParamEstimate {
+  value: number;
+  /** Standard error (same unit); NaN where the information matrix was not positive definite. */
+  se: number;
+  /** True when the estimate sits at a bound (the standard error is then not meaningful). */
+  atBound: boolean;
+}
+
+interface CalibrationInfoLocal {
+  method: string;
+  status: 'estimated' | 'fallback';
+  reason?: string;
+  epochsUsed: number;
+  logLikelihood: number;
+  evaluations: number;
+  estimates: Partial<Record<ParamName, ParamEstimate>>;
+  /** Whether the white sigmas are a scale of the log's reported sigmas. */
+  reportedSigmaScale: boolean;
+}
+
+interface CalibrationOptionsLocal {
+  maxEpochs: number;
+  minFixes: number;
+  minDurationSec: number;
+  maxEvaluations: number;
+  /**
+   * Standard errors from the numerical Hessian (about 2n² evaluations more); off for a round whose
+   * estimates only start the next one (processSession's first round: the second's replace them).
+   */
+  standardErrors?: boolean;
+}
+
+const DEFAULT_CALIBRATION_LOCAL: CalibrationOptionsLocal = { maxEpochs: 4000, minFixes: 120, minDurationSec: 180, maxEvaluations: 500 };
+
+/** The first of processSession's two rounds: its estimates start the second, which replaces them, so no standard errors. */
+
 
 /**
  * Prior spread (log space) per parameter. White noise and process noise are well identified by the
@@ -32,42 +88,149 @@ const PRIOR_LOG_SD: Record<ParamName, number> = {
   gmHorizontalSigmaM: Math.log(1.3),
   gmVerticalSigmaM: Math.log(1.3),
   gmTauSec: Math.log(2),
+  gmVerticalTauSec: Math.log(2),
   qHorizontal: Math.log(10),
   qVertical: Math.log(10),
+  // no prior: flat between "ignore" (0) and "proportional" (1)
+  hdopExponent: Infinity,
+  satsExponent: Infinity,
 };
 
-/** Segment data of the calibration subset (calibrationWindows), with each item's segment and first epoch in it. */
-function calibrationSubset(ps: PreparedSession, base: AxisParams, bridgeFactor: number, maxEpochs: number): Array<{ seg: number; start: number; data: SegmentData }> {
-  // unit white sigma: the objective scales the variances per evaluation
-  const unit = { ...base, sigmaHorizontalM: 1, sigmaVerticalM: 1 };
-  const windows = calibrationWindows(ps, bridgeFactor, maxEpochs);
-  const out: Array<{ seg: number; start: number; data: SegmentData }> = [];
-  if (!windows) {
-    for (let si = 0; si < ps.segments.length; si++) {
-      const { data } = segmentData(ps, ps.segments[si]!, unit, bridgeFactor);
-      if (data.N >= 3) out.push({ seg: si, start: 0, data });
-    }
-    return out;
+/** Number of contiguous chunks the calibration subset of a long log is made of. */
+const CALIBRATION_CHUNKS = 4;
+
+/**
+ * Longest epoch interval (s) the calibration thins a fast log to: a log of more than maxEpochs
+ * epochs at a rate above 1 Hz is read at every stride-th epoch (a 10 Hz log at down to 1 Hz), so
+ * that the epochs calibrated span minutes to hours rather than four windows of 100 s. The model is
+ * in continuous time, so the thinned log has the same parameters; what is lost is some of the
+ * white noise's information, which a fast log has in excess. Measured (docs/noise-model.md): a 24-
+ * minute 10 Hz van log read in four 100 s windows put the correlated error's time constant at
+ * 227–245 s for 60 s and its vertical sigma at 2.5–2.7 m for 1.4 m (coverage 1.000).
+ */
+const CALIBRATION_MAX_INTERVAL_SEC = 1;
+
+/** The usable epochs of each segment (segments of 3 epochs or more) and their total. */
+function usableSegments(ps: PreparedSession, bridgeFactor: number): { segs: Array<{ seg: number; N: number }>; total: number } {
+  const segs: Array<{ seg: number; N: number }> = [];
+  let total = 0;
+  for (let si = 0; si < ps.segments.length; si++) {
+    const N = segmentGrid(ps, ps.segments[si]!, bridgeFactor).tSec.length;
+    if (N < 3) continue;
+    segs.push({ seg: si, N });
+    total += N;
   }
-  const whole = new Map<number, SegmentData>();
-  for (const { seg, start, len } of windows) {
-    let data = whole.get(seg);
-    if (!data) whole.set(seg, (data = segmentData(ps, ps.segments[seg]!, unit, bridgeFactor).data));
-    out.push({ seg, start, data: sliceSegment(data, start, start + len) });
+  return { segs, total };
+}
+
+/**
+ * The calibration's thinning stride: 1 for a log of at most maxEpochs epochs or at 1 Hz or slower;
+ * otherwise the smallest stride that brings the log to maxEpochs, at most the one that reaches
+ * CALIBRATION_MAX_INTERVAL_SEC.
+ */
+function calibrationStride(ps: PreparedSession, bridgeFactor: number, maxEpochs: number): number {
+  const { total } = usableSegments(ps, bridgeFactor);
+  if (total <= maxEpochs || !(ps.intervalSec > 0)) return 1;
+  // + 0.01: an interval of 0.2 s measured as 0.2000001 (times in ms) must still give 5
+  const maxStride = Math.max(1, Math.floor(CALIBRATION_MAX_INTERVAL_SEC / ps.intervalSec + 0.01));
+  return Math.min(maxStride, Math.ceil(total / maxEpochs));
+}
+
+/**
+ * Where the calibration subset lies: null when the log (at most maxEpochs epochs after thinning by
+ * calibrationStride, over its segments of 3 epochs or more) is used whole; otherwise
+ * CALIBRATION_CHUNKS contiguous chunks of maxEpochs / CALIBRATION_CHUNKS thinned epochs (that many
+ * times the stride at the log's own rate) centred at equal steps through the log, each kept inside
+ * its segment, as [segment index, first epoch, epoch count] at the log's own rate. So the cost of
+ * calibration does not grow with the log while it still sees its beginning, middle and end.
+ */
+function calibrationWindows(ps: PreparedSession, bridgeFactor: number, maxEpochs: number): Array<{ seg: number; start: number; len: number }> | null {
+  const { segs, total } = usableSegments(ps, bridgeFactor);
+  const stride = calibrationStride(ps, bridgeFactor, maxEpochs);
+  if (total <= maxEpochs * stride) return null;
+  const L = Math.floor(maxEpochs / CALIBRATION_CHUNKS) * stride;
+  const out: Array<{ seg: number; start: number; len: number }> = [];
+  for (let c = 0; c < CALIBRATION_CHUNKS; c++) {
+    // chunk centred at (c + ½)/C of the concatenated epochs, kept inside its segment
+    let pos = Math.floor(((c + 0.5) / CALIBRATION_CHUNKS) * total);
+    let j = 0;
+    while (pos >= segs[j]!.N) pos -= segs[j++]!.N;
+    const { seg, N } = segs[j]!;
+    const len = Math.min(L, N);
+    const start = Math.max(0, Math.min(pos - (len >> 1), N - len));
+    out.push({ seg, start, len });
   }
   return out;
 }
 
+/** One item of the calibration subset: its segment, first epoch there, the filter inputs and the fix of each epoch (−1 for none). */
+interface SubsetItem {
+  seg: number;
+  start: number;
+  data: SegmentData;
+  fix: Int32Array;
+}
+
+/** Segment data of the calibration subset (calibrationWindows) at the log's own rate, with each item's segment, first epoch and fixes. */
+function calibrationSubset(ps: PreparedSession, base: AxisParams, bridgeFactor: number, maxEpochs: number): SubsetItem[] {
+  // unit white sigma and the proportional factors: the objective scales the variances per evaluation
+  const unit = { ...base, sigmaHorizontalM: 1, sigmaVerticalM: 1, hdopExponent: 1, satsExponent: 1 };
+  const windows = calibrationWindows(ps, bridgeFactor, maxEpochs);
+  const out: SubsetItem[] = [];
+  if (!windows) {
+    for (let si = 0; si < ps.segments.length; si++) {
+      const { data, fix } = segmentData(ps, ps.segments[si]!, unit, bridgeFactor);
+      if (data.N >= 3) out.push({ seg: si, start: 0, data, fix });
+    }
+    return out;
+  }
+  // each chunk alone (the same values as the slice of its whole segment's data)
+  for (const { seg, start, len } of windows) {
+    const fix = segmentGrid(ps, ps.segments[seg]!, bridgeFactor).fix.subarray(start, start + len);
+    out.push({ seg, start, data: segmentDataRange(ps, ps.segments[seg]!, unit, bridgeFactor, start, start + len), fix });
+  }
+  return out;
+}
+
+/** Every stride-th epoch of d (from its first), with its fixes. */
+function thin(d: SegmentData, fix: Int32Array, stride: number): { data: SegmentData; fix: Int32Array } {
+  if (stride === 1) return { data: d, fix };
+  const N = Math.ceil(d.N / stride);
+  const pick = <T extends Float64Array | Uint8Array | Int32Array>(a: T, make: (n: number) => T): T => {
+    const o = make(N);
+    for (let k = 0; k < N; k++) o[k] = a[k * stride]!;
+    return o;
+  };
+  const f64 = (n: number) => new Float64Array(n);
+  return {
+    data: { N, tSec: pick(d.tSec, f64), z: d.z.map((a) => pick(a, f64)), r: d.r.map((a) => pick(a, f64)), use: pick(d.use, (n) => new Uint8Array(n)) },
+    fix: pick(fix, (n) => new Int32Array(n)),
+  };
+}
+
+function sliceSegment(d: SegmentData, from: number, to: number): SegmentData {
+  return { N: to - from, tSec: d.tSec.subarray(from, to), z: d.z.map((a) => a.subarray(from, to)), r: d.r.map((a) => a.subarray(from, to)), use: d.use.subarray(from, to) };
+}
+
 /** The item from its first epoch that carries a fix (the forward filter starts on one), or null when fewer than 3 epochs remain. */
-function startOnFix(d: SegmentData): SegmentData | null {
+function startOnFix(d: SegmentData, fix: Int32Array): { data: SegmentData; fix: Int32Array } | null {
   let k = 0;
   while (k < d.N && d.use[k] === 0) k++;
   if (d.N - k < 3) return null;
-  return k === 0 ? d : sliceSegment(d, k, d.N);
+  return k === 0 ? { data: d, fix } : { data: sliceSegment(d, k, d.N), fix: fix.subarray(k) };
 }
+
+/** horizontalExtentM of a prepared session (both calibration rounds read it). */
+const extents = new WeakMap<PreparedSession, number>();
 
 /** Robust spread (m) of the horizontal fixes: the larger of the 5–95 % ranges of east and north. */
 function horizontalExtentM(ps: PreparedSession): number {
+  let v = extents.get(ps);
+  if (v === undefined) extents.set(ps, (v = horizontalExtentOf(ps)));
+  return v;
+}
+
+function horizontalExtentOf(ps: PreparedSession): number {
   const ext = (a: Float64Array) => {
     // the 5% and 95% order statistics, selected without sorting (the values of the sorted array)
     const all = new Float64Array(a.length);
@@ -110,7 +273,10 @@ export function refCalibrateSession(
   if (t1 - t0 < opt.minDurationSec) return fallback(`only ${Math.round(t1 - t0)} s of fixes (needs ${opt.minDurationSec} s)`);
 
   const names: ParamName[] = ['sigmaHorizontalM', 'gmHorizontalSigmaM', 'gmTauSec'];
+  // the vertical correlation time: its own parameter, or the horizontal one's value (noise.verticalCorrelationTime)
+  const ownTauV = ps.hasHeight && cfg.noise.verticalCorrelationTime === 'own';
   if (ps.hasHeight) names.splice(1, 0, 'sigmaVerticalM'), names.push('gmVerticalSigmaM');
+  if (ownTauV) names.push('gmVerticalTauSec');
   // A static log is estimated like any other: its process noise goes to (near) its lower bound, and
   // with the motion model still, the wander of the fixes is the correlated error, which is then well
   // identified. Measured on 2-hour static logs (test/session/consistency.test.ts): holding q at the
@@ -120,6 +286,11 @@ export function refCalibrateSession(
   if (staticLog) warnings.push('the log looks static (fixes spread less than a few sigmas): the motion model is estimated as (nearly) still');
   names.push('qHorizontal');
   if (ps.hasHeight) names.push('qVertical');
+  // how far the quality columns predict the error: an exponent each, 0 (ignore) to 1 (proportional)
+  const ex = ps.factors.exponents;
+  if (ex.hdop) names.push('hdopExponent');
+  if (ex.sats) names.push('satsExponent');
+  const withExponents = ex.hdop || ex.sats;
   const chunks = calibrationSubset(ps, prior, cfg.segments.bridgeFactor, opt.maxEpochs);
   // held-fixed outlier decisions (2 kept without gate, 0 rejected) replace the gate when given
   if (useOverride)
@@ -127,34 +298,83 @@ export function refCalibrateSession(
       const u = useOverride.get(item.seg);
       if (u) item.data = { ...item.data, use: u.subarray(item.start, item.start + item.data.N) };
     }
-  const subset: Array<{ data: SegmentData }> = [];
+  const stride = calibrationStride(ps, cfg.segments.bridgeFactor, opt.maxEpochs);
+  // with whether east and north have the same inputs (a property of the data alone, so found once),
+  // and, where the exponents are estimated, the log quality terms of each epoch's fix (qualityLogTerms)
+  const subset: Array<{ data: SegmentData; sameInputs: boolean; terms: Float64Array | null }> = [];
+  const lt = new Float64Array(4);
   for (const item of chunks) {
+    const thinned = thin(item.data, item.fix, stride);
     // a whole segment starts on its first fix already (kept as it is, also under held-fixed decisions)
-    const d = item.start > 0 ? startOnFix(item.data) : item.data;
-    if (d) subset.push({ data: d });
+    const d = item.start > 0 ? startOnFix(thinned.data, thinned.fix) : thinned;
+    if (!d) continue;
+    let terms: Float64Array | null = null;
+    if (withExponents) {
+      terms = new Float64Array(4 * d.data.N);
+      for (let k = 0; k < d.data.N; k++) {
+        const i = d.fix[k]!;
+        if (i < 0) continue;
+        qualityLogTerms(ps.series, ps.factors, i, lt);
+        terms.set(lt, 4 * k);
+      }
+    }
+    subset.push({ data: d.data, sameInputs: sameHorizontalInputs(d.data), terms });
   }
   const epochsUsed = subset.reduce((a, d) => a + d.data.N, 0);
-  const clampLog = (nm: ParamName, v: number) => Math.log(Math.min(Math.max(v, PARAM_BOUNDS[nm][0]), PARAM_BOUNDS[nm][1]));
-  // the prior is centred on the profile; the search starts from `start` (an earlier round) when given
-  const xPrior = names.map((nm) => clampLog(nm, prior[nm]));
-  const x0 = names.map((nm) => clampLog(nm, (start ?? prior)[nm]));
+  const toX = (nm: ParamName, v: number) => {
+    const c = Math.min(Math.max(v, PARAM_BOUNDS[nm][0]), PARAM_BOUNDS[nm][1]);
+    return LINEAR.has(nm) ? c : Math.log(c);
+  };
+  const fromX = (nm: ParamName, x: number) => (LINEAR.has(nm) ? x : Math.exp(x));
+  // the prior is centred on the profile; the search starts from `start` (an earlier round) when given;
+  // the exponents start half-way (the profile states none) unless an earlier round estimated them
+  const startOf = (p: AxisParams, nm: ParamName): number => (LINEAR.has(nm) ? (p[nm] as number | undefined) ?? 0.5 : (p[nm] as number | undefined) ?? (nm === 'gmVerticalTauSec' ? p.gmTauSec : NaN));
+  const xPrior = names.map((nm) => toX(nm, startOf(prior, nm)));
+  const x0 = names.map((nm) => toX(nm, startOf(start ?? prior, nm)));
   const base = start ?? prior;
   const histories = new Map<SegmentData, FilterHistory>();
   const fopt = filterOptions(cfg, prior);
+  // no re-acquisition here: its covariance inflation would explain manoeuvres for free
 
   const toParams = (x: number[]): AxisParams => {
     const p = { ...base };
-    names.forEach((nm, i) => (p[nm] = Math.exp(x[i]!)));
+    names.forEach((nm, i) => ((p as Record<ParamName, number>)[nm] = fromX(nm, x[i]!)));
+    if (!ownTauV) p.gmVerticalTauSec = p.gmTauSec;
     return p;
   };
+  const iTauH = names.indexOf('gmTauSec'), iTauV = names.indexOf('gmVerticalTauSec');
+  // the exponents the subset's r holds (NaN: not yet written)
+  let rExp = [NaN, NaN];
   const negLogLik = (x: number[]): number => {
     for (let i = 0; i < names.length; i++) {
-      const [lo, hi] = PARAM_BOUNDS[names[i]!];
-      if (x[i]! < Math.log(lo) || x[i]! > Math.log(hi)) return Infinity;
+      const nm = names[i]!;
+      const [lo, hi] = PARAM_BOUNDS[nm];
+      if (x[i]! < toX(nm, lo) || x[i]! > toX(nm, hi)) return Infinity;
     }
     const p = toParams(x);
     const models = buildAxisModels(p, ps.hasHeight);
     const rScale = [p.sigmaHorizontalM ** 2, p.sigmaHorizontalM ** 2, p.sigmaVerticalM ** 2];
+    if (withExponents) {
+      const aH = p.hdopExponent ?? 1, aS = p.satsExponent ?? 1;
+      if (aH !== rExp[0] || aS !== rExp[1]) {
+        // r = factor² at unit sigma: factor = exp(αₕ·log DOP ratio + αₛ·½ log sats ratio + log fix quality ratio)
+        for (const { data: d, terms } of subset) {
+          const rE = d.r[0]!, rN = d.r[1]!, rU = d.r[2];
+          for (let k = 0; k < d.N; k++) {
+            if (!Number.isFinite(rE[k]!)) continue;
+            const o = 4 * k;
+            const fh = Math.exp(aH * terms![o]! + aS * terms![o + 2]! + terms![o + 3]!);
+            rE[k] = fh * fh;
+            rN[k] = fh * fh;
+            if (rU && Number.isFinite(rU[k]!)) {
+              const fv = Math.exp(aH * terms![o + 1]! + aS * terms![o + 2]! + terms![o + 3]!);
+              rU[k] = fv * fv;
+            }
+          }
+        }
+        rExp = [aH, aS];
+      }
+    }
     let ll = 0;
     for (const { data: d } of subset) {
       let h = histories.get(d);
@@ -168,14 +388,20 @@ export function refCalibrateSession(
       forwardFilter(models, d, { ...fopt, rScale, reacquireAfter: Number.MAX_SAFE_INTEGER, likelihood: true }, h);
       ll += totalLogLik(h);
     }
-    // weak log-normal prior around the profile
+    // weak log-normal prior around the profile (none on the exponents: flat between their bounds)
+    // (the vertical time constant's is centred on the horizontal one: it departs from it where the
+    // vertical series says so, and follows it where that series says little)
     let pen = 0;
-    for (let i = 0; i < names.length; i++) pen += 0.5 * ((x[i]! - xPrior[i]!) / PRIOR_LOG_SD[names[i]!]) ** 2;
+    for (let i = 0; i < names.length; i++) {
+      const sd = PRIOR_LOG_SD[names[i]!];
+      const centre = i === iTauV ? x[iTauH]! : xPrior[i]!;
+      if (Number.isFinite(sd)) pen += 0.5 * ((x[i]! - centre) / sd) ** 2;
+    }
     return -ll + pen;
   };
   // two restarts: the second from the first optimum, which escapes early simplex collapse
-  let res = nelderMead(negLogLik, x0, { step: names.map(() => 0.7), maxEvaluations: Math.floor(opt.maxEvaluations * 0.6), fTolerance: 1e-2, xTolerance: 1e-2 });
-  const res2 = nelderMead(negLogLik, res.x, { step: names.map(() => 0.25), maxEvaluations: Math.floor(opt.maxEvaluations * 0.4), fTolerance: 1e-3, xTolerance: 5e-3 });
+  let res = nelderMead(negLogLik, x0, { step: names.map((nm) => (LINEAR.has(nm) ? 0.3 : 0.7)), maxEvaluations: Math.floor(opt.maxEvaluations * 0.6), fTolerance: 1e-2, xTolerance: 1e-2 });
+  const res2 = nelderMead(negLogLik, res.x, { step: names.map((nm) => (LINEAR.has(nm) ? 0.1 : 0.25)), maxEvaluations: Math.floor(opt.maxEvaluations * 0.4), fTolerance: 1e-3, xTolerance: 5e-3 });
   const evaluations = res.evaluations + res2.evaluations;
   if (res2.f <= res.f) res = res2;
   const params = toParams(res.x);
@@ -185,7 +411,9 @@ export function refCalibrateSession(
   const estimates: CalibrationInfo['estimates'] = {};
   const atBound = names.map((nm) => {
     const [lo, hi] = PARAM_BOUNDS[nm];
-    return params[nm] <= lo * 1.05 || params[nm] >= hi / 1.05;
+    const v = params[nm] as number;
+    // the exponents: within 0.02 of 0 or 1; the others within 5%
+    return LINEAR.has(nm) ? v <= lo + 0.02 || v >= hi - 0.02 : v <= lo * 1.05 || v >= hi / 1.05;
   });
   const free = names.map((_, i) => i).filter((i) => !atBound[i]);
   const seLog: number[] = names.map(() => NaN);
@@ -209,9 +437,9 @@ export function refCalibrateSession(
     }
   }
   names.forEach((nm, i) => {
-    const v = params[nm];
-    // delta method: se(θ) ≈ θ · se(log θ)
-    estimates[nm] = { value: v, se: v * seLog[i]!, atBound: atBound[i]! };
+    const v = params[nm] as number;
+    // delta method: se(θ) ≈ θ · se(log θ) (the exponents: their own scale)
+    estimates[nm] = { value: v, se: LINEAR.has(nm) ? seLog[i]! : v * seLog[i]!, atBound: atBound[i]! };
   });
   return {
     params,

@@ -117,7 +117,7 @@ describe('report payload', () => {
 
   test('a calibrated session carries its calibration line into the payload', () => {
     const p = reportPayload(vehicle());
-    expect(p.calibrationLine).toMatch(/^white \S+ ± \S+ \/ \S+ ± \S+ m; correlated .* time constant .* s; process noise .* m²\/s³ \(horizontal \/ vertical; ± standard error; \d+ epochs\)$/);
+    expect(p.calibrationLine).toMatch(/^white \S+ ± \S+ \/ \S+ ± \S+ m; correlated .* time constant .* s; process noise .* m²\/s³ \(horizontal \/ vertical; ± standard error; \d+ epochs\); quality-column exponents DOP \S+( ± \S+| \(at its bound\)), satellite count \S+( ± \S+| \(at its bound\)) \(0 ignored, 1 proportional\)$/);
   });
 
   test('the IMU extension picks the plotted epochs of attitude and biases (gyro in deg/h)', () => {

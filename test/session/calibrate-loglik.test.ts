@@ -2,14 +2,15 @@
  * calibrateSession with the objective evaluated by forwardLogLik against its
  * previous form, kept verbatim in test/helpers/reference-calibrate.ts (forwardFilter with the
  * likelihood and totalLogLik at every evaluation): parameters, estimates, standard errors,
- * log-likelihood and evaluation counts compared with Object.is. Cases: a log used whole (short),
- * one taken in chunks (longer than the 4000-epoch subset), one without height, and a second round
+ * log-likelihood and evaluation counts compared with Object.is. Cases: a log used whole (short), a
+ * 5 Hz log used whole after thinning, one taken in thinned chunks (longer than the 4000-epoch
+ * subset even thinned to 1 Hz), one without height, and a second round
  * with held-fixed decisions (kept and rejected fixes, the first epoch of a segment rejected). Seeded.
  */
 import { describe, expect, it } from 'vitest';
 import { loadConfig } from '../../src/config/load.js';
 import { readFixCsv } from '../../src/input/csv-fixes.js';
-import { FIRST_ROUND, calibrateSession, calibrationWindows } from '../../src/session/calibrate.js';
+import { FIRST_ROUND, calibrateSession, calibrationStride, calibrationWindows } from '../../src/session/calibrate.js';
 import { axisParamsFromConfig, prepareSession, segmentData } from '../../src/session/process-session.js';
 import { defaultSpec, scenarioCsv, simulate } from '../../src/simulate/scenario.js';
 import { refCalibrateSession } from '../helpers/reference-calibrate.js';
@@ -50,13 +51,14 @@ function session(seed: number, rateHz: number, durationSec: number, noHeight = f
 
 describe('calibrateSession: the objective without histories against the reference form', () => {
   it.each([
-    ['whole log (1 Hz, 20 min)', 5, 1, 1200, false],
-    ['chunks of a longer log (5 Hz, 20 min)', 6, 5, 1200, false],
-    ['no height (1 Hz, 20 min)', 1, 1, 1200, true],
-  ] as const)('%s: first round', (_name, seed, rateHz, dur, noHeight) => {
+    ['whole log (1 Hz, 20 min)', 5, 1, 1200, false, false, 1],
+    ['whole log thinned (5 Hz, 20 min)', 6, 5, 1200, false, false, 2],
+    ['thinned chunks of a longer log (5 Hz, 80 min)', 6, 5, 4800, false, true, 5],
+    ['no height (1 Hz, 20 min)', 1, 1, 1200, true, false, 1],
+  ] as const)('%s: first round', (_name, seed, rateHz, dur, noHeight, chunked, stride) => {
     const { cfg, ps, prior } = session(seed, rateHz, dur, noHeight);
-    if (rateHz === 5) expect(calibrationWindows(ps, cfg.segments.bridgeFactor, 4000)).not.toBeNull();
-    else expect(calibrationWindows(ps, cfg.segments.bridgeFactor, 4000)).toBeNull();
+    expect(calibrationWindows(ps, cfg.segments.bridgeFactor, 4000) !== null).toBe(chunked);
+    expect(calibrationStride(ps, cfg.segments.bridgeFactor, 4000)).toBe(stride);
     const a = calibrateSession(ps, cfg, prior, FIRST_ROUND);
     const b = refCalibrateSession(ps, cfg, prior, FIRST_ROUND);
     expect(a.info.status).toBe('estimated');

@@ -171,13 +171,16 @@ export function calibrationLine(info: Record<string, unknown> | undefined): stri
   const w = pair('sigmaHorizontalM', 'sigmaVerticalM');
   if (w) parts.push(`white ${w} ${unitW}`);
   const g = pair('gmHorizontalSigmaM', 'gmVerticalSigmaM');
-  const tau = withSe(e.gmTauSec);
+  const tau = e.gmVerticalTauSec !== undefined ? pair('gmTauSec', 'gmVerticalTauSec') : withSe(e.gmTauSec);
   if (g) parts.push(`correlated ${g} m${tau ? `, time constant ${tau} s` : ''}`);
   const q = pair('qHorizontal', 'qVertical');
   if (q) parts.push(`process noise ${q} m²/s³`);
+  // how far the white sigma follows the quality columns (0: not at all, 1: proportionally)
+  const ex = [['DOP', withSe(e.hdopExponent)], ['satellite count', withSe(e.satsExponent)]].filter(([, v]) => v !== undefined).map(([k, v]) => `${k} ${v}`);
+  const exponents = ex.length ? `; quality-column exponents ${ex.join(', ')} (0 ignored, 1 proportional)` : '';
   if (parts.length === 0) return null;
   const epochs = num(cal.epochsUsed);
-  return `${parts.join('; ')} (horizontal / vertical; ± standard error${epochs !== undefined ? `; ${epochs} epochs` : ''})`;
+  return `${parts.join('; ')} (horizontal / vertical; ± standard error${epochs !== undefined ? `; ${epochs} epochs` : ''})${exponents}`;
 }
 
 function facts(r: SessionResult): Array<[string, string]> {

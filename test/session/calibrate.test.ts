@@ -1,0 +1,109 @@
+/**
+ * The calibration's handling of fast logs (thinning), of the quality columns' exponents and of
+ * the vertical correlation time (src/session/calibrate.ts). Seeded simulator logs
+ * (src/simulate/scenario.ts); default configuration unless stated.
+ */
+import { describe, expect, test } from 'vitest';
+import { loadConfig } from '../../src/config/load.js';
+import { readFixCsv } from '../../src/input/csv-fixes.js';
+import { FIRST_ROUND, calibrateSession, calibrationStride, calibrationWindows } from '../../src/session/calibrate.js';
+import { axisParamsFromConfig, buildAxisModels, prepareSession } from '../../src/session/process-session.js';
+import { defaultSpec, scenarioCsv, simulate, type ScenarioSpec } from '../../src/simulate/scenario.js';
+import { runScenario } from '../helpers/score.js';
+
+const cfg = loadConfig();
+
+function prepared(spec: ScenarioSpec, c = cfg) {
+  return prepareSession(readFixCsv(scenarioCsv(simulate(spec)), 's.csv', c), c);
+}
+
+describe('calibrationStride and calibrationWindows (4000-epoch budget)', () => {
+  // rate, duration → stride (smallest that brings the log to 4000 epochs, at most the one reaching 1 s), chunks or whole
+  test.each([
+    [1, 1200, 1, false],
+    [1, 7200, 1, true],
+    [5, 600, 1, false],
+    [5, 1200, 2, false],
+    [10, 1440, 4, false],
+    [10, 6000, 10, true],
+  ] as const)('%i Hz, %i s: stride %i, in chunks: %s', (rateHz, durationSec, stride, chunked) => {
+    const spec = defaultSpec('vehicle', 3, { rateHz, durationSec });
+    spec.errors = { ...spec.errors, gaps: [], burstsPer100: 0 };
+    const ps = prepared(spec);
+    expect(calibrationStride(ps, cfg.segments.bridgeFactor, 4000)).toBe(stride);
+    const w = calibrationWindows(ps, cfg.segments.bridgeFactor, 4000);
+    expect(w !== null).toBe(chunked);
+    // chunks: four, each 1000 thinned epochs (1000 × stride at the log's rate)
+    if (w) for (const c of w) expect(c.len).toBe(1000 * stride);
+  });
+});
+
+describe('the quality columns’ exponents', () => {
+  /** A 10 Hz van whose white noise follows HDOP to the power `influence` (satellite count tied to HDOP). */
+  const van = (seed: number, influence: number): ScenarioSpec => {
+    const s = defaultSpec('vehicle', seed, { rateHz: 10, durationSec: 1440 });
+    s.errors = { ...s.errors, whiteSigmaHM: 0.6, whiteSigmaVM: 1.0, gmSigmaHM: 0.8, gmSigmaVM: 1.4, gmTauSec: 60, burstsPer100: 0.1, hdopInfluence: influence };
+    return s;
+  };
+
+  test('weakly informative HDOP (influence 0.3), 10 Hz, seeds 1–3: DOP exponent ≤ 0.5; clean fixes flagged ≤ 2.5 × the gate’s nominal rate pooled', () => {
+    let fp = 0, clean = 0;
+    for (const seed of [1, 2, 3]) {
+      const sc = simulate(van(seed, 0.3));
+      const { r, s } = runScenario(sc);
+      const est = (r.info.calibration as { estimates: Record<string, { value: number }> }).estimates;
+      console.log(`van seed ${seed}: DOP exponent ${est.hdopExponent!.value.toFixed(3)}, satellite exponent ${est.satsExponent!.value.toFixed(3)}, clean fixes flagged ${s.fp}, precision ${s.precision.toFixed(3)}`);
+      expect(est.hdopExponent!.value).toBeLessThanOrEqual(0.5);
+      fp += s.fp;
+      clean += sc.fixes.filter((f) => !f.outlier && !f.invalid).length;
+    }
+    // nominal: 1 − gate probability per clean fix (before the two-sided review, which re-admits)
+    const nominal = clean * (1 - cfg.gate.probability);
+    console.log(`van pooled: ${fp} clean fixes flagged of ${clean} (nominal ${nominal.toFixed(1)})`);
+    expect(fp).toBeLessThanOrEqual(2.5 * nominal);
+  });
+
+  test.each([1, 2, 3])('proportional HDOP (drone, 5 Hz, seed %i): DOP exponent ≥ 0.7', (seed) => {
+    const ps = prepared(defaultSpec('drone', seed));
+    const { info } = calibrateSession(ps, cfg, axisParamsFromConfig(cfg), FIRST_ROUND);
+    expect(info.estimates.hdopExponent!.value).toBeGreaterThanOrEqual(0.7);
+    expect(info.estimates.satsExponent!.value).toBeGreaterThanOrEqual(0);
+    expect(info.estimates.satsExponent!.value).toBeLessThanOrEqual(1);
+  });
+
+  test('a log without quality columns has no exponents', () => {
+    const spec = defaultSpec('vehicle', 2);
+    spec.errors = { ...spec.errors, varyHdop: false };
+    const ps = prepared(spec);
+    const { info } = calibrateSession(ps, cfg, axisParamsFromConfig(cfg), FIRST_ROUND);
+    expect(info.estimates.hdopExponent).toBeUndefined();
+    expect(info.estimates.satsExponent).toBeUndefined();
+  });
+});
+
+describe('the vertical correlation time', () => {
+  const spec = () => {
+    const s = defaultSpec('vehicle', 4);
+    s.errors = { ...s.errors, gmTauSec: 30, gmTauVSec: 120 };
+    return s;
+  };
+
+  test("'shared' (default): the vertical model uses the horizontal estimate", () => {
+    const ps = prepared(spec());
+    const { params, info } = calibrateSession(ps, cfg, axisParamsFromConfig(cfg), FIRST_ROUND);
+    expect(info.estimates.gmVerticalTauSec).toBeUndefined();
+    expect(params.gmVerticalTauSec).toBe(params.gmTauSec);
+    expect(buildAxisModels(params, true)[2]!.params.gm!.tauSec).toBe(params.gmTauSec);
+  });
+
+  test("'own': estimated apart, and the vertical model uses it", () => {
+    const own = { ...cfg, noise: { ...cfg.noise, verticalCorrelationTime: 'own' as const } };
+    const ps = prepared(spec(), own);
+    const { params, info } = calibrateSession(ps, own, axisParamsFromConfig(own), FIRST_ROUND);
+    const tauV = info.estimates.gmVerticalTauSec!.value;
+    console.log(`own vertical time constant ${tauV.toFixed(1)} s, horizontal ${params.gmTauSec.toFixed(1)} s (simulated 120 / 30)`);
+    expect(tauV).not.toBe(params.gmTauSec);
+    expect(buildAxisModels(params, true)[2]!.params.gm!.tauSec).toBe(tauV);
+    expect(buildAxisModels(params, true)[0]!.params.gm!.tauSec).toBe(params.gmTauSec);
+  });
+});
