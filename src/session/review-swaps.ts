@@ -9,15 +9,16 @@
  * one-shot: each sandwich is tried alone against the converged track, on its neighbourhood only
  * (trySwap: estimation/window-trial.ts gives the smoothed track there that a re-run of the whole
  * segment with the swap would give, to rounding); the swaps that lower their cost are kept
- * together and the review's next pass re-runs where they changed the decisions. Until session 5
- * of issue 8 all sandwiches were swapped at once and the segment re-run twice (trial and undo,
- * two full passes at 1M fixes, ~1.1 s of a 9.8 s run).
+ * together and the review's next pass re-runs where they changed the decisions (swapping all
+ * sandwiches at once and re-running the segment twice, trial and undo, cost two full passes at 1M
+ * fixes, ~1.1 s of a 9.8 s run).
  * Measured: simulated vehicle seed 5 (a 4-fix, 24 m burst during hard braking, README).
  */
 import type { AxisModel } from '../models/axis-model.js';
 import { covStride, type FilterHistory, type FilterOptions, type SegmentData } from '../estimation/track-filter.js';
 import { reviewStatisticsRange } from '../estimation/review.js';
 import { makeWindowTrialWork, windowTrial, type WindowTrialWork } from '../estimation/window-trial.js';
+import type { DecisionLog } from './decision-log.js';
 
 export interface Swap {
   /** Epochs kept before the swap (the suspected burst). */
@@ -142,7 +143,9 @@ export function trialCost(tr: SwapTrial, sw: Swap, models: AxisModel[], data: Se
 /**
  * Try one swap against the converged review (T, threshold: its current statistics, read for the
  * cost before the swap): apply it to `kept` and keep it (true) where trialCost is lower than the
- * cost before, else undo it (false).
+ * cost before, else undo it (false). With `log`, a kept swap is recorded there: each fix of the run
+ * it left out as the swap test's (statistic: the cost with the run kept, threshold: the cost
+ * without it), and its re-admitted neighbours removed.
  */
 export function trySwap(
   tr: SwapTrial,
@@ -158,10 +161,18 @@ export function trySwap(
   threshold: Float64Array,
   thr: readonly number[],
   nu: Float64Array,
+  log?: DecisionLog,
 ): boolean {
   const before = swapCost(sw, offered, kept, T, threshold);
   applySwap(sw, kept, false);
-  if (trialCost(tr, sw, models, data, opt, hf, hs, offered, kept, thr, nu) < before) return true;
+  const after = trialCost(tr, sw, models, data, opt, hf, hs, offered, kept, thr, nu);
+  if (after < before) {
+    if (log) {
+      for (const k of sw.keptRun) log.set(k, { test: 'swap', statistic: before, threshold: after, dof: 0 });
+      for (const k of sw.rejected) log.delete(k);
+    }
+    return true;
+  }
   applySwap(sw, kept, true);
   return false;
 }
