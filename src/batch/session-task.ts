@@ -17,6 +17,7 @@ import { processImuSession } from '../session/imu-session.js';
 import type { SessionResult } from '../session/result.js';
 import { trackCsvChunks } from '../output/track-csv.js';
 import { outliersCsvChunks } from '../output/outliers-csv.js';
+import { GEOJSON_LAYERS, layerChunks, layersFor } from '../output/geojson-layers.js';
 import { geoJsonOptions, sessionGeoJsonChunks } from '../output/geojson.js';
 import { sessionGpxChunks } from '../output/gpx.js';
 import { reportPayload } from '../output/report/payload.js';
@@ -53,19 +54,31 @@ export interface SessionFiles {
   track: string;
   outliers: string;
   geojson: string;
+  /** One geometry type a file (geojson-layers.ts). */
+  trackLayer: string;
+  flagsLayer: string;
+  epochsLayer: string;
   gpx: string;
 }
 
 /** Every output a session may have (the GPX only with output.gpx), relative to the output folder ("/"-separated). */
 export function outputNames(name: string): SessionFiles {
-  return { track: `${name}.track.csv`, outliers: `${name}.outliers.csv`, geojson: `${name}.geojson`, gpx: `${name}.gpx` };
+  return {
+    track: `${name}.track.csv`, outliers: `${name}.outliers.csv`, geojson: `${name}.geojson`,
+    trackLayer: `${name}.track.geojson`, flagsLayer: `${name}.flags.geojson`, epochsLayer: `${name}.epochs.geojson`,
+    gpx: `${name}.gpx`,
+  };
 }
 
 /** The same as absolute paths. */
 export function outputPaths(out: string, name: string): SessionFiles {
   const n = outputNames(name);
   const abs = (rel: string): string => join(out, ...rel.split('/'));
-  return { track: abs(n.track), outliers: abs(n.outliers), geojson: abs(n.geojson), gpx: abs(n.gpx) };
+  return {
+    track: abs(n.track), outliers: abs(n.outliers), geojson: abs(n.geojson),
+    trackLayer: abs(n.trackLayer), flagsLayer: abs(n.flagsLayer), epochsLayer: abs(n.epochsLayer),
+    gpx: abs(n.gpx),
+  };
 }
 
 /**
@@ -79,6 +92,15 @@ export async function writeSessionOutputs(out: string, r: SessionResult, cfg: Hi
   await writeChunksAtomic(p.outliers, outliersCsvChunks(r));
   await writeChunksAtomic(p.geojson, sessionGeoJsonChunks(r, geoJsonOptions(cfg)));
   const written: Array<keyof SessionFiles> = ['track', 'outliers', 'geojson'];
+  const layerKey = { track: 'trackLayer', flags: 'flagsLayer', epochs: 'epochsLayer' } as const;
+  const layers = layersFor(cfg);
+  for (const l of GEOJSON_LAYERS) {
+    const key = layerKey[l.layer];
+    if (layers.includes(l)) {
+      await writeChunksAtomic(p[key], layerChunks(r, cfg, l.layer));
+      written.push(key);
+    } else await rm(p[key], { force: true }); // from an earlier run with output.points
+  }
   if (cfg.output.gpx) {
     await writeChunksAtomic(p.gpx, sessionGpxChunks(r, { decimals: cfg.output.geojsonDecimals }));
     written.push('gpx');
