@@ -5,7 +5,7 @@
  * only structured-clone-safe data, and returns the summary entry and the small payload instead of
  * the SessionResult, so the batch's memory does not grow with its size.
  */
-import { rm, stat } from 'node:fs/promises';
+import { readFile, rm, stat } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { HindcastConfig } from '../config/schema.js';
 import { ConfigError, InputError, NumericalError } from '../errors.js';
@@ -17,6 +17,8 @@ import { processImuSession } from '../session/imu-session.js';
 import type { SessionResult } from '../session/result.js';
 import { trackCsvChunks } from '../output/track-csv.js';
 import { outliersCsvChunks } from '../output/outliers-csv.js';
+import { parseDecisionNotes } from '../input/decision-notes.js';
+import { attachDecisionNotes } from '../session/products.js';
 import { GEOJSON_LAYERS, layerChunks, layersFor } from '../output/geojson-layers.js';
 import { geoJsonOptions, sessionGeoJsonChunks } from '../output/geojson.js';
 import { sessionGpxChunks } from '../output/gpx.js';
@@ -134,6 +136,7 @@ export async function runSessionTask(t: SessionTask): Promise<SessionOutcome> {
     const r = t.imuPath
       ? await processImuSession(series, t.imuPath, t.config, t.name, decisions)
       : processSession(series, t.config, t.name, decisions);
+    if (t.decisionsPath && decisions) attachDecisionNotes(r, parseDecisionNotes(await readFile(t.decisionsPath, 'utf8'), series));
     const payload = t.withPayload ? reportPayload(r, { maxPoints: t.config.output.reportMaxPoints }) : undefined;
     const outputs = await writeSessionOutputs(t.out, r, t.config);
     const summary = okEntry(r, t.relPath, outputs.map((o) => o.file), round3((performance.now() - t0) / 1000));

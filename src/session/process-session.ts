@@ -467,6 +467,8 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
     model: p,
     gateProbability: cfg.gate.probability,
     qualityColumnsUsed: ps.factors.used,
+    // the zone the log's local times were read in (the report shows its times in it as well as in UTC)
+    ...(cfg.input.timeZone ? { timeZone: cfg.input.timeZone } : {}),
   };
   if (tm) tm.products += performance.now() - tProducts;
   return res;

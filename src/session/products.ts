@@ -37,6 +37,16 @@ export function decisionDetail(d: Decision, T: number, readmit: number): string 
   }
 }
 
+/** Attach the user's notes (fix index → note) to a result: its decision notes and its flagged fixes' records. */
+export function attachDecisionNotes(res: SessionResult, notes: Map<number, string>): void {
+  if (notes.size === 0) return;
+  res.decisionNotes = notes;
+  for (const o of res.outliers) {
+    const n = notes.get(o.fix);
+    if (n !== undefined) o.note = n;
+  }
+}
+
 /** The median order statistic of v, selected without sorting (the value of the sorted array); reorders v. */
 function medianInPlace(v: Float64Array): number {
   if (v.length === 0) return NaN;

@@ -117,6 +117,8 @@ export interface SessionResult {
   };
   hasHeight: boolean;
   outliers: OutlierRecord[];
+  /** The user's notes from the decisions file, by fix index (attached by the batch; attachDecisionNotes). */
+  decisionNotes?: Map<number, string>;
   metrics: SessionMetrics;
   warnings: InputWarning[];
   /** Facts about the processing (frame, model parameters used, …) for summary.json. */
