@@ -13,6 +13,8 @@ import { STATUS } from '../../src/session/result.js';
 import { outliersCsv, OUTLIER_COLUMNS } from '../../src/output/outliers-csv.js';
 import { DEFAULT_ERRORS, defaultSpec, scenarioCsv, simulate, type ScenarioKind } from '../../src/simulate/scenario.js';
 import { parse } from 'csv-parse/sync';
+import { applyReviewDecisions, reviewThresholds } from '../../src/session/review-decisions.js';
+import type { DecisionLog } from '../../src/session/decision-log.js';
 
 const CASES: Array<[ScenarioKind, number]> = [
   ['walk', 1], ['walk', 2], ['vehicle', 3], ['vehicle', 5], ['drone', 4], ['drone', 6],
@@ -77,5 +79,29 @@ describe.each(CASES)('deciding tests of %s seed %i (bursts 3 per 100 fixes)', (k
       expect(Number(row.threshold)).toBeCloseTo(o.testThreshold, 3);
       expect(Number(row.statistic)).toBeGreaterThan(Number(row.threshold));
     });
+  });
+});
+
+describe('the decision log of the review step (applyReviewDecisions)', () => {
+  // five gated fixes 1 s apart, guard 2 s: the worst failing one is rejected, its neighbour within
+  // the guard waits; a rejected fix that passes the re-admission threshold comes back
+  const th = reviewThresholds(0.999);
+  test.each([
+    { name: 'rejects the worst within the guard and records its T and threshold', T: [1, 30, 20, 1, 1], kept: [1, 1, 1, 1, 1], out: [1], logged: { 1: 30 } },
+    { name: 're-admits a clearly consistent fix and drops its entry', T: [1, 1, 1, 1, 1], kept: [1, 0, 1, 1, 1], out: [], logged: {} },
+  ])('$name', ({ T, kept, out, logged }) => {
+    const N = T.length;
+    const offered = new Uint8Array(N).fill(1);
+    const k = Uint8Array.from(kept);
+    const dof = new Uint8Array(N).fill(2);
+    const thr = new Float64Array(N).fill(th.reject[2]!);
+    const log: DecisionLog = new Map([[1, { test: 'forward-gate', statistic: 50, threshold: 13.8, dof: 2 }]]);
+    applyReviewDecisions(N, offered, k, Float64Array.from(T), dof, thr, Float64Array.from({ length: N }, (_, i) => i), th, 2, log);
+    expect([...k.keys()].filter((i) => !k[i])).toEqual(out);
+    expect(Object.fromEntries([...log].map(([i, d]) => [i, d.statistic]))).toEqual(logged);
+    for (const d of log.values()) {
+      expect(d.test).toBe('review');
+      expect(d.threshold).toBe(th.reject[2]);
+    }
   });
 });
