@@ -12,8 +12,9 @@ import { isKeptFix, type Closeup } from './closeup-data.js';
 export const CLOSEUP_WIDTH = 300;
 /** Least margin (m) around the flagged fixes in a close-up. */
 export const CLOSEUP_PAD_M = 8;
-/** Most ellipses drawn in one close-up (every epoch up to this, else evenly spaced). */
-const ELLIPSES_MAX = 60;
+/** Most ellipses drawn in one close-up (every epoch in the frame up to this, else evenly spaced), and their vertices. */
+const ELLIPSES_MAX = 25;
+const ELLIPSE_VERTICES = 16;
 
 /** The label of a flagged mark (its aria-label in the SVG): "flag <id>", read by the page's script and tests. */
 export function flagLabel(id: string): string {
@@ -22,19 +23,6 @@ export function flagLabel(id: string): string {
 
 export function closeupChart(c: Closeup, title: string): TopLevelSpec {
   const n = c.tSec.length;
-  const track: Array<{ e: number | null; n: number | null; k: number }> = [];
-  const kept: Array<{ e: number | null; n: number | null; label: string }> = [];
-  for (let k = 0; k < n; k++) {
-    track.push({ e: r4(c.east[k]!), n: r4(c.north[k]!), k });
-    if (isKeptFix(c.status[k]!) && Number.isFinite(c.rawEast[k]!)) kept.push({ e: r4(c.rawEast[k]!), n: r4(c.rawNorth[k]!), label: 'raw fix, kept' });
-  }
-  const step = Math.max(1, Math.ceil(n / ELLIPSES_MAX));
-  const ell: Array<{ e: number | null; n: number | null; id: number; k: number }> = [];
-  for (let k = 0; k < n; k += step) {
-    if (!Number.isFinite(c.ell95MajorM[k]!)) continue;
-    const pts = ellipsePoints({ tSec: c.tSec[k]!, east: c.east[k]!, north: c.north[k]!, majorM: c.ell95MajorM[k]!, minorM: c.ell95MinorM[k]!, azimuthDeg: c.ell95AzimuthDeg[k]! }, 24);
-    pts.forEach(([e, nn], i) => ell.push({ e: r4(e), n: r4(nn), id: k, k: i }));
-  }
   const flags = c.flags.map((f) => ({ e: r4(f.east), n: r4(f.north), mark: flagMark(f.status)?.label ?? 'flagged by the test', id: f.id, label: flagLabel(f.id) }));
   const offsets: Array<{ e: number | null; n: number | null; id: string; k: number }> = [];
   for (const f of c.flags) {
@@ -45,32 +33,54 @@ export function closeupChart(c: Closeup, title: string): TopLevelSpec {
   // and at least CLOSEUP_PAD_M (so a few-metre offset and the ellipses show); the neighbours run
   // on beyond the frame (clipped)
   let eMin = Infinity, eMax = -Infinity, nMin = Infinity, nMax = -Infinity;
-  for (const q of offsets.length ? offsets : track) {
-    if (q.e === null || q.n === null) continue;
-    eMin = Math.min(eMin, q.e);
-    eMax = Math.max(eMax, q.e);
-    nMin = Math.min(nMin, q.n);
-    nMax = Math.max(nMax, q.n);
-  }
+  const grow = (e: number, nn: number) => {
+    if (!Number.isFinite(e) || !Number.isFinite(nn)) return;
+    eMin = Math.min(eMin, e);
+    eMax = Math.max(eMax, e);
+    nMin = Math.min(nMin, nn);
+    nMax = Math.max(nMax, nn);
+  };
+  if (c.flags.length) for (const f of c.flags) (grow(f.east, f.north), grow(f.trackEast, f.trackNorth));
+  else for (let k = 0; k < n; k++) grow(c.east[k]!, c.north[k]!);
   if (!Number.isFinite(eMin)) [eMin, eMax, nMin, nMax] = [-1, 1, -1, 1];
   const pad = Math.max(CLOSEUP_PAD_M, 0.25 * Math.max(eMax - eMin, nMax - nMin));
-  eMin -= pad;
-  eMax += pad;
-  nMin -= pad;
-  nMax += pad;
-  const ax = equalAxes(eMin, eMax, nMin, nMax, CLOSEUP_WIDTH, 200, 360);
+  const ax = equalAxes(eMin - pad, eMax + pad, nMin - pad, nMax + pad, CLOSEUP_WIDTH, 200, 360);
+  // only what falls in the frame is drawn (a fast track leaves most of its neighbours outside)
+  const inside = (e: number, nn: number, r = 0) => e + r >= ax.x[0] && e - r <= ax.x[1] && nn + r >= ax.y[0] && nn - r <= ax.y[1];
+  const track: Array<{ e: number | null; n: number | null; k: number; run: number }> = [];
+  let run = 0;
+  const kept: Array<{ e: number | null; n: number | null }> = [];
+  const shown = (k: number) => k >= 0 && k < n && inside(c.east[k]!, c.north[k]!);
+  for (let k = 0; k < n; k++) {
+    // a track vertex just outside is kept where its neighbour is inside, so the line reaches the edge
+    if (shown(k - 1) || shown(k) || shown(k + 1)) {
+      // a new run where the track left the frame and came back (no line across the gap)
+      if (track.length && track[track.length - 1]!.k !== k - 1) run++;
+      track.push({ e: r4(c.east[k]!), n: r4(c.north[k]!), k, run });
+    }
+    if (isKeptFix(c.status[k]!) && Number.isFinite(c.rawEast[k]!) && inside(c.rawEast[k]!, c.rawNorth[k]!)) kept.push({ e: r4(c.rawEast[k]!), n: r4(c.rawNorth[k]!) });
+  }
+  const within: number[] = [];
+  for (let k = 0; k < n; k++) if (Number.isFinite(c.ell95MajorM[k]!) && inside(c.east[k]!, c.north[k]!, c.ell95MajorM[k]!)) within.push(k);
+  const step = Math.max(1, Math.ceil(within.length / ELLIPSES_MAX));
+  const ell: Array<{ e: number | null; n: number | null; id: number; k: number }> = [];
+  for (let q = 0; q < within.length; q += step) {
+    const k = within[q]!;
+    const pts = ellipsePoints({ tSec: c.tSec[k]!, east: c.east[k]!, north: c.north[k]!, majorM: c.ell95MajorM[k]!, minorM: c.ell95MinorM[k]!, azimuthDeg: c.ell95AzimuthDeg[k]! }, ELLIPSE_VERTICES);
+    pts.forEach(([e, nn], i) => ell.push({ e: r4(e), n: r4(nn), id: k, k: i }));
+  }
   const x = { field: 'e', type: 'quantitative', scale: { domain: ax.x, nice: false, zero: false }, axis: { title: 'east (m)', tickCount: 5 } };
   const y = { field: 'n', type: 'quantitative', scale: { domain: ax.y, nice: false, zero: false }, axis: { title: 'north (m)', tickCount: 5 } };
   const layers: unknown[] = [
-    { data: { values: ell }, mark: { type: 'line', strokeWidth: 0.7, color: '#7f8c8d', opacity: 0.7, clip: true }, encoding: { x, y, detail: { field: 'id' }, order: { field: 'k' } } },
-    { data: { values: offsets }, mark: { type: 'line', strokeWidth: 0.8, color: '#c0392b', strokeDash: [2, 2], clip: true }, encoding: { x, y, detail: { field: 'id' }, order: { field: 'k' } } },
-    { data: { values: track }, mark: { type: 'line', strokeWidth: 1.6, color: '#1f4e79', clip: true }, encoding: { x, y, order: { field: 'k' } } },
+    { data: { values: ell }, mark: { type: 'line', strokeWidth: 0.7, color: '#7f8c8d', opacity: 0.7, clip: true, aria: false }, encoding: { x, y, detail: { field: 'id' }, order: { field: 'k' } } },
+    { data: { values: offsets }, mark: { type: 'line', strokeWidth: 0.8, color: '#c0392b', strokeDash: [2, 2], clip: true, aria: false }, encoding: { x, y, detail: { field: 'id' }, order: { field: 'k' } } },
+    { data: { values: track }, mark: { type: 'line', strokeWidth: 1.6, color: '#1f4e79', clip: true, aria: false }, encoding: { x, y, detail: { field: 'run' }, order: { field: 'k' } } },
   ];
   if (kept.length)
-    layers.push({ data: { values: kept }, mark: { type: 'point', shape: 'circle', size: 14, filled: true, color: '#555555', opacity: 0.75, clip: true }, encoding: { x, y } });
+    layers.push({ data: { values: kept }, mark: { type: 'point', shape: 'circle', size: 14, filled: true, color: '#555555', opacity: 0.75, clip: true, aria: false }, encoding: { x, y } });
   if (flags.length) {
     layers.push({ data: { values: flags }, mark: { type: 'point', size: 70, filled: true, opacity: 0.95, clip: true }, encoding: { x, y, ...flagEncoding(), description: { field: 'label' } } });
-    layers.push({ data: { values: flags }, mark: { type: 'text', dx: 7, dy: -7, align: 'left', fontSize: 10, color: '#000000', clip: true }, encoding: { x, y, text: { field: 'id' } } });
+    layers.push({ data: { values: flags }, mark: { type: 'text', dx: 7, dy: -7, align: 'left', fontSize: 10, color: '#000000', clip: true, aria: false }, encoding: { x, y, text: { field: 'id' } } });
   }
   return { description: title, width: CLOSEUP_WIDTH, height: ax.height, layer: layers } as TopLevelSpec;
 }
