@@ -10,7 +10,10 @@ import { STATUS } from '../../session/result.js';
 import { CHART_WIDTH, flagEncoding, flagMark, r4 } from './chart-common.js';
 import type { EllipseMark, PlotSeries } from './payload.js';
 import { flagLabel } from './chart-closeup.js';
-import { isKeptFix } from './closeup-data.js';
+import { CLOSEUP_JOIN_EPOCHS, isKeptFix } from './closeup-data.js';
+
+/** Bursts labelled on the track plot at most (more would cover the track; the close-ups label every fix). */
+export const TRACK_LABELS_MAX = 30;
 
 const ELLIPSE_VERTICES = 36;
 export const TRACK_KINDS = ['smoothed track', 'bridged (no fix)'] as const;
@@ -64,6 +67,8 @@ export function trackChart(p: PlotSeries, ellipses: EllipseMark[], name: string,
   const ell: Array<{ e: number | null; n: number | null; id: number; k: number }> = [];
   ellipses.forEach((el, id) => ellipsePoints(el).forEach(([e, n], k) => ell.push({ e: r4(e), n: r4(n), id, k })));
   const flagged: Array<{ e: number | null; n: number | null; mark: string; label: string }> = [];
+  // one text label a burst: its first id, and how many more it holds
+  const labels: Array<{ e: number | null; n: number | null; text: string; epoch: number; count: number }> = [];
   const kept: Array<{ e: number | null; n: number | null }> = [];
   for (let k = 0; k < M; k++) {
     if (isKeptFix(p.status[k]!) && Number.isFinite(p.rawEast[k]!)) kept.push({ e: r4(p.rawEast[k]!), n: r4(p.rawNorth[k]!) });
@@ -74,7 +79,14 @@ export function trackChart(p: PlotSeries, ellipses: EllipseMark[], name: string,
     const n = Number.isFinite(p.rawNorth[k]!) ? p.rawNorth[k]! : p.north[k]!;
     const id = flagIds.get(p.epoch[k]!);
     flagged.push({ e: r4(e), n: r4(n), mark: m.label, label: id ? flagLabel(id) : m.label });
+    if (!id) continue;
+    const last = labels.at(-1);
+    if (last && p.epoch[k]! - last.epoch <= CLOSEUP_JOIN_EPOCHS) {
+      last.count++;
+      last.epoch = p.epoch[k]!;
+    } else labels.push({ e: r4(e), n: r4(n), text: id, epoch: p.epoch[k]!, count: 1 });
   }
+  for (const l of labels) if (l.count > 1) l.text += ` +${l.count - 1}`;
   let eMin = Infinity, eMax = -Infinity, nMin = Infinity, nMax = -Infinity;
   for (const q of [...line, ...ell, ...flagged]) {
     if (q.e === null || q.n === null) continue;
@@ -123,6 +135,12 @@ export function trackChart(p: PlotSeries, ellipses: EllipseMark[], name: string,
       data: { values: flagged },
       mark: { type: 'point', size: 60, filled: true, opacity: 0.9, clip: true },
       encoding: { x, y, ...flagEncoding(), description: { field: 'label' } },
+    });
+  if (labels.length && labels.length <= TRACK_LABELS_MAX)
+    layers.push({
+      data: { values: labels },
+      mark: { type: 'text', dx: 6, dy: -6, align: 'left', fontSize: 10, color: '#7b241c', clip: true, aria: false },
+      encoding: { x, y, text: { field: 'text' } },
     });
   return {
     description: `Track of ${name} in the local frame`,
