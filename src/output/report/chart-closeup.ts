@@ -80,7 +80,11 @@ export function closeupChart(c: Closeup, title: string): TopLevelSpec {
     layers.push({ data: { values: kept }, mark: { type: 'point', shape: 'circle', size: 14, filled: true, color: '#555555', opacity: 0.75, clip: true, aria: false }, encoding: { x, y } });
   if (flags.length) {
     layers.push({ data: { values: flags }, mark: { type: 'point', size: 70, filled: true, opacity: 0.95, clip: true }, encoding: { x, y, ...flagEncoding(), description: { field: 'label' } } });
-    layers.push({ data: { values: flags }, mark: { type: 'text', dx: 7, dy: -7, align: 'left', fontSize: 10, color: '#000000', clip: true, aria: false }, encoding: { x, y, text: { field: 'id' } } });
+    // ids above and below their marks by turns, so that the labels of a dense burst do not all overlap
+    for (const [i, dy] of [[0, -7], [1, 13]] as const) {
+      const part = flags.filter((_, q) => q % 2 === i);
+      if (part.length) layers.push({ data: { values: part }, mark: { type: 'text', dx: 6, dy, align: 'left', fontSize: 10, color: '#000000', clip: true, aria: false }, encoding: { x, y, text: { field: 'id' } } });
+    }
   }
   return { description: title, width: CLOSEUP_WIDTH, height: ax.height, layer: layers } as TopLevelSpec;
 }
