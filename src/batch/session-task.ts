@@ -5,7 +5,7 @@
  * only structured-clone-safe data, and returns the summary entry and the small payload instead of
  * the SessionResult, so the batch's memory does not grow with its size.
  */
-import { rm, stat } from 'node:fs/promises';
+import { readFile, rm, stat } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { HindcastConfig } from '../config/schema.js';
 import { ConfigError, InputError, NumericalError } from '../errors.js';
@@ -17,6 +17,9 @@ import { processImuSession } from '../session/imu-session.js';
 import type { SessionResult } from '../session/result.js';
 import { trackCsvChunks } from '../output/track-csv.js';
 import { outliersCsvChunks } from '../output/outliers-csv.js';
+import { parseDecisionNotes } from '../input/decision-notes.js';
+import { attachDecisionNotes } from '../session/products.js';
+import { GEOJSON_LAYERS, layerChunks, layersFor } from '../output/geojson-layers.js';
 import { geoJsonOptions, sessionGeoJsonChunks } from '../output/geojson.js';
 import { sessionGpxChunks } from '../output/gpx.js';
 import { reportPayload } from '../output/report/payload.js';
@@ -53,19 +56,31 @@ export interface SessionFiles {
   track: string;
   outliers: string;
   geojson: string;
+  /** One geometry type a file (geojson-layers.ts). */
+  trackLayer: string;
+  flagsLayer: string;
+  epochsLayer: string;
   gpx: string;
 }
 
 /** Every output a session may have (the GPX only with output.gpx), relative to the output folder ("/"-separated). */
 export function outputNames(name: string): SessionFiles {
-  return { track: `${name}.track.csv`, outliers: `${name}.outliers.csv`, geojson: `${name}.geojson`, gpx: `${name}.gpx` };
+  return {
+    track: `${name}.track.csv`, outliers: `${name}.outliers.csv`, geojson: `${name}.geojson`,
+    trackLayer: `${name}.track.geojson`, flagsLayer: `${name}.flags.geojson`, epochsLayer: `${name}.epochs.geojson`,
+    gpx: `${name}.gpx`,
+  };
 }
 
 /** The same as absolute paths. */
 export function outputPaths(out: string, name: string): SessionFiles {
   const n = outputNames(name);
   const abs = (rel: string): string => join(out, ...rel.split('/'));
-  return { track: abs(n.track), outliers: abs(n.outliers), geojson: abs(n.geojson), gpx: abs(n.gpx) };
+  return {
+    track: abs(n.track), outliers: abs(n.outliers), geojson: abs(n.geojson),
+    trackLayer: abs(n.trackLayer), flagsLayer: abs(n.flagsLayer), epochsLayer: abs(n.epochsLayer),
+    gpx: abs(n.gpx),
+  };
 }
 
 /**
@@ -78,26 +93,30 @@ export async function writeSessionOutputs(out: string, r: SessionResult, cfg: Hi
   const n = outputNames(r.name);
   const p = outputPaths(out, r.name);
   const written: Array<keyof SessionFiles> = ['track', 'outliers', 'geojson'];
+  const layerKey = { track: 'trackLayer', flags: 'flagsLayer', epochs: 'epochsLayer' } as const;
+  const layers = layersFor(cfg);
+  const absent: Array<keyof SessionFiles> = [];
+  for (const l of GEOJSON_LAYERS) (layers.includes(l) ? written : absent).push(layerKey[l.layer]);
   if (cfg.output.gpx) written.push('gpx');
+  else absent.push('gpx');
+  const chunksOf = (k: keyof SessionFiles) => {
+    if (k === 'track') return trackCsvChunks(r);
+    if (k === 'outliers') return outliersCsvChunks(r);
+    if (k === 'geojson') return sessionGeoJsonChunks(r, geoJsonOptions(cfg));
+    if (k === 'gpx') return sessionGpxChunks(r, { decimals: cfg.output.geojsonDecimals });
+    return layerChunks(r, cfg, k === 'trackLayer' ? 'track' : k === 'flagsLayer' ? 'flags' : 'epochs');
+  };
+  // every output is staged under a temporary name first and all are renamed together, so a failure
+  // while writing leaves the earlier run's files untouched
   const staged: Array<{ tmp: string; path: string }> = [];
   try {
-    for (const k of written) {
-      const chunks =
-        k === 'track'
-          ? trackCsvChunks(r)
-          : k === 'outliers'
-            ? outliersCsvChunks(r)
-            : k === 'geojson'
-              ? sessionGeoJsonChunks(r, geoJsonOptions(cfg))
-              : sessionGpxChunks(r, { decimals: cfg.output.geojsonDecimals });
-      staged.push({ tmp: await writeChunksToTemporary(p[k], chunks), path: p[k] });
-    }
+    for (const k of written) staged.push({ tmp: await writeChunksToTemporary(p[k], chunksOf(k)), path: p[k] });
   } catch (e) {
     for (const s of staged) await rm(s.tmp, { force: true });
     throw e;
   }
   await commitTemporaries(staged);
-  if (!cfg.output.gpx) await rm(p.gpx, { force: true }); // from an earlier run with output.gpx
+  for (const k of absent) await rm(p[k], { force: true }); // from an earlier run with output.points / output.gpx
   const files: OutputFile[] = [];
   for (const k of written) files.push({ file: n[k], size: (await stat(p[k])).size });
   return files;
@@ -141,6 +160,7 @@ export async function runSessionTask(t: SessionTask): Promise<SessionOutcome> {
     const r = t.imuPath
       ? await processImuSession(series, t.imuPath, t.config, t.name, decisions)
       : processSession(series, t.config, t.name, decisions);
+    if (t.decisionsPath && decisions) attachDecisionNotes(r, parseDecisionNotes(await readFile(t.decisionsPath, 'utf8'), series));
     const payload = t.withPayload ? reportPayload(r, { maxPoints: t.config.output.reportMaxPoints }) : undefined;
     const outputs = await writeSessionOutputs(t.out, r, t.config);
     const summary = okEntry(r, t.relPath, outputs.map((o) => o.file), round3((performance.now() - t0) / 1000));

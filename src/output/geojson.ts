@@ -99,11 +99,20 @@ export function longitudeExtent(lons: ArrayLike<number>): [number, number] | nul
   return [west, east];
 }
 
+/**
+ * One geometry type per file for desktop GIS and shapefiles (geojson-layers.ts): the track
+ * segments only (every one a LineString, or every one a MultiLineString when one crosses the
+ * antimeridian), the flagged fixes only (Points), or the epochs only (Points).
+ */
+export type GeoJsonLayer = 'track' | 'flags' | 'epochs';
+
 export interface GeoJsonOptions {
   /** Decimal places of degrees (7 ≈ 1 cm, 6 ≈ 10 cm). */
   decimals: number;
   /** Also one Point per epoch with sd and ellipse properties. */
   points?: boolean;
+  /** Only this layer (its own bbox); absent: every feature in one collection. */
+  only?: GeoJsonLayer;
 }
 
 export function geoJsonOptions(cfg: HindcastConfig): GeoJsonOptions {
@@ -133,10 +142,12 @@ export function sessionGeoJson(r: SessionResult, opt: GeoJsonOptions): object {
     return p;
   };
   const nSeg = r.N > 0 ? r.segment[r.N - 1]! + 1 : 0;
+  const withTrack = !opt.only || opt.only === 'track';
+  const withFlags = !opt.only || opt.only === 'flags';
+  const withEpochs = opt.only ? opt.only === 'epochs' : !!opt.points;
   let j = 0;
-  // the valid epochs' rounded longitudes, in pass 1's order
-  let li = 0;
-  for (let s = 0; s < nSeg; s++) {
+  const segments: Array<{ geometry: { type: string; coordinates: unknown }; properties: object }> = [];
+  for (let s = 0; s < nSeg && withTrack; s++) {
     const line: Position[] = [];
     const j0 = j;
     let sumSd = 0;
@@ -158,9 +169,8 @@ export function sessionGeoJson(r: SessionResult, opt: GeoJsonOptions): object {
     if (line.length === 0) continue;
     if (line.length === 1) line.push(line[0]!.slice());
     const parts = cutAtAntimeridian(line, d);
-    const geometry = parts.length === 1 ? { type: 'LineString', coordinates: parts[0] } : { type: 'MultiLineString', coordinates: parts };
-    features.push({
-      type: 'Feature',
+    const geometry: { type: string; coordinates: unknown } = parts.length === 1 ? { type: 'LineString', coordinates: parts[0] } : { type: 'MultiLineString', coordinates: parts };
+    segments.push({
       geometry,
       properties: {
         kind: 'track-segment',
@@ -177,7 +187,12 @@ export function sessionGeoJson(r: SessionResult, opt: GeoJsonOptions): object {
       },
     });
   }
+  // the track layer alone holds one geometry type: all MultiLineStrings when one segment needs it
+  const multi = opt.only === 'track' && segments.some((g) => g.geometry.type === 'MultiLineString');
+  for (const g of segments)
+    features.push({ type: 'Feature', geometry: multi && g.geometry.type === 'LineString' ? { type: 'MultiLineString', coordinates: [g.geometry.coordinates] } : g.geometry, properties: g.properties });
   for (const o of r.outliers) {
+    if (!withFlags) break;
     // an invalid fix has no position worth mapping (a (0, 0) placeholder, out of range): outliers.csv lists it
     if (o.reason === 'invalid') continue;
     const p = position(o.lonDeg, o.latDeg, o.heightM);
@@ -188,23 +203,31 @@ export function sessionGeoJson(r: SessionResult, opt: GeoJsonOptions): object {
       geometry: { type: 'Point', coordinates: p },
       properties: {
         kind: 'flagged-fix',
+        id: o.id,
         session: r.name,
         time: formatIsoUtc(o.tSec),
         source_line: o.line,
         reason: o.reason,
         decided_by: o.reason === 'user' ? 'user' : 'hindcast',
-        statistic: val(o.statistic, 3),
-        threshold: val(o.threshold, 3),
+        test: o.test,
+        statistic: val(o.testStatistic, 3),
+        threshold: val(o.testThreshold, 3),
+        margin: val(o.margin, 4),
+        review_statistic: val(o.statistic, 3),
+        readmit_threshold: val(o.readmitThreshold, 3),
         offset_m: val(o.offsetM, METRE_DECIMALS),
         offset_up_m: val(o.offsetUpM, METRE_DECIMALS),
+        note: o.note ?? null,
         detail: o.detail,
       },
     });
   }
-  if (opt.points)
+  if (withEpochs)
     for (let k = 0; k < r.N; k++) {
       const p = position(r.lonDeg[k]!, r.latDeg[k]!, r.heightM[k]!);
       if (!p) continue;
+      // the epochs are the track's positions: the bbox already holds them unless they are alone
+      if (!withTrack) extend(p);
       features.push({
         type: 'Feature',
         geometry: { type: 'Point', coordinates: p },
@@ -243,8 +266,11 @@ export function* sessionGeoJsonChunks(r: SessionResult, opt: GeoJsonOptions, chu
   const { N, latDeg, lonDeg, heightM, tSec, segment, status, sdEnu, posEnu } = r;
   const valid = (lon: number, lat: number) => Math.abs(lat) <= 90 && Math.abs(lon) <= 180;
   const withHeight = (h: number) => r.hasHeight && Number.isFinite(h);
+  const withTrack = !opt.only || opt.only === 'track';
+  const withFlags = !opt.only || opt.only === 'flags';
+  const withEpochs = opt.only ? opt.only === 'epochs' : !!opt.points;
   // pass 1: the bbox over the track's positions and the mapped flagged fixes (as sessionGeoJson)
-  const mapped = r.outliers.filter((o) => o.reason !== 'invalid' && valid(o.lonDeg, o.latDeg));
+  const mapped = withFlags ? r.outliers.filter((o) => o.reason !== 'invalid' && valid(o.lonDeg, o.latDeg)) : [];
   const lons = new Float64Array(N + mapped.length);
   let nLon = 0;
   let south = Infinity, north = -Infinity, zMin = Infinity, zMax = -Infinity;
@@ -261,8 +287,12 @@ export function* sessionGeoJsonChunks(r: SessionResult, opt: GeoJsonOptions, chu
       if (z > zMax) zMax = z;
     }
   };
-  for (let j = 0; j < N; j++) if (valid(lonDeg[j]!, latDeg[j]!)) extend(lonDeg[j]!, latDeg[j]!, heightM[j]!);
+  if (withTrack || withEpochs) for (let j = 0; j < N; j++) if (valid(lonDeg[j]!, latDeg[j]!)) extend(lonDeg[j]!, latDeg[j]!, heightM[j]!);
   for (const o of mapped) extend(o.lonDeg, o.latDeg, o.heightM);
+  // the track layer alone holds one geometry type: all MultiLineStrings when one segment crosses the antimeridian
+  let multi = false;
+  if (opt.only === 'track')
+    for (let q = 1; q < nLon && !multi; q++) if (Math.abs(lons[q]! - lons[q - 1]!) > 180) multi = true;
   const out = new ByteChunks(chunkBytes);
   const name = JSON.stringify(r.name);
   out.ascii('{"type":"FeatureCollection"');
@@ -293,7 +323,7 @@ export function* sessionGeoJsonChunks(r: SessionResult, opt: GeoJsonOptions, chu
   let j = 0;
   // the valid epochs' rounded longitudes, in pass 1's order
   let li = 0;
-  for (let s = 0; s < nSeg; s++) {
+  for (let s = 0; s < nSeg && withTrack; s++) {
     const j0 = j;
     let sumSd = 0, bridged = 0, flagged = 0, lengthM = 0, count = 0;
     let crosses = false;
@@ -325,7 +355,7 @@ export function* sessionGeoJsonChunks(r: SessionResult, opt: GeoJsonOptions, chu
       const parts = cutAtAntimeridian(line, d);
       out.ascii(JSON.stringify(parts.length === 1 ? { type: 'LineString', coordinates: parts[0] } : { type: 'MultiLineString', coordinates: parts }));
     } else {
-      out.ascii('{"type":"LineString","coordinates":[');
+      out.ascii(multi ? '{"type":"MultiLineString","coordinates":[[' : '{"type":"LineString","coordinates":[');
       let k1 = -1;
       for (let k = j0; k < j; k++) {
         if (!valid(lonDeg[k]!, latDeg[k]!)) continue;
@@ -338,7 +368,7 @@ export function* sessionGeoJsonChunks(r: SessionResult, opt: GeoJsonOptions, chu
         out.byte(44);
         coordinate(lonDeg[k1]!, latDeg[k1]!, heightM[k1]!);
       }
-      out.ascii(']}');
+      out.ascii(multi ? ']]}' : ']}');
     }
     out.ascii(',"properties":{"kind":"track-segment","session":');
     out.text(name);
@@ -364,33 +394,46 @@ export function* sessionGeoJsonChunks(r: SessionResult, opt: GeoJsonOptions, chu
     if (out.full) yield out.take();
   }
   // the flagged fixes
-  const flaggedHead = utf8(`,"properties":{"kind":"flagged-fix","session":${name},"time":"`);
+  const flaggedHead = utf8(`,"properties":{"kind":"flagged-fix","id":`);
+  const sessionHead = utf8(`,"session":${name},"time":"`);
   for (const o of mapped) {
     sep();
     out.ascii('{"type":"Feature","geometry":{"type":"Point","coordinates":');
     coordinate(o.lonDeg, o.latDeg, o.heightM);
     out.byte(125);
     out.bytes(flaggedHead);
+    out.text(JSON.stringify(o.id));
+    out.bytes(sessionHead);
     out.isoUtc(o.tSec);
     out.ascii('","source_line":');
     out.int(o.line);
     out.ascii(',"reason":');
     out.text(JSON.stringify(o.reason));
-    out.ascii(o.reason === 'user' ? ',"decided_by":"user","statistic":' : ',"decided_by":"hindcast","statistic":');
-    out.rounded(o.statistic, 3);
+    out.ascii(o.reason === 'user' ? ',"decided_by":"user","test":' : ',"decided_by":"hindcast","test":');
+    out.text(JSON.stringify(o.test));
+    out.ascii(',"statistic":');
+    out.rounded(o.testStatistic, 3);
     out.ascii(',"threshold":');
-    out.rounded(o.threshold, 3);
+    out.rounded(o.testThreshold, 3);
+    out.ascii(',"margin":');
+    out.rounded(o.margin, 4);
+    out.ascii(',"review_statistic":');
+    out.rounded(o.statistic, 3);
+    out.ascii(',"readmit_threshold":');
+    out.rounded(o.readmitThreshold, 3);
     out.ascii(',"offset_m":');
     out.rounded(o.offsetM, METRE_DECIMALS);
     out.ascii(',"offset_up_m":');
     out.rounded(o.offsetUpM, METRE_DECIMALS);
+    out.ascii(',"note":');
+    out.text(o.note === undefined ? 'null' : JSON.stringify(o.note));
     out.ascii(',"detail":');
     out.text(JSON.stringify(o.detail));
     out.ascii('}}');
     if (out.full) yield out.take();
   }
   // every epoch as a Point (--points)
-  if (opt.points) {
+  if (withEpochs) {
     const epochHead = utf8(`,"properties":{"kind":"epoch","session":${name},"time":"`);
     const statusText = STATUS_NAMES.map((n) => utf8(`","status":${JSON.stringify(n)},"segment":`));
     for (let k = 0; k < N; k++) {

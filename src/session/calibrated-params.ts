@@ -13,11 +13,12 @@ import { axisParamsFromConfig, buildAxisModels, filterOptions, reviewOptions, ru
 import { FIRST_ROUND, calibrateSession, type CalibrationInfo } from './calibrate.js';
 import { reviewSegment, type ReviewOptions } from './review.js';
 import type { SessionResult } from './result.js';
+import type { DecisionLog } from './decision-log.js';
 
 /** Per-segment decisions of the classification (the shape runPrepared takes as plans). */
 export interface CalibrationPlan {
   offered: Uint8Array;
-  decisions: { kept: Uint8Array; gateRejected: Uint8Array };
+  decisions: { kept: Uint8Array; gateRejected: Uint8Array; why: DecisionLog };
 }
 
 export interface CalibratedSession {
@@ -35,7 +36,7 @@ function classify(ps: PreparedSession, cfg: HindcastConfig, params: AxisParams, 
     const { data } = segmentData(ps, seg, params, cfg.segments.bridgeFactor);
     const offered = data.use.slice();
     const rev = reviewSegment(models, data, offered, opt, ro);
-    return { offered, decisions: { kept: rev.kept, gateRejected: rev.gateRejected } };
+    return { offered, decisions: { kept: rev.kept, gateRejected: rev.gateRejected, why: rev.why } };
   });
 }
 

@@ -29,6 +29,8 @@ import { InputError } from '../errors.js';
 import { axisParamsFromConfig, prepareSession, reviewOptions, segmentData, type AxisParams, type PreparedSession } from './process-session.js';
 import { calibratedFixesOnly } from './calibrated-params.js';
 import { applyReviewDecisions, reviewThresholds } from './review-decisions.js';
+import { settleDecisions } from './review.js';
+import type { DecisionLog } from './decision-log.js';
 import { buildOutliersAndMetrics } from './products.js';
 import { STATUS, type SessionResult } from './result.js';
 
@@ -177,6 +179,10 @@ export interface ImuReview {
   kept: Uint8Array;
   /** 1 where the fix failed the forward gate of the first pass. */
   gateRejected: Uint8Array;
+  /** The deciding test of each rejected gated fix, by epoch (decision-log.ts). */
+  why?: DecisionLog;
+  /** Re-admission thresholds of the review by degrees of freedom. */
+  readmit?: readonly number[];
   T: Float64Array;
   dof: Uint8Array;
   threshold: Float64Array;
@@ -289,10 +295,15 @@ export async function processImuSession(series: FixSeries, imuPath: string, cfg:
     let engine = await runPass(ep);
     const gateRejected = new Uint8Array(N);
     const kept = new Uint8Array(N);
+    const why: DecisionLog = new Map();
     for (let k = 0; k < N; k++) {
       const gated = offered[k] === 1 && engine.products.covered[k] === 1;
       kept[k] = offered[k] === 2 ? 1 : offered[k] === 0 ? 0 : gated ? engine.products.accepted[k]! : 1;
-      if (gated && !engine.products.accepted[k]) gateRejected[k] = 1;
+      if (gated && !engine.products.accepted[k]) {
+        gateRejected[k] = 1;
+        const pr = engine.products;
+        why.set(k, { test: 'forward-gate', statistic: pr.nis[k]!, threshold: pr.threshold[k]!, dof: 0 });
+      }
     }
     const ro = reviewOptions(cfg, ps.intervalSec);
     const th = reviewThresholds(ro.probability);
@@ -307,7 +318,7 @@ export async function processImuSession(series: FixSeries, imuPath: string, cfg:
     for (;;) {
       reviewImuFixes(ep, gatedFix, engine, th.reject, T, dof, threshold);
       if (passes >= IMU_REVIEW_MAX_PASSES) break;
-      if (!applyReviewDecisions(N, gatedFix, kept, T, dof, threshold, ep.tSec, th, ro.guardSec)) {
+      if (!applyReviewDecisions(N, gatedFix, kept, T, dof, threshold, ep.tSec, th, ro.guardSec, why)) {
         converged = true;
         break;
       }
@@ -330,7 +341,10 @@ export async function processImuSession(series: FixSeries, imuPath: string, cfg:
       engine = await runPass(fixed, resume);
       passes++;
     }
-    const review: ImuReview = { kept, gateRejected, T, dof, threshold, passes, converged, ...gateStats };
+    settleDecisions(N, gatedFix, kept, T, dof, threshold, why, th.readmit);
+    // the gate measured the same axes as the review statistic
+    for (const [k, d] of why) if (d.test === 'forward-gate' && d.dof === 0) d.dof = dof[k]!;
+    const review: ImuReview = { kept, gateRejected, why, readmit: th.readmit, T, dof, threshold, passes, converged, ...gateStats };
     if (tm) tm.reviewMs += lap();
     const res = assembleImuResult(base, ps, engine, imuWarnings ?? [], review, gp);
     if (tm) tm.productsMs += lap();
@@ -416,7 +430,18 @@ export function assembleImuResult(base: SessionResult, ps: PreparedSession, engi
     gateRejectedFix[i] = review.gateRejected[j]!;
     dofAt[j] = review.dof[j]!;
   }
-  buildOutliersAndMetrics(res, ps, gateRejectedFix, review.reacquisitions, dofAt);
+  // the deciding tests: the IMU review's where it covers the epoch, else the fixes-only one's
+  const whyFix: DecisionLog = new Map();
+  for (const o of base.outliers)
+    if (o.test === 'forward-gate' || o.test === 'backward-gate' || o.test === 'review' || o.test === 'swap') whyFix.set(o.fix, { test: o.test, statistic: o.testStatistic, threshold: o.testThreshold, dof: o.dof });
+  for (let j = 0; j < N; j++) {
+    const i = res.fix[j]!;
+    if (i < 0 || !pr.covered[j]) continue;
+    whyFix.delete(i);
+    const d = review.why?.get(j);
+    if (d) whyFix.set(i, d);
+  }
+  buildOutliersAndMetrics(res, ps, gateRejectedFix, review.reacquisitions, dofAt, { why: whyFix, readmit: review.readmit ?? reviewThresholds(typeof base.info.gateProbability === 'number' ? base.info.gateProbability : 0.999).readmit });
   const st = engine.stats;
   res.info = {
     ...base.info,

@@ -13,6 +13,8 @@ import { epochGrid, nominalIntervalSec, splitSegments } from './segments.js';
 import { factorsWithExponents, fixSigmaFactors } from './fix-noise.js';
 import { DEFAULT_CALIBRATION, FIRST_ROUND, calibrateSession, calibrationWindows, sliceSegment } from './calibrate.js';
 import { reviewSegment, type ReviewOptions, type ReviewOutcome } from './review.js';
+import type { DecisionLog } from './decision-log.js';
+import { reviewThresholds } from './review-decisions.js';
 import { buildOutliersAndMetrics } from './products.js';
 import { STATUS, type OutlierRecord, type SessionResult } from './result.js';
 import type { StageTimings } from './timings.js';
@@ -268,7 +270,7 @@ export function reviewOptions(cfg: HindcastConfig, intervalSec = 1): ReviewOptio
 /** Per-segment state carried between the stages of processSession. */
 interface SegmentPlan {
   offered: Uint8Array;
-  decisions?: { kept: Uint8Array; gateRejected: Uint8Array };
+  decisions?: { kept: Uint8Array; gateRejected: Uint8Array; why: DecisionLog };
   /** The converged review behind the decisions and the parameters it ran under (reused when the final run has the same). */
   outcome?: { params: AxisParams; rev: ReturnType<typeof reviewSegment> };
 }
@@ -332,7 +334,7 @@ function classify(ps: PreparedSession, cfg: HindcastConfig, params: AxisParams, 
     if (tm) tm.review += performance.now() - t0;
     const offered = data.use.slice();
     const rev = reviewSegment(models, data, offered, opt, ro, undefined, tm);
-    return { offered, decisions: { kept: rev.kept, gateRejected: rev.gateRejected }, outcome: rev.converged ? { params, rev } : undefined };
+    return { offered, decisions: { kept: rev.kept, gateRejected: rev.gateRejected, why: rev.why }, outcome: rev.converged ? { params, rev } : undefined };
   });
 }
 
@@ -377,7 +379,7 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
   const opt = filterOptions(cfg, p);
   const ro = reviewOptions(cfg, ps.intervalSec);
   const nAx = models.length;
-  type SegOut = { data: SegmentData; fix: Int32Array; x: Float64Array[]; P: Float64Array[]; kept: Uint8Array; gateRejected: Uint8Array; T: Float64Array; thr: Float64Array; reacq: number };
+  type SegOut = { data: SegmentData; fix: Int32Array; x: Float64Array[]; P: Float64Array[]; kept: Uint8Array; gateRejected: Uint8Array; why: DecisionLog; T: Float64Array; thr: Float64Array; reacq: number };
   const segOuts: SegOut[] = [];
   ps.segments.forEach((seg, si) => {
     const plan = plans?.[si];
@@ -399,7 +401,7 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
       rev = reviewSegment(models, data, offered, opt, ro, plan?.decisions, tm);
     }
     const h = rev.history;
-    segOuts.push({ data, fix, x: h.x, P: h.P, kept: rev.kept, gateRejected: rev.gateRejected, T: rev.T, thr: rev.threshold, reacq: h.reacquired.length });
+    segOuts.push({ data, fix, x: h.x, P: h.P, kept: rev.kept, gateRejected: rev.gateRejected, why: rev.why, T: rev.T, thr: rev.threshold, reacq: h.reacquired.length });
   });
   const tProducts = tm ? performance.now() : 0;
   const N = segOuts.reduce((a, o) => a + o.data.N, 0);
@@ -426,8 +428,11 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
   let k0 = 0;
   let reacq = 0;
   const gateRejectedFix = new Uint8Array(s.n);
+  // the deciding test of every rejected fix, by fix index
+  const whyFix: DecisionLog = new Map();
   segOuts.forEach((o, si) => {
     reacq += o.reacq;
+    for (const [k, d] of o.why) if (o.fix[k]! >= 0) whyFix.set(o.fix[k]!, d);
     for (let k = 0; k < o.data.N; k++) {
       const j = k0 + k;
       res.tSec[j] = o.data.tSec[k]!;
@@ -463,13 +468,15 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
     k0 += o.data.N;
   });
   // raw positions, outlier records and metrics follow from the final epochs (shared with the IMU path)
-  buildOutliersAndMetrics(res, ps, gateRejectedFix, reacq);
+  buildOutliersAndMetrics(res, ps, gateRejectedFix, reacq, undefined, { why: whyFix, readmit: reviewThresholds(cfg.gate.probability).readmit });
   res.info = {
     frame: ps.frame.definition,
     heightReferenceM: ps.heightRefM,
     model: p,
     gateProbability: cfg.gate.probability,
     qualityColumnsUsed: ps.factors.used,
+    // the zone the log's local times were read in (the report shows its times in it as well as in UTC)
+    ...(cfg.input.timeZone ? { timeZone: cfg.input.timeZone } : {}),
   };
   if (tm) tm.products += performance.now() - tProducts;
   return res;

@@ -9,6 +9,43 @@ import { geodesicLengthM } from '../geodesy/geodesic.js';
 import type { PreparedSession } from './process-session.js';
 import { STATUS, type OutlierRecord, type SessionResult } from './result.js';
 import { selectKth } from '../estimation/select.js';
+import { decisionMargin, type Decision, type DecidingTest, type DecisionLog } from './decision-log.js';
+
+/** The deciding tests of the filter's rejections (by fix index) and the review's re-admission thresholds by dof. */
+export interface DecidedBy {
+  why: DecisionLog;
+  readmit: readonly number[];
+}
+
+const f2 = (v: number) => (Number.isFinite(v) ? v.toFixed(2) : '–');
+
+/** The detail text of a flagged fix: the deciding test in words with its figures, and why the review did not take it back. */
+export function decisionDetail(d: Decision, T: number, readmit: number): string {
+  const axes = d.dof === 1 ? '1 axis' : `${d.dof} axes`;
+  const still = Number.isFinite(T) && Number.isFinite(readmit) ? `; against the final smoothed track T = ${f2(T)} > ${f2(readmit)} (re-admission threshold), so not taken back` : '';
+  switch (d.test) {
+    case 'forward-gate':
+      return `failed the forward chi-square gate: NIS ${f2(d.statistic)} > ${f2(d.threshold)} (${axes})${still}`;
+    case 'backward-gate':
+      return `failed the time-reversed chi-square gate: NIS ${f2(d.statistic)} > ${f2(d.threshold)} (${axes})${still}`;
+    case 'review':
+      return d.statistic > d.threshold && Math.abs(d.threshold - readmit) < 1e-12
+        ? `not re-admitted by the two-sided review: T ${f2(d.statistic)} > ${f2(d.threshold)} (re-admission threshold, ${axes})`
+        : `failed the two-sided review against the smoothed track: T ${f2(d.statistic)} > ${f2(d.threshold)} (${axes})${Number.isFinite(T) && Math.abs(T - d.statistic) > 1e-9 ? still : ''}`;
+    case 'swap':
+      return `left out by the swap test: the neighbourhood costs ${f2(d.statistic)} with its run kept and ${f2(d.threshold)} with it left out (capped χ² sums)${still}`;
+  }
+}
+
+/** Attach the user's notes (fix index → note) to a result: its decision notes and its flagged fixes' records. */
+export function attachDecisionNotes(res: SessionResult, notes: Map<number, string>): void {
+  if (notes.size === 0) return;
+  res.decisionNotes = notes;
+  for (const o of res.outliers) {
+    const n = notes.get(o.fix);
+    if (n !== undefined) o.note = n;
+  }
+}
 
 /** The median order statistic of v, selected without sorting (the value of the sorted array); reorders v. */
 function medianInPlace(v: Float64Array): number {
@@ -22,9 +59,10 @@ function medianInPlace(v: Float64Array): number {
  * @param gateRejectedFix per fix of the series: 1 where the fix failed the gate of the first pass
  *   (an outlier of it is then `innovation`, otherwise `review`)
  * @param reacquisitions re-acquisitions of the forward filter, reported in the metrics
- * @param dofAt optional degrees of freedom of the statistic per epoch (0 when absent)
+ * @param dofAt optional degrees of freedom of the statistic per epoch (else the measured axes of the fix)
+ * @param decided the deciding test of each rejected fix (by fix index) and the re-admission thresholds
  */
-export function buildOutliersAndMetrics(res: SessionResult, ps: PreparedSession, gateRejectedFix: Uint8Array, reacquisitions: number, dofAt?: Uint8Array): void {
+export function buildOutliersAndMetrics(res: SessionResult, ps: PreparedSession, gateRejectedFix: Uint8Array, reacquisitions: number, dofAt?: Uint8Array, decided?: DecidedBy): void {
   const s = ps.series;
   const N = res.N;
   const fixEpoch = new Int32Array(s.n).fill(-1);
@@ -42,6 +80,8 @@ export function buildOutliersAndMetrics(res: SessionResult, ps: PreparedSession,
   res.rawEnu = rawEnu;
   // outlier records, in time order
   const out: OutlierRecord[] = [];
+  // fixes flagged so far per source line (ids: L<line>, then L<line>-2, …)
+  const lineIds = new Map<number, number>();
   for (let i = 0; i < s.n; i++) {
     const j = fixEpoch[i]!;
     const isInvalid = !ps.valid[i];
@@ -54,7 +94,20 @@ export function buildOutliersAndMetrics(res: SessionResult, ps: PreparedSession,
       offsetM = Math.hypot(ps.e[i]! - res.posEnu[0]![j]!, ps.n[i]! - res.posEnu[1]![j]!);
       if (ps.hasHeight) offsetUpM = ps.u[i]! - res.posEnu[2]![j]!;
     }
+    const dof = isInvalid || byUser || j < 0 ? 0 : dofAt ? dofAt[j]! : 2 + (ps.hasHeight && Number.isFinite(ps.u[i]!) ? 1 : 0);
+    const T = isInvalid || byUser ? NaN : res.nis[j]!;
+    const readmit = dof > 0 && decided ? decided.readmit[dof]! : NaN;
+    // the deciding test: recorded by the review where it decided; else (a caller without a log) the
+    // review's where the fix fails it, the gate's otherwise (figures unknown: NaN)
+    const d: Decision | undefined = isInvalid || byUser ? undefined : decided?.why.get(i);
+    const test: DecidingTest = isInvalid ? 'invalid' : byUser ? 'user' : d ? d.test : T > res.nisThreshold[j]! ? 'review' : 'forward-gate';
+    const testStatistic = d ? d.statistic : test === 'review' ? T : NaN;
+    const testThreshold = d ? d.threshold : test === 'review' ? res.nisThreshold[j]! : NaN;
+    const line = s.line[i]!;
+    const seen = lineIds.get(line) ?? 0;
+    lineIds.set(line, seen + 1);
     out.push({
+      id: seen === 0 ? `L${line}` : `L${line}-${seen + 1}`,
       fix: i,
       line: s.line[i]!,
       tSec: s.tSec[i]!,
@@ -62,18 +115,25 @@ export function buildOutliersAndMetrics(res: SessionResult, ps: PreparedSession,
       lonDeg: s.lonDeg[i]!,
       heightM: s.heightM ? s.heightM[i]! : NaN,
       reason: isInvalid ? 'invalid' : byUser ? 'user' : gateRejectedFix[i] ? 'innovation' : 'review',
-      statistic: isInvalid || byUser ? NaN : res.nis[j]!,
+      test,
+      testStatistic,
+      testThreshold,
+      margin: decisionMargin(testStatistic, testThreshold),
+      statistic: T,
       threshold: isInvalid || byUser ? NaN : res.nisThreshold[j]!,
-      dof: dofAt && j >= 0 && !isInvalid && !byUser ? dofAt[j]! : 0,
+      readmitThreshold: readmit,
+      dof,
       offsetM,
       offsetUpM,
       detail: isInvalid
         ? ps.invalidWhy[i]!
         : byUser
           ? 'rejected by the user (decisions file)'
-          : gateRejectedFix[i]
-            ? 'failed the forward chi-square gate and the two-sided review against the smoothed track'
-            : 'passed the forward gate but failed the two-sided review against the smoothed track',
+          : d
+            ? decisionDetail(d, T, readmit)
+            : test === 'review'
+              ? `failed the two-sided review against the smoothed track: T ${f2(T)} > ${f2(res.nisThreshold[j]!)}`
+              : 'failed the chi-square gate (figures not recorded)',
     });
   }
   res.outliers = out;

@@ -3,6 +3,7 @@
  * arrays inside; the writers only read it.
  */
 import type { InputWarning } from '../errors.js';
+import type { DecidingTest } from './decision-log.js';
 
 export const STATUS = { kept: 0, outlier: 1, bridged: 2, userKept: 3, userRejected: 4 } as const;
 export const STATUS_NAMES = ['kept', 'outlier', 'bridged', 'user-kept', 'user-rejected'] as const;
@@ -12,6 +13,11 @@ export type StatusName = (typeof STATUS_NAMES)[number];
 export type OutlierReason = 'innovation' | 'review' | 'invalid' | 'user';
 
 export interface OutlierRecord {
+  /**
+   * Stable id of the flagged fix: "L" and its source line ("L145"), with "-2", "-3", … for further
+   * fixes of the same line; the same in outliers.csv, the GeoJSON flags layer and the report.
+   */
+  id: string;
   /** Index of the fix in the FixSeries. */
   fix: number;
   line: number;
@@ -20,10 +26,23 @@ export interface OutlierRecord {
   lonDeg: number;
   heightM: number;
   reason: OutlierReason;
-  /** Test statistic (NIS, χ²) and its threshold; NaN for invalid fixes. */
+  /** The test that decided (session/decision-log.ts). */
+  test: DecidingTest;
+  /** That test's statistic and threshold (statistic > threshold); NaN for invalid and user-rejected fixes. */
+  testStatistic: number;
+  testThreshold: number;
+  /** testStatistic / testThreshold − 1 (decisionMargin); NaN where there is no test. */
+  margin: number;
+  /**
+   * Two-sided review statistic against the final smoothed track (χ²) and the re-admission threshold
+   * it must not exceed for the fix to come back; NaN for invalid and user-rejected fixes.
+   */
   statistic: number;
   threshold: number;
+  readmitThreshold: number;
   dof: number;
+  /** The user's note from the decisions file, when there is one. */
+  note?: string;
   /** Horizontal distance from the smoothed track (m); NaN where there is none. */
   offsetM: number;
   /** Vertical offset raw − smoothed (m). */
@@ -98,6 +117,8 @@ export interface SessionResult {
   };
   hasHeight: boolean;
   outliers: OutlierRecord[];
+  /** The user's notes from the decisions file, by fix index (attached by the batch; attachDecisionNotes). */
+  decisionNotes?: Map<number, string>;
   metrics: SessionMetrics;
   warnings: InputWarning[];
   /** Facts about the processing (frame, model parameters used, …) for summary.json. */

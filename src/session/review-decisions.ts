@@ -7,6 +7,7 @@
  * fail too). Sources as in src/estimation/review.ts (de Jong & Penzer 1998; Teunissen 2006).
  */
 import { chiSquareQuantile } from '../estimation/chi-square.js';
+import type { DecisionLog } from './decision-log.js';
 
 /** Rejection and re-admission thresholds by degrees of freedom (index 0: no measured axis, Infinity). */
 export interface ReviewThresholds {
@@ -25,7 +26,8 @@ export function reviewThresholds(probability: number): ReviewThresholds {
 /**
  * One decision pass, in place on `kept` (1 kept / 0 rejected per epoch). Only epochs with
  * offered[k] === 1 (gated fixes) are judged; T, dof and threshold hold their statistics
- * (threshold[k] = th.reject[dof[k]]). Returns whether any decision changed.
+ * (threshold[k] = th.reject[dof[k]]). Returns whether any decision changed. With `log`, every
+ * rejection is recorded there as the review's (its T and threshold) and every re-admission removed.
  */
 export function applyReviewDecisions(
   N: number,
@@ -37,6 +39,7 @@ export function applyReviewDecisions(
   tSec: Float64Array,
   th: ReviewThresholds,
   guardSec: number,
+  log?: DecisionLog,
 ): boolean {
   let changed = false;
   // re-admit every rejected fix that now passes clearly
@@ -44,6 +47,7 @@ export function applyReviewDecisions(
     if (offered[k] === 1 && !kept[k] && dof[k]! > 0 && T[k]! <= th.readmit[dof[k]!]!) {
       kept[k] = 1;
       changed = true;
+      log?.delete(k);
     }
   // reject failing kept fixes that are the worst within ±guard of each other (local maxima of T/threshold)
   const cand: number[] = [];
@@ -72,6 +76,7 @@ export function applyReviewDecisions(
     taken[k] = 1;
     kept[k] = 0;
     changed = true;
+    log?.set(k, { test: 'review', statistic: T[k]!, threshold: threshold[k]!, dof: dof[k]! });
   }
   return changed;
 }

@@ -18,6 +18,7 @@ import type { AxisModel } from '../models/axis-model.js';
 import { covStride, type FilterHistory, type FilterOptions, type SegmentData } from '../estimation/track-filter.js';
 import { reviewStatisticsRange } from '../estimation/review.js';
 import { makeWindowTrialWork, windowTrial, type WindowTrialWork } from '../estimation/window-trial.js';
+import type { DecisionLog } from './decision-log.js';
 
 export interface Swap {
   /** Epochs kept before the swap (the suspected burst). */
@@ -142,7 +143,9 @@ export function trialCost(tr: SwapTrial, sw: Swap, models: AxisModel[], data: Se
 /**
  * Try one swap against the converged review (T, threshold: its current statistics, read for the
  * cost before the swap): apply it to `kept` and keep it (true) where trialCost is lower than the
- * cost before, else undo it (false).
+ * cost before, else undo it (false). With `log`, a kept swap is recorded there: each fix of the run
+ * it left out as the swap test's (statistic: the cost with the run kept, threshold: the cost
+ * without it), and its re-admitted neighbours removed.
  */
 export function trySwap(
   tr: SwapTrial,
@@ -158,10 +161,18 @@ export function trySwap(
   threshold: Float64Array,
   thr: readonly number[],
   nu: Float64Array,
+  log?: DecisionLog,
 ): boolean {
   const before = swapCost(sw, offered, kept, T, threshold);
   applySwap(sw, kept, false);
-  if (trialCost(tr, sw, models, data, opt, hf, hs, offered, kept, thr, nu) < before) return true;
+  const after = trialCost(tr, sw, models, data, opt, hf, hs, offered, kept, thr, nu);
+  if (after < before) {
+    if (log) {
+      for (const k of sw.keptRun) log.set(k, { test: 'swap', statistic: before, threshold: after, dof: 0 });
+      for (const k of sw.rejected) log.delete(k);
+    }
+    return true;
+  }
   applySwap(sw, kept, true);
   return false;
 }

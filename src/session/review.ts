@@ -16,6 +16,7 @@ import { reviewStatisticsRange } from '../estimation/review.js';
 import { applyReviewDecisions, reviewThresholds } from './review-decisions.js';
 import { findSwaps, makeSwapTrial, trySwap } from './review-swaps.js';
 import type { StageTimings } from './timings.js';
+import type { DecisionLog } from './decision-log.js';
 
 /**
  * Tolerance of the windowed re-runs (m, m/s, m²): a re-run stops once every state and covariance
@@ -34,6 +35,11 @@ export interface ReviewOutcome {
   kept: Uint8Array;
   /** Rejected by the forward gate in the first pass. */
   gateRejected: Uint8Array;
+  /**
+   * The test that leaves each rejected gated fix out (epoch → decision; decision-log.ts): the gate
+   * of the first pass, the review, or the swap test, with its statistic and threshold at the time.
+   */
+  why: DecisionLog;
   /** Review statistic, its dof and threshold per epoch (NaN where no fix). */
   T: Float64Array;
   dof: Uint8Array;
@@ -64,7 +70,7 @@ export function reviewSegment(
   offered: Uint8Array,
   opt: FilterOptions,
   ro: ReviewOptions,
-  initial?: { kept: Uint8Array; gateRejected: Uint8Array },
+  initial?: { kept: Uint8Array; gateRejected: Uint8Array; why?: DecisionLog },
   tm?: StageTimings,
 ): ReviewOutcome {
   const tStart = tm ? performance.now() : 0;
@@ -80,6 +86,7 @@ export function reviewSegment(
   let h: FilterHistory;
   const gateRejected = new Uint8Array(N);
   const kept = new Uint8Array(N);
+  const why: DecisionLog = new Map(initial?.why);
   // east and north measured alike (horizontalShare: it reads the models, the options and z, r, not
   // the use, so it holds for every pass of this review and for the time-reversed data): every pass
   // writes north's covariance as a copy of east's, filtered and smoothed, so each history holds one
@@ -115,7 +122,13 @@ export function reviewSegment(
     for (let k = 0; k < N; k++) {
       const both = h.accepted[k]! && back.accepted[N - 1 - k]!;
       kept[k] = offered[k] === 2 ? 1 : offered[k] ? both : 0;
-      if (offered[k] === 1 && !both) gateRejected[k] = 1;
+      if (offered[k] === 1 && !both) {
+        gateRejected[k] = 1;
+        // the gate that refused it, with its NIS (the forward one where both did); read now, since
+        // the first review pass overwrites these histories
+        const kb = N - 1 - k;
+        why.set(k, h.accepted[k] ? { test: 'backward-gate', statistic: back.nis[kb]!, threshold: back.threshold[kb]!, dof: back.dof[kb]! } : { test: 'forward-gate', statistic: h.nis[k]!, threshold: h.threshold[k]!, dof: h.dof[k]! });
+      }
     }
   }
   const th = reviewThresholds(ro.probability);
@@ -192,7 +205,7 @@ export function reviewSegment(
     for (let i = 0; i < smoothed.length; i += 2) reviewStatisticsRange(models, h.x, h.P, smoothed[i + 1]!, smoothed[i]!, data.z, data.r, offered, kept, T, dof, threshold, thr, nu);
     for (const k of changed) reviewStatisticsRange(models, h.x, h.P, k, k, data.z, data.r, offered, kept, T, dof, threshold, thr, nu);
     // re-admit the clearly consistent, reject the worst failing fix per guard window
-    const changedAny = applyReviewDecisions(N, offered, kept, T, dof, threshold, data.tSec, th, ro.guardSec);
+    const changedAny = applyReviewDecisions(N, offered, kept, T, dof, threshold, data.tSec, th, ro.guardSec, why);
     if (!changedAny) {
       if (!swapsTried && ro.swaps !== false) {
         // converged: try every kept run sandwiched between rejections the other way round, each on
@@ -201,7 +214,7 @@ export function reviewSegment(
         swapsTried = true;
         let keptAny = false;
         const trial = makeSwapTrial(models);
-        for (const sw of findSwaps(N, offered, kept, data.tSec, ro.guardSec)) if (trySwap(trial, sw, models, work, opt, hf!, hs!, offered, kept, T, threshold, thr, nu)) keptAny = true;
+        for (const sw of findSwaps(N, offered, kept, data.tSec, ro.guardSec)) if (trySwap(trial, sw, models, work, opt, hf!, hs!, offered, kept, T, threshold, thr, nu, why)) keptAny = true;
         if (keptAny) continue;
       }
       converged = true;
@@ -209,8 +222,28 @@ export function reviewSegment(
     }
   }
   for (let k = 0; k < N; k++) work.use[k] = offered[k] === 0 ? 0 : kept[k] ? 2 : 0;
+  settleDecisions(N, offered, kept, T, dof, threshold, why, th.readmit);
   if (tm) tm.review += performance.now() - tStart - tKernel;
-  return { history: h!, data: work, kept, gateRejected, T, dof, threshold, passes, converged };
+  return { history: h!, data: work, kept, gateRejected, why, T, dof, threshold, passes, converged };
+}
+
+/**
+ * The decision log at the end of a review, in place: entries of fixes that are kept are dropped; a
+ * rejected fix that fails the review against the final track is the review's (its final T, which
+ * is what the reviewer sees against the track); one without an entry (decisions handed in without
+ * their log) is the review's where it fails there, and otherwise the review's re-admission test's
+ * (T above the stricter re-admission threshold: not clearly consistent, so not taken back).
+ */
+export function settleDecisions(N: number, offered: Uint8Array, kept: Uint8Array, T: Float64Array, dof: Uint8Array, threshold: Float64Array, why: DecisionLog, readmit: readonly number[]): void {
+  for (const k of why.keys()) if (kept[k] || offered[k] !== 1) why.delete(k);
+  for (let k = 0; k < N; k++) {
+    if (offered[k] !== 1 || kept[k] || !(dof[k]! > 0)) continue;
+    if (T[k]! > threshold[k]!) why.set(k, { test: 'review', statistic: T[k]!, threshold: threshold[k]!, dof: dof[k]! });
+    else if (!why.has(k)) {
+      const ra = readmit[dof[k]!]!;
+      why.set(k, { test: 'review', statistic: T[k]!, threshold: ra, dof: dof[k]! });
+    }
+  }
 }
 
 /** The segment in reverse time order (t → −t), for the time-reversed filter; the models are time-symmetric. */

@@ -52,12 +52,12 @@ describe('companion files', () => {
     expect(b!.reason).toMatch(/decisions/);
   });
 
-  it('output.gpx adds <stem>.gpx to the outputs and the manifest', async () => {
+  it('output.gpx adds <stem>.gpx to the outputs and the manifest (after the GeoJSON layers of one geometry type each)', async () => {
     const input = join(root, 'in');
     await writeSessions(input, 1);
     const out = join(root, 'out');
     const r = await runBatch({ input, out, config: loadConfig({ overrides: { output: { report: false, gpx: true } } }) });
-    expect(r.summary.sessions[0]!.outputs).toEqual(['log00.track.csv', 'log00.outliers.csv', 'log00.geojson', 'log00.gpx']);
+    expect(r.summary.sessions[0]!.outputs).toEqual(['log00.track.csv', 'log00.outliers.csv', 'log00.geojson', 'log00.track.geojson', 'log00.flags.geojson', 'log00.gpx']);
     expect(await readFile(join(out, 'log00.gpx'), 'utf8')).toMatch(/^<\?xml/);
   });
 });

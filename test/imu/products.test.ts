@@ -6,6 +6,8 @@ import { expect, it } from 'vitest';
 import { prepareSession, processSession } from '../../src/session/process-session.js';
 import { calibratedFixesOnly } from '../../src/session/calibrated-params.js';
 import { buildOutliersAndMetrics } from '../../src/session/products.js';
+import { reviewThresholds } from '../../src/session/review-decisions.js';
+import type { DecisionLog } from '../../src/session/decision-log.js';
 import { makeImuCase } from './helpers.js';
 
 it('calibratedFixesOnly equals processSession, and buildOutliersAndMetrics rebuilds its outliers and metrics', () => {
@@ -19,7 +21,11 @@ it('calibratedFixesOnly equals processSession, and buildOutliersAndMetrics rebui
   const gateRejectedFix = new Uint8Array(c.series.n);
   for (const o of ref.outliers) if (o.reason === 'innovation') gateRejectedFix[o.fix] = 1;
   const copy = { ...ref, outliers: [], rawEnu: undefined, metrics: undefined as unknown as typeof ref.metrics };
-  buildOutliersAndMetrics(copy, ps, gateRejectedFix, ref.metrics.reacquisitions);
+  // the deciding tests, handed in as the IMU path hands in the fixes-only ones
+  const why: DecisionLog = new Map();
+  for (const o of ref.outliers)
+    if (o.test === 'forward-gate' || o.test === 'backward-gate' || o.test === 'review' || o.test === 'swap') why.set(o.fix, { test: o.test, statistic: o.testStatistic, threshold: o.testThreshold, dof: o.dof });
+  buildOutliersAndMetrics(copy, ps, gateRejectedFix, ref.metrics.reacquisitions, undefined, { why, readmit: reviewThresholds(c.cfg.gate.probability).readmit });
   expect(copy.outliers).toEqual(ref.outliers);
   expect(copy.metrics).toEqual(ref.metrics);
   expect(Array.from(copy.rawEnu![0])).toEqual(Array.from(ref.rawEnu![0]));

@@ -93,5 +93,14 @@ describe('review in the IMU-aided path', () => {
     console.log(`overconfident filter: gate rejected ${info.gnssRejected}, flagged after review ${flagged}, passes ${info.reviewPasses}, converged ${info.reviewConverged}`);
     expect(info.gnssRejected).toBeGreaterThan(0);
     expect(flagged).toBeLessThan(info.gnssRejected);
+    // every fix left out names the test that decided, with a statistic above that test's threshold
+    const tested = r.outliers.filter((o) => o.test !== 'invalid' && o.test !== 'user');
+    expect(tested.length).toBe(flagged);
+    for (const o of tested) {
+      expect(['forward-gate', 'review', 'swap']).toContain(o.test);
+      expect(o.testStatistic, `${o.id} ${o.test}`).toBeGreaterThan(o.testThreshold);
+      expect(o.statistic, o.id).toBeGreaterThan(o.readmitThreshold);
+    }
+    console.log(`overconfident filter, deciding tests: ${JSON.stringify(tested.reduce((m, o) => ({ ...m, [o.test]: ((m as Record<string, number>)[o.test] ?? 0) + 1 }), {}))}`);
   });
 });

@@ -4,7 +4,9 @@
  * the report say the decision was the user's.
  */
 import { describe, expect, test } from 'vitest';
-import { mkdtempSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { parseDecisionNotes } from '../../src/input/decision-notes.js';
+import { attachDecisionNotes } from '../../src/session/products.js';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { readDecisions } from '../../src/input/decisions-csv.js';
@@ -57,7 +59,7 @@ function gated(r: SessionResult, isolated: boolean): number[] {
   return out.sort((a, b) => r.nis[a]! / r.nisThreshold[a]! - r.nis[b]! / r.nisThreshold[b]!);
 }
 
-function rerun(decisions: Array<[number, 'keep' | 'reject']>): { before: SessionResult; after: SessionResult; named: Set<number> } {
+function rerun(decisions: Array<[number, 'keep' | 'reject']>): { before: SessionResult; after: SessionResult; named: Set<number>; path: string } {
   const { series, cfg, result: before } = base();
   const times = trackTimes(before);
   const dir = mkdtempSync(join(tmpdir(), 'hindcast-review-'));
@@ -66,7 +68,7 @@ function rerun(decisions: Array<[number, 'keep' | 'reject']>): { before: Session
   const map = readDecisions(path, series);
   expect(map.size).toBe(decisions.length);
   const after = processSession(series, cfg, 'vehicle-7', map);
-  return { before, after, named: new Set(decisions.map(([j]) => j)) };
+  return { before, after, named: new Set(decisions.map(([j]) => j)), path };
 }
 
 describe('decisions fed back on a rerun', () => {
@@ -113,8 +115,12 @@ describe('decisions fed back on a rerun', () => {
     const r0 = base().result;
     const rejectKept = pick(r0, STATUS.kept, 30);
     const keepFlagged = gated(r0, true)[0]!;
-    const { after } = rerun([[rejectKept, 'reject'], [keepFlagged, 'keep']]);
+    const { after, path } = rerun([[rejectKept, 'reject'], [keepFlagged, 'keep']]);
+    // the user's notes, attached as the batch does
+    attachDecisionNotes(after, parseDecisionNotes(readFileSync(path, 'utf8'), base().series));
+    expect(outliersCsv(after)).toContain(',"looked at it, reject",rejected by the user');
     const p = reportPayload(after);
+    expect(p.decisions.map((d) => d.note).sort()).toEqual(['looked at it, keep', 'looked at it, reject']);
     expect(p.decisionCount).toBe(2);
     expect(p.decisions.map((d) => d.decision).sort()).toEqual(['keep', 'reject']);
     const times = trackTimes(after);
@@ -123,7 +129,11 @@ describe('decisions fed back on a rerun', () => {
     expect(section).toContain(`<td><code>${times[rejectKept]}</code></td><td>rejected by you (user-rejected)</td>`);
     expect(section).toContain(`<td><code>${times[keepFlagged]}</code></td><td>kept by you (user-kept)</td>`);
     // and in the flagged-fix table, the user's rejection is marked as theirs
-    expect(section).toMatch(new RegExp(`<td><code>${times[rejectKept]!.replace(/\./g, '\\.')}</code></td><td>\\d+</td><td>rejected by you</td><td>user-rejected</td>`));
+    const row = section.split('<table class="flagged')[1]!.split('<tr id=').find((r) => r.includes(`<code>${times[rejectKept]}</code>`))!;
+    expect(row).toMatch(/<td data-sort="rejected by you">rejected by you<\/td>/);
+    expect(row).toContain('>user-rejected</td>');
+    expect(row).toContain('>looked at it, reject</td>');
+    expect(section).toContain('<td>looked at it, keep</td>');
     // the overview counts them
     expect(html).toContain('2 decided by you');
   });

@@ -248,3 +248,76 @@ describe.skipIf(SKIP_SYSTEM_TOOLS)('GDAL opens and converts every output', () =>
     expect(run('ogrinfo', ['-ro', '-so', gpkg, 'track_points'])).toMatch(new RegExp(`Feature Count: ${r.N}\\b`));
   });
 });
+
+describe('GeoJSON layers, one geometry type a file (geojson-layers.ts)', () => {
+  const cases: Array<[string, () => SessionResult]> = [
+    ['plain', () => plain().result],
+    ['antimeridian', () => crossing().result],
+    ['no height, one-position segment', () => awkward(plain().result)],
+  ];
+  test.each(cases)('%s: streamed = JSON.stringify of the object, each layer one geometry type, together the whole collection', (_n, get) => {
+    const r = get();
+    const whole = sessionGeoJson(r, { decimals: 7, points: true }) as FC;
+    let total = 0;
+    for (const only of ['track', 'flags', 'epochs'] as const) {
+      const opt = { decimals: 7, only };
+      const text = chunksToString(sessionGeoJsonChunks(r, opt, 4096));
+      expect(text, only).toBe(JSON.stringify(sessionGeoJson(r, opt)) + '\n');
+      const fc = JSON.parse(text) as FC;
+      expect(getIssues(text), only).toEqual([]);
+      expect(new Set(fc.features.map((f) => f.geometry.type)).size, only).toBeLessThanOrEqual(1);
+      expect(new Set(fc.features.map((f) => f.properties.kind)).size, only).toBeLessThanOrEqual(1);
+      total += fc.features.length;
+    }
+    expect(total).toBe(whole.features.length);
+  });
+  test('the track layer of a session that crosses the antimeridian is MultiLineStrings throughout', () => {
+    const fc = sessionGeoJson(crossing().result, { decimals: 7, only: 'track' }) as FC;
+    expect(fc.features.length).toBeGreaterThan(0);
+    expect(fc.features.every((f) => f.geometry.type === 'MultiLineString')).toBe(true);
+  });
+  test('flagged points carry the id and the deciding test with its figures', () => {
+    const r = plain().result;
+    const fc = sessionGeoJson(r, { decimals: 7, only: 'flags' }) as FC;
+    const mapped = r.outliers.filter((o) => o.reason !== 'invalid');
+    expect(fc.features.map((f) => f.properties.id)).toEqual(mapped.map((o) => o.id));
+    for (const f of fc.features) {
+      expect(['forward-gate', 'backward-gate', 'review', 'swap', 'user']).toContain(f.properties.test);
+      if (f.properties.test !== 'user') expect(f.properties.statistic as number).toBeGreaterThan(f.properties.threshold as number);
+    }
+  });
+});
+
+describe.skipIf(SKIP_SYSTEM_TOOLS)('GDAL reads each layer as one geometry type and writes GeoPackage and shapefile', () => {
+  let dir: string;
+  beforeAll(() => {
+    requireGdal();
+    dir = mkdtempSync(join(tmpdir(), 'hindcast-gdal-layers-'));
+  });
+  const cases: Array<[string, () => SessionResult, 'track' | 'flags' | 'epochs', string]> = [
+    ['plain', () => plain().result, 'track', 'Line String'],
+    ['plain', () => plain().result, 'flags', 'Point'],
+    ['plain', () => plain().result, 'epochs', 'Point'],
+    ['antimeridian', () => crossing().result, 'track', 'Multi Line String'],
+  ];
+  test.each(cases)('%s %s: ogrinfo "Geometry: %s"', (name, get, only, geometry) => {
+    const r = get();
+    const text = sessionGeoJsonText(r, { decimals: 7, only });
+    const n = (JSON.parse(text) as FC).features.length;
+    expect(n).toBeGreaterThan(0);
+    const path = join(dir, `${name}.${only}.geojson`);
+    writeFileSync(path, text);
+    const info = run('ogrinfo', ['-ro', '-al', '-so', path]);
+    // one layer, of one geometry type (3D where the positions have heights)
+    expect(info.match(/^Geometry: .*$/gm)).toEqual([expect.stringMatching(new RegExp(`^Geometry: (3D )?${geometry}$`))]);
+    expect(info).toMatch(new RegExp(`Feature Count: ${n}\\b`));
+    const gpkg = join(dir, `${name}.${only}.gpkg`);
+    run('ogr2ogr', ['-f', 'GPKG', gpkg, path]);
+    expect(run('ogrinfo', ['-ro', '-al', '-so', gpkg])).toMatch(new RegExp(`Feature Count: ${n}\\b`));
+    const shp = join(dir, `${name}.${only}.shp`);
+    run('ogr2ogr', ['-f', 'ESRI Shapefile', shp, path]);
+    const shpInfo = run('ogrinfo', ['-ro', '-al', '-so', shp]);
+    expect(shpInfo).toMatch(new RegExp(`Feature Count: ${n}\\b`));
+    expect(shpInfo).toMatch(only === 'track' ? /Geometry: (3D )?(Multi )?Line String/ : /Geometry: (3D )?Point/);
+  });
+});

@@ -13,6 +13,7 @@ import { reviewSegment } from '../../src/session/review.js';
 import { reviewThresholds } from '../../src/session/review-decisions.js';
 import { applySwap, findSwaps, makeSwapTrial, swapCost, trialCost, trySwap } from '../../src/session/review-swaps.js';
 import { segmentCase } from '../helpers/history-compare.js';
+import type { DecisionLog } from '../../src/session/decision-log.js';
 
 function rng(seed: number): () => number {
   let s = seed;
@@ -118,8 +119,19 @@ describe('swap trial', () => {
     expect(sw?.keptRun).toEqual([k0, k0 + 1, k0 + 2]);
     expect(sw?.rejected).toEqual([k0 - 2, k0 - 1, k0 + 3, k0 + 4]);
     const k2 = kept.slice();
-    expect(trySwap(makeSwapTrial(models), sw!, models, cur, opt, hf, hs, offered, k2, T, thr, th.reject, nu)).toBe(true);
+    // the decision log: the neighbours' earlier rejections, replaced by the swap's record
+    const log: DecisionLog = new Map(sw!.rejected.map((k) => [k, { test: 'review' as const, statistic: T[k]!, threshold: thr[k]!, dof: dof[k]! }]));
+    expect(trySwap(makeSwapTrial(models), sw!, models, cur, opt, hf, hs, offered, k2, T, thr, th.reject, nu, log)).toBe(true);
     for (const k of sw!.keptRun) expect(k2[k]).toBe(0);
     for (const k of sw!.rejected) expect(k2[k]).toBe(1);
+    // the run left out is the swap test's: the cost with it kept (before) above the cost without
+    expect([...log.keys()].sort((a, b) => a - b)).toEqual(sw!.keptRun);
+    const before = swapCost(sw!, offered, kept, T, thr);
+    for (const k of sw!.keptRun) {
+      const d = log.get(k)!;
+      expect(d.test).toBe('swap');
+      expect(d.statistic).toBe(before);
+      expect(d.statistic).toBeGreaterThan(d.threshold);
+    }
   });
 });

@@ -92,8 +92,8 @@ export function nisChart(p: PlotSeries, bridged: Array<[number, number]>): TopLe
   return seriesChart(
     p,
     [
-      { name: 'test statistic (NIS)', values: p.nis },
-      { name: 'gate threshold', values: p.nisThreshold },
+      { name: 'review statistic of the fix against the smoothed track', values: p.nis },
+      { name: 'review threshold (chi-square)', values: p.nisThreshold },
     ],
     bridged,
     { description: 'Two-sided test statistic of each fix against the smoothed track and its chi-square threshold', yTitle: 'test statistic (χ², symlog scale)', yScale: { type: 'symlog' }, flaggedY: (k) => p.nis[k]! },

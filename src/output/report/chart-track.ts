@@ -1,12 +1,19 @@
 /**
  * The track in the local frame (east, north in metres, equal scale on both axes): the smoothed
  * track, solid where fixes support it and dashed across bridged spans, 95% error ellipses at
- * intervals (to scale), the raw positions of flagged fixes and of the user's decisions as symbols.
+ * intervals (to scale), the raw fixes kept (small grey dots), the raw positions of flagged fixes and
+ * of the user's decisions as symbols, each flagged symbol labelled "flag <id>" (its aria-label) so
+ * that the page links it to its table row.
  */
 import type { TopLevelSpec } from 'vega-lite';
 import { STATUS } from '../../session/result.js';
 import { CHART_WIDTH, flagEncoding, flagMark, r4 } from './chart-common.js';
 import type { EllipseMark, PlotSeries } from './payload.js';
+import { flagLabel } from './chart-closeup.js';
+import { CLOSEUP_JOIN_EPOCHS, isKeptFix } from './closeup-data.js';
+
+/** Bursts labelled on the track plot at most (more would cover the track; the close-ups label every fix). */
+export const TRACK_LABELS_MAX = 30;
 
 const ELLIPSE_VERTICES = 36;
 export const TRACK_KINDS = ['smoothed track', 'bridged (no fix)'] as const;
@@ -38,7 +45,8 @@ export function equalAxes(eMin: number, eMax: number, nMin: number, nMax: number
   return { x: [cx - hx, cx + hx], y: [cy - hy, cy + hy], height };
 }
 
-export function trackChart(p: PlotSeries, ellipses: EllipseMark[], name: string): TopLevelSpec {
+/** @param flagIds the id of each listed flagged fix by its epoch in the full session */
+export function trackChart(p: PlotSeries, ellipses: EllipseMark[], name: string, flagIds: ReadonlyMap<number, string> = new Map()): TopLevelSpec {
   // track as runs of one kind within a segment; a bridged run includes its neighbours so it joins up
   const line: Array<{ e: number | null; n: number | null; part: number; kind: string; k: number }> = [];
   let part = -1;
@@ -58,15 +66,27 @@ export function trackChart(p: PlotSeries, ellipses: EllipseMark[], name: string)
   }
   const ell: Array<{ e: number | null; n: number | null; id: number; k: number }> = [];
   ellipses.forEach((el, id) => ellipsePoints(el).forEach(([e, n], k) => ell.push({ e: r4(e), n: r4(n), id, k })));
-  const flagged: Array<{ e: number | null; n: number | null; mark: string }> = [];
+  const flagged: Array<{ e: number | null; n: number | null; mark: string; label: string }> = [];
+  // one text label a burst: its first id, and how many more it holds
+  const labels: Array<{ e: number | null; n: number | null; text: string; epoch: number; count: number }> = [];
+  const kept: Array<{ e: number | null; n: number | null }> = [];
   for (let k = 0; k < M; k++) {
+    if (isKeptFix(p.status[k]!) && Number.isFinite(p.rawEast[k]!)) kept.push({ e: r4(p.rawEast[k]!), n: r4(p.rawNorth[k]!) });
     const m = flagMark(p.status[k]!);
     // the raw fix where there is one (that is what was judged), else the smoothed position
     if (!m) continue;
     const e = Number.isFinite(p.rawEast[k]!) ? p.rawEast[k]! : p.east[k]!;
     const n = Number.isFinite(p.rawNorth[k]!) ? p.rawNorth[k]! : p.north[k]!;
-    flagged.push({ e: r4(e), n: r4(n), mark: m.label });
+    const id = flagIds.get(p.epoch[k]!);
+    flagged.push({ e: r4(e), n: r4(n), mark: m.label, label: id ? flagLabel(id) : m.label });
+    if (!id) continue;
+    const last = labels.at(-1);
+    if (last && p.epoch[k]! - last.epoch <= CLOSEUP_JOIN_EPOCHS) {
+      last.count++;
+      last.epoch = p.epoch[k]!;
+    } else labels.push({ e: r4(e), n: r4(n), text: id, epoch: p.epoch[k]!, count: 1 });
   }
+  for (const l of labels) if (l.count > 1) l.text += ` +${l.count - 1}`;
   let eMin = Infinity, eMax = -Infinity, nMin = Infinity, nMax = -Infinity;
   for (const q of [...line, ...ell, ...flagged]) {
     if (q.e === null || q.n === null) continue;
@@ -81,6 +101,11 @@ export function trackChart(p: PlotSeries, ellipses: EllipseMark[], name: string)
   const y = { field: 'n', type: 'quantitative', scale: { domain: ax.y, nice: false, zero: false }, axis: { title: 'north (m)' } };
   const start = line.length ? [{ e: line[0]!.e, n: line[0]!.n, label: 'start' }] : [];
   const layers: unknown[] = [
+    {
+      data: { values: kept },
+      mark: { type: 'point', shape: 'circle', size: 6, filled: true, color: '#777777', opacity: 0.55, clip: true },
+      encoding: { x, y },
+    },
     {
       data: { values: ell },
       mark: { type: 'line', strokeWidth: 0.8, color: '#5d6d7e', opacity: 0.8, clip: true },
@@ -109,7 +134,13 @@ export function trackChart(p: PlotSeries, ellipses: EllipseMark[], name: string)
     layers.push({
       data: { values: flagged },
       mark: { type: 'point', size: 60, filled: true, opacity: 0.9, clip: true },
-      encoding: { x, y, ...flagEncoding() },
+      encoding: { x, y, ...flagEncoding(), description: { field: 'label' } },
+    });
+  if (labels.length && labels.length <= TRACK_LABELS_MAX)
+    layers.push({
+      data: { values: labels },
+      mark: { type: 'text', dx: 6, dy: -6, align: 'left', fontSize: 10, color: '#7b241c', clip: true, aria: false },
+      encoding: { x, y, text: { field: 'text' } },
     });
   return {
     description: `Track of ${name} in the local frame`,

@@ -1,4 +1,5 @@
 /** Text for HTML: escaping, and the number, time and duration formats of the report. */
+import { DateTime } from 'luxon';
 import { formatIsoUtc } from '../../time/parse-time.js';
 
 /** Escape text for HTML element content and double-quoted attribute values. */
@@ -22,6 +23,13 @@ export function duration(sec: number | undefined): string {
 /** ISO 8601 UTC with milliseconds, as written in track.csv, outliers.csv and read from decisions files. */
 export function isoTime(tSec: number): string {
   return Number.isFinite(tSec) ? formatIsoUtc(tSec) : '–';
+}
+
+/** A time in an IANA zone, "yyyy-MM-dd HH:mm:ss.SSS +hh:mm" (the offset in force then); '–' for a bad time or zone. */
+export function localTime(tSec: number, zone: string): string {
+  if (!Number.isFinite(tSec)) return '–';
+  const d = DateTime.fromMillis(Math.round(tSec * 1000), { zone });
+  return d.isValid ? d.toFormat('yyyy-MM-dd HH:mm:ss.SSS ZZ') : '–';
 }
 
 /** A value for a data-sort attribute: numbers as they are, missing as an empty string. */

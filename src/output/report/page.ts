@@ -11,6 +11,7 @@ import { overviewTable } from './overview-table.js';
 import { PAYLOAD_VERSION, type ReportPayload } from './payload.js';
 import { sessionSection } from './session-section.js';
 import { SORT_SCRIPT } from './sort-script.js';
+import { FLAG_LINKS_SCRIPT } from './flag-links-script.js';
 
 const STYLE = `
 body { font-family: system-ui, -apple-system, "Segoe UI", Roboto, sans-serif; margin: 1.5rem auto; max-width: 72rem; padding: 0 1rem; color: #1b1b1b; line-height: 1.4; }
@@ -36,6 +37,10 @@ figure.plot svg { max-width: 100%; height: auto; display: block; }
 figcaption { font-size: .86rem; margin-bottom: .3rem; }
 .note, .howto { font-size: .86rem; color: #333; }
 .warnings .code { color: #555; }
+div.closeups { display: flex; flex-wrap: wrap; gap: .8rem 1.2rem; }
+figure.closeup { margin: .4rem 0; width: 22rem; }
+figure.closeup svg { max-width: 100%; height: auto; display: block; }
+table.flagged tr:target td, table.flagged tr.picked td { background: #fff3c4; }
 footer { margin-top: 3rem; font-size: .85rem; border-top: 1px solid #999; padding-top: .6rem; }
 @media print { .caution { background: none; } h2 { break-before: page; } }
 `;
@@ -76,9 +81,9 @@ ${sections.join('\n')}
 </main>
 <footer>
 ${caution}
-<p>Times are UTC. Positions in the plots are metres in each session's local frame (named in its figures); the GeoJSON, GPX and CSV outputs hold WGS84 coordinates.</p>
+<p>Times are UTC, and also in the log's own zone where the configuration names one (input.timeZone). Positions in the plots are metres in each session's local frame (named in its figures); the GeoJSON, GPX and CSV outputs hold WGS84 coordinates.</p>
 </footer>
-<script>${SORT_SCRIPT}</script>
+<script>${SORT_SCRIPT}${FLAG_LINKS_SCRIPT}</script>
 </body>
 </html>
 `;

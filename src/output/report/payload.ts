@@ -5,11 +5,13 @@
  */
 import type { InputWarning } from '../../errors.js';
 import { STATUS, STATUS_NAMES, type OutlierReason, type SessionMetrics, type SessionResult, type StatusName } from '../../session/result.js';
+import type { DecidingTest } from '../../session/decision-log.js';
+import { closeups, type Closeup } from './closeup-data.js';
 import { everyNth, plotEpochs } from './decimate.js';
 import { collectExtensions, type ExtensionData } from './extensions.js';
 
-/** Version of the payload's shape (2: calibrationLine); an older kept payload is not drawn (page.ts). */
-export const PAYLOAD_VERSION = 2;
+/** Version of the payload's shape (3: flag ids, deciding tests, close-ups, notes, time zone); an older kept payload is not drawn (page.ts). */
+export const PAYLOAD_VERSION = 3;
 /** Ellipses drawn on the track plot of a session (about; plus the worst one). */
 export const ELLIPSES_PER_SESSION = 30;
 /** Flagged fixes and decisions listed in a session's table (all are plotted). */
@@ -50,15 +52,28 @@ export interface EllipseMark {
 }
 
 export interface FlaggedRow {
+  /** The fix's id (OutlierRecord.id), shared with outliers.csv and the GeoJSON flags layer. */
+  id: string;
+  /** Its epoch in the full session (−1: not in the track, an invalid fix). */
+  epoch: number;
   tSec: number;
   line: number;
   reason: OutlierReason;
-  /** Status of its epoch in the track ('outlier', 'user-rejected'), or 'not in track' for invalid fixes. */
-  status: StatusName | 'not in track';
+  /** The deciding test, its statistic, threshold and relative margin (NaN where there is none). */
+  test: DecidingTest;
   statistic: number;
   threshold: number;
+  margin: number;
+  /** Review statistic against the final track and the re-admission threshold. */
+  reviewStatistic: number;
+  readmitThreshold: number;
+  /** Status of its epoch in the track ('outlier', 'user-rejected'), or 'not in track' for invalid fixes. */
+  status: StatusName | 'not in track';
   offsetM: number;
+  note: string | null;
   detail: string;
+  /** Index of its close-up in ReportPayload.closeups, or −1. */
+  closeup: number;
 }
 
 export interface DecisionRow {
@@ -66,6 +81,7 @@ export interface DecisionRow {
   decision: 'keep' | 'reject';
   statistic: number;
   threshold: number;
+  note: string | null;
 }
 
 export interface CalibratedNoise {
@@ -102,6 +118,10 @@ export interface ReportPayload {
   decisionCount: number;
   /** Data of optional plot groups (IMU, …), keyed by extension id; see extensions.ts. */
   extensions: Record<string, ExtensionData>;
+  /** Close-ups of the flagged fixes (one per burst), review first; see closeup-data.ts. */
+  closeups: Closeup[];
+  /** IANA zone of the log's local times (input.timeZone), or null (times shown in UTC only). */
+  timeZone: string | null;
 }
 
 export interface PayloadOptions {
@@ -183,17 +203,36 @@ export function calibrationLine(info: Record<string, unknown> | undefined): stri
   return `${parts.join('; ')} (horizontal / vertical; ± standard error${epochs !== undefined ? `; ${epochs} epochs` : ''})${exponents}`;
 }
 
+/** The local frame in words, from its projection definition (centre latitude and longitude); null when it names none. */
+export function frameInWords(definition: string): string | null {
+  const lat = /\+lat_0=(-?[\d.]+)/.exec(definition)?.[1];
+  const lon = /\+lon_0=(-?[\d.]+)/.exec(definition)?.[1];
+  if (lat === undefined || lon === undefined || !/\+proj=tmerc/.test(definition)) return null;
+  const la = Number(lat), lo = Number(lon);
+  const deg = (v: number, pos: string, neg: string) => `${Math.abs(v).toFixed(5)}° ${v < 0 ? neg : pos}`;
+  return `transverse Mercator on WGS84 centred at ${deg(la, 'N', 'S')}, ${deg(lo, 'E', 'W')}: metres east and north of that point`;
+}
+
+const MOTION_WORDS: Record<string, string> = {
+  cv: 'constant velocity (random acceleration)',
+  ca: 'constant acceleration (random jerk)',
+};
+
+/** Facts about the processing, in words (the raw projection string and parameter record stay in summary.json). */
 function facts(r: SessionResult): Array<[string, string]> {
   const out: Array<[string, string]> = [['source', r.file]];
   const frame = r.info.frame;
-  if (typeof frame === 'string') out.push(['local frame', frame]);
+  if (typeof frame === 'string') out.push(['local frame', frameInWords(frame) ?? 'a local transverse Mercator frame (its definition is in summary.json)']);
   const h = num(r.info.heightReferenceM);
-  if (h !== undefined) out.push(['height reference (m)', h.toFixed(3)]);
+  if (h !== undefined) out.push(['heights in the plots', `relative to ${h.toFixed(3)} m above the ellipsoid`]);
   const model = r.info.model as Record<string, unknown> | undefined;
-  if (model && typeof model === 'object')
-    out.push(['model', Object.entries(model).map(([k, v]) => `${k}=${typeof v === 'number' ? +v.toPrecision(4) : String(v)}`).join(', ')]);
+  if (model && typeof model === 'object') {
+    const motion = typeof model.motion === 'string' ? (MOTION_WORDS[model.motion] ?? model.motion) : 'unknown';
+    const tau = num(model.gmTauSec);
+    out.push(['motion model', `${motion}, with a time-correlated fix error${tau !== undefined ? ` (time constant ${+tau.toPrecision(3)} s)` : ''} and white fix noise`]);
+  }
   const g = num(r.info.gateProbability);
-  if (g !== undefined) out.push(['gate probability', String(g)]);
+  if (g !== undefined) out.push(['outlier tests', `chi-square at ${+(g * 100).toPrecision(6)}%: a fix that fits the model is flagged about ${+((1 - g) * 1000).toPrecision(3)} times in 1000`]);
   return out;
 }
 
@@ -264,12 +303,18 @@ export function reportPayload(r: SessionResult, opt: PayloadOptions = {}): Repor
     const i = r.fix[j]!;
     if (i >= 0 && epochOfFix.has(i)) epochOfFix.set(i, j);
   }
+  const shots = closeups(r, listed, epochOfFix);
+  const closeupOf = new Map<string, number>();
+  shots.forEach((c, i) => c.ids.forEach((id) => closeupOf.set(id, i)));
   const flagged: FlaggedRow[] = listed.map((o) => {
     const j = epochOfFix.get(o.fix)!;
     return {
-      tSec: o.tSec, line: o.line, reason: o.reason,
+      id: o.id, epoch: j, tSec: o.tSec, line: o.line, reason: o.reason,
+      test: o.test, statistic: o.testStatistic, threshold: o.testThreshold, margin: o.margin,
+      reviewStatistic: o.statistic, readmitThreshold: o.readmitThreshold,
       status: j < 0 ? 'not in track' : STATUS_NAMES[r.status[j]!]!,
-      statistic: o.statistic, threshold: o.threshold, offsetM: o.offsetM, detail: o.detail,
+      offsetM: o.offsetM, note: o.note ?? null, detail: o.detail,
+      closeup: closeupOf.get(o.id) ?? -1,
     };
   });
   const decisions: DecisionRow[] = [];
@@ -279,7 +324,7 @@ export function reportPayload(r: SessionResult, opt: PayloadOptions = {}): Repor
     if (st !== STATUS.userKept && st !== STATUS.userRejected) continue;
     decisionCount++;
     if (decisions.length < LISTED_ROWS_MAX)
-      decisions.push({ tSec: r.tSec[j]!, decision: st === STATUS.userKept ? 'keep' : 'reject', statistic: r.nis[j]!, threshold: r.nisThreshold[j]! });
+      decisions.push({ tSec: r.tSec[j]!, decision: st === STATUS.userKept ? 'keep' : 'reject', statistic: r.nis[j]!, threshold: r.nisThreshold[j]!, note: r.decisionNotes?.get(r.fix[j]!) ?? null });
   }
   return {
     version: PAYLOAD_VERSION,
@@ -302,5 +347,7 @@ export function reportPayload(r: SessionResult, opt: PayloadOptions = {}): Repor
     decisions,
     decisionCount,
     extensions: collectExtensions(r, idx),
+    closeups: shots,
+    timeZone: typeof r.info.timeZone === 'string' ? r.info.timeZone : null,
   };
 }

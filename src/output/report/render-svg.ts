@@ -10,8 +10,16 @@ const noLoader = vega.loader();
 noLoader.load = () => Promise.reject(new Error('the report renders inline data only'));
 noLoader.sanitize = () => Promise.reject(new Error('the report renders inline data only'));
 
+/**
+ * Legends written whole (Vega cuts a label at 160 px by default) and wrapped over lines of at
+ * most two entries, so that no label is cut off at the chart's edge.
+ */
+const LEGEND_CONFIG = { labelLimit: 0, columns: 2, symbolLimit: 0 };
+
 export async function renderSvg(spec: TopLevelSpec): Promise<string> {
-  const vg = compile(spec).spec;
+  const s = spec as TopLevelSpec & { config?: Record<string, unknown> };
+  const config = { ...(s.config ?? {}), legend: { ...LEGEND_CONFIG, ...((s.config?.legend as object | undefined) ?? {}) } };
+  const vg = compile({ ...s, config } as TopLevelSpec).spec;
   const view = new vega.View(vega.parse(vg), { renderer: 'none', loader: noLoader });
   try {
     return await view.toSVG();

@@ -1,14 +1,19 @@
 /**
- * One session's section of the report: key figures, the plots (track, sd, test statistic,
- * residuals, speed, then any extension groups), the flagged fixes, the user's decisions, the
- * warnings, and how to feed decisions back. Failed sessions get their reason and warnings.
+ * One session's section of the report, one function a part: key figures (figures), the plots
+ * (track, sd, test statistic, residuals, speed, then any extension groups), the close-ups of the
+ * flagged fixes (closeupsPart), the flagged fixes table ordered review first (flaggedTable), the
+ * user's decisions (decisionsTable), the warnings, and how to feed decisions back. Failed sessions
+ * get their reason and warnings. A further part is one more function in the list of
+ * sessionSection.
  */
 import type { SessionSummary } from '../summary.js';
 import { FLAG_MARKS } from './chart-common.js';
 import { trackChart } from './chart-track.js';
 import { nisChart, residualChart, sdChart, speedChart } from './chart-time.js';
 import { REPORT_EXTENSIONS, type ExtensionChart, type ReportExtension } from './extensions.js';
-import { esc, duration, isoTime, num, sessionAnchor } from './html-text.js';
+import { esc, duration, isoTime, localTime, num, sessionAnchor, sortKey } from './html-text.js';
+import { closeupChart } from './chart-closeup.js';
+import { testName } from './test-words.js';
 import type { ReportPayload } from './payload.js';
 import { noiseText } from './overview-table.js';
 import { renderSvg } from './render-svg.js';
@@ -21,8 +26,8 @@ export function sessionCharts(p: ReportPayload, extensions: readonly ReportExten
   const charts: Array<ExtensionChart & { group?: string }> = [
     {
       title: 'Track in the local frame',
-      caption: `East and north in metres, same scale on both axes. Solid line: smoothed track; dashed line: bridged (no fix, predicted); thin rings: 95% error ellipses to scale at intervals; square: start; symbols at the raw fix positions (${SYMBOL_TEXT}).`,
-      spec: trackChart(p.plot, p.ellipses, p.name),
+      caption: `East and north in metres, same scale on both axes. Solid line: smoothed track; dashed line: bridged (no fix, predicted); thin rings: 95% error ellipses to scale at intervals; square: start; small grey dots: raw fixes kept; symbols at the raw fix positions (${SYMBOL_TEXT}). Each flagged symbol links to its row in the table below; the close-ups show them at a scale where metres show.`,
+      spec: trackChart(p.plot, p.ellipses, p.name, new Map(p.flagged.filter((f) => f.epoch >= 0).map((f) => [f.epoch, f.id]))),
     },
     {
       title: 'Standard deviation over time',
@@ -31,7 +36,7 @@ export function sessionCharts(p: ReportPayload, extensions: readonly ReportExten
     },
     {
       title: 'Test statistic over time',
-      caption: `Test statistic of each fix against the smoothed track (normalized squared residual, χ² with one degree of freedom per measured axis) and the chi-square threshold (dashed): fixes above it are flagged. Symbols: ${SYMBOL_TEXT}.`,
+      caption: `Review statistic of each fix against the smoothed track (normalized squared residual, χ² with one degree of freedom per measured axis) and the review's chi-square threshold (dashed). A flagged fix below the line was flagged by another test (a gate or the swap test) and not taken back: the table names the test that decided. Symbols: ${SYMBOL_TEXT}.`,
       spec: nisChart(p.plot, b),
     },
     {
@@ -57,9 +62,19 @@ function decisionsFileName(p: ReportPayload): string {
   return `${base.replace(/\.[^.]*$/, '')}.decisions.csv`;
 }
 
+/** A time in UTC, and in the log's zone when it has one. */
+function bothTimes(p: ReportPayload, tSec: number): string {
+  return p.timeZone ? `${isoTime(tSec)} (${localTime(tSec, p.timeZone)})` : isoTime(tSec);
+}
+
 function figures(p: ReportPayload): string {
   const m = p.metrics;
+  const t0 = p.plot.tSec.length ? p.plot.tSec[0]! : NaN;
+  const t1 = p.plot.tSec.length ? p.plot.tSec[p.plot.tSec.length - 1]! : NaN;
   const rows: Array<[string, string]> = [
+    ['start', bothTimes(p, t0)],
+    ['end', bothTimes(p, t1)],
+    ['time zone of the log', p.timeZone ? `${p.timeZone} (times below in UTC and in this zone)` : 'times as written in the log (with their offset) or UTC; shown in UTC'],
     ['fixes / epochs', `${m.fixCount} / ${m.epochCount}`],
     ['segments', String(m.segmentCount)],
     ['duration', duration(m.durationSec)],
@@ -78,31 +93,72 @@ function figures(p: ReportPayload): string {
   return `<dl class="figures">${rows.map(([k, v]) => `<dt>${esc(k)}</dt><dd>${esc(v)}</dd>`).join('')}</dl>`;
 }
 
-function flaggedTable(p: ReportPayload): string {
+/** The DOM id of a flagged fix's table row (the session's anchor and the fix's id). */
+export function flagRowId(anchor: string, id: string): string {
+  return `${anchor}-${id}`;
+}
+
+/** The DOM id of a close-up figure. */
+export function closeupId(anchor: string, i: number): string {
+  return `${anchor}-closeup-${i + 1}`;
+}
+
+/** Review first: the smallest margin first (closest to its threshold), fixes without a test last, then in time order. */
+export function reviewOrder(rows: readonly ReportPayload['flagged'][number][]): ReportPayload['flagged'][number][] {
+  const m = (v: number) => (Number.isFinite(v) ? v : Infinity);
+  return [...rows].sort((a, b) => m(a.margin) - m(b.margin) || a.tSec - b.tSec);
+}
+
+function flaggedTable(p: ReportPayload, anchor: string): string {
   if (p.flaggedCount === 0) return '<p>No fix was flagged.</p>';
-  const rows = p.flagged
+  const zone = p.timeZone;
+  const rows = reviewOrder(p.flagged)
     .map((f) => {
-      const who = f.reason === 'user' ? 'rejected by you' : f.reason === 'invalid' ? 'invalid fix' : 'flagged by the test';
-      return `<tr><td><code>${esc(isoTime(f.tSec))}</code></td><td>${f.line}</td><td>${esc(who)}</td><td>${esc(f.status)}</td><td>${num(f.statistic, 2)}</td><td>${num(f.threshold, 2)}</td><td>${num(f.offsetM, 2)}</td><td>${esc(f.detail)}</td></tr>`;
+      const shot = f.closeup >= 0 ? `<a href="#${closeupId(anchor, f.closeup)}">close-up ${f.closeup + 1}</a>` : '–';
+      const local = zone ? `<td data-sort="${sortKey(f.tSec)}"><code>${esc(localTime(f.tSec, zone))}</code></td>` : '';
+      const margin = Number.isFinite(f.margin) ? `${(100 * f.margin).toFixed(1)}%` : '–';
+      const summary = `${isoTime(f.tSec)} UTC, ${testName(f.test)}${Number.isFinite(f.statistic) ? ` ${num(f.statistic, 2)} > ${num(f.threshold, 2)}` : ''}`;
+      return `<tr id="${esc(flagRowId(anchor, f.id))}" data-flag="${esc(f.id)}" data-summary="${esc(summary)}"><td data-sort="${esc(f.id)}"><strong>${esc(f.id)}</strong></td><td data-sort="${sortKey(f.tSec)}"><code>${esc(isoTime(f.tSec))}</code></td>${local}<td data-sort="${f.line}">${f.line}</td><td data-sort="${esc(testName(f.test))}">${esc(testName(f.test))}</td><td data-sort="${sortKey(f.statistic)}">${num(f.statistic, 2)}</td><td data-sort="${sortKey(f.threshold)}">${num(f.threshold, 2)}</td><td data-sort="${sortKey(f.margin)}">${margin}</td><td data-sort="${sortKey(f.offsetM)}">${num(f.offsetM, 2)}</td><td data-sort="${esc(f.status)}">${esc(f.status)}</td><td data-sort="${esc(f.note ?? '')}">${esc(f.note ?? '')}</td><td>${shot}</td><td>${esc(f.detail)}</td></tr>`;
     })
     .join('\n');
   const more = p.flaggedCount > p.flagged.length ? `<p>${p.flaggedCount - p.flagged.length} more are listed in the session's outliers.csv (all are drawn in the plots).</p>` : '';
-  return `<table class="flagged"><caption>Flagged fixes (${p.flaggedCount})</caption>
-<thead><tr><th>time (UTC)</th><th>source line</th><th>by</th><th>status</th><th>statistic</th><th>threshold</th><th>offset (m)</th><th>detail</th></tr></thead>
+  const th = (label: string, type: 'num' | 'text') => `<th data-type="${type}" aria-sort="none"><button type="button">${esc(label)}</button></th>`;
+  const marginTh = `<th data-type="num" aria-sort="ascending"><button type="button">margin</button></th>`;
+  return `<table class="flagged sortable"><caption>Flagged fixes (${p.flaggedCount}), review first: the smallest margin (closest to its test's threshold) at the top. Press a heading to sort.</caption>
+<thead><tr>${th('id', 'text')}${th('time (UTC)', 'num')}${zone ? th(`time (${zone})`, 'num') : ''}${th('source line', 'num')}${th('deciding test', 'text')}${th('statistic', 'num')}${th('threshold', 'num')}${marginTh}${th('offset (m)', 'num')}${th('status', 'text')}${th('your note', 'text')}<th>close-up</th><th>why</th></tr></thead>
 <tbody>
 ${rows}
-</tbody></table>${more}`;
+</tbody></table>${more}
+<p class="note">Statistic and threshold are those of the deciding test (its margin: statistic / threshold − 1). Gates and review: χ² of the fix against a prediction or the smoothed track, one degree of freedom per measured axis; swap test: the capped χ² sum of the neighbourhood with the fix's run kept, against the same sum with it left out. outliers.csv holds the same ids and figures.</p>`;
+}
+
+/** The close-ups of the flagged fixes, one figure a burst. */
+async function closeupsPart(p: ReportPayload, anchor: string): Promise<string> {
+  if (p.closeups.length === 0) return '';
+  const figs: string[] = [];
+  for (let i = 0; i < p.closeups.length; i++) {
+    const c = p.closeups[i]!;
+    const title = `Close-up ${i + 1}: ${c.ids.join(', ')}`;
+    const svg = await renderSvg(closeupChart(c, title));
+    const when = `${bothTimes(p, c.tSec[0]!)} to ${isoTime(c.tSec[c.tSec.length - 1]!).slice(11)}`;
+    const links = c.ids.map((id) => `<a href="#${esc(flagRowId(anchor, id))}">${esc(id)}</a>`).join(', ');
+    figs.push(`<figure class="closeup" id="${closeupId(anchor, i)}" data-ids="${esc(c.ids.join(' '))}"><figcaption><strong>Close-up ${i + 1}</strong> (${links}), ${esc(when)}.</figcaption>${svg}</figure>`);
+  }
+  const more = p.flagged.some((f) => f.closeup < 0 && f.epoch >= 0) ? ' Flagged fixes without a close-up are in the table and the track plot.' : '';
+  return `<h3>Close-ups of the flagged fixes (${p.closeups.length})</h3>
+<p class="note">Each flagged fix with its neighbours, east and north in metres at equal scale: smoothed track (line), its 95% error ellipse at each epoch (grey rings), raw fixes kept (grey dots), flagged fixes (symbols, labelled with their id) and their offset from the smoothed position (dotted). Review first: the close-ups of the fixes closest to their threshold are drawn first when there are more bursts than close-ups.${more}</p>
+<div class="closeups">${figs.join('\n')}</div>`;
 }
 
 function decisionsTable(p: ReportPayload): string {
   const how = `<p class="howto">To overrule the tool, write <code>${esc(decisionsFileName(p))}</code> beside the log, with the header <code>time,decision,note</code> and one row per fix: the time exactly as in track.csv or outliers.csv, <code>keep</code> or <code>reject</code>, and a note; then run again. Decisions show here and as <code>user-kept</code> / <code>user-rejected</code> in the outputs.</p>`;
   if (p.decisionCount === 0) return `<p>No decisions of yours were applied to this session.</p>${how}`;
   const rows = p.decisions
-    .map((d) => `<tr><td><code>${esc(isoTime(d.tSec))}</code></td><td>${d.decision === 'keep' ? 'kept by you (user-kept)' : 'rejected by you (user-rejected)'}</td><td>${num(d.statistic, 2)}</td><td>${num(d.threshold, 2)}</td></tr>`)
+    .map((d) => `<tr><td><code>${esc(isoTime(d.tSec))}</code></td>${p.timeZone ? `<td><code>${esc(localTime(d.tSec, p.timeZone))}</code></td>` : ''}<td>${d.decision === 'keep' ? 'kept by you (user-kept)' : 'rejected by you (user-rejected)'}</td><td>${num(d.statistic, 2)}</td><td>${num(d.threshold, 2)}</td><td>${esc(d.note ?? '')}</td></tr>`)
     .join('\n');
   const more = p.decisionCount > p.decisions.length ? `<p>${p.decisionCount - p.decisions.length} more are in the session's track.csv.</p>` : '';
   return `<table class="decisions"><caption>Your decisions applied (${p.decisionCount})</caption>
-<thead><tr><th>time (UTC)</th><th>decision</th><th>statistic</th><th>threshold</th></tr></thead>
+<thead><tr><th>time (UTC)</th>${p.timeZone ? `<th>time (${esc(p.timeZone)})</th>` : ''}<th>decision</th><th>review statistic</th><th>review threshold</th><th>your note</th></tr></thead>
 <tbody>
 ${rows}
 </tbody></table>${more}${how}`;
@@ -137,7 +193,8 @@ export async function sessionSection(s: SessionSummary, p: ReportPayload | undef
 ${figures(p)}
 ${decimated}
 <div class="plots">${figs.join('\n')}</div>
-${flaggedTable(p)}
+${await closeupsPart(p, id)}
+${flaggedTable(p, id)}
 ${decisionsTable(p)}
 ${warningsList(p.warnings, p.warningCount)}
 </section>`;

@@ -1,0 +1,36 @@
+/**
+ * The GeoJSON layers of a session, one geometry type a file, for desktop GIS (which splits a mixed
+ * collection into sub-layers) and for shapefiles (one geometry type a file): `<stem>.track.geojson`
+ * (the smoothed track, a LineString per segment; MultiLineStrings throughout when a segment
+ * crosses the antimeridian), `<stem>.flags.geojson` (the flagged fixes as Points, with their id and
+ * deciding test) and, with output.points, `<stem>.epochs.geojson` (every epoch as a Point with its
+ * sd and 95% ellipse). `<stem>.geojson` keeps every feature in one collection. A further layer
+ * (another kind of Point) is one more entry here and a filter in geojson.ts.
+ */
+import type { HindcastConfig } from '../config/schema.js';
+import type { SessionResult } from '../session/result.js';
+import { geoJsonOptions, sessionGeoJsonChunks, type GeoJsonLayer } from './geojson.js';
+
+export interface GeoJsonLayerFile {
+  layer: GeoJsonLayer;
+  /** File name ending after the session's stem. */
+  suffix: string;
+  /** The one GeoJSON geometry type of its features (track: or MultiLineString, see above). */
+  geometry: 'LineString' | 'Point';
+}
+
+export const GEOJSON_LAYERS: readonly GeoJsonLayerFile[] = [
+  { layer: 'track', suffix: '.track.geojson', geometry: 'LineString' },
+  { layer: 'flags', suffix: '.flags.geojson', geometry: 'Point' },
+  { layer: 'epochs', suffix: '.epochs.geojson', geometry: 'Point' },
+];
+
+/** The layers a configuration writes (epochs only with output.points). */
+export function layersFor(cfg: HindcastConfig): GeoJsonLayerFile[] {
+  return GEOJSON_LAYERS.filter((l) => l.layer !== 'epochs' || cfg.output.points);
+}
+
+/** One layer of a session as UTF-8 chunks (geojson.ts, `only`). */
+export function layerChunks(r: SessionResult, cfg: HindcastConfig, layer: GeoJsonLayer, chunkBytes?: number): Generator<Uint8Array> {
+  return sessionGeoJsonChunks(r, { ...geoJsonOptions(cfg), only: layer }, chunkBytes);
+}
