@@ -24,7 +24,7 @@ beforeEach(async () => {
 });
 afterEach(async () => removeDir(root));
 
-const FILES = ['log01.track.csv', 'log01.outliers.csv', 'log01.geojson'];
+const FILES = ['log01.track.csv', 'log01.outliers.csv', 'log01.geojson', 'log01.track.geojson', 'log01.flags.geojson'];
 const snapshot = async () => Promise.all(FILES.map((f) => readFile(join(out, f))));
 
 /** The first `n` epoch times of a written track.csv. */
@@ -67,7 +67,7 @@ describe('a rerun that fails keeps the earlier outputs', () => {
     await rm(join(out, 'log01.geojson'));
     const third = await runBatch({ input, out, config: cfg });
     expect(third.processed).toEqual(['log01']);
-    expect(third.summary.sessions.find((s) => s.name === 'log01')).toMatchObject({ stale: true, staleOutputs: FILES.slice(0, 2) });
+    expect(third.summary.sessions.find((s) => s.name === 'log01')).toMatchObject({ stale: true, staleOutputs: FILES.filter((f) => f !== 'log01.geojson') });
 
     // fixed: ok, not stale, the outputs rewritten
     await writeFile(join(input, 'log01.decisions.csv'), good);
