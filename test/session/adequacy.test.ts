@@ -1,0 +1,170 @@
+/**
+ * The model-adequacy check (src/session/adequacy.ts): the residual autocorrelation statistic on
+ * series of known autocorrelation, the decision table, and the whole pipeline on walkers who circle
+ * small plots (a motion a stiff constant-velocity fit turns into "correlated error" and cuts) and
+ * on the ordinary scenarios, which must be left as they are.
+ */
+import { describe, expect, test } from 'vitest';
+import { RHO_STIFF, SIGMA_RATIO_STIFF, residualAutocorrelation, tooStiff, type AdequacyCheck } from '../../src/session/adequacy.js';
+import { STATUS, type SessionResult } from '../../src/session/result.js';
+import { defaultSpec, simulate, type ErrorModel } from '../../src/simulate/scenario.js';
+import { makeCirclingTruth } from '../../src/simulate/circling.js';
+import { Rng } from '../../src/simulate/rng.js';
+import { runScenario, type Score } from '../helpers/score.js';
+
+/** A result holding only what the statistic reads: residual series e, n about a zero track. */
+function fakeResult(e: Float64Array, n: Float64Array, segmentOf: (j: number) => number = () => 0): SessionResult {
+  const N = e.length;
+  const zeros = () => new Float64Array(N);
+  return {
+    N,
+    posEnu: [zeros(), zeros(), zeros()],
+    rawEnu: [e, n, zeros()],
+    status: new Uint8Array(N).fill(STATUS.kept),
+    segment: Int32Array.from({ length: N }, (_, j) => segmentOf(j)),
+  } as unknown as SessionResult;
+}
+
+function ar1(rng: Rng, N: number, phi: number): Float64Array {
+  const x = new Float64Array(N);
+  let v = 0;
+  for (let k = 0; k < N; k++) x[k] = v = phi * v + Math.sqrt(1 - phi * phi) * rng.normal();
+  return x;
+}
+
+describe('residual autocorrelation', () => {
+  // expected values: the AR(1) autocorrelation φ^L and a sinusoid's cos(ωL) (Box & Jenkins 1976
+  // §2.1, §3.2); tolerance ~3 standard errors of the sample autocorrelation (Bartlett's formula, from memory)
+  test.each([
+    { name: 'white noise', phi: 0, expected: 0, tol: 0.03 },
+    { name: 'AR(1) φ = 0.5', phi: 0.5, expected: 0.5, tol: 0.03 },
+    { name: 'AR(1) φ = 0.9', phi: 0.9, expected: 0.9, tol: 0.03 },
+  ])('$name at 1 Hz: ρ = $expected ± $tol', ({ phi, expected, tol }) => {
+    const rng = new Rng(17);
+    const r = fakeResult(ar1(rng, 8000, phi), ar1(rng, 8000, phi));
+    expect(Math.abs(residualAutocorrelation(r, 1).rho - expected)).toBeLessThanOrEqual(tol);
+  });
+
+  test('a circle of period 20 s: ρ(1 s) = cos(2π/20) ± 0.005', () => {
+    const N = 2000;
+    const e = Float64Array.from({ length: N }, (_, k) => 3 * Math.cos((2 * Math.PI * k) / 20));
+    const n = Float64Array.from({ length: N }, (_, k) => 3 * Math.sin((2 * Math.PI * k) / 20));
+    expect(Math.abs(residualAutocorrelation(fakeResult(e, n), 1).rho - Math.cos((2 * Math.PI) / 20))).toBeLessThanOrEqual(0.005);
+  });
+
+  test('at 10 Hz the lag is 10 epochs (1 s): AR(1) with φ = 0.97 per epoch gives 0.97¹⁰ ± 0.03', () => {
+    const rng = new Rng(5);
+    const r = fakeResult(ar1(rng, 40000, 0.97), ar1(rng, 40000, 0.97));
+    expect(Math.abs(residualAutocorrelation(r, 0.1).rho - 0.97 ** 10)).toBeLessThanOrEqual(0.03);
+  });
+
+  test('pairs across a segment boundary and flagged fixes are not used', () => {
+    const N = 200;
+    const rng = new Rng(9);
+    const e = ar1(rng, N, 0);
+    const n = ar1(rng, N, 0);
+    const r = fakeResult(e, n, (j) => (j < 100 ? 0 : 1));
+    const pairsAll = residualAutocorrelation(r, 1).pairs;
+    expect(pairsAll).toBe(N - 2);
+    for (let j = 0; j < N / 2; j++) r.status[2 * j] = STATUS.outlier;
+    // kept epochs at odd indices only: no pair at lag 1 remains
+    expect(residualAutocorrelation(r, 1).pairs).toBe(0);
+    expect(residualAutocorrelation(r, 1).rho).toBeNaN();
+  });
+});
+
+describe('decision', () => {
+  test.each([
+    { rho: 0.9, ratio: 3.8, stiff: true },
+    { rho: 0.9, ratio: 1.1, stiff: false },
+    { rho: 0.2, ratio: 6.0, stiff: false },
+    { rho: -0.3, ratio: 1.0, stiff: false },
+    { rho: NaN, ratio: 5.0, stiff: false },
+    { rho: RHO_STIFF + 1e-9, ratio: SIGMA_RATIO_STIFF + 1e-9, stiff: true },
+    { rho: RHO_STIFF, ratio: SIGMA_RATIO_STIFF + 1, stiff: false },
+  ])('ρ $rho, correlated sigma $ratio × profile → too stiff: $stiff', ({ rho, ratio, stiff }) => {
+    expect(tooStiff(rho, ratio)).toBe(stiff);
+  });
+});
+
+/**
+ * Circling walkers: truth from src/simulate/circling.ts (radius 2–5 m per plot, 0.8–1.4 m/s, 1.5–4
+ * minutes per plot), 1 Hz fixes, white noise, correlated sigma and time constant drawn per seed
+ * (0.8–1.6 m, 1.2–2.4 m, 30–120 s), no bursts. Default configuration.
+ */
+function circlingScenario(seed: number) {
+  const rng = new Rng(seed);
+  const errors: ErrorModel = {
+    whiteSigmaHM: rng.uniform(0.8, 1.6), whiteSigmaVM: 2.5, gmSigmaHM: rng.uniform(1.2, 2.4), gmSigmaVM: 2.5, gmTauSec: rng.uniform(30, 120),
+    burstsPer100: 0, burstMinM: 15, burstMaxM: 80, burstMaxEpochs: 4, gaps: [], nullIslandRows: 0, varyHdop: true,
+  };
+  return simulate(defaultSpec('walk', 300 + seed, { durationSec: 1200, rateHz: 1, errors }), makeCirclingTruth(seed, { durationSec: 1200 }));
+}
+
+describe('circling walkers', () => {
+  const pooled: Array<{ s: Score; check: AdequacyCheck }> = [];
+  test.each([1, 2, 3, 4, 5, 6, 7, 8])('seed %i: the smoothed track is no worse than the fixes, regions hold', (seed) => {
+    const { r, s } = runScenario(circlingScenario(seed));
+    const check = r.info.adequacy as AdequacyCheck;
+    pooled.push({ s, check });
+    console.log(
+      `circling seed ${seed}: RMSE smoothed/raw ${(s.rmseSmoothH / s.rmseRawH).toFixed(3)}, coverage H ${s.coverH95.toFixed(3)} V ${s.coverU95.toFixed(3)}, ` +
+        `check ρ ${check.residualAutocorrelation.toFixed(3)}, correlated ${check.correlatedSigmaRatio.toFixed(2)} × profile → ${check.outcome}` +
+        (check.after ? ` (ρ after ${check.after.residualAutocorrelation.toFixed(3)})` : ''),
+    );
+    // "a smoother must never make a log worse than its fixes" (the stiff fit alone: 1.65–2.49 × raw on seeds 1, 3, 4, 5)
+    expect(s.rmseSmoothH).toBeLessThanOrEqual(0.95 * s.rmseRawH);
+    // per-log guard rail of the accuracy tests (measured 0.920–1.000)
+    expect(s.coverH95).toBeGreaterThanOrEqual(0.85);
+    // a re-modelled run follows the fixes: its residuals are no longer correlated in long runs
+    if (check.after) expect(check.after.residualAutocorrelation).toBeLessThan(RHO_STIFF);
+    expect(['adequate', 'more process noise']).toContain(check.outcome);
+  });
+
+  test('pooled: smoothed/raw ≤ 0.85, horizontal coverage 0.90–0.99, the check acted where the fit was stiff', () => {
+    expect(pooled.length).toBe(8);
+    const se = pooled.reduce((a, p) => a + p.s.rmseSmoothH ** 2 * p.s.epochs, 0);
+    const sr = pooled.reduce((a, p) => a + p.s.rmseRawH ** 2 * p.s.epochs, 0);
+    const n = pooled.reduce((a, p) => a + p.s.epochs, 0);
+    const cov = pooled.reduce((a, p) => a + p.s.coverH95 * p.s.epochs, 0) / n;
+    const acted = pooled.filter((p) => p.check.outcome === 'more process noise').length;
+    console.log(`circling pooled: RMSE smoothed/raw ${Math.sqrt(se / sr).toFixed(3)}, coverage H ${cov.toFixed(3)}, re-modelled ${acted} of ${pooled.length}`);
+    expect(Math.sqrt(se / sr)).toBeLessThanOrEqual(0.85);
+    expect(cov).toBeGreaterThanOrEqual(0.9);
+    expect(cov).toBeLessThanOrEqual(0.99);
+    // measured: 4 of 8 runs settle on the stiff fit (seeds 1, 3, 4, 5)
+    expect(acted).toBeGreaterThanOrEqual(3);
+  });
+});
+
+/**
+ * Known shortfall, kept as a test that must fail (vitest test.fails): the correlated error's time
+ * constant is shared by the horizontal and vertical axes, and on circling seed 3 the stiff first fit
+ * drags it to 23 s (true 71 s); the re-modelling keeps it (it changes the horizontal sigmas and
+ * process noise only), so the vertical coverage stays at 0.49. A vertical time constant of its own
+ * would lift it; then this becomes a plain test.
+ */
+test.fails('circling seed 3: vertical coverage ≥ 0.80 (shared correlated time constant)', () => {
+  const { s } = runScenario(circlingScenario(3));
+  expect(s.coverU95).toBeGreaterThanOrEqual(0.8);
+});
+
+describe('ordinary logs are not re-modelled', () => {
+  test.each([
+    ['walk', 1], ['walk', 2], ['vehicle', 1], ['vehicle', 2], ['drone', 1], ['drone', 2],
+  ] as const)('%s seed %i: adequate, residual autocorrelation ≤ 0.1', (kind, seed) => {
+    const { r } = runScenario(simulate(defaultSpec(kind, seed)));
+    const check = r.info.adequacy as AdequacyCheck;
+    expect(check.outcome).toBe('adequate');
+    // measured −0.39 to −0.02 on these kinds
+    expect(check.residualAutocorrelation).toBeLessThanOrEqual(0.1);
+    expect(check.correlatedSigmaRatio).toBeLessThan(SIGMA_RATIO_STIFF);
+  });
+
+  test('a straight-ish walk with a correlated error at the profile and slow turns: adequate', () => {
+    // walking legs at 1.1–1.6 m/s with gentle turns; correlated error 1.5 m, 120 s (slow, large share of the error)
+    const sc = simulate(defaultSpec('walk', 41, { errors: { ...defaultSpec('walk', 41).errors, gmSigmaHM: 1.5, gmTauSec: 120, whiteSigmaHM: 0.8, burstsPer100: 0, gaps: [] } }));
+    const { r } = runScenario(sc);
+    expect((r.info.adequacy as AdequacyCheck).outcome).toBe('adequate');
+  });
+});
