@@ -312,7 +312,7 @@ export function processSession(series: FixSeries, cfg: HindcastConfig, name: str
   const plans = classify(ps, cfg, params, ro, tm);
   let r = runPrepared(ps, cfg, params, name, plans, tm);
   // model adequacy (session/adequacy.ts): a motion model too stiff for the log is re-modelled
-  const adequacy = applyAdequacyCheck(ps, cfg, params, prior, r, (q) => runPrepared(ps, cfg, q, name, classify(ps, cfg, q, ro, tm), tm));
+  const adequacy = cfg.model.adequacyCheck ? applyAdequacyCheck(ps, cfg, params, prior, r, (q) => runPrepared(ps, cfg, q, name, classify(ps, cfg, q, ro, tm), tm)) : { r, params, check: undefined };
   r = adequacy.r;
   // the session's quality verdict (session/verdict.ts); a degraded log's uncertainty is widened
   const verdict = sessionVerdict(r, adequacy.params, prior, cfg.noise.horizontalSigmaM);
@@ -322,7 +322,7 @@ export function processSession(series: FixSeries, cfg: HindcastConfig, name: str
   }
   for (const w of warnings) r.warnings.push({ file: series.file, code: 'calibration', message: w });
   r.info.calibration = info;
-  r.info.adequacy = adequacy.check;
+  if (adequacy.check) r.info.adequacy = adequacy.check;
   r.info.verdict = verdict;
   return r;
 }
