@@ -19,3 +19,6 @@ export { sessionGeoJson } from './output/geojson.js';
 export { sessionGpx } from './output/gpx.js';
 export { InputError, ConfigError, UsageError, NumericalError } from './errors.js';
 export { CAUTION } from './output/caution.js';
+export type { AdequacyCheck } from './session/adequacy.js';
+export type { SessionVerdict } from './session/verdict.js';
+export type { SessionQuality } from './output/summary.js';

@@ -229,11 +229,11 @@ export function applyAdequacyCheck(ps: PreparedSession, cfg: HindcastConfig, p: 
       check: {
         ...base,
         outcome: 'adequate',
-        message: `motion model adequate: residual autocorrelation ${fmt(rho)} at ${base.lagSec} s (limit ${RHO_STIFF}), correlated error ${fmt(ratio)} × the profile's (limit ${SIGMA_RATIO_STIFF}), residual persistence ${fmt(base.persistenceExcess)} above the model's (limit ${PERSISTENCE_EXCESS_STIFF})`,
+        message: `adequate (residual autocorrelation ${fmt(rho)} at ${base.lagSec} s, limit ${RHO_STIFF}; correlated error ${fmt(ratio)} × the profile's, limit ${SIGMA_RATIO_STIFF}; residual persistence ${fmt(base.persistenceExcess)} above the model's, limit ${PERSISTENCE_EXCESS_STIFF})`,
       },
     };
   if (looksStatic(ps, prior))
-    return { r, params: p, check: { ...base, outcome: 'static log', message: `the track departs from the fixes in long runs (residual autocorrelation ${fmt(rho)}), but the log looks static: the wander of the fixes is taken as their error` } };
+    return { r, params: p, check: { ...base, outcome: 'static log', message: `left as estimated: the track departs from the fixes in long runs (residual autocorrelation ${fmt(rho)}), but the log looks static, so the wander of the fixes is taken as their error` } };
   const q = refitHorizontalMotion(ps, cfg, p, prior, r);
   const r2 = rerun(q);
   const after = residualAutocorrelation(r2, ps.intervalSec).rho;
@@ -244,7 +244,7 @@ export function applyAdequacyCheck(ps: PreparedSession, cfg: HindcastConfig, p: 
       ...base,
       outcome: 'more process noise',
       message:
-        `motion model too stiff: the track departed from the fixes in long runs (residual autocorrelation ${fmt(rho)} at ${base.lagSec} s) that kept moving like the platform (persistence ${fmt(base.persistenceExcess)} above what the fix error allows), with a correlated error ${fmt(ratio)} × the profile's; ` +
+        `too stiff: the track departed from the fixes in long runs (residual autocorrelation ${fmt(rho)} at ${base.lagSec} s) that kept moving like the platform (persistence ${fmt(base.persistenceExcess)} above what the fix error allows), with a correlated error ${fmt(ratio)} × the profile's; ` +
         `re-modelled with the correlated error limited to ${GM_REFIT_LIMIT} × the profile's and more process noise (q ${p.qHorizontal.toPrecision(2)} → ${q.qHorizontal.toPrecision(2)}), residual autocorrelation now ${fmt(after)}`,
       after: { residualAutocorrelation: after, qHorizontal: [p.qHorizontal, q.qHorizontal], sigmaHorizontalM: [p.sigmaHorizontalM, q.sigmaHorizontalM], gmHorizontalSigmaM: [p.gmHorizontalSigmaM, q.gmHorizontalSigmaM] },
     },
