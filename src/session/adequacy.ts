@@ -8,8 +8,9 @@
  * cuts every turn and is worse than the fixes it came from. The two explanations fit the fixes about
  * equally well (measured: the stiff one often has the higher likelihood), so the choice is made on
  * what each costs when it is wrong: taking motion for error moves the track off the fixes by the
- * size of the motion (1.7–2.5 × the raw error measured on circling logs); taking error for motion
- * leaves the track near the fixes (no worse than raw). The check therefore prefers motion when both
+ * size of the motion (1.6–2.5 × the raw error measured on circling logs); taking error for motion
+ * leaves the track near the fixes (no worse than raw). The check therefore prefers motion when all
+ * three hold:
  *   (1) the fixes depart from the track in long runs: the lag-1 s autocorrelation ρ of the kept
  *       fixes' horizontal residuals (fix − smoothed position, pooled over east and north; Box &
  *       Jenkins, "Time Series Analysis", 1976, §2.1.4 for the sample autocorrelation) is above
@@ -52,7 +53,7 @@ export const SIGMA_RATIO_STIFF = 2;
  * Upper limit of the correlated sigma in the refit, as a multiple of the profile's (about 1.5 prior
  * standard deviations). On a circling log the likelihood pushes the correlated error to whatever
  * limit it is given (the stiff explanation fits as well), so the limit sets the split. Measured on
- * eight circling walkers (test/session/adequacy.test.ts; five re-modelled): held at the profile (1.0),
+ * circling walkers 1–8 (test/session/adequacy.test.ts; four re-modelled): held at the profile (1.0),
  * smoothed/raw pooled 0.82 but horizontal coverage 0.68 on the log whose true error was 1.4 × the
  * profile's; 2.0 (the conflict limit) 0.85 and coverage 0.92–1.00; 1.5: 0.83 and 0.92–1.00.
  */
