@@ -23,3 +23,6 @@ export { GEOJSON_LAYERS } from './output/geojson-layers.js';
 export { sessionGpx } from './output/gpx.js';
 export { InputError, InputErrorList, ConfigError, UsageError, NumericalError } from './errors.js';
 export { CAUTION } from './output/caution.js';
+export type { AdequacyCheck } from './session/adequacy.js';
+export type { SessionVerdict } from './session/verdict.js';
+export type { SessionQuality } from './output/summary.js';

@@ -91,9 +91,11 @@ export const configSchema = z
         /** Prior speed scale (m/s) and acceleration scale (m/s²) for the first epoch. */
         priorSpeedMps: positive.default(30),
         priorAccelMps2: positive.default(5),
+        /** Check whether the motion model is too stiff for the log and re-model it with more process noise (docs/adequacy.md). */
+        adequacyCheck: z.boolean().default(true),
       })
       .strict()
-      .default({ motion: 'cv', qHorizontal: 0.5, qVertical: 0.1, priorSpeedMps: 30, priorAccelMps2: 5 }),
+      .default({ motion: 'cv', qHorizontal: 0.5, qVertical: 0.1, priorSpeedMps: 30, priorAccelMps2: 5, adequacyCheck: true }),
     noise: z
       .object({
         /** White fix noise, 1-sigma per horizontal axis (m), at the session's median quality. */

@@ -18,10 +18,27 @@ export interface SessionSummary {
   outputs?: string[];
   metrics?: SessionResult['metrics'];
   info?: Record<string, unknown>;
+  /** The session's quality verdict and the motion-model check in short (details in info.verdict, info.adequacy). */
+  quality?: SessionQuality;
   elapsedSec?: number;
   /** Failed this run; the outputs of an earlier run (staleOutputs) are kept but no longer match the inputs or settings. */
   stale?: boolean;
   staleOutputs?: string[];
+}
+
+/** Quality in short: "good" or "degraded" with plain-words reasons, and the motion-model check's outcome. */
+export interface SessionQuality {
+  verdict: 'good' | 'degraded';
+  reasons: string[];
+  motionModel: string;
+}
+
+/** The short quality record from a result's info (absent when the session has no verdict, e.g. the IMU path). */
+export function sessionQuality(info: Record<string, unknown>): SessionQuality | undefined {
+  const v = info.verdict as { verdict: 'good' | 'degraded'; reasons: string[] } | undefined;
+  if (!v) return undefined;
+  const a = info.adequacy as { outcome: string } | undefined;
+  return { verdict: v.verdict, reasons: v.reasons.slice(), motionModel: a?.outcome ?? 'not checked' };
 }
 
 /** How this summary came about (differs between a clean run and a resumed one). */
@@ -47,12 +64,13 @@ export interface BatchSummary {
   /** Present in a shard's summary (summary.shard-K-of-N.json). */
   shard?: { index: number; count: number };
   run?: RunInfo;
-  totals: { sessions: number; ok: number; failed: number; fixes: number; outliers: number; bridged: number };
+  totals: { sessions: number; ok: number; failed: number; fixes: number; outliers: number; bridged: number; degraded: number };
   sessions: SessionSummary[];
 }
 
 export function okEntry(r: SessionResult, input: string, outputs: string[], elapsedSec: number): SessionSummary {
-  return { name: r.name, input, status: 'ok', warnings: r.warnings, outputs, metrics: r.metrics, info: r.info, elapsedSec };
+  const quality = sessionQuality(r.info);
+  return { name: r.name, input, status: 'ok', warnings: r.warnings, outputs, metrics: r.metrics, info: r.info, ...(quality ? { quality } : {}), elapsedSec };
 }
 
 /** A failed entry whose earlier outputs were kept in place. */
@@ -85,6 +103,7 @@ export function buildSummary(
       fixes: ok.reduce((a, s) => a + (s.metrics?.fixCount ?? 0), 0),
       outliers: ok.reduce((a, s) => a + (s.metrics?.outlierCount ?? 0), 0),
       bridged: ok.reduce((a, s) => a + (s.metrics?.bridgedCount ?? 0), 0),
+      degraded: ok.filter((s) => s.quality?.verdict === 'degraded').length,
     },
     sessions,
   };

@@ -19,6 +19,8 @@ import { buildOutliersAndMetrics } from './products.js';
 import { STATUS, type OutlierRecord, type SessionResult } from './result.js';
 import type { StageTimings } from './timings.js';
 import { selectKth } from '../estimation/select.js';
+import { applyAdequacyCheck } from './adequacy.js';
+import { sessionVerdict, widenToResidualScatter } from './verdict.js';
 
 /** Validity of each fix before filtering: finite, in range, not the (0, 0) "null island" placeholder. */
 export function validFixes(s: FixSeries): { valid: Uint8Array; why: string[] } {
@@ -318,9 +320,20 @@ export function processSession(series: FixSeries, cfg: HindcastConfig, name: str
   }
   // stage 4 (stage 2 of a log the calibration fell back on): classify under the final model
   const plans = classify(ps, cfg, params, ro, tm);
-  const r = runPrepared(ps, cfg, params, name, plans, tm);
+  let r = runPrepared(ps, cfg, params, name, plans, tm);
+  // model adequacy (session/adequacy.ts): a motion model too stiff for the log is re-modelled
+  const adequacy = cfg.model.adequacyCheck ? applyAdequacyCheck(ps, cfg, params, prior, r, (q) => runPrepared(ps, cfg, q, name, classify(ps, cfg, q, ro, tm), tm)) : { r, params, check: undefined };
+  r = adequacy.r;
+  // the session's quality verdict (session/verdict.ts); a degraded log's uncertainty is widened
+  const verdict = sessionVerdict(r, adequacy.params, prior, cfg.noise.horizontalSigmaM);
+  if (verdict.verdict === 'degraded') {
+    verdict.widened = widenToResidualScatter(r);
+    r.warnings.push({ file: series.file, code: 'quality', message: `degraded session: ${verdict.reasons.join('; ')}; uncertainty widened to the fixes' scatter about the track` });
+  }
   for (const w of warnings) r.warnings.push({ file: series.file, code: 'calibration', message: w });
   r.info.calibration = info;
+  if (adequacy.check) r.info.adequacy = adequacy.check;
+  r.info.verdict = verdict;
   return r;
 }
 

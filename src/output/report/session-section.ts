@@ -17,6 +17,7 @@ import { testName } from './test-words.js';
 import type { ReportPayload } from './payload.js';
 import { noiseText } from './overview-table.js';
 import { renderSvg } from './render-svg.js';
+import { qualityNote } from './quality-note.js';
 
 const SYMBOL_TEXT = FLAG_MARKS.map((m) => `${m.shape.replace('-', ' ')}: ${m.label}`).join('; ');
 
@@ -190,6 +191,7 @@ export async function sessionSection(s: SessionSummary, p: ReportPayload | undef
   }
   const decimated = p.plot.tSec.length < p.epochs ? `<p class="note">Plots show ${p.plot.tSec.length} of ${p.epochs} epochs (thinned for drawing; every flagged fix and decision is drawn).</p>` : '';
   return `<section class="session" id="${id}" data-session="${esc(s.name)}">${head}
+${qualityNote(s)}
 ${figures(p)}
 ${decimated}
 <div class="plots">${figs.join('\n')}</div>

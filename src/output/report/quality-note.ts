@@ -1,0 +1,24 @@
+/**
+ * The plain-words quality line of a session's report section: the verdict ("good" / "degraded")
+ * with its reasons and what was done about the uncertainty, and the outcome of the motion-model
+ * check (session/verdict.ts, session/adequacy.ts; both recorded in summary.json).
+ */
+import type { SessionSummary } from '../summary.js';
+import { esc, num } from './html-text.js';
+
+const capitalized = (t: string) => t.charAt(0).toUpperCase() + t.slice(1);
+
+export function qualityNote(s: SessionSummary): string {
+  const q = s.quality;
+  if (!q) return '';
+  const v = s.info?.verdict as { widened?: { medianSdHorizontalM: [number, number] } } | undefined;
+  const a = s.info?.adequacy as { message?: string } | undefined;
+  const w = v?.widened;
+  const verdict =
+    q.verdict === 'good'
+      ? '<strong>Session quality: good.</strong> The fixes behave as the model describes.'
+      : `<strong>Session quality: degraded.</strong> ${esc(capitalized(q.reasons.join('; ')))}. This log lies outside what the model describes; treat the track with caution.` +
+        (w ? ` The reported uncertainty was widened to the fixes' scatter about the track (median horizontal sd ${num(w.medianSdHorizontalM[0], 2)} → ${num(w.medianSdHorizontalM[1], 2)} m).` : '');
+  const motion = a?.message ? ` Motion model: ${esc(a.message)}.` : '';
+  return `<p class="quality ${q.verdict}">${verdict}${motion}</p>`;
+}
