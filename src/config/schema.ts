@@ -171,6 +171,8 @@ export const configSchema = z
         staticAccelSdMps2: positive.default(0.15),
         staticGyroRadps: positive.default(0.02),
         staticMaxSpeedMps: positive.default(1),
+        /** Stationary detector: largest departure of the window's mean specific force from gravity (m/s²); steady braking or pulling away exceeds it. */
+        staticAccelMeanMps2: positive.default(0.3),
         /** Longest accelerometer averaging for the initial levelling (s). */
         alignSec: positive.default(5),
         /** Ground speed (m/s) of the GNSS track that counts as the first motion for the initial heading. */
@@ -199,6 +201,7 @@ export const configSchema = z
         staticAccelSdMps2: 0.15,
         staticGyroRadps: 0.02,
         staticMaxSpeedMps: 1,
+        staticAccelMeanMps2: 0.3,
         alignSec: 5,
         headingSpeedMps: 3,
         propagationStepSec: 1,

@@ -20,7 +20,7 @@
 import { chiSquareQuantile } from '../chi-square.js';
 import { cholesky } from '../cholesky.js';
 import { quatFromEuler, quatRotateNav, quatToDcm, dcmToEuler } from '../../models/ins/attitude.js';
-import { makeMechScratch, mechanizeRates, NAV_BA, NAV_BG, NAV_GM, NAV_LEN, NAV_P, NAV_Q, NAV_V, type MechParams, type MechScratch } from '../../models/ins/mechanization.js';
+import { gravityAt, makeMechScratch, mechanizeRates, NAV_BA, NAV_BG, NAV_GM, NAV_LEN, NAV_P, NAV_Q, NAV_V, type MechParams, type MechScratch } from '../../models/ins/mechanization.js';
 import { gmPhi } from '../../models/gauss-markov.js';
 import { E_A, E_BA, E_BG, E_GM, E_P, E_V, fillErrorF, NE, NE_PACKED, packPhi, packSym, PHI_COMPACT, type ErrorModelParams } from './error-model.js';
 import { bodyVelocityRow, gnssRow, gyroBiasRow, velocityRow } from './measurements.js';
@@ -63,6 +63,8 @@ export interface InsOptions {
   staticAccelSdMps2: number;
   staticGyroRadps: number;
   staticMaxSpeedMps: number;
+  /** Largest departure of the window's mean specific force (bias-corrected, nav frame) from gravity (m/s²): sustained braking or pulling away is not stationary. */
+  staticAccelMeanMps2: number;
   alignSec: number;
   propagationStepSec: number;
   /** Heights measured (3-axis fixes); without them a weak height hold keeps the vertical channel bounded. */
@@ -158,6 +160,13 @@ export function newInsHistory(N: number): InsHistory {
     chainStart: new Uint8Array(N),
   };
 }
+
+/**
+ * χ²₃ quantile at 0.9999 (21.11; a strict tail, common practice for a pseudo-measurement gate): a true stop passes
+ * (the ZUPT innovation is the velocity drift of one epoch interval), a vehicle moving at a few dm/s
+ * against a velocity sd of a few cm/s does not.
+ */
+export const ZUPT_GATE_NIS = 21.108;
 
 /** Epochs between the forward pass's snapshots (one every SNAPSHOT_EVERY epochs: ~11 kB each, ~40 bytes an epoch). */
 export const SNAPSHOT_EVERY = 256;
@@ -728,7 +737,7 @@ export class InsSmoother {
       pr.accepted[k] = 1;
     }
     // ---- stationary: zero velocity and zero angular rate; otherwise the non-holonomic constraint ----
-    const stationary = opt.zupt && this.isStationary();
+    const stationary = opt.zupt && this.isStationary() && this.zuptConsistent();
     if (stationary) {
       const r = opt.zuptSigmaMps ** 2;
       for (let a = 0; a < 3; a++) {
@@ -812,7 +821,41 @@ export class InsSmoother {
     const sdF = Math.sqrt(vf / (n - 1));
     const sdW = Math.sqrt(vw / (n - 1));
     const rate = Math.hypot(mean[3]! - x[NAV_BG]!, mean[4]! - x[NAV_BG + 1]!, mean[5]! - x[NAV_BG + 2]!);
-    return sdF < this.opt.staticAccelSdMps2 && sdW < this.opt.staticGyroRadps && rate < this.opt.staticGyroRadps;
+    if (!(sdF < this.opt.staticAccelSdMps2 && sdW < this.opt.staticGyroRadps && rate < this.opt.staticGyroRadps)) return false;
+    // mean specific force in the nav frame, f^n = C_nb (f̄^b − b̂_a), against gravity [0, 0, γ]: a steady
+    // deceleration (braking into a stop, pulling away) has a small sd but a mean off gravity by the acceleration
+    const C = this.C;
+    const f0 = mean[0]! - x[NAV_BA]!, f1 = mean[1]! - x[NAV_BA + 1]!, f2 = mean[2]! - x[NAV_BA + 2]!;
+    const fe = C[0]! * f0 + C[1]! * f1 + C[2]! * f2;
+    const fn = C[3]! * f0 + C[4]! * f1 + C[5]! * f2;
+    const fu = C[6]! * f0 + C[7]! * f1 + C[8]! * f2;
+    return Math.hypot(fe, fn, fu - gravityAt(this.opt.mech, x[NAV_P + 2]!)) < this.opt.staticAccelMeanMps2;
+  }
+
+  /**
+   * The zero-velocity hypothesis against the filter's own prediction: χ² test (3 dof) of ν = 0 − v̂
+   * with S = P_vv + R. Moving off (or creeping) after the detector's window last saw stillness, the
+   * mechanized velocity grows by a·Δt each epoch and the test fails before a wrong update can pin the
+   * velocity (and bias the accelerometer and tilt estimates through their correlations).
+   */
+  private zuptConsistent(): boolean {
+    const P = this.P, x = this.nav, dx = this.dx, S = this.S3;
+    const r = this.opt.zuptSigmaMps ** 2;
+    for (let i = 0; i < 3; i++) {
+      // ν = −(v̂ + δv̂): innovation at the current estimate (after this epoch's fix update)
+      this.nu[i] = -(x[NAV_V + i]! + dx[E_V + i]!);
+      for (let j = 0; j < 3; j++) S[i * 3 + j] = P[(E_V + i) * NE + E_V + j]! + (i === j ? r : 0);
+    }
+    if (!cholesky(3, S, 0, this.L3)) return false;
+    let nis = 0;
+    const y = [0, 0, 0];
+    for (let i = 0; i < 3; i++) {
+      let s = this.nu[i]!;
+      for (let j = 0; j < i; j++) s -= this.L3[i * 3 + j]! * y[j]!;
+      y[i] = s / this.L3[i * 3 + i]!;
+      nis += y[i]! * y[i]!;
+    }
+    return nis <= ZUPT_GATE_NIS;
   }
 
   /** Backward RTS over every chain of covered epochs, then the per-epoch products. */
