@@ -824,12 +824,27 @@ export class InsSmoother {
     if (!(sdF < this.opt.staticAccelSdMps2 && sdW < this.opt.staticGyroRadps && rate < this.opt.staticGyroRadps)) return false;
     // mean specific force in the nav frame, f^n = C_nb (f̄^b − b̂_a), against gravity [0, 0, γ]: a steady
     // deceleration (braking into a stop, pulling away) has a small sd but a mean off gravity by the acceleration
-    const C = this.C;
-    const f0 = mean[0]! - x[NAV_BA]!, f1 = mean[1]! - x[NAV_BA + 1]!, f2 = mean[2]! - x[NAV_BA + 2]!;
+    if (!(this.forceOffGravity(mean[0]!, mean[1]!, mean[2]!) < this.opt.staticAccelMeanMps2)) return false;
+    // the same on the newest quarter of the window: pulling away shows there first (the whole window lags)
+    const m = Math.max(3, n >> 2);
+    let q0 = 0, q1 = 0, q2 = 0;
+    for (let i = 1; i <= m; i++) {
+      const o = 6 * ((this.ringHead - i + this.ringCap) % this.ringCap);
+      q0 += r[o]!;
+      q1 += r[o + 1]!;
+      q2 += r[o + 2]!;
+    }
+    return this.forceOffGravity(q0 / m, q1 / m, q2 / m) < this.opt.staticAccelMeanMps2;
+  }
+
+  /** |C_nb (f̄^b − b̂_a) − [0, 0, γ]|: how far a mean specific force (body, m/s²) is from gravity. */
+  private forceOffGravity(m0: number, m1: number, m2: number): number {
+    const C = this.C, x = this.nav;
+    const f0 = m0 - x[NAV_BA]!, f1 = m1 - x[NAV_BA + 1]!, f2 = m2 - x[NAV_BA + 2]!;
     const fe = C[0]! * f0 + C[1]! * f1 + C[2]! * f2;
     const fn = C[3]! * f0 + C[4]! * f1 + C[5]! * f2;
     const fu = C[6]! * f0 + C[7]! * f1 + C[8]! * f2;
-    return Math.hypot(fe, fn, fu - gravityAt(this.opt.mech, x[NAV_P + 2]!)) < this.opt.staticAccelMeanMps2;
+    return Math.hypot(fe, fn, fu - gravityAt(this.opt.mech, x[NAV_P + 2]!));
   }
 
   /**
