@@ -65,8 +65,9 @@ export interface ImuScenarioSpec {
   /** Engine vibration added to the IMU readings at all times (also parked, engine idling). */
   vibration?: EngineVibration;
   /**
-   * Mounting of the IMU in the vehicle: roll, pitch, yaw (degrees) of the sensor axes relative to the
-   * vehicle's (x forward, y left, z up). The lever arm is given in the sensor axes.
+   * Mounting of the IMU in the vehicle (degrees): the rotation from the sensor axes to the vehicle's
+   * (x forward, y left, z up), C_vs = Rz(yaw)·Ry(pitch)·Rx(roll), as `imu.sensorToBodyDeg` takes it.
+   * The lever arm is given in the sensor axes.
    */
   mountDeg?: [number, number, number];
 }
