@@ -162,7 +162,7 @@ export const configSchema = z
         zupt: z.boolean().default(true),
         /** Non-holonomic constraint: no sideways or vertical velocity in the body frame (ground vehicles). */
         nhc: z.boolean().default(false),
-        /** 1-sigma of the zero-velocity pseudo-measurement (m/s). */
+        /** 1-sigma of the zero-velocity pseudo-measurement (m/s), for updates at least staticWindowSec apart; closer ones get a variance larger by staticWindowSec / interval. */
         zuptSigmaMps: positive.default(0.02),
         /** 1-sigma of the non-holonomic pseudo-measurement, per axis (m/s). */
         nhcSigmaMps: positive.default(0.15),

@@ -739,7 +739,7 @@ export class InsSmoother {
     // ---- stationary: zero velocity and zero angular rate; otherwise the non-holonomic constraint ----
     const stationary = opt.zupt && this.isStationary() && this.zuptConsistent();
     if (stationary) {
-      const r = opt.zuptSigmaMps ** 2;
+      const r = this.zuptVariance();
       for (let a = 0; a < 3; a++) {
         velocityRow(a, this.h);
         this.scalarUpdate(-x[NAV_V + a]!, r);
@@ -848,6 +848,19 @@ export class InsSmoother {
   }
 
   /**
+   * Variance of one zero-velocity pseudo-measurement: σ² · max(1, T_c/Δt). Its error is the standing
+   * body's residual motion (engine shake, rocking as the vehicle is loaded), correlated over about the
+   * detector's window T_c; updates closer together than that are not independent, so each carries the
+   * share Δt/T_c of one window's information and the information per second does not grow with the
+   * fix rate (at 1 Hz fixes and a 1 s window: σ² unchanged).
+   */
+  private zuptVariance(): number {
+    const dt = this.zaruDt;
+    const s2 = this.opt.zuptSigmaMps ** 2;
+    return dt > 0 ? s2 * Math.max(1, this.opt.staticWindowSec / dt) : s2;
+  }
+
+  /**
    * The zero-velocity hypothesis against the filter's own prediction: χ² test (3 dof) of ν = 0 − v̂
    * with S = P_vv + R. Moving off (or creeping) after the detector's window last saw stillness, the
    * mechanized velocity grows by a·Δt each epoch and the test fails before a wrong update can pin the
@@ -855,7 +868,7 @@ export class InsSmoother {
    */
   private zuptConsistent(): boolean {
     const P = this.P, x = this.nav, dx = this.dx, S = this.S3;
-    const r = this.opt.zuptSigmaMps ** 2;
+    const r = this.zuptVariance();
     for (let i = 0; i < 3; i++) {
       // ν = −(v̂ + δv̂): innovation at the current estimate (after this epoch's fix update)
       this.nu[i] = -(x[NAV_V + i]! + dx[E_V + i]!);
