@@ -496,7 +496,19 @@ export class InsSmoother {
     }
     const sdF = Math.sqrt(vf / Math.max(1, n - 1));
     const sdW = Math.sqrt(vw / Math.max(1, n - 1));
-    const isStatic = n >= 3 && sdF < opt.staticAccelSdMps2 && sdW < opt.staticGyroRadps && Math.hypot(mw0, mw1, mw2) < opt.staticGyroRadps;
+    // a log that starts in motion on a smooth road, or pulls away at a steady acceleration within the
+    // levelling time, can pass the sd tests: standing also needs the fixes-only track's speed below the
+    // detector's limit over the whole levelling time, and the mean specific force to be gravity alone
+    const g = opt.mech.gamma0Mps2;
+    let trackSpeed = 0;
+    const tEnd = this.ep.tSec[this.alignEpoch]! + opt.alignSec;
+    for (let j = this.alignEpoch; j < this.ep.N && this.ep.tSec[j]! <= tEnd; j++) {
+      this.init.velocity(j, this.v3);
+      trackSpeed = Math.max(trackSpeed, Math.hypot(this.v3[0]!, this.v3[1]!, this.v3[2]!));
+    }
+    const isStatic =
+      n >= 3 && sdF < opt.staticAccelSdMps2 && sdW < opt.staticGyroRadps && Math.hypot(mw0, mw1, mw2) < opt.staticGyroRadps &&
+      trackSpeed < opt.staticMaxSpeedMps && Math.abs(Math.hypot(mf0, mf1, mf2) - g) < opt.staticAccelMeanMps2;
     // levelling: f^b = g·[sin θ, cos θ sin φ, cos θ cos φ]  ⇒  φ = atan2(f_y, f_z), θ = atan2(f_x, √(f_y² + f_z²))
     const roll = Math.atan2(mf1, mf2);
     const pitch = Math.atan2(mf0, Math.hypot(mf1, mf2));
@@ -506,7 +518,6 @@ export class InsSmoother {
     x.fill(0);
     quatFromEuler(roll, pitch, yawRad, x, NAV_Q);
     // tilt error of levelling: accelerometer bias / g, plus a static allowance (moving: 5°)
-    const g = opt.mech.gamma0Mps2;
     const tiltSigma = isStatic ? Math.hypot(opt.accelBiasSigmaMps2 / g, 0.1 * (Math.PI / 180)) : 5 * (Math.PI / 180);
     this.initPositionVelocity(k, isStatic);
     const P = this.P;
