@@ -192,15 +192,17 @@ export const configSchema = z
         zupt: z.boolean().default(true),
         /** Non-holonomic constraint: no sideways or vertical velocity in the body frame (ground vehicles). */
         nhc: z.boolean().default(false),
-        /** 1-sigma of the zero-velocity pseudo-measurement (m/s). */
+        /** 1-sigma of the zero-velocity pseudo-measurement (m/s), for updates at least staticWindowSec apart; closer ones get a variance larger by staticWindowSec / interval. */
         zuptSigmaMps: positive.default(0.02),
         /** 1-sigma of the non-holonomic pseudo-measurement, per axis (m/s). */
         nhcSigmaMps: positive.default(0.15),
-        /** Stationary detector: window (s), accelerometer sd limit (m/s²), rate limit (rad/s), estimated-speed limit (m/s). */
+        /** Stationary detector: window (s), accelerometer sd limit over the window (m/s², the three axes together; an idling engine shakes the sensor by 0.1–0.3), rate limit (rad/s), estimated-speed limit (m/s). */
         staticWindowSec: positive.default(1),
-        staticAccelSdMps2: positive.default(0.15),
+        staticAccelSdMps2: positive.default(0.5),
         staticGyroRadps: positive.default(0.02),
         staticMaxSpeedMps: positive.default(1),
+        /** Stationary detector: largest departure of the window's mean specific force from gravity (m/s²); steady braking or pulling away exceeds it. */
+        staticAccelMeanMps2: positive.default(0.3),
         /** Longest accelerometer averaging for the initial levelling (s). */
         alignSec: positive.default(5),
         /** Ground speed (m/s) of the GNSS track that counts as the first motion for the initial heading. */
@@ -226,9 +228,10 @@ export const configSchema = z
         zuptSigmaMps: 0.02,
         nhcSigmaMps: 0.15,
         staticWindowSec: 1,
-        staticAccelSdMps2: 0.15,
+        staticAccelSdMps2: 0.5,
         staticGyroRadps: 0.02,
         staticMaxSpeedMps: 1,
+        staticAccelMeanMps2: 0.3,
         alignSec: 5,
         headingSpeedMps: 3,
         propagationStepSec: 1,

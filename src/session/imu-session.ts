@@ -139,6 +139,7 @@ export function insOptions(ps: PreparedSession, cfg: HindcastConfig, p: AxisPara
     staticAccelSdMps2: imu.staticAccelSdMps2,
     staticGyroRadps: imu.staticGyroRadps,
     staticMaxSpeedMps: imu.staticMaxSpeedMps,
+    staticAccelMeanMps2: imu.staticAccelMeanMps2,
     alignSec: imu.alignSec,
     propagationStepSec: imu.propagationStepSec,
     hasHeight: ps.hasHeight,

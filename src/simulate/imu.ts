@@ -24,6 +24,8 @@ interface SpeedPiece {
   s1: number;
   /** distance driven before t0 */
   d0: number;
+  /** Jerk time as a share of dur (0 < r < ½): trapezoidal acceleration; absent: smoothstep speed. */
+  r?: number;
 }
 interface TurnPiece {
   t0: number;
@@ -58,6 +60,40 @@ export interface ImuScenarioSpec {
   /** Amplitudes of road grade and camber (degrees). */
   gradeDeg: number;
   camberDeg: number;
+  /** Driving pattern: `urban` (default: corners, bends, short stops) or a delivery round (parked start, long stops after short braking). */
+  drive?: DeliveryDrive;
+  /** Engine vibration added to the IMU readings at all times (also parked, engine idling). */
+  vibration?: EngineVibration;
+  /**
+   * Mounting of the IMU in the vehicle (degrees): the rotation from the sensor axes to the vehicle's
+   * (x forward, y left, z up), C_vs = Rz(yaw)·Ry(pitch)·Rx(roll), as `imu.sensorToBodyDeg` takes it.
+   * The lever arm is given in the sensor axes.
+   */
+  mountDeg?: [number, number, number];
+}
+
+/** A delivery round: parked at the start, then legs of driving, each ending in a stop. */
+export interface DeliveryDrive {
+  kind: 'delivery';
+  parkedStartSec: number;
+  /** Range of the stop lengths (s). */
+  stopSec: [number, number];
+  /** Braking into a stop and pulling away (s). */
+  brakeSec: number;
+  pullAwaySec: number;
+  /** Range of the driving time between stops (s). */
+  legSec: [number, number];
+}
+
+/**
+ * Vibration of a running engine: per axis a sinusoid at `freqHz` (slowly wandering phase) plus
+ * broadband jitter; `accelSdMps2` and `gyroSdRadps` are the total 1-sigma per axis. The vibration's
+ * displacement (sub-millimetre) is not added to the truth.
+ */
+export interface EngineVibration {
+  accelSdMps2: number;
+  gyroSdRadps: number;
+  freqHz: number;
 }
 
 export interface TruthState {
@@ -106,6 +142,70 @@ export function defaultImuSpec(seed: number, over: Partial<ImuScenarioSpec> = {}
 /** smoothstep u ↦ 3u² − 2u³ and its integral u³ − u⁴/2 */
 const sstep = (u: number) => u * u * (3 - 2 * u);
 const sstepInt = (u: number) => u * u * u - 0.5 * u * u * u * u;
+/**
+ * Trapezoidal acceleration (ramps of share r at both ends, flat between), normalised to a unit speed
+ * change: g(u) the speed share, g′(u) its derivative, G(u) = ∫₀ᵘ g. A braking car: nearly constant
+ * deceleration that ends with a short jerk at the stop.
+ */
+const trapG = (u: number, r: number) => {
+  const k = 1 / (1 - r);
+  if (u < r) return (k * u * u) / (2 * r);
+  if (u <= 1 - r) return k * (r / 2 + (u - r));
+  const v = 1 - u;
+  return k * (1 - r - (v * v) / (2 * r));
+};
+const trapDg = (u: number, r: number) => (u < r ? u / r : u <= 1 - r ? 1 : (1 - u) / r) / (1 - r);
+const trapInt = (u: number, r: number) => {
+  const k = 1 / (1 - r);
+  if (u < r) return (k * u * u * u) / (6 * r);
+  if (u <= 1 - r) return k * ((r * r) / 6 + (r / 2) * (u - r) + ((u - r) * (u - r)) / 2);
+  const v = 1 - u;
+  // ∫₀¹ G1 = (1 − r)/2 by symmetry of the shape
+  return k * ((1 - r) / 2 - (1 - r) * v + (v * v * v) / (6 * r));
+};
+
+/** Plan a delivery round: parked start, legs with corners and bends, each ending in a braked stop. */
+function planDelivery(rng: Rng, durationSec: number, dd: DeliveryDrive): { speed: SpeedPiece[]; turns: TurnPiece[]; y0: number } {
+  const speed: SpeedPiece[] = [];
+  const turns: TurnPiece[] = [];
+  let t = dd.parkedStartSec;
+  let s = 0;
+  let d = 0;
+  let yaw = rng.uniform(-Math.PI, Math.PI);
+  const y0 = yaw;
+  const change = (target: number, dur: number) => {
+    // jerk-limited (0.5 s ramps): nearly constant acceleration, as a driver brakes and pulls away
+    speed.push({ t0: t, dur, s0: s, s1: target, d0: d, r: Math.min(0.25, 0.5 / dur) });
+    d += dur * (s + (target - s) * 0.5);
+    t += dur;
+    s = target;
+  };
+  const cruise = (dur: number) => {
+    d += s * dur;
+    t += dur;
+  };
+  const turn = (angle: number, dur: number) => {
+    turns.push({ t0: t, dur, angle, y0: yaw });
+    yaw += angle;
+    cruise(dur);
+  };
+  while (t < durationSec) {
+    change(rng.uniform(8, 14), dd.pullAwaySec);
+    const legEnd = t + rng.uniform(dd.legSec[0], dd.legSec[1]);
+    while (t < legEnd) {
+      const r = rng.next();
+      if (r < 0.35) {
+        change(rng.uniform(5, 7), 4);
+        turn(rng.next() < 0.5 ? Math.PI / 2 : -Math.PI / 2, 8);
+        change(rng.uniform(8, 14), 6);
+      } else if (r < 0.65) turn(rng.uniform(-0.4, 0.4), 8);
+      cruise(rng.uniform(5, 15));
+    }
+    change(0, dd.brakeSec);
+    cruise(rng.uniform(dd.stopSec[0], dd.stopSec[1]));
+  }
+  return { speed, turns, y0 };
+}
 
 /** Plan an urban drive: static start, accelerations, cruises, slow 90° corners, gentle bends, stops. */
 function planDrive(rng: Rng, durationSec: number): { speed: SpeedPiece[]; turns: TurnPiece[]; y0: number } {
@@ -159,7 +259,13 @@ function planDrive(rng: Rng, durationSec: number): { speed: SpeedPiece[]; turns:
 
 export function simulateImuScenario(spec: ImuScenarioSpec): ImuScenario {
   const rng = new Rng(spec.seed);
-  const plan = planDrive(new Rng(spec.seed * 7919 + 17), spec.durationSec);
+  const planRng = new Rng(spec.seed * 7919 + 17);
+  const plan = spec.drive?.kind === 'delivery' ? planDelivery(planRng, spec.durationSec, spec.drive) : planDrive(planRng, spec.durationSec);
+  // sensor → vehicle rotation of the mounting (identity when absent)
+  const mount = new Float64Array(9);
+  const md = spec.mountDeg ?? [0, 0, 0];
+  rotationZyx((md[0] * Math.PI) / 180, (md[1] * Math.PI) / 180, (md[2] * Math.PI) / 180, mount);
+  const mounted = spec.mountDeg !== undefined && md.some((v) => v !== 0);
   const frame = new EnuFrame(...spec.origin);
   const sgn = () => (rng.next() < 0.5 ? -1 : 1);
   const d2r = Math.PI / 180;
@@ -192,9 +298,10 @@ export function simulateImuScenario(spec: ImuScenarioSpec): ImuScenario {
       const p = plan.speed[idx]!;
       const u = Math.min(1, (tau - p.t0) / p.dur);
       const ds = p.s1 - p.s0;
-      kin.s = p.s0 + ds * sstep(u);
-      kin.sd = u < 1 ? (ds * 6 * u * (1 - u)) / p.dur : 0;
-      kin.d = p.d0 + p.s0 * Math.min(tau - p.t0, p.dur) + ds * p.dur * sstepInt(u) + (u >= 1 ? p.s1 * (tau - p.t0 - p.dur) : 0);
+      const r = p.r;
+      kin.s = p.s0 + ds * (r ? trapG(u, r) : sstep(u));
+      kin.sd = u < 1 ? (ds * (r ? trapDg(u, r) : 6 * u * (1 - u))) / p.dur : 0;
+      kin.d = p.d0 + p.s0 * Math.min(tau - p.t0, p.dur) + ds * p.dur * (r ? trapInt(u, r) : sstepInt(u)) + (u >= 1 ? p.s1 * (tau - p.t0 - p.dur) : 0);
     }
     lo = 0; hi = plan.turns.length - 1; idx = -1;
     while (lo <= hi) {
@@ -271,7 +378,9 @@ export function simulateImuScenario(spec: ImuScenarioSpec): ImuScenario {
   const antennaAt = (tSec: number): [number, number, number] => {
     const tr = truthAt(tSec);
     rotationZyx(tr.att[0], -tr.att[1], tr.att[2], C);
-    const l = spec.leverArmM;
+    const ls = spec.leverArmM;
+    // lever arm in the sensor axes → vehicle axes
+    const l = [0, 1, 2].map((r) => mount[r * 3]! * ls[0] + mount[r * 3 + 1]! * ls[1] + mount[r * 3 + 2]! * ls[2]) as [number, number, number];
     return [0, 1, 2].map((r) => tr.pos[r]! + C[r * 3]! * l[0] + C[r * 3 + 1]! * l[1] + C[r * 3 + 2]! * l[2]) as [number, number, number];
   };
 
@@ -289,7 +398,19 @@ export function simulateImuScenario(spec: ImuScenarioSpec): ImuScenario {
     const nr = new Rng(spec.seed * 104729 + 3);
     const a = new Float64Array(8);
     const n = Math.floor(spec.durationSec * spec.imuRateHz);
+    const vib = spec.vibration;
+    const vr = new Rng(spec.seed * 7727 + 11);
+    // vibration: sinusoid share 0.8 of the variance, jitter 0.2; phases wander slowly
+    const ph = [0, 0, 0, 0, 0, 0].map(() => vr.uniform(0, 2 * Math.PI));
+    const vf = new Float64Array(6);
     for (let i = 0; i <= n; i++) {
+      if (vib) {
+        for (let c = 0; c < 6; c++) {
+          const sd = c < 3 ? vib.accelSdMps2 : vib.gyroSdRadps;
+          ph[c] = ph[c]! + 2 * Math.PI * vib.freqHz * (1 + 0.02 * c) * h + 0.05 * vr.normal();
+          vf[c] = sd * (Math.sqrt(2 * 0.8) * Math.sin(ph[c]!) + Math.sqrt(0.2) * vr.normal());
+        }
+      }
       const tau = i * h;
       attAt(tau, a);
       const roll = a[0]!, pitch = a[1]!, yaw = a[2]!, rolld = a[3]!, pitchd = a[4]!, yawd = a[5]!, s = a[6]!, sd = a[7]!;
@@ -315,14 +436,25 @@ export function simulateImuScenario(spec: ImuScenarioSpec): ImuScenario {
       const gx = wbx + C[0]! * we[0] + C[3]! * we[1] + C[6]! * we[2];
       const gy = wby + C[1]! * we[0] + C[4]! * we[1] + C[7]! * we[2];
       const gz = wbz + C[2]! * we[0] + C[5]! * we[1] + C[8]! * we[2];
+      let sx = fx + vf[0]!, sy = fy + vf[1]!, sz = fz + vf[2]!, rx = gx + vf[3]!, ry = gy + vf[4]!, rz = gz + vf[5]!;
+      if (mounted) {
+        // sensor axes: f^s = Mᵀ f^v
+        const ax = sx, ay = sy, az = sz, bx = rx, by = ry, bz = rz;
+        sx = mount[0]! * ax + mount[3]! * ay + mount[6]! * az;
+        sy = mount[1]! * ax + mount[4]! * ay + mount[7]! * az;
+        sz = mount[2]! * ax + mount[5]! * ay + mount[8]! * az;
+        rx = mount[0]! * bx + mount[3]! * by + mount[6]! * bz;
+        ry = mount[1]! * bx + mount[4]! * by + mount[7]! * bz;
+        rz = mount[2]! * bx + mount[5]! * by + mount[8]! * bz;
+      }
       sink(
         spec.startUnixSec + tau,
-        fx + imu.accelBias[0] + imu.accelNoiseSd * nr.normal(),
-        fy + imu.accelBias[1] + imu.accelNoiseSd * nr.normal(),
-        fz + imu.accelBias[2] + imu.accelNoiseSd * nr.normal(),
-        gx + imu.gyroBias[0] + imu.gyroNoiseSd * nr.normal(),
-        gy + imu.gyroBias[1] + imu.gyroNoiseSd * nr.normal(),
-        gz + imu.gyroBias[2] + imu.gyroNoiseSd * nr.normal(),
+        sx + imu.accelBias[0] + imu.accelNoiseSd * nr.normal(),
+        sy + imu.accelBias[1] + imu.accelNoiseSd * nr.normal(),
+        sz + imu.accelBias[2] + imu.accelNoiseSd * nr.normal(),
+        rx + imu.gyroBias[0] + imu.gyroNoiseSd * nr.normal(),
+        ry + imu.gyroBias[1] + imu.gyroNoiseSd * nr.normal(),
+        rz + imu.gyroBias[2] + imu.gyroNoiseSd * nr.normal(),
       );
     }
   };

@@ -20,7 +20,7 @@
 import { chiSquareQuantile } from '../chi-square.js';
 import { cholesky } from '../cholesky.js';
 import { quatFromEuler, quatRotateNav, quatToDcm, dcmToEuler } from '../../models/ins/attitude.js';
-import { makeMechScratch, mechanizeRates, NAV_BA, NAV_BG, NAV_GM, NAV_LEN, NAV_P, NAV_Q, NAV_V, type MechParams, type MechScratch } from '../../models/ins/mechanization.js';
+import { gravityAt, makeMechScratch, mechanizeRates, NAV_BA, NAV_BG, NAV_GM, NAV_LEN, NAV_P, NAV_Q, NAV_V, type MechParams, type MechScratch } from '../../models/ins/mechanization.js';
 import { gmPhi } from '../../models/gauss-markov.js';
 import { E_A, E_BA, E_BG, E_GM, E_P, E_V, fillErrorF, NE, NE_PACKED, packPhi, packSym, PHI_COMPACT, type ErrorModelParams } from './error-model.js';
 import { bodyVelocityRow, gnssRow, gyroBiasRow, velocityRow } from './measurements.js';
@@ -63,6 +63,8 @@ export interface InsOptions {
   staticAccelSdMps2: number;
   staticGyroRadps: number;
   staticMaxSpeedMps: number;
+  /** Largest departure of the window's mean specific force (bias-corrected, nav frame) from gravity (m/s²): sustained braking or pulling away is not stationary. */
+  staticAccelMeanMps2: number;
   alignSec: number;
   propagationStepSec: number;
   /** Heights measured (3-axis fixes); without them a weak height hold keeps the vertical channel bounded. */
@@ -158,6 +160,13 @@ export function newInsHistory(N: number): InsHistory {
     chainStart: new Uint8Array(N),
   };
 }
+
+/**
+ * χ²₃ quantile at 0.9999 (21.11; a strict tail, common practice for a pseudo-measurement gate): a true stop passes
+ * (the ZUPT innovation is the velocity drift of one epoch interval), a vehicle moving at a few dm/s
+ * against a velocity sd of a few cm/s does not.
+ */
+export const ZUPT_GATE_NIS = 21.108;
 
 /** Epochs between the forward pass's snapshots (one every SNAPSHOT_EVERY epochs: ~11 kB each, ~40 bytes an epoch). */
 export const SNAPSHOT_EVERY = 256;
@@ -487,7 +496,19 @@ export class InsSmoother {
     }
     const sdF = Math.sqrt(vf / Math.max(1, n - 1));
     const sdW = Math.sqrt(vw / Math.max(1, n - 1));
-    const isStatic = n >= 3 && sdF < opt.staticAccelSdMps2 && sdW < opt.staticGyroRadps && Math.hypot(mw0, mw1, mw2) < opt.staticGyroRadps;
+    // a log that starts in motion on a smooth road, or pulls away at a steady acceleration within the
+    // levelling time, can pass the sd tests: standing also needs the fixes-only track's speed below the
+    // detector's limit over the whole levelling time, and the mean specific force to be gravity alone
+    const g = opt.mech.gamma0Mps2;
+    let trackSpeed = 0;
+    const tEnd = this.ep.tSec[this.alignEpoch]! + opt.alignSec;
+    for (let j = this.alignEpoch; j < this.ep.N && this.ep.tSec[j]! <= tEnd; j++) {
+      this.init.velocity(j, this.v3);
+      trackSpeed = Math.max(trackSpeed, Math.hypot(this.v3[0]!, this.v3[1]!, this.v3[2]!));
+    }
+    const isStatic =
+      n >= 3 && sdF < opt.staticAccelSdMps2 && sdW < opt.staticGyroRadps && Math.hypot(mw0, mw1, mw2) < opt.staticGyroRadps &&
+      trackSpeed < opt.staticMaxSpeedMps && Math.abs(Math.hypot(mf0, mf1, mf2) - g) < opt.staticAccelMeanMps2;
     // levelling: f^b = g·[sin θ, cos θ sin φ, cos θ cos φ]  ⇒  φ = atan2(f_y, f_z), θ = atan2(f_x, √(f_y² + f_z²))
     const roll = Math.atan2(mf1, mf2);
     const pitch = Math.atan2(mf0, Math.hypot(mf1, mf2));
@@ -497,7 +518,6 @@ export class InsSmoother {
     x.fill(0);
     quatFromEuler(roll, pitch, yawRad, x, NAV_Q);
     // tilt error of levelling: accelerometer bias / g, plus a static allowance (moving: 5°)
-    const g = opt.mech.gamma0Mps2;
     const tiltSigma = isStatic ? Math.hypot(opt.accelBiasSigmaMps2 / g, 0.1 * (Math.PI / 180)) : 5 * (Math.PI / 180);
     this.initPositionVelocity(k, isStatic);
     const P = this.P;
@@ -728,9 +748,9 @@ export class InsSmoother {
       pr.accepted[k] = 1;
     }
     // ---- stationary: zero velocity and zero angular rate; otherwise the non-holonomic constraint ----
-    const stationary = opt.zupt && this.isStationary();
+    const stationary = opt.zupt && this.isStationary() && this.zuptConsistent();
     if (stationary) {
-      const r = opt.zuptSigmaMps ** 2;
+      const r = this.zuptVariance();
       for (let a = 0; a < 3; a++) {
         velocityRow(a, this.h);
         this.scalarUpdate(-x[NAV_V + a]!, r);
@@ -812,7 +832,69 @@ export class InsSmoother {
     const sdF = Math.sqrt(vf / (n - 1));
     const sdW = Math.sqrt(vw / (n - 1));
     const rate = Math.hypot(mean[3]! - x[NAV_BG]!, mean[4]! - x[NAV_BG + 1]!, mean[5]! - x[NAV_BG + 2]!);
-    return sdF < this.opt.staticAccelSdMps2 && sdW < this.opt.staticGyroRadps && rate < this.opt.staticGyroRadps;
+    if (!(sdF < this.opt.staticAccelSdMps2 && sdW < this.opt.staticGyroRadps && rate < this.opt.staticGyroRadps)) return false;
+    // mean specific force in the nav frame, f^n = C_nb (f̄^b − b̂_a), against gravity [0, 0, γ]: a steady
+    // deceleration (braking into a stop, pulling away) has a small sd but a mean off gravity by the acceleration
+    if (!(this.forceOffGravity(mean[0]!, mean[1]!, mean[2]!) < this.opt.staticAccelMeanMps2)) return false;
+    // the same on the newest quarter of the window: pulling away shows there first (the whole window lags)
+    const m = Math.max(3, n >> 2);
+    let q0 = 0, q1 = 0, q2 = 0;
+    for (let i = 1; i <= m; i++) {
+      const o = 6 * ((this.ringHead - i + this.ringCap) % this.ringCap);
+      q0 += r[o]!;
+      q1 += r[o + 1]!;
+      q2 += r[o + 2]!;
+    }
+    return this.forceOffGravity(q0 / m, q1 / m, q2 / m) < this.opt.staticAccelMeanMps2;
+  }
+
+  /** |C_nb (f̄^b − b̂_a) − [0, 0, γ]|: how far a mean specific force (body, m/s²) is from gravity. */
+  private forceOffGravity(m0: number, m1: number, m2: number): number {
+    const C = this.C, x = this.nav;
+    const f0 = m0 - x[NAV_BA]!, f1 = m1 - x[NAV_BA + 1]!, f2 = m2 - x[NAV_BA + 2]!;
+    const fe = C[0]! * f0 + C[1]! * f1 + C[2]! * f2;
+    const fn = C[3]! * f0 + C[4]! * f1 + C[5]! * f2;
+    const fu = C[6]! * f0 + C[7]! * f1 + C[8]! * f2;
+    return Math.hypot(fe, fn, fu - gravityAt(this.opt.mech, x[NAV_P + 2]!));
+  }
+
+  /**
+   * Variance of one zero-velocity pseudo-measurement: σ² · max(1, T_c/Δt). Its error is the standing
+   * body's residual motion (engine shake, rocking as the vehicle is loaded), correlated over about the
+   * detector's window T_c; updates closer together than that are not independent, so each carries the
+   * share Δt/T_c of one window's information and the information per second does not grow with the
+   * fix rate (at 1 Hz fixes and a 1 s window: σ² unchanged).
+   */
+  private zuptVariance(): number {
+    const dt = this.zaruDt;
+    const s2 = this.opt.zuptSigmaMps ** 2;
+    return dt > 0 ? s2 * Math.max(1, this.opt.staticWindowSec / dt) : s2;
+  }
+
+  /**
+   * The zero-velocity hypothesis against the filter's own prediction: χ² test (3 dof) of ν = 0 − v̂
+   * with S = P_vv + R. Moving off (or creeping) after the detector's window last saw stillness, the
+   * mechanized velocity grows by a·Δt each epoch and the test fails before a wrong update can pin the
+   * velocity (and bias the accelerometer and tilt estimates through their correlations).
+   */
+  private zuptConsistent(): boolean {
+    const P = this.P, x = this.nav, dx = this.dx, S = this.S3;
+    const r = this.zuptVariance();
+    for (let i = 0; i < 3; i++) {
+      // ν = −(v̂ + δv̂): innovation at the current estimate (after this epoch's fix update)
+      this.nu[i] = -(x[NAV_V + i]! + dx[E_V + i]!);
+      for (let j = 0; j < 3; j++) S[i * 3 + j] = P[(E_V + i) * NE + E_V + j]! + (i === j ? r : 0);
+    }
+    if (!cholesky(3, S, 0, this.L3)) return false;
+    let nis = 0;
+    const y = [0, 0, 0];
+    for (let i = 0; i < 3; i++) {
+      let s = this.nu[i]!;
+      for (let j = 0; j < i; j++) s -= this.L3[i * 3 + j]! * y[j]!;
+      y[i] = s / this.L3[i * 3 + i]!;
+      nis += y[i]! * y[i]!;
+    }
+    return nis <= ZUPT_GATE_NIS;
   }
 
   /** Backward RTS over every chain of covered epochs, then the per-epoch products. */
