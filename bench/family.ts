@@ -15,7 +15,8 @@ import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { FAMILY_COUNTS, FAMILY_HABITS, familySpecs, familyVariant, type FamilyHabit, type FamilyKind } from '../src/simulate/family-spec.js';
 import { LOG_COLUMNS, logRow, poolByKind, POOLED_COLUMNS, pooledRow, runFamily, textTable } from '../test/helpers/family-run.js';
-import { validationMarkdown } from '../test/helpers/family-doc.js';
+import { validationMarkdown, withReadmeFamilyTable } from '../test/helpers/family-doc.js';
+import { readFileSync } from 'node:fs';
 
 function repoRoot(): string {
   // dist/bench/family.js → the package root
@@ -48,6 +49,11 @@ function main(argv: string[]): void {
   if (md) {
     writeFileSync(md, validationMarkdown(seed, scores));
     console.log(`wrote ${md}`);
+  }
+  if (argv.includes('--readme')) {
+    const p = join(repoRoot(), 'README.md');
+    writeFileSync(p, withReadmeFamilyTable(readFileSync(p, 'utf8'), seed, scores));
+    console.log(`wrote the family table into ${p}`);
   }
 }
 

@@ -17,13 +17,13 @@
  * (KNOWN_SHORTFALLS), so that a change that meets one shows up as a failing "expected fail": then
  * move it out of the table.
  *
- * HINDCAST_WRITE_VALIDATION=1 also writes docs/validation-family.md from this run.
+ * HINDCAST_WRITE_VALIDATION=1 also writes docs/validation-family.md and README.md's pooled table from this run.
  */
-import { writeFileSync } from 'node:fs';
+import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, test } from 'vitest';
 import { FAMILY_KINDS, familySpecs, type FamilyKind } from '../../src/simulate/family-spec.js';
-import { validationMarkdown } from '../helpers/family-doc.js';
+import { validationMarkdown, withReadmeFamilyTable } from '../helpers/family-doc.js';
 import { poolScores, type FamilyScore, type PooledScore } from '../helpers/family-score.js';
 import { poolByKind, POOLED_COLUMNS, pooledRow, runFamily, textTable } from '../helpers/family-run.js';
 
@@ -94,7 +94,11 @@ beforeAll(() => {
   scores = runFamily(familySpecs(BASE_SEED), REPO);
   for (const p of poolByKind(scores)) pooled.set(p.kind, p);
   console.log(`scenario family, base seed ${BASE_SEED}, ${scores.length} logs\n${textTable(POOLED_COLUMNS, [...pooled.values()].map(pooledRow))}`);
-  if (process.env.HINDCAST_WRITE_VALIDATION === '1') writeFileSync(join(REPO, 'docs', 'validation-family.md'), validationMarkdown(BASE_SEED, scores));
+  if (process.env.HINDCAST_WRITE_VALIDATION === '1') {
+    writeFileSync(join(REPO, 'docs', 'validation-family.md'), validationMarkdown(BASE_SEED, scores));
+    const readme = join(REPO, 'README.md');
+    writeFileSync(readme, withReadmeFamilyTable(readFileSync(readme, 'utf8'), BASE_SEED, scores));
+  }
 }, 300_000);
 
 test('the family holds at least 60 logs, every kind at least 8, and every log was processed', () => {
