@@ -11,13 +11,15 @@
 import type { HindcastConfig } from '../config/schema.js';
 import { axisParamsFromConfig, buildAxisModels, filterOptions, reviewOptions, runPrepared, segmentData, type AxisParams, type PreparedSession } from './process-session.js';
 import { FIRST_ROUND, calibrateSession, type CalibrationInfo } from './calibrate.js';
-import { reviewSegment, type ReviewOptions } from './review.js';
+import type { ReviewOptions } from './review.js';
+import { localScaleOptions, reviewWithLocalScale } from './local-noise-scale.js';
 import type { SessionResult } from './result.js';
 
 /** Per-segment decisions of the classification (the shape runPrepared takes as plans). */
 export interface CalibrationPlan {
   offered: Uint8Array;
   decisions: { kept: Uint8Array; gateRejected: Uint8Array };
+  scale: Float64Array | null;
 }
 
 export interface CalibratedSession {
@@ -34,8 +36,8 @@ function classify(ps: PreparedSession, cfg: HindcastConfig, params: AxisParams, 
   return ps.segments.map((seg) => {
     const { data } = segmentData(ps, seg, params, cfg.segments.bridgeFactor);
     const offered = data.use.slice();
-    const rev = reviewSegment(models, data, offered, opt, ro);
-    return { offered, decisions: { kept: rev.kept, gateRejected: rev.gateRejected } };
+    const { rev, scale } = reviewWithLocalScale(models, data, offered, opt, ro, localScaleOptions(cfg.noise.localScaleWindowSec, cfg.gate.probability));
+    return { offered, decisions: { kept: rev.kept, gateRejected: rev.gateRejected }, scale };
   });
 }
 
