@@ -5,6 +5,12 @@
 import { z } from 'zod';
 import { formatHasZone, timeFormatProblem, zoneProblem } from '../time/zones.js';
 
+/** Default of gate.reacquireAfterSec (s). */
+export const REACQUIRE_AFTER_SEC = 5.5;
+
+/** Default of noise.localScaleWindowSec (s). */
+export const LOCAL_SCALE_WINDOW_SEC = 60;
+
 const positive = z.number().positive();
 
 export const columnsSchema = z
@@ -117,6 +123,12 @@ export const configSchema = z
         verticalCorrelationTime: z.enum(['shared', 'own']).default('shared'),
         /** Multiplier of reported per-fix sigmas (sd_east, sd_north, sd_up) when the log has them. */
         reportedSigmaScale: positive.default(1),
+        /**
+         * Window (s) of the local noise scale: the fixes' variance is multiplied by a slowly varying
+         * factor estimated from their scatter about the smoothed track within this window
+         * (session/local-noise-scale.ts); 0 turns it off.
+         */
+        localScaleWindowSec: z.number().min(0).default(LOCAL_SCALE_WINDOW_SEC),
       })
       .strict()
       .default({
@@ -127,6 +139,7 @@ export const configSchema = z
         correlationTimeSec: 60,
         verticalCorrelationTime: 'shared',
         reportedSigmaScale: 1,
+        localScaleWindowSec: LOCAL_SCALE_WINDOW_SEC,
       }),
     gate: z
       .object({
@@ -134,9 +147,15 @@ export const configSchema = z
         probability: z.number().gt(0.5).lt(1).default(0.9995),
         /** Consecutive rejections after which the filter re-acquires the track. */
         reacquireAfter: z.number().int().min(2).default(6),
+        /**
+         * The run of rejections must also have lasted this long (s) before the filter re-acquires,
+         * so that the rule means the same time at every fix rate (a burst of many fixes at 10 Hz is
+         * not a lost track). 0: the count alone.
+         */
+        reacquireAfterSec: z.number().min(0).default(REACQUIRE_AFTER_SEC),
       })
       .strict()
-      .default({ probability: 0.9995, reacquireAfter: 6 }),
+      .default({ probability: 0.9995, reacquireAfter: 6, reacquireAfterSec: REACQUIRE_AFTER_SEC }),
     segments: z
       .object({
         /** Gaps longer than this (s) split the track into segments; shorter gaps are bridged. */

@@ -3,7 +3,8 @@
  * joint chi-square gate on the normalized innovation squared (NIS) of each fix, and re-acquisition
  * after a run of rejections.
  * Gate: Bar-Shalom, Li, Kirubarajan (2001) §5.4 (NIS ~ χ²(m) under the model; validation region).
- * Re-acquisition: when `reacquireAfter` consecutive fixes fail the gate, the model has lost the
+ * Re-acquisition: when `reacquireAfter` consecutive fixes fail the gate (and, with `reacquireAfterSec`,
+ * the run has lasted that long), the model has lost the
  * track (a manoeuvre beyond its process noise, or a step in the fix error): the filter rewinds to the
  * epoch before the run, inflates the covariance there (a recorded extra process noise that the
  * smoother reuses, so forward and backward passes see the same model), and runs the epochs again.
@@ -31,6 +32,14 @@ export interface FilterOptions {
   gateProbability: number;
   /** Consecutive rejected fixes after which the filter re-acquires. */
   reacquireAfter: number;
+  /**
+   * Optional duration (s) the run of rejections must also last, from the last epoch before it to the
+   * current fix, before the filter re-acquires (0 or absent: the count alone). A count of fixes is a
+   * different time at every fix rate: at 10 Hz six fixes are 0.6 s, shorter than a multipath burst,
+   * so the filter would re-acquire onto the burst; a duration is what separates a lost track (a
+   * manoeuvre or a step persists) from a burst (it ends).
+   */
+  reacquireAfterSec?: number;
   /** Prior variances for the first epoch, per kinematic derivative (position, velocity, acceleration), m², (m/s)², (m/s²)². */
   priorVar: [number, number, number];
   /** Optional per-axis, per-epoch multiplier of the kinematic process noise of the step ending at that epoch. */
@@ -513,7 +522,7 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
     if (likelihood) h.logLik[k] = -0.5 * (ll + thr);
     if (runCount === 0) runStart = k;
     runCount++;
-    if (runCount >= opt.reacquireAfter && runStart > 0 && !rewound.has(runStart)) {
+    if (runCount >= opt.reacquireAfter && runStart > 0 && !rewound.has(runStart) && runLasted(data.tSec, runStart, k, opt.reacquireAfterSec)) {
       // ---- re-acquire: rewind to the run start with inflated covariance ----
       rewound.add(runStart);
       recordReacquisition(models, data, h, k, runStart);
@@ -742,7 +751,7 @@ function forwardShared3(models: AxisModel[], data: SegmentData, opt: FilterOptio
     }
     if (runCount === 0) runStart = k;
     runCount++;
-    if (runCount >= opt.reacquireAfter && runStart > 0 && !rewound.has(runStart)) {
+    if (runCount >= opt.reacquireAfter && runStart > 0 && !rewound.has(runStart) && runLasted(data.tSec, runStart, k, opt.reacquireAfterSec)) {
       // ---- re-acquire: rewind to the run start with inflated covariance ----
       rewound.add(runStart);
       recordReacquisition(models, data, h, k, runStart);
@@ -755,6 +764,11 @@ function forwardShared3(models: AxisModel[], data: SegmentData, opt: FilterOptio
   }
   if (resume && winStart >= 0) resume.windows.push(winStart, N - 1);
   return h;
+}
+
+/** Whether the run of rejections runStart..k (runStart > 0) has lasted minSec, from the epoch before it to epoch k (minSec absent or 0: always). */
+function runLasted(tSec: Float64Array, runStart: number, k: number, minSec: number | undefined): boolean {
+  return !minSec || tSec[k]! - tSec[runStart - 1]! >= minSec;
 }
 
 /** Sum of the per-epoch log-likelihood contributions. */

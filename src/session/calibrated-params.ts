@@ -11,7 +11,8 @@
 import type { HindcastConfig } from '../config/schema.js';
 import { axisParamsFromConfig, buildAxisModels, filterOptions, reviewOptions, runPrepared, segmentData, type AxisParams, type PreparedSession } from './process-session.js';
 import { FIRST_ROUND, calibrateSession, type CalibrationInfo } from './calibrate.js';
-import { reviewSegment, type ReviewOptions } from './review.js';
+import type { ReviewOptions } from './review.js';
+import { localScaleOptions, reviewWithLocalScale } from './local-noise-scale.js';
 import type { SessionResult } from './result.js';
 import type { DecisionLog } from './decision-log.js';
 
@@ -19,6 +20,7 @@ import type { DecisionLog } from './decision-log.js';
 export interface CalibrationPlan {
   offered: Uint8Array;
   decisions: { kept: Uint8Array; gateRejected: Uint8Array; why: DecisionLog };
+  scale: Float64Array | null;
 }
 
 export interface CalibratedSession {
@@ -35,8 +37,8 @@ function classify(ps: PreparedSession, cfg: HindcastConfig, params: AxisParams, 
   return ps.segments.map((seg) => {
     const { data } = segmentData(ps, seg, params, cfg.segments.bridgeFactor);
     const offered = data.use.slice();
-    const rev = reviewSegment(models, data, offered, opt, ro);
-    return { offered, decisions: { kept: rev.kept, gateRejected: rev.gateRejected, why: rev.why } };
+    const { rev, scale } = reviewWithLocalScale(models, data, offered, opt, ro, localScaleOptions(cfg.noise.localScaleWindowSec, cfg.gate.probability));
+    return { offered, decisions: { kept: rev.kept, gateRejected: rev.gateRejected, why: rev.why }, scale };
   });
 }
 

@@ -21,6 +21,7 @@ import type { StageTimings } from './timings.js';
 import { selectKth } from '../estimation/select.js';
 import { applyAdequacyCheck } from './adequacy.js';
 import { sessionVerdict, widenToResidualScatter } from './verdict.js';
+import { localScaleOptions, reviewWithLocalScale, scaleVariances } from './local-noise-scale.js';
 
 /** Validity of each fix before filtering: finite, in range, not the (0, 0) "null island" placeholder. */
 export function validFixes(s: FixSeries): { valid: Uint8Array; why: string[] } {
@@ -260,6 +261,7 @@ export function filterOptions(cfg: HindcastConfig, p: AxisParams): FilterOptions
   return {
     gateProbability: cfg.gate.probability,
     reacquireAfter: cfg.gate.reacquireAfter,
+    reacquireAfterSec: cfg.gate.reacquireAfterSec,
     priorVar: [1e6, cfg.model.priorSpeedMps ** 2, cfg.model.priorAccelMps2 ** 2],
   };
 }
@@ -273,6 +275,8 @@ export function reviewOptions(cfg: HindcastConfig, intervalSec = 1): ReviewOptio
 interface SegmentPlan {
   offered: Uint8Array;
   decisions?: { kept: Uint8Array; gateRejected: Uint8Array; why: DecisionLog };
+  /** The local noise scale of R per epoch the decisions were made under (session/local-noise-scale.ts; absent: none). */
+  scale?: Float64Array | null;
   /** The converged review behind the decisions and the parameters it ran under (reused when the final run has the same). */
   outcome?: { params: AxisParams; rev: ReturnType<typeof reviewSegment> };
 }
@@ -346,8 +350,8 @@ function classify(ps: PreparedSession, cfg: HindcastConfig, params: AxisParams, 
     const { data } = segmentData(ps, seg, params, cfg.segments.bridgeFactor);
     if (tm) tm.review += performance.now() - t0;
     const offered = data.use.slice();
-    const rev = reviewSegment(models, data, offered, opt, ro, undefined, tm);
-    return { offered, decisions: { kept: rev.kept, gateRejected: rev.gateRejected, why: rev.why }, outcome: rev.converged ? { params, rev } : undefined };
+    const { rev, scale } = reviewWithLocalScale(models, data, offered, opt, ro, localScaleOptions(cfg.noise.localScaleWindowSec, cfg.gate.probability), tm);
+    return { offered, decisions: { kept: rev.kept, gateRejected: rev.gateRejected, why: rev.why }, scale, outcome: rev.converged ? { params, rev } : undefined };
   });
 }
 
@@ -380,7 +384,7 @@ function classifyWindows(ps: PreparedSession, cfg: HindcastConfig, params: AxisP
     if (b - a < 3) continue;
     const part = sliceSegment(data, a - a0, b - a0);
     const offered = part.use.slice();
-    const rev = reviewSegment(models, part, offered, opt, ro, undefined, tm);
+    const { rev } = reviewWithLocalScale(models, part, offered, opt, ro, localScaleOptions(cfg.noise.localScaleWindowSec, cfg.gate.probability), tm);
     for (let k = 0; k < part.N; k++) u[a + k] = offered[k] === 0 ? 0 : rev.kept[k] ? 2 : 0;
   }
 }
@@ -411,6 +415,7 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
       ({ data, fix } = segmentData(ps, seg, p, cfg.segments.bridgeFactor));
       if (tm) tm.review += performance.now() - t0;
       const offered = plan?.offered ?? data.use.slice();
+      if (plan?.scale) scaleVariances(data, plan.scale);
       rev = reviewSegment(models, data, offered, opt, ro, plan?.decisions, tm);
     }
     const h = rev.history;

@@ -21,11 +21,13 @@ function rng(seed: number): () => number {
   return () => (s = (s * 48271) % 2147483647) / 2147483647;
 }
 
-/** A burst of 40 fixes displaced by 60 m horizontally from a third of the way in (the gate rejects them and re-acquires). */
+/** A step of at least 40 fixes and 8 s displaced by 60 m horizontally from a third of the way in (the gate rejects them and re-acquires). */
 function withBurst(d: SegmentData): SegmentData {
   const z = d.z.map((a) => a.slice());
   let k = Math.floor(d.N / 3);
-  for (let n = 0; n < 40 && k < d.N; k++) {
+  const t0 = d.tSec[k]!;
+  // at least 40 fixes and 8 s, longer than the default re-acquisition duration (5.5 s), so the filter re-acquires at every rate
+  for (let n = 0; (n < 40 || d.tSec[k]! - t0 < 8) && k < d.N; k++) {
     if (!Number.isFinite(z[0]![k]!)) continue;
     z[0]![k] += 60;
     z[1]![k] -= 45;

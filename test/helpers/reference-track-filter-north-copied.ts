@@ -3,6 +3,9 @@
  * from east's at every epoch of forwardShared3), kept verbatim as the reference for the bit-for-bit
  * test of the current form (test/estimation/one-horizontal-cov.test.ts). Only the imports, the name
  * of the entry point and this header differ; the source's header follows.
+ * The re-acquisition rule has been given the current option `reacquireAfterSec` (the run of
+ * rejections must also have lasted that long), the same condition as the current form's, so that
+ * both are compared under the default configuration; nothing else is changed.
  */
 /**
  * Forward pass over one segment of epochs: three independent axis filters (east, north, up) with a
@@ -519,7 +522,7 @@ export function refNorthCopiedForwardFilter(models: AxisModel[], data: SegmentDa
     if (likelihood) h.logLik[k] = -0.5 * (ll + thr);
     if (runCount === 0) runStart = k;
     runCount++;
-    if (runCount >= opt.reacquireAfter && runStart > 0 && !rewound.has(runStart)) {
+    if (runCount >= opt.reacquireAfter && runStart > 0 && !rewound.has(runStart) && (!opt.reacquireAfterSec || data.tSec[k]! - data.tSec[runStart - 1]! >= opt.reacquireAfterSec)) {
       // ---- re-acquire: rewind to the run start with inflated covariance ----
       rewound.add(runStart);
       recordReacquisition(models, data, h, k, runStart);
@@ -787,7 +790,7 @@ function forwardShared3(models: AxisModel[], data: SegmentData, opt: FilterOptio
     }
     if (runCount === 0) runStart = k;
     runCount++;
-    if (runCount >= opt.reacquireAfter && runStart > 0 && !rewound.has(runStart)) {
+    if (runCount >= opt.reacquireAfter && runStart > 0 && !rewound.has(runStart) && (!opt.reacquireAfterSec || data.tSec[k]! - data.tSec[runStart - 1]! >= opt.reacquireAfterSec)) {
       // ---- re-acquire: rewind to the run start with inflated covariance ----
       rewound.add(runStart);
       recordReacquisition(models, data, h, k, runStart);

@@ -2,6 +2,9 @@
  * forwardFilter of src/estimation/track-filter.ts in its former form (one generic
  * loop over the axes for every case), kept verbatim as the reference for the bit-for-bit test of
  * the current form (test/estimation/forward-filter-shared.test.ts).
+ * The re-acquisition rule has been given the current option `reacquireAfterSec` (the run of
+ * rejections must also have lasted that long), the same condition as the current form's, so that
+ * both are compared under the default configuration; nothing else is changed.
  * Gate: Bar-Shalom, Li, Kirubarajan (2001) §5.4. Re-acquisition: see track-filter.ts.
  */
 import type { AxisModel } from '../../src/models/axis-model.js';
@@ -195,7 +198,7 @@ export function refForwardFilter(models: AxisModel[], data: SegmentData, opt: Fi
     if (likelihood) h.logLik[k] = -0.5 * (ll + thr);
     if (runCount === 0) runStart = k;
     runCount++;
-    if (runCount >= opt.reacquireAfter && runStart > 0 && !rewound.has(runStart)) {
+    if (runCount >= opt.reacquireAfter && runStart > 0 && !rewound.has(runStart) && (!opt.reacquireAfterSec || data.tSec[k]! - data.tSec[runStart - 1]! >= opt.reacquireAfterSec)) {
       // ---- re-acquire: rewind to the run start with inflated covariance ----
       rewound.add(runStart);
       const extra: Float64Array[] = [];

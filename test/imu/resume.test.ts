@@ -54,7 +54,7 @@ async function bothWays(c: ImuCase) {
 
 describe('resumed IMU review passes', () => {
   it('15 minutes at 10 Hz fixes, two passes: the second resumes from the gated first, bit for bit', async () => {
-    const { a, b, tmA, tmB } = await bothWays(makeImuCase(2, { durationSec: 900, fixRateHz: 10 }, {}, 'vehicle'));
+    const { a, b, tmA, tmB } = await bothWays(makeImuCase(3, { durationSec: 900, fixRateHz: 10 }, {}, 'vehicle'));
     expect(tmA.passes).toBe(2);
     expect(tmB.resumedPasses).toBe(1);
     console.log(`10 Hz: epochs not run again ${tmB.resumedEpochs} of ${b.N}`);
