@@ -28,6 +28,8 @@ export const RERUN_TOL = 1e-6;
 
 export interface ReviewOutcome {
   history: FilterHistory;
+  /** The filtered history behind `history` (its forward moments; read by the simulation smoother). */
+  filtered: FilterHistory;
   /** Data with the final decisions in `use` (2 kept, 0 rejected or no fix). */
   data: SegmentData;
   /** Final decision per epoch: 1 kept, 0 not used. */
@@ -210,7 +212,7 @@ export function reviewSegment(
   }
   for (let k = 0; k < N; k++) work.use[k] = offered[k] === 0 ? 0 : kept[k] ? 2 : 0;
   if (tm) tm.review += performance.now() - tStart - tKernel;
-  return { history: h!, data: work, kept, gateRejected, T, dof, threshold, passes, converged };
+  return { history: h!, filtered: hf!, data: work, kept, gateRejected, T, dof, threshold, passes, converged };
 }
 
 /** The segment in reverse time order (t → −t), for the time-reversed filter; the models are time-symmetric. */

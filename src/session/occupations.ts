@@ -1,0 +1,120 @@
+/**
+ * Occupied points: the periods where the receiver stood still, and the posterior of the position it
+ * stood on. Still epochs are those whose smoothed horizontal speed is below STILL_SPEED_MPS; a run of
+ * them within a segment lasting at least `minSec` and holding at least MIN_FIXES kept fixes is an
+ * occupation. Its position is the time average of the smoothed positions over the run, and its
+ * covariance is that average's exact posterior covariance (session/posterior.ts,
+ * meanPositionVariance): the correlated fix error makes neighbouring epochs' errors correlated, so
+ * the average of m fixes is worth far fewer than m independent ones. The effective number of
+ * independent fixes is the variance of one fix's error (white plus correlated, the model's)
+ * divided by the variance of the average.
+ */
+import { errorEllipse } from '../output/ellipse.js';
+import { STATUS, type SessionResult } from './result.js';
+import { meanPositionVariance, type TrackPosterior } from './posterior.js';
+
+/** Smoothed horizontal speed (m/s) below which an epoch counts as still (walking is 1–1.6 m/s; common practice for a stop). */
+export const STILL_SPEED_MPS = 0.3;
+/** Fewest kept fixes in an occupation. */
+export const MIN_FIXES = 3;
+
+export interface Occupation {
+  /** "P1", "P2", … in time order. */
+  id: string;
+  segment: number;
+  /** First and last epoch (indices into the result). */
+  first: number;
+  last: number;
+  startSec: number;
+  endSec: number;
+  durationSec: number;
+  /** Kept fixes inside the occupation. */
+  fixCount: number;
+  latDeg: number;
+  lonDeg: number;
+  /** NaN without height. */
+  heightM: number;
+  /** Position in the local frame (m). */
+  posEnu: [number, number, number];
+  /** 1-sigma of the position (m), from the joint posterior. */
+  sdEnu: [number, number, number];
+  ell95MajorM: number;
+  ell95MinorM: number;
+  ell95AzimuthDeg: number;
+  /** Variance of one fix's horizontal error (white + correlated) over the horizontal variance of the average. */
+  effectiveFixes: number;
+}
+
+/** The still runs of a result: [first, last] epoch pairs, within one segment each, at least minSec long. */
+export function stillRuns(r: SessionResult, minSec: number): Array<[number, number]> {
+  const runs: Array<[number, number]> = [];
+  let a = -1;
+  const close = (b: number): void => {
+    if (a >= 0 && r.tSec[b]! - r.tSec[a]! >= minSec) {
+      let fixes = 0;
+      for (let j = a; j <= b; j++) if (r.status[j] === STATUS.kept || r.status[j] === STATUS.userKept) fixes++;
+      if (fixes >= MIN_FIXES) runs.push([a, b]);
+    }
+    a = -1;
+  };
+  for (let j = 0; j < r.N; j++) {
+    const still = Math.hypot(r.velEnu[0][j]!, r.velEnu[1][j]!) < STILL_SPEED_MPS;
+    if (a >= 0 && (!still || r.segment[j] !== r.segment[a])) close(j - 1);
+    if (still && a < 0) a = j;
+  }
+  if (a >= 0) close(r.N - 1);
+  return runs;
+}
+
+/** Occupations with their positions and exact posterior uncertainty. */
+export function detectOccupations(r: SessionResult, post: TrackPosterior, minSec: number): Occupation[] {
+  const out: Occupation[] = [];
+  const ll = [0, 0];
+  for (const [first, last] of stillRuns(r, minSec)) {
+    const si = r.segment[first]!;
+    const sp = post.segments[si]!;
+    const k0 = first - sp.epoch0, k1 = last - sp.epoch0;
+    const m = last - first + 1;
+    const mean = [0, 0, 0];
+    for (let a = 0; a < post.nAx; a++) {
+      let s = 0;
+      for (let j = first; j <= last; j++) s += r.posEnu[a]![j]!;
+      mean[a] = s / m;
+    }
+    if (post.nAx < 3) mean[2] = NaN;
+    const v = meanPositionVariance(sp, k0, k1);
+    const sd: [number, number, number] = [Math.sqrt(v[0]!), Math.sqrt(v[1]!), post.nAx > 2 ? Math.sqrt(v[2]!) : NaN];
+    const el = errorEllipse(v[0]!, v[1]!, 0);
+    // one fix's horizontal error variance: white (the fix's own r) plus the correlated part's σ²
+    let rSum = 0, nFix = 0;
+    const gm = sp.models[0]!.params.gm;
+    const gmVar = gm && gm.sigmaM > 0 && gm.tauSec > 0 ? gm.sigmaM ** 2 : 0;
+    for (let k = k0; k <= k1; k++) {
+      if (sp.data.use[k] === 0) continue;
+      rSum += (sp.data.r[0]![k]! + sp.data.r[1]![k]!) / 2;
+      nFix++;
+    }
+    const fixVar = (nFix > 0 ? rSum / nFix : NaN) + gmVar;
+    post.frame.inverse(mean[0]!, mean[1]!, ll);
+    out.push({
+      id: `P${out.length + 1}`,
+      segment: si,
+      first,
+      last,
+      startSec: r.tSec[first]!,
+      endSec: r.tSec[last]!,
+      durationSec: r.tSec[last]! - r.tSec[first]!,
+      fixCount: nFix,
+      latDeg: ll[1]!,
+      lonDeg: ll[0]!,
+      heightM: post.hasHeight ? mean[2]! + post.heightRefM : NaN,
+      posEnu: [mean[0]!, mean[1]!, mean[2]!],
+      sdEnu: sd,
+      ell95MajorM: el.majorM,
+      ell95MinorM: el.minorM,
+      ell95AzimuthDeg: el.azimuthDeg,
+      effectiveFixes: fixVar / ((v[0]! + v[1]!) / 2),
+    });
+  }
+  return out;
+}

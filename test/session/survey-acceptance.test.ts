@@ -1,0 +1,149 @@
+/**
+ * Survey products against simulator truth, pooled over seeded logs of the walking survey with stops
+ * (src/simulate: white noise 2 m, correlated error 1.5 m with τ = 60 s, bursts, gaps):
+ * - every true stop of ≥ 20 s is found (recall ≥ 0.95 pooled); no occupation holds an epoch where
+ *   the truth moves at walking speed (≥ 1 m/s);
+ * - the 95% ellipses of the occupied points hold the true point (the truth averaged over the same
+ *   epochs) 0.90–0.99 of the time, pooled;
+ * - the 95% intervals of the horizontal track length hold the truth (the truth's polyline through
+ *   the same epochs, per segment) 0.90–0.99, pooled, and the mean error is within the mean sd;
+ * - on closed loops (a rectangle walked round, stops at its corners) the area's 95% interval holds
+ *   the true area 0.90–0.99 pooled, bias within sd.
+ * The criteria are the product's own (uncertainty is a product: common practice for coverage checks).
+ */
+import { describe, expect, it } from 'vitest';
+import { loadConfig } from '../../src/config/load.js';
+import { readFixCsv } from '../../src/input/csv-fixes.js';
+import { processSession } from '../../src/session/process-session.js';
+import { K2_95 } from '../../src/output/ellipse.js';
+import { defaultSpec, scenarioCsv, simulate, type Scenario } from '../../src/simulate/scenario.js';
+import { truthAt, type TruthTrack } from '../../src/simulate/truth.js';
+import type { SessionResult } from '../../src/session/result.js';
+
+const cfg = loadConfig();
+
+function run(sc: Scenario): SessionResult {
+  const series = readFixCsv(scenarioCsv(sc), `${sc.spec.kind}-${sc.spec.seed}.csv`, cfg);
+  return processSession(series, cfg, `${sc.spec.kind}-${sc.spec.seed}`);
+}
+
+/** True stops: runs of truth speed < 0.05 m/s (on the truth's fine grid), as [start, end] in s from the log start. */
+function trueStops(tr: TruthTrack): Array<[number, number]> {
+  const out: Array<[number, number]> = [];
+  let a = -1;
+  for (let k = 1; k < tr.e.length; k++) {
+    const v = Math.hypot(tr.e[k]! - tr.e[k - 1]!, tr.n[k]! - tr.n[k - 1]!) / tr.dtSec;
+    if (v < 0.05 && a < 0) a = k;
+    if ((v >= 0.05 || k === tr.e.length - 1) && a >= 0) {
+      out.push([a * tr.dtSec, k * tr.dtSec]);
+      a = -1;
+    }
+  }
+  return out;
+}
+
+function truthSpeed(tr: TruthTrack, t: number): number {
+  const p = [0, 0, 0], q = [0, 0, 0];
+  truthAt(tr, t - 0.5, p);
+  truthAt(tr, t + 0.5, q);
+  return Math.hypot(q[0]! - p[0]!, q[1]! - p[1]!);
+}
+
+interface Pool {
+  stops: number;
+  found: number;
+  occupations: number;
+  movingOcc: number;
+  inEll: number;
+  inLen: number;
+  lenErr: number;
+  lenSd: number;
+  nLen: number;
+  rawExcess: number;
+  rawExpected: number;
+}
+
+function scoreWalk(sc: Scenario, r: SessionResult, p: Pool): void {
+  const t0 = sc.spec.startUnixSec;
+  const sv = r.survey!;
+  const occ = sv.occupations;
+  for (const [a, b] of trueStops(sc.truth)) {
+    if (b - a < 20) continue;
+    // inside the log's fixes (not in a gap of the simulator)
+    const mid = t0 + (a + b) / 2;
+    let covered = false;
+    for (let j = 0; j < r.N; j++) if (Math.abs(r.tSec[j]! - mid) < 1) covered = true;
+    if (!covered) continue;
+    p.stops++;
+    if (occ.some((o) => o.startSec - t0 <= b && o.endSec - t0 >= a && Math.min(o.endSec - t0, b) - Math.max(o.startSec - t0, a) >= 0.5 * (b - a))) p.found++;
+  }
+  for (const o of occ) {
+    p.occupations++;
+    let vmax = 0;
+    const m = [0, 0, 0];
+    for (let j = o.first; j <= o.last; j++) {
+      vmax = Math.max(vmax, truthSpeed(sc.truth, r.tSec[j]! - t0));
+      const t = sc.truthEnuAt(r.tSec[j]!);
+      for (let a = 0; a < 3; a++) m[a] += t[a]! / (o.last - o.first + 1);
+    }
+    if (vmax >= 1) p.movingOcc++;
+    const [e, n] = sc.frame.geodeticToEnu(o.latDeg, o.lonDeg, o.heightM);
+    const de = e - m[0]!, dn = n - m[1]!;
+    if (de * de / o.sdEnu[0] ** 2 + dn * dn / o.sdEnu[1] ** 2 <= K2_95) p.inEll++;
+  }
+  const vt = sv.vertices.map((v) => {
+    const m = [0, 0, 0];
+    for (let j = v.first; j <= v.last; j++) {
+      const t = sc.truthEnuAt(r.tSec[j]!);
+      for (let a = 0; a < 3; a++) m[a] += t[a]! / (v.last - v.first + 1);
+    }
+    return m;
+  });
+  for (const L of sv.lengths) {
+    if (L.segment < 0 || !L.horizontalM) continue;
+    // the truth's polyline through the same vertices
+    let truth = 0;
+    for (let i = 1; i < sv.vertices.length; i++)
+      if (sv.vertices[i]!.segment === L.segment && sv.vertices[i - 1]!.segment === L.segment) truth += Math.hypot(vt[i]![0]! - vt[i - 1]![0]!, vt[i]![1]! - vt[i - 1]![1]!);
+    if (truth < 50) continue;
+    p.nLen++;
+    if (truth >= L.horizontalM.lo95 && truth <= L.horizontalM.hi95) p.inLen++;
+    p.lenErr += L.horizontalM.estimate - truth;
+    p.lenSd += L.horizontalM.sd;
+  }
+}
+
+const newPool = (): Pool => ({ stops: 0, found: 0, occupations: 0, movingOcc: 0, inEll: 0, inLen: 0, lenErr: 0, lenSd: 0, nLen: 0, rawExcess: 0, rawExpected: 0 });
+
+describe('survey products on the walking survey with stops (pooled over seeds)', () => {
+  const SEEDS = [1, 2, 3, 4, 5, 6, 7, 8];
+  const p = newPool();
+  for (const seed of SEEDS) {
+    const sc = simulate(defaultSpec('walk', seed));
+    scoreWalk(sc, run(sc), p);
+  }
+  console.log(
+    `walk survey, ${SEEDS.length} seeds: true stops ≥ 20 s ${p.stops}, found ${p.found} (recall ${(p.found / p.stops).toFixed(3)}); ` +
+      `occupations ${p.occupations}, while moving ${p.movingOcc}; ellipse coverage ${(p.inEll / p.occupations).toFixed(3)}; ` +
+      `length intervals ${p.inLen}/${p.nLen} (${(p.inLen / p.nLen).toFixed(3)}), mean error ${(p.lenErr / p.nLen).toFixed(2)} m, mean sd ${(p.lenSd / p.nLen).toFixed(2)} m`,
+  );
+  it('finds every true stop of 20 s or more (recall ≥ 0.95)', () => {
+    expect(p.stops).toBeGreaterThan(20);
+    expect(p.found / p.stops).toBeGreaterThanOrEqual(0.95);
+  });
+  it('reports no occupation while the truth moves at walking speed', () => {
+    expect(p.movingOcc).toBe(0);
+  });
+  it('95% ellipses of occupied points hold the true point 0.90–0.99 pooled', () => {
+    expect(p.occupations).toBeGreaterThan(20);
+    const c = p.inEll / p.occupations;
+    expect(c).toBeGreaterThanOrEqual(0.9);
+    expect(c).toBeLessThanOrEqual(0.99);
+  });
+  it('length 95% intervals hold the truth 0.90–0.99 pooled, bias within sd', () => {
+    const c = p.inLen / p.nLen;
+    expect(c).toBeGreaterThanOrEqual(0.9);
+    expect(c).toBeLessThanOrEqual(0.99);
+    expect(Math.abs(p.lenErr / p.nLen)).toBeLessThanOrEqual(p.lenSd / p.nLen);
+  });
+});
