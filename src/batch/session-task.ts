@@ -19,6 +19,8 @@ import { trackCsvChunks } from '../output/track-csv.js';
 import { outliersCsvChunks } from '../output/outliers-csv.js';
 import { geoJsonOptions, sessionGeoJsonChunks } from '../output/geojson.js';
 import { sessionGpxChunks } from '../output/gpx.js';
+import { pointsCsvChunks } from '../output/points-csv.js';
+import { releasePosterior } from '../session/posterior.js';
 import { reportPayload } from '../output/report/payload.js';
 import { okEntry, type SessionSummary } from '../output/summary.js';
 import { writeChunksAtomic } from './atomic-write.js';
@@ -54,18 +56,19 @@ export interface SessionFiles {
   outliers: string;
   geojson: string;
   gpx: string;
+  points: string;
 }
 
 /** Every output a session may have (the GPX only with output.gpx), relative to the output folder ("/"-separated). */
 export function outputNames(name: string): SessionFiles {
-  return { track: `${name}.track.csv`, outliers: `${name}.outliers.csv`, geojson: `${name}.geojson`, gpx: `${name}.gpx` };
+  return { track: `${name}.track.csv`, outliers: `${name}.outliers.csv`, geojson: `${name}.geojson`, gpx: `${name}.gpx`, points: `${name}.points.csv` };
 }
 
 /** The same as absolute paths. */
 export function outputPaths(out: string, name: string): SessionFiles {
   const n = outputNames(name);
   const abs = (rel: string): string => join(out, ...rel.split('/'));
-  return { track: abs(n.track), outliers: abs(n.outliers), geojson: abs(n.geojson), gpx: abs(n.gpx) };
+  return { track: abs(n.track), outliers: abs(n.outliers), geojson: abs(n.geojson), gpx: abs(n.gpx), points: abs(n.points) };
 }
 
 /**
@@ -83,6 +86,11 @@ export async function writeSessionOutputs(out: string, r: SessionResult, cfg: Hi
     await writeChunksAtomic(p.gpx, sessionGpxChunks(r, { decimals: cfg.output.geojsonDecimals }));
     written.push('gpx');
   } else await rm(p.gpx, { force: true }); // from an earlier run with output.gpx
+  // occupied points (fixes-only sessions: the IMU path has no joint posterior yet)
+  if (r.survey) {
+    await writeChunksAtomic(p.points, pointsCsvChunks(r));
+    written.push('points');
+  } else await rm(p.points, { force: true });
   const files: OutputFile[] = [];
   for (const k of written) files.push({ file: n[k], size: (await stat(p[k])).size });
   return files;
@@ -112,6 +120,8 @@ export async function runSessionTask(t: SessionTask): Promise<SessionOutcome> {
     const r = t.imuPath
       ? await processImuSession(series, t.imuPath, t.config, t.name, decisions)
       : processSession(series, t.config, t.name, decisions);
+    // the survey products are computed: the joint posterior's arrays can go before the writes
+    releasePosterior(r);
     const payload = t.withPayload ? reportPayload(r, { maxPoints: t.config.output.reportMaxPoints }) : undefined;
     const outputs = await writeSessionOutputs(t.out, r, t.config);
     const summary = okEntry(r, t.relPath, outputs.map((o) => o.file), round3((performance.now() - t0) / 1000));

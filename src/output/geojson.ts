@@ -11,6 +11,7 @@ import type { HindcastConfig } from '../config/schema.js';
 import { formatIsoUtc } from '../time/parse-time.js';
 import { STATUS, STATUS_NAMES, type SessionResult } from '../session/result.js';
 import { ByteChunks, chunksToString, POW10, utf8 } from './byte-chunks.js';
+import { occupationFeatures } from './geojson-occupations.js';
 
 type Position = number[];
 
@@ -201,6 +202,7 @@ export function sessionGeoJson(r: SessionResult, opt: GeoJsonOptions): object {
       },
     });
   }
+  features.push(...occupationFeatures(r, d));
   if (opt.points)
     for (let k = 0; k < r.N; k++) {
       const p = position(r.lonDeg[k]!, r.latDeg[k]!, r.heightM[k]!);
@@ -388,6 +390,10 @@ export function* sessionGeoJsonChunks(r: SessionResult, opt: GeoJsonOptions, chu
     out.text(JSON.stringify(o.detail));
     out.ascii('}}');
     if (out.full) yield out.take();
+  }
+  for (const f of occupationFeatures(r, d)) {
+    sep();
+    out.text(JSON.stringify(f));
   }
   // every epoch as a Point (--points)
   if (opt.points) {

@@ -8,6 +8,7 @@
 import type { InputWarning } from '../errors.js';
 import type { SessionResult } from '../session/result.js';
 import { CAUTION } from './caution.js';
+import { surveySummary } from './survey-summary.js';
 
 export interface SessionSummary {
   name: string;
@@ -18,6 +19,8 @@ export interface SessionSummary {
   outputs?: string[];
   metrics?: SessionResult['metrics'];
   info?: Record<string, unknown>;
+  /** Occupied points and measured quantities (output/survey-summary.ts). */
+  survey?: Record<string, unknown>;
   elapsedSec?: number;
 }
 
@@ -49,7 +52,7 @@ export interface BatchSummary {
 }
 
 export function okEntry(r: SessionResult, input: string, outputs: string[], elapsedSec: number): SessionSummary {
-  return { name: r.name, input, status: 'ok', warnings: r.warnings, outputs, metrics: r.metrics, info: r.info, elapsedSec };
+  return { name: r.name, input, status: 'ok', warnings: r.warnings, outputs, metrics: r.metrics, info: r.info, ...(r.survey ? { survey: surveySummary(r.survey) } : {}), elapsedSec };
 }
 
 export function buildSummary(

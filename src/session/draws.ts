@@ -29,8 +29,10 @@ export interface TrackDraws {
 
 /** A posterior summary of a scalar quantity from draws. */
 export interface Quantity {
-  /** Posterior mean. */
+  /** Posterior mean (measure); for the survey products the value on the smoothed track (see recentre). */
   estimate: number;
+  /** The draws' own mean, where the estimate is not it (survey products). */
+  drawMean?: number;
   sd: number;
   lo95: number;
   hi95: number;
@@ -91,6 +93,16 @@ export function summarize(values: Float64Array): Quantity {
   for (let i = 0; i < n; i++) ss += (values[i]! - m) ** 2;
   const s = Float64Array.from(values).sort();
   return { estimate: m, sd: n > 1 ? Math.sqrt(ss / (n - 1)) : 0, lo95: quantileSorted(s, 0.025), hi95: quantileSorted(s, 0.975), draws: n };
+}
+
+/**
+ * A quantity whose estimate is its value on the smoothed (posterior mean) track, with the draws'
+ * spread around their own mean carried over to it: sd as drawn, interval [est + q₂.₅ − m̄, est + q₉₇.₅ − m̄].
+ * For a length the draws' mean exceeds the length of the mean track (each draw wiggles about it and
+ * |·| is convex: Jensen's inequality), by more than the track's own length error on straight walks.
+ */
+export function recentre(q: Quantity, estimate: number): Quantity {
+  return { estimate, drawMean: q.estimate, sd: q.sd, lo95: estimate + q.lo95 - q.estimate, hi95: estimate + q.hi95 - q.estimate, draws: q.draws };
 }
 
 export function quantileSorted(s: Float64Array, p: number): number {

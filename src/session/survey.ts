@@ -11,7 +11,7 @@
 import { STATUS, type SessionResult } from './result.js';
 import { sampleBackward, type TrackPosterior } from './posterior.js';
 import { detectOccupations, type Occupation } from './occupations.js';
-import { summarize, type Quantity } from './draws.js';
+import { recentre, summarize, type Quantity } from './draws.js';
 import { expectedStepLength, stepErrorVariance } from './raw-length.js';
 
 export interface SurveyOptions {
@@ -19,6 +19,10 @@ export interface SurveyOptions {
   draws: number;
   seed: number;
   occupationMinSec: number;
+  /** Still-speed threshold (m/s); default STILL_SPEED_MPS. */
+  stillSpeedMps?: number;
+  /** Vertex spacing factor; default VERTEX_SD_FACTOR. */
+  vertexSdFactor?: number;
 }
 
 export interface LengthEntry {
@@ -67,16 +71,21 @@ export interface SurveyProducts {
   vertices: SurveyVertex[];
 }
 
-/** A track closes when its end lies within max(CLOSURE_MIN_M, CLOSURE_FRACTION × length) of its start. */
+/**
+ * A track closes when its end lies within max(CLOSURE_MIN_M, CLOSURE_FRACTION × length, the gap's
+ * 99% bound from the two ends' horizontal sd) of its start, and its length exceeds 4 × that tolerance.
+ */
 export const CLOSURE_MIN_M = 5;
 export const CLOSURE_FRACTION = 0.01;
+export const CLOSURE_CHI2 = 9.21;
 /**
  * Lengths are measured on a polyline of vertices, not on every epoch: the posterior's velocity
  * uncertainty makes each draw wiggle between neighbouring epochs, and a polyline through every
  * epoch of a draw is longer than the track (at 1 Hz walking with 2 m fixes, +40%: measured). The
  * vertices are the occupied points (each one vertex, its average position) and, where the track
  * moves, epochs at least VERTEX_SD_FACTOR × the session's median horizontal sd (and at least
- * VERTEX_MIN_M) apart along the smoothed track, plus each segment's ends.
+ * VERTEX_MIN_M) apart along the smoothed track, starting at each segment's first epoch (or its
+ * first occupied point, when that is within the spacing of it).
  */
 export const VERTEX_MIN_M = 5;
 export const VERTEX_SD_FACTOR = 4;
@@ -84,7 +93,7 @@ export const VERTEX_SD_FACTOR = 4;
 export const ALL_PAIRS_MAX = 20;
 
 export function surveyProducts(r: SessionResult, post: TrackPosterior, o: SurveyOptions): SurveyProducts {
-  const occ = detectOccupations(r, post, o.occupationMinSec);
+  const occ = detectOccupations(r, post, { minSec: o.occupationMinSec, speedMps: o.stillSpeedMps });
   const nSeg = post.segments.length;
   const D = o.draws;
   const threeD = post.nAx === 3;
@@ -92,8 +101,8 @@ export function surveyProducts(r: SessionResult, post: TrackPosterior, o: Survey
   const occAt = new Int32Array(r.N).fill(-1);
   occ.forEach((p, i) => occAt.fill(i, p.first, p.last + 1));
   // the vertices of the measured polyline (see surveyVertices); the draws' positions at each
-  const vx = surveyVertices(r, occ, post);
-  const spacing = vertexSpacing(r);
+  const spacing = vertexSpacing(r, o.vertexSdFactor);
+  const vx = surveyVertices(r, occ, post, spacing);
   const nV = vx.length;
   const vertexAt = new Int32Array(r.N).fill(-1);
   vx.forEach((v, i) => {
@@ -151,29 +160,54 @@ export function surveyProducts(r: SessionResult, post: TrackPosterior, o: Survey
     }
   }
 
+  // the same polyline on the smoothed track (vertex = the smoothed positions' average over its epochs)
+  const sH = new Float64Array(nSeg), s3 = new Float64Array(nSeg);
+  const sv = vx.map((v) => {
+    const m = [0, 0, 0];
+    for (let j = v.first; j <= v.last; j++) for (let a = 0; a < post.nAx; a++) m[a] += r.posEnu[a]![j]! / (v.last - v.first + 1);
+    return m;
+  });
+  for (let i = 1; i < nV; i++) {
+    if (vx[i]!.segment !== vx[i - 1]!.segment) continue;
+    const de = sv[i]![0]! - sv[i - 1]![0]!, dn = sv[i]![1]! - sv[i - 1]![1]!, du = sv[i]![2]! - sv[i - 1]![2]!;
+    sH[vx[i]!.segment] += Math.hypot(de, dn);
+    s3[vx[i]!.segment] += Math.hypot(de, dn, du);
+  }
   const lengths: LengthEntry[] = [];
   const totH = new Float64Array(D), tot3 = new Float64Array(D);
-  let rawTot = 0, excessTot = 0;
+  let rawTot = 0, excessTot = 0, sHTot = 0, s3Tot = 0;
   for (let si = 0; si < nSeg; si++) {
     for (let d = 0; d < D; d++) {
       totH[d] += lenH[si]![d]!;
       tot3[d] += len3[si]![d]!;
     }
+    sHTot += sH[si]!;
+    s3Tot += s3[si]!;
     const raw = rawPolyline(r, post, si);
     rawTot += raw.lengthM;
     excessTot += raw.expectedExcessM;
-    lengths.push({ segment: si, horizontalM: D > 0 ? summarize(lenH[si]!) : null, threeDM: D > 0 && threeD ? summarize(len3[si]!) : null, rawHorizontalM: raw.lengthM, rawExpectedExcessM: raw.expectedExcessM });
+    lengths.push({ segment: si, horizontalM: D > 0 ? recentre(summarize(lenH[si]!), sH[si]!) : null, threeDM: D > 0 && threeD ? recentre(summarize(len3[si]!), s3[si]!) : null, rawHorizontalM: raw.lengthM, rawExpectedExcessM: raw.expectedExcessM });
   }
-  lengths.push({ segment: -1, horizontalM: D > 0 ? summarize(totH) : null, threeDM: D > 0 && threeD ? summarize(tot3) : null, rawHorizontalM: rawTot, rawExpectedExcessM: excessTot });
+  lengths.push({ segment: -1, horizontalM: D > 0 ? recentre(summarize(totH), sHTot) : null, threeDM: D > 0 && threeD ? recentre(summarize(tot3), s3Tot) : null, rawHorizontalM: rawTot, rawExpectedExcessM: excessTot });
 
   // closure on the smoothed track
   const gap = r.N > 1 ? Math.hypot(r.posEnu[0][r.N - 1]! - r.posEnu[0][0]!, r.posEnu[1][r.N - 1]! - r.posEnu[1][0]!) : NaN;
   let smoothLen = 0;
   for (let j = 1; j < r.N; j++) if (r.segment[j] === r.segment[j - 1]) smoothLen += Math.hypot(r.posEnu[0][j]! - r.posEnu[0][j - 1]!, r.posEnu[1][j]! - r.posEnu[1][j - 1]!);
-  const tol = Math.max(CLOSURE_MIN_M, CLOSURE_FRACTION * smoothLen);
+  // the gap's own uncertainty: the two ends' horizontal variances (χ²₂ at 0.99 = 9.21)
+  const vEnds = r.N > 1 ? (r.sdEnu[0][0]! ** 2 + r.sdEnu[1][0]! ** 2 + r.sdEnu[0][r.N - 1]! ** 2 + r.sdEnu[1][r.N - 1]! ** 2) / 2 : 0;
+  const tol = Math.max(CLOSURE_MIN_M, CLOSURE_FRACTION * smoothLen, Math.sqrt(CLOSURE_CHI2 * vEnds));
   const closed = r.N > 3 && gap <= tol && smoothLen > 4 * tol;
   let areaM2: Quantity | null = null;
-  if (closed && D > 0) areaM2 = summarize(area2.map((v) => Math.abs(v) / 2));
+  if (closed && D > 0) {
+    // the smoothed polygon's area (shoelace, closing edge last → first)
+    let a2 = 0;
+    for (let j = 0; j < r.N; j++) {
+      const k = j + 1 < r.N ? j + 1 : 0;
+      a2 += r.posEnu[0][j]! * r.posEnu[1][k]! - r.posEnu[0][k]! * r.posEnu[1][j]!;
+    }
+    areaM2 = recentre(summarize(area2.map((v) => Math.abs(v) / 2)), Math.abs(a2) / 2);
+  }
 
   const distances: DistanceEntry[] = [];
   const pairs: Array<[number, number]> = [];
@@ -187,20 +221,21 @@ export function surveyProducts(r: SessionResult, post: TrackPosterior, o: Survey
         h[d] = Math.hypot(de, dn);
         if (threeD) t[d] = Math.hypot(de, dn, means[a]![2]![d]! - means[b]![2]![d]!);
       }
-      distances.push({ from: occ[a]!.id, to: occ[b]!.id, horizontalM: summarize(h), threeDM: threeD ? summarize(t) : null });
+      const pa = occ[a]!.posEnu, pb = occ[b]!.posEnu;
+      const eh = Math.hypot(pa[0] - pb[0], pa[1] - pb[1]), e3 = Math.hypot(pa[0] - pb[0], pa[1] - pb[1], pa[2] - pb[2]);
+      distances.push({ from: occ[a]!.id, to: occ[b]!.id, horizontalM: recentre(summarize(h), eh), threeDM: threeD ? recentre(summarize(t), e3) : null });
     }
   return { draws: D, seed: o.seed, occupationMinSec: o.occupationMinSec, occupations: occ, lengths, closed, closureGapM: gap, closureToleranceM: tol, areaM2, distances, vertexSpacingM: spacing, vertices: vx };
 }
 
 /** The spacing of the measured polyline's vertices for a result (see VERTEX_SD_FACTOR). */
-export function vertexSpacing(r: SessionResult): number {
+export function vertexSpacing(r: SessionResult, factor = VERTEX_SD_FACTOR): number {
   const sd = r.metrics?.medianSdHorizontalM;
-  return Math.max(VERTEX_MIN_M, VERTEX_SD_FACTOR * (Number.isFinite(sd) ? sd! : 0));
+  return Math.max(VERTEX_MIN_M, factor * (Number.isFinite(sd) ? sd! : 0));
 }
 
 /** The vertices of the measured polyline, in time order (see VERTEX_SD_FACTOR). */
-export function surveyVertices(r: SessionResult, occ: Occupation[], post: TrackPosterior): SurveyVertex[] {
-  const spacing = vertexSpacing(r);
+export function surveyVertices(r: SessionResult, occ: Occupation[], post: TrackPosterior, spacing = vertexSpacing(r)): SurveyVertex[] {
   const occAt = new Int32Array(r.N).fill(-1);
   occ.forEach((p, i) => occAt.fill(i, p.first, p.last + 1));
   const out: SurveyVertex[] = [];
@@ -213,6 +248,9 @@ export function surveyVertices(r: SessionResult, occ: Occupation[], post: TrackP
       if (oi >= 0) {
         if (oi !== lastOcc) {
           const p = occ[oi]!;
+          // the segment's first epoch within the spacing of its first occupied point: that point starts it
+          const prev = out[out.length - 1];
+          if (prev && prev.segment === si && prev.occupation < 0 && prev.first === j0 && Math.hypot(p.posEnu[0] - le, p.posEnu[1] - ln) < spacing) out.pop();
           out.push({ segment: si, first: p.first, last: p.last, occupation: oi });
           le = p.posEnu[0];
           ln = p.posEnu[1];
@@ -221,7 +259,9 @@ export function surveyVertices(r: SessionResult, occ: Occupation[], post: TrackP
         continue;
       }
       const e = r.posEnu[0][j]!, n = r.posEnu[1][j]!;
-      if (j === j0 || j === j1 || !(Math.hypot(e - le, n - ln) < spacing)) {
+      // the segment's last epoch only at the spacing too (an end within it of an occupied point, or
+      // of the last vertex, would add the difference of two noisy positions of one place)
+      if (j === j0 || !(Math.hypot(e - le, n - ln) < spacing)) {
         out.push({ segment: si, first: j, last: j, occupation: -1 });
         le = e;
         ln = n;
