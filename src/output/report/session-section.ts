@@ -7,6 +7,7 @@ import type { SessionSummary } from '../summary.js';
 import { FLAG_MARKS } from './chart-common.js';
 import { trackChart } from './chart-track.js';
 import { nisChart, residualChart, sdChart, speedChart } from './chart-time.js';
+import { surveySectionHtml } from './survey-section.js';
 import { REPORT_EXTENSIONS, type ExtensionChart, type ReportExtension } from './extensions.js';
 import { esc, duration, isoTime, num, sessionAnchor } from './html-text.js';
 import type { ReportPayload } from './payload.js';
@@ -137,6 +138,7 @@ export async function sessionSection(s: SessionSummary, p: ReportPayload | undef
 ${figures(p)}
 ${decimated}
 <div class="plots">${figs.join('\n')}</div>
+${surveySectionHtml(s.survey)}
 ${flaggedTable(p)}
 ${decisionsTable(p)}
 ${warningsList(p.warnings, p.warningCount)}
