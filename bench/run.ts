@@ -8,10 +8,11 @@ import { batchBench } from './batch.js';
 import { floorsBench } from './floors.js';
 import { imuBench } from './imu.js';
 import { pipelineBench } from './pipeline.js';
+import { surveyBench } from './survey.js';
 import type { BenchPart } from './part.js';
 
 // floors after the pipeline part: it prices the pipeline's 1M run (bench/results.json)
-const PARTS: BenchPart[] = [imuBench, pipelineBench, floorsBench, batchBench];
+const PARTS: BenchPart[] = [imuBench, pipelineBench, floorsBench, batchBench, surveyBench];
 
 let failed = 0;
 let targets = 0;

@@ -14,7 +14,7 @@ import type { LocalFrame } from '../geodesy/local-frame.js';
 import { covIndex, covStride, makeStepCache, stepMatrices, type FilterHistory, type SegmentData } from '../estimation/track-filter.js';
 import { backwardDraw, backwardGain, backwardOffset, choleskyPsd, gaussianDraw, makeBackwardScratch } from '../estimation/simulation-smoother.js';
 import { NumericalError } from '../errors.js';
-import { Rng } from '../simulate/rng.js';
+import { GaussianSource } from '../estimation/gaussian-rng.js';
 import type { SessionResult } from './result.js';
 
 export interface SegmentPosterior {
@@ -64,11 +64,11 @@ export function unpackCov(n: number, P: Float64Array, k: number, out: Float64Arr
  * Draw `nDraws` whole tracks from the posterior, seeded, and hand each epoch's positions to
  * `visit(j, segment, pos)` where pos[a][d] is the position of draw d on axis a (m, local frame).
  * Epochs are visited from the last to the first (the order of backward sampling); pos is reused.
- * The normals are taken in a fixed order (segment, epoch, axis, draw, state), so a seed gives the
- * same draws on every run.
+ * The normals (estimation/gaussian-rng.ts) are taken in a fixed order (segment, epoch, axis, draw,
+ * state), so a seed and a number of draws give the same draws on every run.
  */
 export function sampleBackward(post: TrackPosterior, nDraws: number, seed: number, visit: (j: number, seg: number, pos: Float64Array[]) => void): void {
-  const rng = new Rng(seed);
+  const rng = new GaussianSource(seed);
   const nAx = post.nAx;
   const pos = Array.from({ length: nAx }, () => new Float64Array(nDraws));
   for (let si = post.segments.length - 1; si >= 0; si--) {
@@ -83,6 +83,7 @@ export function sampleBackward(post: TrackPosterior, nDraws: number, seed: numbe
     const c = dims.map((n) => new Float64Array(n));
     const Lc = dims.map((n) => new Float64Array(n * n));
     const xi = new Float64Array(4);
+    const xiBuf = new Float64Array(nDraws * 4);
     const sc = dims.map((n) => makeBackwardScratch(n));
     const F = dims.map((n) => new Float64Array(n * n));
     const Q = dims.map((n) => new Float64Array(n * n));
@@ -105,13 +106,34 @@ export function sampleBackward(post: TrackPosterior, nDraws: number, seed: numbe
         if (reuse && k < N - 1) backwardOffset(n, F[a]!, G[0]!, f.x[a]!, k * n, c[a]!, sc[a]!.Fx);
         const g = reuse ? G[0]! : G[a]!, cc = c[a]!, L = reuse ? Lc[0]! : Lc[a]!;
         const out = cur[a]!, prev = nxt[a]!, p = pos[a]!;
-        for (let d = 0; d < nDraws; d++) {
-          for (let i = 0; i < n; i++) xi[i] = rng.normal();
-          // the last epoch: the filtered (= smoothed) marginal; before it, the backward conditional
-          if (k === N - 1) gaussianDraw(n, f.x[a]!, k * n, L, xi, out, d * n);
-          else backwardDraw(n, g, cc, L, prev, d * n, xi, out, d * n);
-          p[d] = out[d * n]!;
-        }
+        rng.fill(xiBuf, nDraws * n);
+        if (k === N - 1) {
+          // the last epoch: the filtered (= smoothed) marginal
+          for (let d = 0; d < nDraws; d++) {
+            for (let i = 0; i < n; i++) xi[i] = xiBuf[d * n + i]!;
+            gaussianDraw(n, f.x[a]!, k * n, L, xi, out, d * n);
+            p[d] = out[d * n]!;
+          }
+        } else if (n === 3) {
+          // backwardDraw written out for n = 3 (the common model: position, velocity, correlated error)
+          const g00 = g[0]!, g01 = g[1]!, g02 = g[2]!, g10 = g[3]!, g11 = g[4]!, g12 = g[5]!, g20 = g[6]!, g21 = g[7]!, g22 = g[8]!;
+          const c0 = cc[0]!, c1 = cc[1]!, c2 = cc[2]!;
+          const l00 = L[0]!, l10 = L[3]!, l11 = L[4]!, l20 = L[6]!, l21 = L[7]!, l22 = L[8]!;
+          for (let d = 0, o = 0; d < nDraws; d++, o += 3) {
+            const x0 = prev[o]!, x1 = prev[o + 1]!, x2 = prev[o + 2]!;
+            const e0 = xiBuf[o]!, e1 = xiBuf[o + 1]!, e2 = xiBuf[o + 2]!;
+            const y0 = c0 + g00 * x0 + g01 * x1 + g02 * x2 + l00 * e0;
+            out[o] = y0;
+            out[o + 1] = c1 + g10 * x0 + g11 * x1 + g12 * x2 + l10 * e0 + l11 * e1;
+            out[o + 2] = c2 + g20 * x0 + g21 * x1 + g22 * x2 + l20 * e0 + l21 * e1 + l22 * e2;
+            p[d] = y0;
+          }
+        } else
+          for (let d = 0; d < nDraws; d++) {
+            for (let i = 0; i < n; i++) xi[i] = xiBuf[d * n + i]!;
+            backwardDraw(n, g, cc, L, prev, d * n, xi, out, d * n);
+            p[d] = out[d * n]!;
+          }
       }
       visit(sp.epoch0 + k, si, pos);
       // the draws at k become the "next" ones of epoch k − 1
