@@ -89,6 +89,8 @@ export const CLOSURE_CHI2 = 9.21;
  */
 export const VERTEX_MIN_M = 5;
 export const VERTEX_SD_FACTOR = 4;
+/** Douglas–Peucker tolerance of the vertices, in the session's median horizontal sd (see simplifyVertices). */
+export const SIMPLIFY_SD_FACTOR = 2;
 /** Every pair of occupied points up to this many; beyond it, consecutive pairs only. */
 export const ALL_PAIRS_MAX = 20;
 
@@ -269,7 +271,54 @@ export function surveyVertices(r: SessionResult, occ: Occupation[], post: TrackP
       }
     }
   }
-  return out;
+  return simplifyVertices(r, out, occ, SIMPLIFY_SD_FACTOR * (spacing / VERTEX_SD_FACTOR));
+}
+
+/**
+ * Douglas–Peucker simplification (Douglas & Peucker, "Algorithms for the reduction of the number of
+ * points required to represent a digitized line or its caricature", The Canadian Cartographer 10(2),
+ * 1973) of the vertices between anchors (occupied points and each segment's first and last vertex,
+ * always kept): a vertex stays only where the smoothed track leaves the chord by more than tolM.
+ * On a straight walk the smoothed track's own small wiggles (its estimation error, slowly varying)
+ * otherwise lengthen it; a real turn leaves the chord by far more than the track's sd.
+ */
+export function simplifyVertices(r: SessionResult, vx: SurveyVertex[], occ: Occupation[], tolM: number): SurveyVertex[] {
+  if (!(tolM > 0) || vx.length < 3) return vx;
+  const pe = vx.map((v) => (v.occupation >= 0 ? occ[v.occupation]!.posEnu[0] : r.posEnu[0][v.first]!));
+  const pn = vx.map((v) => (v.occupation >= 0 ? occ[v.occupation]!.posEnu[1] : r.posEnu[1][v.first]!));
+  const keep = new Uint8Array(vx.length);
+  for (let i = 0; i < vx.length; i++) {
+    const v = vx[i]!;
+    if (v.occupation >= 0 || i === 0 || i === vx.length - 1 || vx[i - 1]!.segment !== v.segment || vx[i + 1]!.segment !== v.segment) keep[i] = 1;
+  }
+  // an explicit stack of [a, b] ranges between kept vertices
+  const stack: number[] = [];
+  let a = 0;
+  for (let b = 1; b < vx.length; b++) {
+    if (!keep[b]) continue;
+    if (b - a > 1 && vx[a]!.segment === vx[b]!.segment) stack.push(a, b);
+    a = b;
+  }
+  while (stack.length > 0) {
+    const hi = stack.pop()!, lo = stack.pop()!;
+    const dx = pe[hi]! - pe[lo]!, dy = pn[hi]! - pn[lo]!;
+    const L = Math.hypot(dx, dy);
+    let worst = -1, dmax = tolM;
+    for (let i = lo + 1; i < hi; i++) {
+      const ex = pe[i]! - pe[lo]!, ey = pn[i]! - pn[lo]!;
+      // distance from the chord (from the end point when the chord has no length)
+      const d = L > 0 ? Math.abs(ex * dy - ey * dx) / L : Math.hypot(ex, ey);
+      if (d > dmax) {
+        dmax = d;
+        worst = i;
+      }
+    }
+    if (worst < 0) continue;
+    keep[worst] = 1;
+    if (worst - lo > 1) stack.push(lo, worst);
+    if (hi - worst > 1) stack.push(worst, hi);
+  }
+  return vx.filter((_, i) => keep[i] === 1);
 }
 
 /**

@@ -191,7 +191,7 @@ function loopTruth(aM: number, bM: number, headingRad: number, dtSec = 0.05): Tr
 
 describe('survey products on closed loops (a rectangle walked round, pooled over seeds)', () => {
   const SEEDS = Array.from({ length: 24 }, (_, i) => 101 + i);
-  let inArea = 0, nArea = 0, areaErr = 0, areaSd = 0, closedCount = 0;
+  let inArea = 0, nArea = 0, areaErr = 0, areaSd = 0, closedCount = 0, inDist = 0, nDist = 0;
   const p = newPool();
   for (const seed of SEEDS) {
     const aM = 60 + ((seed * 37) % 60), bM = 40 + ((seed * 53) % 50), hd = (seed * 0.7) % (2 * Math.PI);
@@ -203,6 +203,23 @@ describe('survey products on closed loops (a rectangle walked round, pooled over
     scoreWalk(sc, r, p);
     const sv = r.survey!;
     if (sv.closed) closedCount++;
+    // distances between consecutive occupied points against the truth averaged over their epochs
+    const tm = sv.occupations.map((o) => {
+      const m = [0, 0];
+      for (let j = o.first; j <= o.last; j++) {
+        const t = sc.truthEnuAt(r.tSec[j]!);
+        m[0] += t[0] / (o.last - o.first + 1);
+        m[1] += t[1] / (o.last - o.first + 1);
+      }
+      return m;
+    });
+    for (const d of sv.distances) {
+      const a = Number(d.from.slice(1)) - 1, b = Number(d.to.slice(1)) - 1;
+      if (b !== a + 1) continue;
+      const truthD = Math.hypot(tm[a]![0]! - tm[b]![0]!, tm[a]![1]! - tm[b]![1]!);
+      nDist++;
+      if (truthD >= d.horizontalM.lo95 && truthD <= d.horizontalM.hi95) inDist++;
+    }
     if (!sv.areaM2) continue;
     // the truth polygon through the same epochs
     let a2 = 0;
@@ -219,7 +236,7 @@ describe('survey products on closed loops (a rectangle walked round, pooled over
   }
   console.log(
     `closed loops, ${SEEDS.length} seeds: closed ${closedCount}; area intervals ${inArea}/${nArea} (${(inArea / nArea).toFixed(3)}), mean error ${(areaErr / nArea).toFixed(1)} m², mean sd ${(areaSd / nArea).toFixed(1)} m²; ` +
-      `stops ${p.stops}, found ${p.found}; occupations ${p.occupations}, ellipse coverage ${(p.inEll / p.occupations).toFixed(3)}; length intervals ${p.inLen}/${p.nLen}, mean error ${(p.lenErr / p.nLen).toFixed(2)} m, mean sd ${(p.lenSd / p.nLen).toFixed(2)} m`,
+      `distances between consecutive points ${inDist}/${nDist} (${(inDist / nDist).toFixed(3)}); stops ${p.stops}, found ${p.found}; occupations ${p.occupations}, ellipse coverage ${(p.inEll / p.occupations).toFixed(3)}; length intervals ${p.inLen}/${p.nLen}, mean error ${(p.lenErr / p.nLen).toFixed(2)} m, mean sd ${(p.lenSd / p.nLen).toFixed(2)} m`,
   );
   it('every loop is found closed', () => {
     expect(closedCount).toBe(SEEDS.length);
