@@ -20,6 +20,7 @@ function q(x: Quantity | null): Record<string, number | null> | null {
 export function surveySummary(s: SurveyProducts): Record<string, unknown> {
   return {
     draws: s.draws,
+    requestedDraws: s.requestedDraws,
     seed: s.seed,
     occupationMinSec: s.occupationMinSec,
     vertexSpacingM: r3(s.vertexSpacingM),

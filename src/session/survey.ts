@@ -54,7 +54,9 @@ export interface DistanceEntry {
 }
 
 export interface SurveyProducts {
+  /** Draws used (fewer than requested on a long log: DRAW_EPOCH_BUDGET). */
   draws: number;
+  requestedDraws: number;
   seed: number;
   occupationMinSec: number;
   occupations: Occupation[];
@@ -94,10 +96,24 @@ export const SIMPLIFY_SD_FACTOR = 2;
 /** Every pair of occupied points up to this many; beyond it, consecutive pairs only. */
 export const ALL_PAIRS_MAX = 20;
 
+/**
+ * Most epoch-draws (epochs × draws) a session spends on its measured quantities: 200 draws up to
+ * 100,000 epochs (about 0.3 s of CPU per 10⁷ on the benchmark machine); a longer log gets fewer
+ * draws, and none when fewer than MIN_DRAWS would remain (95% quantiles of fewer draws say little).
+ */
+export const DRAW_EPOCH_BUDGET = 20_000_000;
+export const MIN_DRAWS = 50;
+
+/** The draws a session of N epochs gets for `requested` (see DRAW_EPOCH_BUDGET). */
+export function drawsFor(N: number, requested: number): number {
+  const d = Math.min(requested, Math.floor(DRAW_EPOCH_BUDGET / Math.max(N, 1)));
+  return d >= Math.min(MIN_DRAWS, requested) ? d : 0;
+}
+
 export function surveyProducts(r: SessionResult, post: TrackPosterior, o: SurveyOptions): SurveyProducts {
   const occ = detectOccupations(r, post, { minSec: o.occupationMinSec, speedMps: o.stillSpeedMps });
   const nSeg = post.segments.length;
-  const D = o.draws;
+  const D = drawsFor(r.N, o.draws);
   const threeD = post.nAx === 3;
   // occupation of each epoch (−1: none)
   const occAt = new Int32Array(r.N).fill(-1);
@@ -227,7 +243,7 @@ export function surveyProducts(r: SessionResult, post: TrackPosterior, o: Survey
       const eh = Math.hypot(pa[0] - pb[0], pa[1] - pb[1]), e3 = Math.hypot(pa[0] - pb[0], pa[1] - pb[1], pa[2] - pb[2]);
       distances.push({ from: occ[a]!.id, to: occ[b]!.id, horizontalM: recentre(summarize(h), eh), threeDM: threeD ? recentre(summarize(t), e3) : null });
     }
-  return { draws: D, seed: o.seed, occupationMinSec: o.occupationMinSec, occupations: occ, lengths, closed, closureGapM: gap, closureToleranceM: tol, areaM2, distances, vertexSpacingM: spacing, vertices: vx };
+  return { draws: D, requestedDraws: o.draws, seed: o.seed, occupationMinSec: o.occupationMinSec, occupations: occ, lengths, closed, closureGapM: gap, closureToleranceM: tol, areaM2, distances, vertexSpacingM: spacing, vertices: vx };
 }
 
 /** The spacing of the measured polyline's vertices for a result (see VERTEX_SD_FACTOR). */

@@ -35,6 +35,7 @@ export function surveySectionHtml(survey: Record<string, unknown> | undefined): 
     );
   }
   const draws = Number(survey.draws);
+  if (draws === 0 && Number(survey.requestedDraws) > 0) parts.push('<p class="note">No lengths or areas: the log is longer than the draw budget allows (docs/survey.md).</p>');
   if (draws > 0) {
     const rows = lengths
       .map((l) => `<tr><td>${l.segment === 'track' ? 'whole track' : `segment ${esc(String(l.segment))}`}</td><td>${qty(l.horizontalM)}</td><td>${qty(l.threeDM)}</td><td>${num(l.rawHorizontalM, 1)}</td><td>${num(l.rawExpectedExcessM, 1)}</td></tr>`)
