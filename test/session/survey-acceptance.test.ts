@@ -144,8 +144,8 @@ describe('survey products on the walking survey with stops (pooled over seeds)',
     expect(p.nLen).toBeGreaterThanOrEqual(20);
     expect(Math.abs(p.lenErr / p.nLen)).toBeLessThanOrEqual(p.lenSd / p.nLen);
   });
-  // measured shortfall: 21/24 (0.875) — the sd of a length is too small where the walk brakes and
-  // turns harder than the calibrated process noise allows (docs/survey.md)
+  // measured shortfall: 21/24 (0.875; at a true 0.95, 21 or fewer of 24 has probability 0.12), on
+  // model-following truth below 30/32 (docs/survey.md)
   it.fails('length 95% intervals hold the truth 0.90–0.99 pooled', () => {
     const c = p.inLen / p.nLen;
     expect(c).toBeGreaterThanOrEqual(0.9);
@@ -246,7 +246,7 @@ describe('survey products on closed loops (a rectangle walked round, pooled over
     expect(nArea).toBe(SEEDS.length);
     expect(Math.abs(areaErr / nArea)).toBeLessThanOrEqual(areaSd / nArea);
   });
-  // measured shortfall: 20/24 (0.83), the same cause as the walk lengths' (docs/survey.md)
+  // measured shortfall: 20/24 (0.83; at a true 0.95, 20 or fewer of 24 has probability 0.03)
   it.fails('area 95% intervals hold the true area 0.90–0.99 pooled', () => {
     const c = inArea / nArea;
     expect(c).toBeGreaterThanOrEqual(0.9);
