@@ -85,3 +85,28 @@ describe('draws from the joint smoothing posterior of a walking log', () => {
     expect(() => sampleTracks(r2, 2, 1)).toThrow(/no joint posterior/);
   });
 });
+
+describe('draws under the constant-acceleration model (4 states per axis: the general backward step)', () => {
+  const cfgCa = loadConfig({ overrides: { model: { motion: 'ca' } } });
+  const scD = simulate(defaultSpec('drone', 4, { durationSec: 120 }));
+  const rc = processSession(readFixCsv(scenarioCsv(scD), 'drone-4.csv', cfgCa), cfgCa, 'drone-4');
+  const Mc = 600;
+  const tdc = sampleTracks(rc, Mc, 5);
+  it.each([0, 1, 2])('axis %d: per-epoch variance within 3 standard errors of the smoother’s, at 5 epochs', (a) => {
+    for (const j of [0, 101, 250, 433, rc.N - 1]) {
+      let m = 0, v = 0;
+      for (const d of tdc.draws) m += d.posEnu[a]![j]! / Mc;
+      for (const d of tdc.draws) v += (d.posEnu[a]![j]! - m) ** 2 / (Mc - 1);
+      const P = rc.sdEnu[a]![j]! ** 2;
+      expect(Math.abs(v - P)).toBeLessThan(3 * P * Math.sqrt(2 / (Mc - 1)));
+    }
+  });
+  it('survey products exist for the drone log (occupations while hovering, lengths with intervals)', () => {
+    const sv = rc.survey!;
+    expect(sv.draws).toBe(200);
+    const total = sv.lengths.at(-1)!.horizontalM!;
+    expect(total.sd).toBeGreaterThan(0);
+    expect(total.lo95).toBeLessThanOrEqual(total.estimate);
+    expect(total.hi95).toBeGreaterThanOrEqual(total.estimate);
+  });
+});
