@@ -63,3 +63,30 @@ describe.skipIf(SKIP_SYSTEM_TOOLS)('GDAL reads the occupation Points', () => {
     expect(run('ogrinfo', ['-ro', '-al', '-so', path])).toMatch(new RegExp(`Feature Count: ${n}\\b`));
   });
 });
+
+describe('a log without heights', () => {
+  test('occupied points without height or sd up; GeoJSON Points with two coordinates; lengths without 3D', async () => {
+    const { loadConfig } = await import('../../src/config/load.js');
+    const { readFixCsv } = await import('../../src/input/csv-fixes.js');
+    const { processSession } = await import('../../src/session/process-session.js');
+    const { defaultSpec, scenarioCsv, simulate } = await import('../../src/simulate/scenario.js');
+    const cfg = loadConfig();
+    const csv = scenarioCsv(simulate(defaultSpec('walk', 2, { durationSec: 400 })), { hdop: false })
+      .split('\n')
+      .map((l) => l.split(',').slice(0, 3).join(','))
+      .join('\n');
+    const r2 = processSession(readFixCsv(csv, 'flat.csv', cfg), cfg, 'flat');
+    expect(r2.hasHeight).toBe(false);
+    const occ = r2.survey!.occupations;
+    expect(occ.length).toBeGreaterThan(0);
+    expect(Number.isNaN(occ[0]!.heightM)).toBe(true);
+    const row = pointsCsv(r2).split('\n')[1]!.split(',');
+    expect(row[POINT_COLUMNS.indexOf('height')]).toBe('');
+    expect(row[POINT_COLUMNS.indexOf('sd_up_m')]).toBe('');
+    const fc = JSON.parse(sessionGeoJsonText(r2, { decimals: 7 })) as { features: Feature[] };
+    expect(fc.features.find((f) => f.properties.kind === 'occupation')!.geometry.coordinates).toHaveLength(2);
+    const total = r2.survey!.lengths.at(-1)!;
+    expect(total.threeDM).toBeNull();
+    expect(total.horizontalM!.sd).toBeGreaterThan(0);
+  });
+});
