@@ -1,6 +1,7 @@
 /**
  * Occupied points: the periods where the receiver stood still, and the posterior of the position it
- * stood on. Still epochs are those whose smoothed horizontal speed is below STILL_SPEED_MPS; a run of
+ * stood on. Still epochs are those whose smoothed horizontal speed, and vertical speed where there
+ * are heights, are below STILL_SPEED_MPS; a run of
  * them within a segment lasting at least `minSec` and holding at least MIN_FIXES kept fixes is an
  * occupation. Its position is the time average of the smoothed positions over the run, and its
  * covariance is that average's exact posterior covariance (session/posterior.ts,
@@ -83,7 +84,8 @@ export function stillRuns(r: SessionResult, o: StillOptions): Array<[number, num
     a = -1;
   };
   for (let j = 0; j < r.N; j++) {
-    const still = Math.hypot(r.velEnu[0][j]!, r.velEnu[1][j]!) < vStill;
+    // still horizontally and, with heights, vertically too (a hovering drone that climbs is not standing)
+    const still = Math.hypot(r.velEnu[0][j]!, r.velEnu[1][j]!) < vStill && (!r.hasHeight || Math.abs(r.velEnu[2][j]!) < vStill);
     if (a >= 0 && (!still || r.segment[j] !== r.segment[a])) close(j - 1);
     if (still && a < 0) a = j;
   }
