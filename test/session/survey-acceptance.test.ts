@@ -307,3 +307,28 @@ describe('lengths on logs whose truth follows the model (pooled over seeds)', ()
     expect(Math.abs(err / n)).toBeLessThanOrEqual(sd / n);
   });
 });
+
+/** Vehicles (stop-and-go in a street grid) and drones (climb, lines, descent): no occupation while moving. */
+describe('no occupation while the platform moves (vehicle and drone logs)', () => {
+  let occupations = 0, moving = 0;
+  for (const [kind, seed] of [['vehicle', 1], ['vehicle', 2], ['vehicle', 3], ['drone', 1], ['drone', 2], ['drone', 3]] as const) {
+    const sc = simulate(defaultSpec(kind, seed));
+    const r = run(sc);
+    const t0 = sc.spec.startUnixSec;
+    for (const o of r.survey!.occupations) {
+      occupations++;
+      let vmax = 0;
+      for (let j = o.first; j <= o.last; j++) {
+        const p = [0, 0, 0], q = [0, 0, 0];
+        truthAt(sc.truth, r.tSec[j]! - t0 - 0.5, p);
+        truthAt(sc.truth, r.tSec[j]! - t0 + 0.5, q);
+        vmax = Math.max(vmax, Math.hypot(q[0]! - p[0]!, q[1]! - p[1]!, q[2]! - p[2]!));
+      }
+      if (vmax >= 1) moving++;
+    }
+  }
+  console.log(`vehicle and drone, 3 seeds each: occupations ${occupations}, while the truth moves ≥ 1 m/s (3D) ${moving}`);
+  it('reports none while the truth moves at 1 m/s or faster (3D)', () => {
+    expect(moving).toBe(0);
+  });
+});
