@@ -21,6 +21,8 @@ export interface SurveyOptions {
   occupationMinSec: number;
   /** Still-speed threshold (m/s); default STILL_SPEED_MPS. */
   stillSpeedMps?: number;
+  /** Displacement window of the still test (s); default none. */
+  stillWindowSec?: number;
   /** Vertex spacing factor; default VERTEX_SD_FACTOR. */
   vertexSdFactor?: number;
 }
@@ -111,7 +113,7 @@ export function drawsFor(N: number, requested: number): number {
 }
 
 export function surveyProducts(r: SessionResult, post: TrackPosterior, o: SurveyOptions): SurveyProducts {
-  const occ = detectOccupations(r, post, { minSec: o.occupationMinSec, speedMps: o.stillSpeedMps });
+  const occ = detectOccupations(r, post, { minSec: o.occupationMinSec, speedMps: o.stillSpeedMps, windowSec: o.stillWindowSec });
   const nSeg = post.segments.length;
   const D = drawsFor(r.N, o.draws);
   const threeD = post.nAx === 3;
