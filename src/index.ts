@@ -11,6 +11,7 @@ export { processSession } from './session/process-session.js';
 export { processImuSession } from './session/imu-session.js';
 export type { SessionResult, OutlierRecord, SessionMetrics } from './session/result.js';
 export { sampleTracks, measure, type DrawnTrack, type TrackDraws, type Quantity } from './session/draws.js';
+export { releasePosterior } from './session/posterior.js';
 export type { SurveyProducts, LengthEntry, DistanceEntry, SurveyVertex } from './session/survey.js';
 export type { Occupation } from './session/occupations.js';
 export { pointsCsv } from './output/points-csv.js';

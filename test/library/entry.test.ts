@@ -7,7 +7,7 @@ import { defaultSpec, scenarioCsv, simulate } from '../../src/simulate/scenario.
 
 describe('library entry point', () => {
   test('exports the pipeline pieces a caller needs', () => {
-    for (const name of ['loadConfig', 'readFixLog', 'readFixBytes', 'readFixCsv', 'processSession', 'processImuSession', 'runBatch', 'joinShards', 'trackCsv', 'outliersCsv', 'sessionGeoJson', 'sessionGpx', 'readDecisions'])
+    for (const name of ['loadConfig', 'readFixLog', 'readFixBytes', 'readFixCsv', 'processSession', 'processImuSession', 'runBatch', 'joinShards', 'trackCsv', 'outliersCsv', 'sessionGeoJson', 'sessionGpx', 'readDecisions', 'sampleTracks', 'measure', 'releasePosterior', 'pointsCsv'])
       expect(typeof (hindcast as Record<string, unknown>)[name], name).toBe('function');
     expect(hindcast.CAUTION).toMatch(/not for navigation or safety-of-life use/);
   });
