@@ -22,6 +22,8 @@ import { attachDecisionNotes } from '../session/products.js';
 import { GEOJSON_LAYERS, layerChunks, layersFor } from '../output/geojson-layers.js';
 import { geoJsonOptions, sessionGeoJsonChunks } from '../output/geojson.js';
 import { sessionGpxChunks } from '../output/gpx.js';
+import { pointsCsvChunks } from '../output/points-csv.js';
+import { releasePosterior } from '../session/posterior.js';
 import { reportPayload } from '../output/report/payload.js';
 import { okEntry, type SessionSummary } from '../output/summary.js';
 import { commitTemporaries, writeChunksToTemporary } from './atomic-write.js';
@@ -59,16 +61,18 @@ export interface SessionFiles {
   /** One geometry type a file (geojson-layers.ts). */
   trackLayer: string;
   flagsLayer: string;
+  occupationsLayer: string;
   epochsLayer: string;
   gpx: string;
+  points: string;
 }
 
 /** Every output a session may have (the GPX only with output.gpx), relative to the output folder ("/"-separated). */
 export function outputNames(name: string): SessionFiles {
   return {
     track: `${name}.track.csv`, outliers: `${name}.outliers.csv`, geojson: `${name}.geojson`,
-    trackLayer: `${name}.track.geojson`, flagsLayer: `${name}.flags.geojson`, epochsLayer: `${name}.epochs.geojson`,
-    gpx: `${name}.gpx`,
+    trackLayer: `${name}.track.geojson`, flagsLayer: `${name}.flags.geojson`, occupationsLayer: `${name}.occupations.geojson`, epochsLayer: `${name}.epochs.geojson`,
+    gpx: `${name}.gpx`, points: `${name}.points.csv`,
   };
 }
 
@@ -78,8 +82,8 @@ export function outputPaths(out: string, name: string): SessionFiles {
   const abs = (rel: string): string => join(out, ...rel.split('/'));
   return {
     track: abs(n.track), outliers: abs(n.outliers), geojson: abs(n.geojson),
-    trackLayer: abs(n.trackLayer), flagsLayer: abs(n.flagsLayer), epochsLayer: abs(n.epochsLayer),
-    gpx: abs(n.gpx),
+    trackLayer: abs(n.trackLayer), flagsLayer: abs(n.flagsLayer), occupationsLayer: abs(n.occupationsLayer), epochsLayer: abs(n.epochsLayer),
+    gpx: abs(n.gpx), points: abs(n.points),
   };
 }
 
@@ -93,18 +97,22 @@ export async function writeSessionOutputs(out: string, r: SessionResult, cfg: Hi
   const n = outputNames(r.name);
   const p = outputPaths(out, r.name);
   const written: Array<keyof SessionFiles> = ['track', 'outliers', 'geojson'];
-  const layerKey = { track: 'trackLayer', flags: 'flagsLayer', epochs: 'epochsLayer' } as const;
-  const layers = layersFor(cfg);
+  const layerKey = { track: 'trackLayer', flags: 'flagsLayer', occupations: 'occupationsLayer', epochs: 'epochsLayer' } as const;
+  const layers = layersFor(cfg, (r.survey?.occupations.length ?? 0) > 0);
   const absent: Array<keyof SessionFiles> = [];
   for (const l of GEOJSON_LAYERS) (layers.includes(l) ? written : absent).push(layerKey[l.layer]);
   if (cfg.output.gpx) written.push('gpx');
   else absent.push('gpx');
+  // occupied points (fixes-only sessions: the IMU path has no joint posterior yet)
+  if (r.survey) written.push('points');
+  else absent.push('points');
   const chunksOf = (k: keyof SessionFiles) => {
     if (k === 'track') return trackCsvChunks(r);
     if (k === 'outliers') return outliersCsvChunks(r);
     if (k === 'geojson') return sessionGeoJsonChunks(r, geoJsonOptions(cfg));
     if (k === 'gpx') return sessionGpxChunks(r, { decimals: cfg.output.geojsonDecimals });
-    return layerChunks(r, cfg, k === 'trackLayer' ? 'track' : k === 'flagsLayer' ? 'flags' : 'epochs');
+    if (k === 'points') return pointsCsvChunks(r);
+    return layerChunks(r, cfg, k === 'trackLayer' ? 'track' : k === 'flagsLayer' ? 'flags' : k === 'occupationsLayer' ? 'occupations' : 'epochs');
   };
   // every output is staged under a temporary name first and all are renamed together, so a failure
   // while writing leaves the earlier run's files untouched
@@ -161,6 +169,8 @@ export async function runSessionTask(t: SessionTask): Promise<SessionOutcome> {
       ? await processImuSession(series, t.imuPath, t.config, t.name, decisions)
       : processSession(series, t.config, t.name, decisions);
     if (t.decisionsPath && decisions) attachDecisionNotes(r, parseDecisionNotes(await readFile(t.decisionsPath, 'utf8'), series));
+    // the survey products are computed: the joint posterior's arrays can go before the writes
+    releasePosterior(r);
     const payload = t.withPayload ? reportPayload(r, { maxPoints: t.config.output.reportMaxPoints }) : undefined;
     const outputs = await writeSessionOutputs(t.out, r, t.config);
     const summary = okEntry(r, t.relPath, outputs.map((o) => o.file), round3((performance.now() - t0) / 1000));

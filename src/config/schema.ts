@@ -177,9 +177,15 @@ export const configSchema = z
         report: z.boolean().default(true),
         /** Most epochs per session drawn in the report's plots; flagged fixes are always drawn on top of this. */
         reportMaxPoints: z.number().int().min(200).max(200000).default(2000),
+        /** Shortest stand-still (s) reported as an occupied point (<stem>.points.csv). */
+        occupationMinSec: positive.default(15),
+        /** Whole tracks drawn from the smoothing posterior for lengths, areas and distances with uncertainty (0: none). */
+        surveyDraws: z.number().int().min(0).max(100000).default(200),
+        /** Seed of those draws (the same seed, the same figures). */
+        surveySeed: z.number().int().min(0).default(1),
       })
       .strict()
-      .default({ geojsonDecimals: 7, points: false, gpx: false, report: true, reportMaxPoints: 2000 }),
+      .default({ geojsonDecimals: 7, points: false, gpx: false, report: true, reportMaxPoints: 2000, occupationMinSec: 15, surveyDraws: 200, surveySeed: 1 }),
     imu: z
       .object({
         /** Unit of the accelerometer columns ax, ay, az: m/s² or standard gravities (9.80665 m/s²). */

@@ -3,8 +3,9 @@
  * collection into sub-layers) and for shapefiles (one geometry type a file): `<stem>.track.geojson`
  * (the smoothed track, a LineString per segment; MultiLineStrings throughout when a segment
  * crosses the antimeridian), `<stem>.flags.geojson` (the flagged fixes as Points, with their id and
- * deciding test) and, with output.points, `<stem>.epochs.geojson` (every epoch as a Point with its
- * sd and 95% ellipse). `<stem>.geojson` keeps every feature in one collection. A further layer
+ * deciding test), `<stem>.occupations.geojson` where the session has occupied points (Points with
+ * `"kind": "occupation"`, session/occupations.ts) and, with output.points, `<stem>.epochs.geojson`
+ * (every epoch as a Point with its sd and 95% ellipse). `<stem>.geojson` keeps every feature in one collection. A further layer
  * (another kind of Point) is one more entry here and a filter in geojson.ts.
  */
 import type { HindcastConfig } from '../config/schema.js';
@@ -22,12 +23,13 @@ export interface GeoJsonLayerFile {
 export const GEOJSON_LAYERS: readonly GeoJsonLayerFile[] = [
   { layer: 'track', suffix: '.track.geojson', geometry: 'LineString' },
   { layer: 'flags', suffix: '.flags.geojson', geometry: 'Point' },
+  { layer: 'occupations', suffix: '.occupations.geojson', geometry: 'Point' },
   { layer: 'epochs', suffix: '.epochs.geojson', geometry: 'Point' },
 ];
 
-/** The layers a configuration writes (epochs only with output.points). */
-export function layersFor(cfg: HindcastConfig): GeoJsonLayerFile[] {
-  return GEOJSON_LAYERS.filter((l) => l.layer !== 'epochs' || cfg.output.points);
+/** The layers a session writes (epochs only with output.points, occupations only where there are some). */
+export function layersFor(cfg: HindcastConfig, hasOccupations = true): GeoJsonLayerFile[] {
+  return GEOJSON_LAYERS.filter((l) => (l.layer !== 'epochs' || cfg.output.points) && (l.layer !== 'occupations' || hasOccupations));
 }
 
 /** One layer of a session as UTF-8 chunks (geojson.ts, `only`). */

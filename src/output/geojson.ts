@@ -11,6 +11,7 @@ import type { HindcastConfig } from '../config/schema.js';
 import { formatIsoUtc } from '../time/parse-time.js';
 import { STATUS, STATUS_NAMES, type SessionResult } from '../session/result.js';
 import { ByteChunks, chunksToString, POW10, utf8 } from './byte-chunks.js';
+import { occupationFeatures } from './geojson-occupations.js';
 
 type Position = number[];
 
@@ -104,7 +105,7 @@ export function longitudeExtent(lons: ArrayLike<number>): [number, number] | nul
  * segments only (every one a LineString, or every one a MultiLineString when one crosses the
  * antimeridian), the flagged fixes only (Points), or the epochs only (Points).
  */
-export type GeoJsonLayer = 'track' | 'flags' | 'epochs';
+export type GeoJsonLayer = 'track' | 'flags' | 'occupations' | 'epochs';
 
 export interface GeoJsonOptions {
   /** Decimal places of degrees (7 ≈ 1 cm, 6 ≈ 10 cm). */
@@ -145,6 +146,7 @@ export function sessionGeoJson(r: SessionResult, opt: GeoJsonOptions): object {
   const withTrack = !opt.only || opt.only === 'track';
   const withFlags = !opt.only || opt.only === 'flags';
   const withEpochs = opt.only ? opt.only === 'epochs' : !!opt.points;
+  const withOccupations = !opt.only || opt.only === 'occupations';
   let j = 0;
   const segments: Array<{ geometry: { type: string; coordinates: unknown }; properties: object }> = [];
   for (let s = 0; s < nSeg && withTrack; s++) {
@@ -222,6 +224,13 @@ export function sessionGeoJson(r: SessionResult, opt: GeoJsonOptions): object {
       },
     });
   }
+  if (withOccupations) features.push(...occupationFeatures(r, d));
+  // the occupations layer alone takes the track's box (an occupied point is an average of track epochs)
+  if (opt.only === 'occupations')
+    for (let k = 0; k < r.N; k++) {
+      const p = position(r.lonDeg[k]!, r.latDeg[k]!, r.heightM[k]!);
+      if (p) extend(p);
+    }
   if (withEpochs)
     for (let k = 0; k < r.N; k++) {
       const p = position(r.lonDeg[k]!, r.latDeg[k]!, r.heightM[k]!);
@@ -269,6 +278,7 @@ export function* sessionGeoJsonChunks(r: SessionResult, opt: GeoJsonOptions, chu
   const withTrack = !opt.only || opt.only === 'track';
   const withFlags = !opt.only || opt.only === 'flags';
   const withEpochs = opt.only ? opt.only === 'epochs' : !!opt.points;
+  const withOccupations = !opt.only || opt.only === 'occupations';
   // pass 1: the bbox over the track's positions and the mapped flagged fixes (as sessionGeoJson)
   const mapped = withFlags ? r.outliers.filter((o) => o.reason !== 'invalid' && valid(o.lonDeg, o.latDeg)) : [];
   const lons = new Float64Array(N + mapped.length);
@@ -287,7 +297,8 @@ export function* sessionGeoJsonChunks(r: SessionResult, opt: GeoJsonOptions, chu
       if (z > zMax) zMax = z;
     }
   };
-  if (withTrack || withEpochs) for (let j = 0; j < N; j++) if (valid(lonDeg[j]!, latDeg[j]!)) extend(lonDeg[j]!, latDeg[j]!, heightM[j]!);
+  // (an occupied point is an average of track epochs, so the occupations layer takes the track's box too)
+  if (withTrack || withEpochs || withOccupations) for (let j = 0; j < N; j++) if (valid(lonDeg[j]!, latDeg[j]!)) extend(lonDeg[j]!, latDeg[j]!, heightM[j]!);
   for (const o of mapped) extend(o.lonDeg, o.latDeg, o.heightM);
   // the track layer alone holds one geometry type: all MultiLineStrings when one segment crosses the antimeridian
   let multi = false;
@@ -431,6 +442,10 @@ export function* sessionGeoJsonChunks(r: SessionResult, opt: GeoJsonOptions, chu
     out.text(JSON.stringify(o.detail));
     out.ascii('}}');
     if (out.full) yield out.take();
+  }
+  for (const f of withOccupations ? occupationFeatures(r, d) : []) {
+    sep();
+    out.text(JSON.stringify(f));
   }
   // every epoch as a Point (--points)
   if (withEpochs) {

@@ -8,6 +8,7 @@
 import type { InputWarning } from '../errors.js';
 import type { SessionResult } from '../session/result.js';
 import { CAUTION } from './caution.js';
+import { surveySummary } from './survey-summary.js';
 
 export interface SessionSummary {
   name: string;
@@ -20,6 +21,8 @@ export interface SessionSummary {
   info?: Record<string, unknown>;
   /** The session's quality verdict and the motion-model check in short (details in info.verdict, info.adequacy). */
   quality?: SessionQuality;
+  /** Occupied points and measured quantities (output/survey-summary.ts). */
+  survey?: Record<string, unknown>;
   elapsedSec?: number;
   /** Failed this run; the outputs of an earlier run (staleOutputs) are kept but no longer match the inputs or settings. */
   stale?: boolean;
@@ -70,7 +73,7 @@ export interface BatchSummary {
 
 export function okEntry(r: SessionResult, input: string, outputs: string[], elapsedSec: number): SessionSummary {
   const quality = sessionQuality(r.info);
-  return { name: r.name, input, status: 'ok', warnings: r.warnings, outputs, metrics: r.metrics, info: r.info, ...(quality ? { quality } : {}), elapsedSec };
+  return { name: r.name, input, status: 'ok', warnings: r.warnings, outputs, metrics: r.metrics, info: r.info, ...(quality ? { quality } : {}), ...(r.survey ? { survey: surveySummary(r.survey) } : {}), elapsedSec };
 }
 
 /** A failed entry whose earlier outputs were kept in place. */

@@ -22,6 +22,8 @@ import { selectKth } from '../estimation/select.js';
 import { applyAdequacyCheck } from './adequacy.js';
 import { sessionVerdict, widenToResidualScatter } from './verdict.js';
 import { localScaleOptions, reviewWithLocalScale, scaleVariances } from './local-noise-scale.js';
+import { attachPosterior, posteriorOf } from './posterior.js';
+import { surveyProducts } from './survey.js';
 
 /** Validity of each fix before filtering: finite, in range, not the (0, 0) "null island" placeholder. */
 export function validFixes(s: FixSeries): { valid: Uint8Array; why: string[] } {
@@ -338,6 +340,12 @@ export function processSession(series: FixSeries, cfg: HindcastConfig, name: str
   r.info.calibration = info;
   if (adequacy.check) r.info.adequacy = adequacy.check;
   r.info.verdict = verdict;
+  const post = posteriorOf(r);
+  if (post) {
+    if (tm) t0 = performance.now();
+    r.survey = surveyProducts(r, post, { draws: cfg.output.surveyDraws, seed: cfg.output.surveySeed, occupationMinSec: cfg.output.occupationMinSec });
+    if (tm) tm.products += performance.now() - t0;
+  }
   return r;
 }
 
@@ -396,7 +404,7 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
   const opt = filterOptions(cfg, p);
   const ro = reviewOptions(cfg, ps.intervalSec);
   const nAx = models.length;
-  type SegOut = { data: SegmentData; fix: Int32Array; x: Float64Array[]; P: Float64Array[]; kept: Uint8Array; gateRejected: Uint8Array; why: DecisionLog; T: Float64Array; thr: Float64Array; reacq: number };
+  type SegOut = { data: SegmentData; fix: Int32Array; x: Float64Array[]; P: Float64Array[]; kept: Uint8Array; gateRejected: Uint8Array; why: DecisionLog; T: Float64Array; thr: Float64Array; reacq: number; rev: ReviewOutcome };
   const segOuts: SegOut[] = [];
   ps.segments.forEach((seg, si) => {
     const plan = plans?.[si];
@@ -419,7 +427,7 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
       rev = reviewSegment(models, data, offered, opt, ro, plan?.decisions, tm);
     }
     const h = rev.history;
-    segOuts.push({ data, fix, x: h.x, P: h.P, kept: rev.kept, gateRejected: rev.gateRejected, why: rev.why, T: rev.T, thr: rev.threshold, reacq: h.reacquired.length });
+    segOuts.push({ data, fix, x: h.x, P: h.P, kept: rev.kept, gateRejected: rev.gateRejected, why: rev.why, T: rev.T, thr: rev.threshold, reacq: h.reacquired.length, rev });
   });
   const tProducts = tm ? performance.now() : 0;
   const N = segOuts.reduce((a, o) => a + o.data.N, 0);
@@ -496,6 +504,17 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
     // the zone the log's local times were read in (the report shows its times in it as well as in UTC)
     ...(cfg.input.timeZone ? { timeZone: cfg.input.timeZone } : {}),
   };
+  // the joint posterior (filtered and smoothed moments per segment) beside the result, for the
+  // survey products and the library's draws (session/posterior.ts)
+  let e0 = 0;
+  attachPosterior(res, {
+    segments: segOuts.map((o) => {
+      const sp = { models, data: o.rev.data, filtered: o.rev.filtered, smoothed: o.rev.history, qScale: opt.qScale, epoch0: e0 };
+      e0 += o.data.N;
+      return sp;
+    }),
+    N, nAx, frame: ps.frame, heightRefM: ps.heightRefM, hasHeight: ps.hasHeight,
+  });
   if (tm) tm.products += performance.now() - tProducts;
   return res;
 }

@@ -4,6 +4,7 @@
  */
 import type { InputWarning } from '../errors.js';
 import type { DecidingTest } from './decision-log.js';
+import type { SurveyProducts } from './survey.js';
 
 export const STATUS = { kept: 0, outlier: 1, bridged: 2, userKept: 3, userRejected: 4 } as const;
 export const STATUS_NAMES = ['kept', 'outlier', 'bridged', 'user-kept', 'user-rejected'] as const;
@@ -123,4 +124,6 @@ export interface SessionResult {
   warnings: InputWarning[];
   /** Facts about the processing (frame, model parameters used, …) for summary.json. */
   info: Record<string, unknown>;
+  /** Occupied points and measured quantities with uncertainty (fixes-only sessions; session/survey.ts). */
+  survey?: SurveyProducts;
 }

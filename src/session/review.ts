@@ -29,6 +29,8 @@ export const RERUN_TOL = 1e-6;
 
 export interface ReviewOutcome {
   history: FilterHistory;
+  /** The filtered history behind `history` (its forward moments; read by the simulation smoother). */
+  filtered: FilterHistory;
   /** Data with the final decisions in `use` (2 kept, 0 rejected or no fix). */
   data: SegmentData;
   /** Final decision per epoch: 1 kept, 0 not used. */
@@ -224,7 +226,7 @@ export function reviewSegment(
   for (let k = 0; k < N; k++) work.use[k] = offered[k] === 0 ? 0 : kept[k] ? 2 : 0;
   settleDecisions(N, offered, kept, T, dof, threshold, why, th.readmit);
   if (tm) tm.review += performance.now() - tStart - tKernel;
-  return { history: h!, data: work, kept, gateRejected, why, T, dof, threshold, passes, converged };
+  return { history: h!, filtered: hf!, data: work, kept, gateRejected, why, T, dof, threshold, passes, converged };
 }
 
 /**

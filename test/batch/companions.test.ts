@@ -57,7 +57,7 @@ describe('companion files', () => {
     await writeSessions(input, 1);
     const out = join(root, 'out');
     const r = await runBatch({ input, out, config: loadConfig({ overrides: { output: { report: false, gpx: true } } }) });
-    expect(r.summary.sessions[0]!.outputs).toEqual(['log00.track.csv', 'log00.outliers.csv', 'log00.geojson', 'log00.track.geojson', 'log00.flags.geojson', 'log00.gpx']);
+    expect(r.summary.sessions[0]!.outputs).toEqual(['log00.track.csv', 'log00.outliers.csv', 'log00.geojson', 'log00.track.geojson', 'log00.flags.geojson', 'log00.gpx', 'log00.points.csv']);
     expect(await readFile(join(out, 'log00.gpx'), 'utf8')).toMatch(/^<\?xml/);
   });
 });

@@ -10,6 +10,7 @@ import type { SessionSummary } from '../summary.js';
 import { FLAG_MARKS } from './chart-common.js';
 import { trackChart } from './chart-track.js';
 import { nisChart, residualChart, sdChart, speedChart } from './chart-time.js';
+import { surveySectionHtml } from './survey-section.js';
 import { REPORT_EXTENSIONS, type ExtensionChart, type ReportExtension } from './extensions.js';
 import { esc, duration, isoTime, localTime, num, sessionAnchor, sortKey } from './html-text.js';
 import { closeupChart } from './chart-closeup.js';
@@ -195,6 +196,7 @@ ${qualityNote(s)}
 ${figures(p)}
 ${decimated}
 <div class="plots">${figs.join('\n')}</div>
+${surveySectionHtml(s.survey)}
 ${await closeupsPart(p, id)}
 ${flaggedTable(p, id)}
 ${decisionsTable(p)}
