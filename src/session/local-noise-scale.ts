@@ -27,6 +27,7 @@ import type { FilterOptions, SegmentData } from '../estimation/track-filter.js';
 import { chiSquareQuantile } from '../estimation/chi-square.js';
 import { reviewSegment, type ReviewOptions, type ReviewOutcome } from './review.js';
 import type { StageTimings } from './timings.js';
+import type { SessionResult } from './result.js';
 
 export interface LocalScaleOptions {
   /** Width of the moving window (s); 0 turns the scale off. */
@@ -124,4 +125,19 @@ export function reviewWithLocalScale(
   const scale = localNoiseScale(data.tSec, first.T, first.dof, lo);
   scaleVariances(data, scale);
   return { rev: reviewSegment(models, data, offered, opt, ro, undefined, tm), scale };
+}
+
+/**
+ * The local variance scale per epoch of a finished run (1 where none was applied), kept beside the
+ * result: the session verdict (verdict.ts) judges the fixes against the calibrated noise, not
+ * against the noise the scale has already widened.
+ */
+const scales = new WeakMap<SessionResult, Float64Array>();
+
+export function attachNoiseScale(r: SessionResult, scale: Float64Array): void {
+  scales.set(r, scale);
+}
+
+export function noiseScaleOf(r: SessionResult): Float64Array | undefined {
+  return scales.get(r);
 }

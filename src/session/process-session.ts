@@ -21,7 +21,7 @@ import type { StageTimings } from './timings.js';
 import { selectKth } from '../estimation/select.js';
 import { applyAdequacyCheck } from './adequacy.js';
 import { sessionVerdict, widenToResidualScatter } from './verdict.js';
-import { localScaleOptions, reviewWithLocalScale, scaleVariances } from './local-noise-scale.js';
+import { attachNoiseScale, localScaleOptions, reviewWithLocalScale, scaleVariances } from './local-noise-scale.js';
 import { attachPosterior, posteriorOf } from './posterior.js';
 import { surveyProducts } from './survey.js';
 
@@ -456,7 +456,11 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
   const gateRejectedFix = new Uint8Array(s.n);
   // the deciding test of every rejected fix, by fix index
   const whyFix: DecisionLog = new Map();
+  // the local noise scale each epoch's R was multiplied by (1: none)
+  const noiseScale = new Float64Array(N).fill(1);
   segOuts.forEach((o, si) => {
+    const sc = plans?.[si]?.scale;
+    if (sc) noiseScale.set(sc, k0);
     reacq += o.reacq;
     for (const [k, d] of o.why) if (o.fix[k]! >= 0) whyFix.set(o.fix[k]!, d);
     for (let k = 0; k < o.data.N; k++) {
@@ -504,6 +508,7 @@ export function runPrepared(ps: PreparedSession, cfg: HindcastConfig, p: AxisPar
     // the zone the log's local times were read in (the report shows its times in it as well as in UTC)
     ...(cfg.input.timeZone ? { timeZone: cfg.input.timeZone } : {}),
   };
+  attachNoiseScale(res, noiseScale);
   // the joint posterior (filtered and smoothed moments per segment) beside the result, for the
   // survey products and the library's draws (session/posterior.ts)
   let e0 = 0;

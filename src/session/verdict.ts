@@ -23,6 +23,7 @@
 import { errorEllipse } from '../output/ellipse.js';
 import { STATUS, type SessionResult } from './result.js';
 import type { AxisParams } from './process-session.js';
+import { noiseScaleOf } from './local-noise-scale.js';
 
 export const FLAGGED_SHARE_DEGRADED = 0.1;
 export const ERROR_RATIO_DEGRADED = 2.5;
@@ -37,7 +38,7 @@ export interface SessionVerdict {
     flaggedShare: number;
     /** Calibrated horizontal fix error over the profile's (white and correlated combined). */
     errorRatio: number;
-    /** Mean review statistic per degree of freedom of the kept fixes. */
+    /** Mean review statistic per degree of freedom of the kept fixes, against the calibrated noise (the local noise scale taken out). */
     reviewRatio: number;
   };
   thresholds: { flaggedShare: number; errorRatio: number; reviewRatio: number };
@@ -61,6 +62,10 @@ const isKept = (st: number) => st === STATUS.kept || st === STATUS.userKept;
 /** The verdict of a finished run (r with rawEnu set), p its parameters, profile the prior. */
 export function sessionVerdict(r: SessionResult, p: AxisParams, profile: AxisParams, profileWhiteM: number): SessionVerdict {
   let offered = 0, flagged = 0, sumRatio = 0, nRatio = 0;
+  // the review statistic was computed under R times the local noise scale (local-noise-scale.ts);
+  // multiplied back, it measures the fixes against the calibrated noise, so a log whose noise the
+  // scale had to widen in places is not judged by the widened noise
+  const scale = noiseScaleOf(r);
   for (let j = 0; j < r.N; j++) {
     const st = r.status[j]!;
     if (st === STATUS.bridged || st === STATUS.userRejected) continue;
@@ -69,7 +74,7 @@ export function sessionVerdict(r: SessionResult, p: AxisParams, profile: AxisPar
     if (st === STATUS.outlier) flagged++;
     else if (isKept(st) && Number.isFinite(r.nis[j]!)) {
       const dof = r.hasHeight && Number.isFinite(r.rawEnu[2][j]!) ? 3 : 2;
-      sumRatio += r.nis[j]! / dof;
+      sumRatio += (r.nis[j]! * (scale ? scale[j]! : 1)) / dof;
       nRatio++;
     }
   }

