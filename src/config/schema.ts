@@ -121,6 +121,13 @@ export const configSchema = z
          * measurements behind the default).
          */
         verticalCorrelationTime: z.enum(['shared', 'own']).default('shared'),
+        /**
+         * Where the prior of the horizontal correlated sigma is centred: on the profile value
+         * ('profile', the default), or half-way (in log) between it and the vertical estimate times
+         * the profile's horizontal-to-vertical ratio, with a floor on the vertical process noise
+         * relative to the horizontal one ('vertical'); docs/noise-model.md has the measurements.
+         */
+        correlatedSigmaPrior: z.enum(['profile', 'vertical']).default('profile'),
         /** Multiplier of reported per-fix sigmas (sd_east, sd_north, sd_up) when the log has them. */
         reportedSigmaScale: positive.default(1),
         /**
@@ -138,6 +145,7 @@ export const configSchema = z
         correlatedVerticalSigmaM: 3,
         correlationTimeSec: 60,
         verticalCorrelationTime: 'shared',
+        correlatedSigmaPrior: 'profile',
         reportedSigmaScale: 1,
         localScaleWindowSec: LOCAL_SCALE_WINDOW_SEC,
       }),

@@ -14,10 +14,10 @@ export function smartlocReader(repoRoot: string): (drive: string) => string {
   return (drive) => readFileSync(join(repoRoot, 'test', 'fixtures', 'smartloc', `${drive}_GT.txt`), 'utf8');
 }
 
-export function runFamily(specs: FamilyLogSpec[], repoRoot: string, onLog?: (s: FamilyScore) => void): FamilyScore[] {
+export function runFamily(specs: FamilyLogSpec[], repoRoot: string, onLog?: (s: FamilyScore) => void, settings?: Record<string, unknown>): FamilyScore[] {
   const read = smartlocReader(repoRoot);
   return specs.map((spec) => {
-    const s = runFamilyLog(generateFamilyLog(spec, read));
+    const s = runFamilyLog(generateFamilyLog(spec, read), settings);
     onLog?.(s);
     return s;
   });

@@ -120,9 +120,17 @@ export function scoreFamilyLog(log: FamilyLog, r: SessionResult, nominalRate: nu
   };
 }
 
-/** Read the log's CSV as a user would (defaults + its time zone), process it and score it. */
-export function runFamilyLog(log: FamilyLog): FamilyScore {
-  const cfg = loadConfig({ overrides: log.written.config as Record<string, unknown> });
+/**
+ * Read the log's CSV as a user would (defaults + its time zone), process it and score it.
+ * `settings` (a partial configuration, one level of sections deep) is merged over the log's own, to
+ * measure a setting on the family.
+ */
+export function runFamilyLog(log: FamilyLog, settings?: Record<string, unknown>): FamilyScore {
+  const own = log.written.config as Record<string, unknown>;
+  const merged: Record<string, unknown> = { ...own };
+  for (const [k, v] of Object.entries(settings ?? {}))
+    merged[k] = v && typeof v === 'object' && !Array.isArray(v) ? { ...((own[k] as Record<string, unknown> | undefined) ?? {}), ...(v as Record<string, unknown>) } : v;
+  const cfg = loadConfig({ overrides: merged });
   const t0 = performance.now();
   const series = readFixCsv(log.written.text, log.written.fileName, cfg);
   const r = processSession(series, cfg, log.spec.id);

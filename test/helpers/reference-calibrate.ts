@@ -14,7 +14,7 @@ import { allocateHistory, forwardFilter, sameHorizontalInputs, totalLogLik, type
 import { buildAxisModels, filterOptions, segmentData, segmentDataRange, segmentGrid, type AxisParams, type PreparedSession } from '../../src/session/process-session.js';
 import { selectKth } from '../../src/estimation/select.js';
 import { qualityLogTerms } from '../../src/session/fix-noise.js';
-import { DEFAULT_CALIBRATION, type CalibrationInfo, type CalibrationOptions } from '../../src/session/calibrate.js';
+import { DEFAULT_CALIBRATION, GM_VERTICAL_EVIDENCE_WEIGHT, VERTICAL_Q_FLOOR_LOG_SD, VERTICAL_Q_FLOOR_RATIO, type CalibrationInfo, type CalibrationOptions } from '../../src/session/calibrate.js';
 
 type ParamName = 'sigmaHorizontalM' | 'sigmaVerticalM' | 'gmHorizontalSigmaM' | 'gmVerticalSigmaM' | 'gmTauSec' | 'gmVerticalTauSec' | 'qHorizontal' | 'qVertical' | 'hdopExponent' | 'satsExponent';
 
@@ -343,6 +343,10 @@ export function refCalibrateSession(
     return p;
   };
   const iTauH = names.indexOf('gmTauSec'), iTauV = names.indexOf('gmVerticalTauSec');
+  // noise.correlatedSigmaPrior 'vertical': the horizontal correlated sigma's prior follows the vertical estimate, with a floor on qV
+  const fromVertical = cfg.noise.correlatedSigmaPrior === 'vertical';
+  const iGmH = names.indexOf('gmHorizontalSigmaM'), iGmV = fromVertical ? names.indexOf('gmVerticalSigmaM') : -1;
+  const iQH = names.indexOf('qHorizontal'), iQV = fromVertical ? names.indexOf('qVertical') : -1;
   // the exponents the subset's r holds (NaN: not yet written)
   let rExp = [NaN, NaN];
   const negLogLik = (x: number[]): number => {
@@ -394,8 +398,15 @@ export function refCalibrateSession(
     let pen = 0;
     for (let i = 0; i < names.length; i++) {
       const sd = PRIOR_LOG_SD[names[i]!];
-      const centre = i === iTauV ? x[iTauH]! : xPrior[i]!;
+      const centre =
+        i === iTauV ? x[iTauH]!
+        : i === iGmH && iGmV >= 0 ? xPrior[i]! + GM_VERTICAL_EVIDENCE_WEIGHT * (x[iGmV]! - xPrior[iGmV]!)
+        : xPrior[i]!;
       if (Number.isFinite(sd)) pen += 0.5 * ((x[i]! - centre) / sd) ** 2;
+    }
+    if (iQV >= 0 && iQH >= 0) {
+      const below = Math.log(VERTICAL_Q_FLOOR_RATIO) + x[iQH]! - x[iQV]!;
+      if (below > 0) pen += 0.5 * (below / VERTICAL_Q_FLOOR_LOG_SD) ** 2;
     }
     return -ll + pen;
   };

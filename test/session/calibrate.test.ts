@@ -107,3 +107,28 @@ describe('the vertical correlation time', () => {
     expect(buildAxisModels(params, true)[0]!.params.gm!.tauSec).toBe(params.gmTauSec);
   });
 });
+
+describe('the correlated sigma’s prior centre (noise.correlatedSigmaPrior)', () => {
+  // a walk whose receiver has three times the profile's correlated error on every axis (profile 1.5 / 3 m)
+  const spec = () => {
+    const s = defaultSpec('walk', 5);
+    s.errors = { ...s.errors, gmSigmaHM: 4.5, gmSigmaVM: 9, gmTauSec: 60, burstsPer100: 0 };
+    return s;
+  };
+  const vertical = { ...cfg, noise: { ...cfg.noise, correlatedSigmaPrior: 'vertical' as const } };
+
+  test("'vertical': the horizontal sigma follows the vertical evidence above the profile; qV held at ≥ 0.05 qH", () => {
+    const ps = prepared(spec());
+    const prof = calibrateSession(ps, cfg, axisParamsFromConfig(cfg), FIRST_ROUND);
+    const vert = calibrateSession(ps, vertical, axisParamsFromConfig(vertical), FIRST_ROUND);
+    const gh = (r: typeof prof) => r.params.gmHorizontalSigmaM, gv = (r: typeof prof) => r.params.gmVerticalSigmaM;
+    console.log(`correlated sigma H / V: profile centre ${gh(prof).toFixed(2)} / ${gv(prof).toFixed(2)} m, vertical centre ${gh(vert).toFixed(2)} / ${gv(vert).toFixed(2)} m (simulated 4.5 / 9); qV/qH ${(prof.params.qVertical / prof.params.qHorizontal).toExponential(2)} → ${(vert.params.qVertical / vert.params.qHorizontal).toExponential(2)}`);
+    // the vertical series shows more correlated error than the profile's 3 m
+    expect(gv(vert)).toBeGreaterThan(3);
+    // so the horizontal sigma's centre moves up (by ½ of the vertical's log excess: ~20% here) and
+    // the estimate with it: above the profile-centred one by at least 5% (measured 2.11 → 2.30 m)
+    expect(gh(vert)).toBeGreaterThan(1.05 * gh(prof));
+    // the soft floor (one-sided, 1% at one sd): within 5% of qV = 0.05 qH or above it
+    expect(vert.params.qVertical).toBeGreaterThanOrEqual(0.95 * 0.05 * vert.params.qHorizontal);
+  });
+});
