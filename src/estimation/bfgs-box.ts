@@ -21,6 +21,12 @@ export interface BoxBfgsOptions {
   maxStep: number;
   /** Stop when the quasi-Newton model predicts less than this decrease (½ gᵀH g over the free variables). */
   fTolerance: number;
+  /**
+   * When given: the first gradient by central differences at this step per coordinate, and their
+   * second differences as a diagonal start H₀ = diag(1 / ∂²f/∂xᵢ²) (n more evaluations, once); a
+   * start near the optimum then needs few updates. Without it the first step is steepest descent.
+   */
+  curvatureStep?: number[];
 }
 
 export interface BoxBfgsResult {
@@ -72,10 +78,35 @@ export function boxBfgs(f: (x: number[]) => number, x0: number[], opt: BoxBfgsOp
   };
 
   let central = false;
-  let g = gradient(x, fCur, central);
   // inverse Hessian approximation Hk (row-major n×n); null until the first update scales it
   let Hinv: number[][] | null = null;
   const identity = (s: number) => Array.from({ length: n }, (_, i) => Array.from({ length: n }, (_, j) => (i === j ? s : 0)));
+  let g: number[];
+  if (opt.curvatureStep) {
+    g = new Array<number>(n).fill(0);
+    const diag = new Array<number>(n).fill(NaN);
+    const y = x.slice();
+    for (let i = 0; i < n; i++) {
+      const h = opt.curvatureStep[i]!;
+      // the step shrunk to fit inside the box (both sides)
+      const hi_ = Math.min(h, hi[i]! - x[i]!, x[i]! - lo[i]!);
+      if (!(hi_ > 0)) continue;
+      y[i] = x[i]! + hi_;
+      const fp = fx(y);
+      y[i] = x[i]! - hi_;
+      const fm = fx(y);
+      y[i] = x[i]!;
+      // g ≈ (f₊ − f₋) / 2h, ∂²f/∂x² ≈ (f₊ − 2f + f₋) / h² (N&W eq. 8.7, 8.9)
+      g[i] = (fp - fm) / (2 * hi_);
+      diag[i] = (fp - 2 * fCur + fm) / (hi_ * hi_);
+      if (!Number.isFinite(g[i]!)) g[i] = 0;
+    }
+    // coordinates at a bound: the one-sided differences of gradient()
+    const gb = x.some((xi, i) => !(Math.min(opt.curvatureStep![i]!, hi[i]! - xi, xi - lo[i]!) > 0)) ? gradient(x, fCur, false) : null;
+    if (gb) x.forEach((xi, i) => { if (!(Math.min(opt.curvatureStep![i]!, hi[i]! - xi, xi - lo[i]!) > 0)) g[i] = gb[i]!; });
+    // a positive curvature each: a usable diagonal start (otherwise steepest descent first)
+    if (diag.every((v) => Number.isFinite(v) && v > 0)) Hinv = diag.map((v, i) => Array.from({ length: n }, (_, j) => (i === j ? 1 / v : 0)));
+  } else g = gradient(x, fCur, central);
   let iterations = 0;
   let converged = false;
   while (evals < opt.maxEvaluations) {
