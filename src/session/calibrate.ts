@@ -445,10 +445,10 @@ export function calibrateSession(
     evaluations = q.evaluations;
   } else {
     // two restarts: the second from the first optimum, which escapes early simplex collapse
-    res = nelderMead(negLogLik, x0, { step: names.map((nm) => (LINEAR.has(nm) ? 0.3 : 0.7)), maxEvaluations: Math.floor(opt.maxEvaluations * 0.6), fTolerance: 1e-2, xTolerance: 1e-2 });
-    const res2 = nelderMead(negLogLik, res.x, { step: names.map((nm) => (LINEAR.has(nm) ? 0.1 : 0.25)), maxEvaluations: Math.floor(opt.maxEvaluations * 0.4), fTolerance: 1e-3, xTolerance: 5e-3 });
-    evaluations = res.evaluations + res2.evaluations;
-    if (res2.f <= res.f) res = res2;
+    const res1 = nelderMead(negLogLik, x0, { step: names.map((nm) => (LINEAR.has(nm) ? 0.3 : 0.7)), maxEvaluations: Math.floor(opt.maxEvaluations * 0.6), fTolerance: 1e-2, xTolerance: 1e-2 });
+    const res2 = nelderMead(negLogLik, res1.x, { step: names.map((nm) => (LINEAR.has(nm) ? 0.1 : 0.25)), maxEvaluations: Math.floor(opt.maxEvaluations * 0.4), fTolerance: 1e-3, xTolerance: 5e-3 });
+    evaluations = res1.evaluations + res2.evaluations;
+    res = res2.f <= res1.f ? res2 : res1;
   }
   const params = toParams(res.x);
   // standard errors from the observed information (Hessian of −log L in log space), over the
