@@ -4,7 +4,9 @@
  * Gaussian signals", IEEE Trans. IT-11:61–70, 1965; Harvey, "Forecasting, Structural Time Series
  * Models and the Kalman Filter", 1989, §3.4). Parameters, in log space: white fix noise (horizontal,
  * vertical; or the scale of reported sigmas), the sigma and correlation time of the Gauss–Markov fix
- * error, and the process-noise densities. Maximized by Nelder–Mead; standard errors from the
+ * error, and the process-noise densities. Maximized by Nelder–Mead under the gate (first round) and
+ * by projected BFGS with the outlier decisions held fixed (second round; estimation/bfgs-box.ts,
+ * Nocedal & Wright, "Numerical Optimization", 2nd ed. 2006, ch. 6); standard errors from the
  * numerical Hessian (observed information).
  * Robustness: fixes that fail the gate contribute a capped term (the gate threshold instead of their
  * NIS), so outliers cannot inflate the noise; a weak log-normal prior (a factor of 10 at one sigma)
