@@ -1,12 +1,13 @@
 /**
  * Minimization within box bounds lo ≤ x ≤ hi by a projected quasi-Newton (BFGS) method with a
  * finite-difference gradient.
- * Sources: Nocedal & Wright, "Numerical Optimization", 2nd ed. (2006): ch. 6 (the BFGS update of
- * the inverse Hessian, eq. 6.17; the initial scaling sᵀy / yᵀy, eq. 6.20), §3.1 (backtracking with
- * the sufficient-decrease condition, eq. 3.4), §8.1 (forward and central differences, eq. 8.1 and
- * 8.7); Bertsekas, "Projected Newton methods for optimization problems with simple constraints",
- * SIAM J. Control Optim. 20(2):221–246 (1982) (the active set: a variable at a bound whose gradient
- * pushes it outward is held there; the step is projected back into the box).
+ * Sources: Nocedal & Wright, "Numerical Optimization", 2nd ed. (2006) (equation numbers from
+ * memory): ch. 6, the BFGS update of the inverse Hessian (eq. 6.17) and the initial scaling
+ * sᵀy / yᵀy (eq. 6.20); §3.1, backtracking with the sufficient-decrease condition (eq. 3.4); §8.1,
+ * forward and central differences. Bertsekas, "Projected Newton methods for optimization problems
+ * with simple constraints", SIAM J. Control Optim. 20(2):221–246 (1982): the active set (a variable
+ * at a bound whose gradient pushes it outward is held there) and the step projected into the box.
+ * A diagonal start from second differences (optional) instead of the scaled identity: common practice.
  * The objective may return a non-finite value (treated as +∞); the search never evaluates outside
  * the box (difference steps at a bound are taken inward).
  */
@@ -51,7 +52,7 @@ export function boxBfgs(f: (x: number[]) => number, x0: number[], opt: BoxBfgsOp
   let fCur = fx(x);
   if (!Number.isFinite(fCur)) return { x, f: fCur, evaluations: evals, iterations: 0, converged: false };
 
-  /** Gradient by differences (N&W eq. 8.1 forward, 8.7 central), steps taken inward at a bound. */
+  /** Gradient by forward or central differences (N&W §8.1), steps taken inward at a bound. */
   const gradient = (x: number[], f0: number, central: boolean): number[] => {
     const g = new Array<number>(n).fill(0);
     const y = x.slice();
@@ -96,7 +97,7 @@ export function boxBfgs(f: (x: number[]) => number, x0: number[], opt: BoxBfgsOp
       y[i] = x[i]! - hi_;
       const fm = fx(y);
       y[i] = x[i]!;
-      // g ≈ (f₊ − f₋) / 2h, ∂²f/∂x² ≈ (f₊ − 2f + f₋) / h² (N&W eq. 8.7, 8.9)
+      // g ≈ (f₊ − f₋) / 2h, ∂²f/∂x² ≈ (f₊ − 2f + f₋) / h² (central differences, N&W §8.1)
       g[i] = (fp - fm) / (2 * hi_);
       diag[i] = (fp - 2 * fCur + fm) / (hi_ * hi_);
       if (!Number.isFinite(g[i]!)) g[i] = 0;
