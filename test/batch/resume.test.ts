@@ -136,7 +136,7 @@ describe('failures and safety', () => {
     const r = await runBatch({ input, out, config: cfg });
     expect(r.processed).toEqual(['log01']);
     expect(await readFile(join(out, 'log01.track.csv'))).toEqual(before);
-    expect(r.summary.sessions[1]).toMatchObject({ status: 'failed', stale: true, staleOutputs: ['log01.track.csv', 'log01.outliers.csv', 'log01.geojson', 'log01.track.geojson', 'log01.flags.geojson'] });
+    expect(r.summary.sessions[1]).toMatchObject({ status: 'failed', stale: true, staleOutputs: ['log01.track.csv', 'log01.outliers.csv', 'log01.geojson', 'log01.track.geojson', 'log01.flags.geojson', 'log01.points.csv'] });
     await readFile(join(out, 'log00.track.csv'));
   });
 

@@ -24,7 +24,7 @@ beforeEach(async () => {
 });
 afterEach(async () => removeDir(root));
 
-const FILES = ['log01.track.csv', 'log01.outliers.csv', 'log01.geojson', 'log01.track.geojson', 'log01.flags.geojson'];
+const FILES = ['log01.track.csv', 'log01.outliers.csv', 'log01.geojson', 'log01.track.geojson', 'log01.flags.geojson', 'log01.points.csv'];
 const snapshot = async () => Promise.all(FILES.map((f) => readFile(join(out, f))));
 
 /** The first `n` epoch times of a written track.csv. */
