@@ -294,13 +294,15 @@ describe.skipIf(SKIP_SYSTEM_TOOLS)('GDAL reads each layer as one geometry type a
     requireGdal();
     dir = mkdtempSync(join(tmpdir(), 'hindcast-gdal-layers-'));
   });
-  const cases: Array<[string, () => SessionResult, 'track' | 'flags' | 'epochs', string]> = [
-    ['plain', () => plain().result, 'track', 'Line String'],
-    ['plain', () => plain().result, 'flags', 'Point'],
-    ['plain', () => plain().result, 'epochs', 'Point'],
-    ['antimeridian', () => crossing().result, 'track', 'Multi Line String'],
+  const cases: Array<[string, 'track' | 'flags' | 'occupations' | 'epochs', string, () => SessionResult]> = [
+    ['plain', 'track', 'Line String', () => plain().result],
+    ['plain', 'flags', 'Point', () => plain().result],
+    // the simulated walking survey stands still at its survey marks
+    ['walk', 'occupations', 'Point', () => session('walk', 1).result],
+    ['plain', 'epochs', 'Point', () => plain().result],
+    ['antimeridian', 'track', 'Multi Line String', () => crossing().result],
   ];
-  test.each(cases)('%s %s: ogrinfo "Geometry: %s"', (name, get, only, geometry) => {
+  test.each(cases)('%s %s: ogrinfo "Geometry: %s"', (name, only, geometry, get) => {
     const r = get();
     const text = sessionGeoJsonText(r, { decimals: 7, only });
     const n = (JSON.parse(text) as FC).features.length;
