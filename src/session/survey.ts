@@ -100,11 +100,12 @@ export const ALL_PAIRS_MAX = 20;
 
 /**
  * Most epoch-draws (epochs × draws) a session spends on its measured quantities: 200 draws up to
- * 50,000 epochs (measured 1.3–1.5 s of CPU per 10⁷ epoch-draws on the shared benchmark machine: 90 ms
- * for 200 × 3510, 3.1 s for 200 × 99,100); a longer log gets fewer draws, and none when fewer than
- * MIN_DRAWS would remain (95% quantiles of fewer draws say little).
+ * 25,000 epochs, at most ~0.7 s of CPU (measured 1.3–1.5 s per 10⁷ epoch-draws on the shared
+ * benchmark machine: 90 ms for 200 × 3510; at 10⁷ a 100,000-epoch log spent 2.2 s of its 5.3 s
+ * here); a longer log gets fewer draws, and none when fewer than MIN_DRAWS would remain (95%
+ * quantiles of fewer draws say little). output.surveyDraws sets the number asked for.
  */
-export const DRAW_EPOCH_BUDGET = 10_000_000;
+export const DRAW_EPOCH_BUDGET = 5_000_000;
 export const MIN_DRAWS = 50;
 
 /** The draws a session of N epochs gets for `requested` (see DRAW_EPOCH_BUDGET). */
