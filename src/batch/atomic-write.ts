@@ -33,16 +33,10 @@ export async function writeFileAtomic(path: string, content: string | Uint8Array
  * not touched again (the output writers give each chunk its own buffer).
  */
 export async function writeChunksAtomic(path: string, chunks: Iterable<string | Uint8Array>): Promise<void> {
-  await mkdir(dirname(path), { recursive: true });
-  const tmp = tempPath(path);
-  const ws = createWriteStream(tmp);
+  const tmp = await writeChunksToTemporary(path, chunks);
   try {
-    for (const c of chunks) if (!ws.write(c)) await once(ws, 'drain');
-    ws.end();
-    await once(ws, 'finish');
     await rename(tmp, path);
   } catch (e) {
-    ws.destroy();
     await rm(tmp, { force: true });
     throw e;
   }

@@ -31,7 +31,7 @@ function check(name: string, csv: string, file: string, cfg: HindcastConfig): vo
   const prior = axisParamsFromConfig(cfg, ps.factors.reported);
   const r1 = calibrateSession(ps, cfg, prior, FIRST_ROUND);
   expect(r1.info.status, name).toBe('estimated');
-  // the held-fixed decisions as processSession makes them (two-way gate and review under round 1)
+  // the held-fixed decisions as processSession makes them (two-way gate and review under the first calibration)
   const ro = reviewOptions(cfg, ps.intervalSec);
   const fopt = filterOptions(cfg, r1.params);
   const models = buildAxisModels(r1.params, ps.hasHeight);
