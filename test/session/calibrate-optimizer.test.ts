@@ -46,9 +46,10 @@ function check(name: string, csv: string, file: string, cfg: HindcastConfig): vo
   let ref = calibrateSession(ps, cfg, prior, NM, r1.params, uses);
   const again = calibrateSession(ps, cfg, prior, NM, ref.params, uses);
   if (again.info.logLikelihood > ref.info.logLikelihood) ref = again;
-  // where the simplex stalled below (family drone-01: 3.7 below), the maximum it finds started at
-  // the quasi-Newton optimum is the reference: it must not improve on it by more than the bound
-  if (fast.info.logLikelihood > ref.info.logLikelihood + 0.01) {
+  // where the simplex stopped below the quasi-Newton optimum (family drone-01: 3.7 below; van-01:
+  // 0.009 below, τ 2 s off on its flat ridge), the maximum it finds started at that optimum is the
+  // reference: it must not improve on it by more than the bound
+  if (fast.info.logLikelihood > ref.info.logLikelihood) {
     stalled.push(name);
     ref = calibrateSession(ps, cfg, prior, NM, fast.params, uses);
   }
