@@ -141,6 +141,27 @@ export const GM_VERTICAL_EVIDENCE_WEIGHT = 0.5;
 export const VERTICAL_Q_FLOOR_RATIO = 0.05;
 export const VERTICAL_Q_FLOOR_LOG_SD = 0.01;
 
+/**
+ * The measurement variances of a calibration item at unit white sigma for quality-column exponents
+ * αₕ, αₛ, in place: r = factor², factor = exp(αₕ·log DOP ratio + αₛ·½ log sats ratio + log fix-quality
+ * ratio), from the per-epoch log terms of qualityLogTerms (4 a epoch: DOP horizontal, DOP vertical,
+ * sats, fix quality).
+ */
+export function qualityVariances(d: SegmentData, terms: Float64Array, aH: number, aS: number): void {
+  const rE = d.r[0]!, rN = d.r[1]!, rU = d.r[2];
+  for (let k = 0; k < d.N; k++) {
+    if (!Number.isFinite(rE[k]!)) continue;
+    const o = 4 * k;
+    const fh = Math.exp(aH * terms[o]! + aS * terms[o + 2]! + terms[o + 3]!);
+    rE[k] = fh * fh;
+    rN[k] = fh * fh;
+    if (rU && Number.isFinite(rU[k]!)) {
+      const fv = Math.exp(aH * terms[o + 1]! + aS * terms[o + 2]! + terms[o + 3]!);
+      rU[k] = fv * fv;
+    }
+  }
+}
+
 /** Number of contiguous chunks the calibration subset of a long log is made of. */
 export const CALIBRATION_CHUNKS = 4;
 
@@ -409,21 +430,7 @@ export function calibrateSession(
     if (withExponents) {
       const aH = p.hdopExponent ?? 1, aS = p.satsExponent ?? 1;
       if (aH !== rExp[0] || aS !== rExp[1]) {
-        // r = factor² at unit sigma: factor = exp(αₕ·log DOP ratio + αₛ·½ log sats ratio + log fix quality ratio)
-        for (const { data: d, terms } of subset) {
-          const rE = d.r[0]!, rN = d.r[1]!, rU = d.r[2];
-          for (let k = 0; k < d.N; k++) {
-            if (!Number.isFinite(rE[k]!)) continue;
-            const o = 4 * k;
-            const fh = Math.exp(aH * terms![o]! + aS * terms![o + 2]! + terms![o + 3]!);
-            rE[k] = fh * fh;
-            rN[k] = fh * fh;
-            if (rU && Number.isFinite(rU[k]!)) {
-              const fv = Math.exp(aH * terms![o + 1]! + aS * terms![o + 2]! + terms![o + 3]!);
-              rU[k] = fv * fv;
-            }
-          }
-        }
+        for (const { data: d, terms } of subset) qualityVariances(d, terms!, aH, aS);
         rExp = [aH, aS];
       }
     }

@@ -14,7 +14,7 @@ import { allocateHistory, forwardFilter, sameHorizontalInputs, totalLogLik, type
 import { buildAxisModels, filterOptions, segmentData, segmentDataRange, segmentGrid, type AxisParams, type PreparedSession } from '../../src/session/process-session.js';
 import { selectKth } from '../../src/estimation/select.js';
 import { qualityLogTerms } from '../../src/session/fix-noise.js';
-import { DEFAULT_CALIBRATION, GM_VERTICAL_EVIDENCE_WEIGHT, VERTICAL_Q_FLOOR_LOG_SD, VERTICAL_Q_FLOOR_RATIO, type CalibrationInfo, type CalibrationOptions } from '../../src/session/calibrate.js';
+import { DEFAULT_CALIBRATION, GM_VERTICAL_EVIDENCE_WEIGHT, qualityVariances, VERTICAL_Q_FLOOR_LOG_SD, VERTICAL_Q_FLOOR_RATIO, type CalibrationInfo, type CalibrationOptions } from '../../src/session/calibrate.js';
 
 type ParamName = 'sigmaHorizontalM' | 'sigmaVerticalM' | 'gmHorizontalSigmaM' | 'gmVerticalSigmaM' | 'gmTauSec' | 'gmVerticalTauSec' | 'qHorizontal' | 'qVertical' | 'hdopExponent' | 'satsExponent';
 
@@ -361,21 +361,7 @@ export function refCalibrateSession(
     if (withExponents) {
       const aH = p.hdopExponent ?? 1, aS = p.satsExponent ?? 1;
       if (aH !== rExp[0] || aS !== rExp[1]) {
-        // r = factor² at unit sigma: factor = exp(αₕ·log DOP ratio + αₛ·½ log sats ratio + log fix quality ratio)
-        for (const { data: d, terms } of subset) {
-          const rE = d.r[0]!, rN = d.r[1]!, rU = d.r[2];
-          for (let k = 0; k < d.N; k++) {
-            if (!Number.isFinite(rE[k]!)) continue;
-            const o = 4 * k;
-            const fh = Math.exp(aH * terms![o]! + aS * terms![o + 2]! + terms![o + 3]!);
-            rE[k] = fh * fh;
-            rN[k] = fh * fh;
-            if (rU && Number.isFinite(rU[k]!)) {
-              const fv = Math.exp(aH * terms![o + 1]! + aS * terms![o + 2]! + terms![o + 3]!);
-              rU[k] = fv * fv;
-            }
-          }
-        }
+        for (const { data: d, terms } of subset) qualityVariances(d, terms!, aH, aS);
         rExp = [aH, aS];
       }
     }
