@@ -16,10 +16,15 @@ const positive = z.number().positive();
 export const columnsSchema = z
   .object({
     time: z.string(),
+    /** A calendar date column, when the time column holds only the time of day. */
+    date: z.string(),
     gpsWeek: z.string(),
     tow: z.string(),
     lat: z.string(),
     lon: z.string(),
+    /** Hemisphere letter columns (N/S, E/W) beside unsigned latitude and longitude. */
+    latHemisphere: z.string(),
+    lonHemisphere: z.string(),
     height: z.string(),
     hdop: z.string(),
     vdop: z.string(),

@@ -8,11 +8,14 @@ import type { ColumnMapping } from '../config/schema.js';
 export type ColumnRole = keyof Required<ColumnMapping>;
 
 export const COLUMN_ALIASES: Record<ColumnRole, string[]> = {
-  time: ['time', 'timestamp', 'datetime', 'date_time', 'utc', 'time_utc', 'utc_time', 't', 'unix_time', 'unix', 'epoch', 'gps_time_utc'],
+  time: ['time', 'timestamp', 'datetime', 'date_time', 'utc', 'time_utc', 'utc_time', 't', 'unix_time', 'unix', 'epoch', 'gps_time_utc', 'unix_ms', 'unix_s', 'time_ms', 'timestamp_ms', 'epoch_ms', 'utc_ms'],
+  date: ['date', 'utc_date', 'date_utc', 'gps_date'],
   gpsWeek: ['gps_week', 'week', 'gpsweek', 'wn'],
   tow: ['tow', 'gps_tow', 'time_of_week', 'tow_s', 'seconds_of_week', 'sow'],
   lat: ['lat', 'latitude', 'lat_deg', 'latitude_deg', 'phi'],
   lon: ['lon', 'lng', 'long', 'longitude', 'lon_deg', 'longitude_deg', 'lambda'],
+  latHemisphere: ['ns', 'n_s', 'lat_dir', 'lat_hemisphere', 'lat_ref', 'latitude_ref', 'n_s_indicator'],
+  lonHemisphere: ['ew', 'e_w', 'lon_dir', 'lon_hemisphere', 'lon_ref', 'longitude_ref', 'e_w_indicator'],
   height: ['height', 'h', 'ellipsoidal_height', 'height_m', 'h_ell', 'ellipsoid_height', 'hae', 'alt', 'altitude', 'ele', 'elevation'],
   hdop: ['hdop'],
   vdop: ['vdop'],

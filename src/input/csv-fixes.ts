@@ -22,6 +22,7 @@ import type { HindcastConfig } from '../config/schema.js';
 import { InputError } from '../errors.js';
 import { gpsWeekTowToUnixUtc } from '../time/gps-time.js';
 import { parseIsoToUnix } from '../time/parse-time.js';
+import { dateOrderOf, separatedToIso, TIME_OF_DAY, type DateOrder } from '../time/calendar-text.js';
 import { LocalTimeReader, lineRanges, offsetText, resolveByOrder, type PendingRow } from '../time/local-time.js';
 import { matchColumns, MSL_HEIGHT_ALIASES, type ColumnRole } from './columns.js';
 import { FixSeriesBuilder, type FixSeries, type QualityColumn } from './fix-series.js';
@@ -445,11 +446,17 @@ export function readFixCsv(text: string, file: string, cfg: HindcastConfig, opt:
   let rows = 0;
   const need = Math.max(index.time, index.lat, index.lon, hasWeekTow ? Math.max(index.gpsWeek, index.tow) : -1) + 1;
   const timeFormat = cfg.input.timeFormat;
+  // dates as spreadsheets write them (31.12.2026, 12/31/2026), in the time column or a date column beside a time of day
+  const dateCol = index.time >= 0 && timeFormat === undefined ? index.date : -1;
+  const order = timeFormat === undefined && index.time >= 0 ? separatedDateOrder(lines, li + 1, delimiter, dateCol >= 0 ? dateCol : index.time, file) : null;
+  if (dateCol >= 0) b.meta.dateColumn = header[dateCol]!;
   // local times in a zone with clock changes, or a custom format: read row by row, clock changes resolved below
   const local = timeFormat !== undefined || (zone !== undefined && zone !== 'UTC') ? new LocalTimeReader(zone, timeFormat) : null;
   const pending: PendingRow[] = [];
+  // times without a zone or offset and no input.timeZone: read as UTC (receivers keep UTC), with a note
+  let utcAssumed = false;
   const plain =
-    opt.plainRows !== false && delimiter === ',' && timeFormat === undefined
+    opt.plainRows !== false && delimiter === ',' && timeFormat === undefined && dateCol < 0 && order === null && index.latHemisphere < 0 && index.lonHemisphere < 0
       ? plainRowReader(b, header.length, index, qualityPresent, { rad, unitMs: unit === 'ms' })
       : null;
   for (let j = li + 1; j < lines.length; j++) {
@@ -477,7 +484,11 @@ export function readFixCsv(text: string, file: string, cfg: HindcastConfig, opt:
     }
     let t: number;
     if (index.time >= 0 && !(hasWeekTow && (rec[index.time] ?? '') === '')) {
-      const rawT = rec[index.time] ?? '';
+      let rawT = rec[index.time] ?? '';
+      if (dateCol >= 0 && TIME_OF_DAY.test(rawT.trim())) {
+        const d = (rec[dateCol] ?? '').trim();
+        rawT = `${(order ? separatedToIso(d, order) : null) ?? d}T${rawT.trim().replace(/^(\d):/, '0$1:')}`;
+      } else if (order) rawT = separatedToIso(rawT, order) ?? rawT;
       const v = timeFormat !== undefined ? NaN : parseCsvNumber(rawT, false);
       // ISO 8601 allows "," before the fraction; spreadsheets write a space for the "T"
       const iso = timeFormat !== undefined ? rawT : rawT.replace(/(\d{2}:\d{2}:\d{2}),(\d)/, '$1.$2').replace(/^(\d{4}-\d{2}-\d{2}) (\d{2}:)/, '$1T$2');
@@ -500,8 +511,15 @@ export function readFixCsv(text: string, file: string, cfg: HindcastConfig, opt:
         t = ms ? v / 1000 : v;
       } else {
         t = parseIsoToUnix(iso, zone);
+        if (Number.isNaN(t) && zone === undefined) {
+          t = parseIsoToUnix(iso, 'UTC');
+          if (!Number.isNaN(t) && !utcAssumed) {
+            utcAssumed = true;
+            b.warn('time-zone-assumed', `times without a zone or offset (e.g. "${rawT.slice(0, 40)}") are read as UTC; if they are local clock times, set input.timeZone`);
+          }
+        }
         if (Number.isNaN(t)) {
-          w.add('row-skipped', `time "${rawT.slice(0, 40)}" is not ISO 8601 with a zone or offset, nor Unix seconds${zone ? '' : ' (set input.timeZone for local times)'}`, line);
+          w.add('row-skipped', `time "${rawT.slice(0, 40)}" is not an ISO 8601 date-time nor Unix seconds (set input.timeFormat for other forms)`, line);
           continue;
         }
       }
@@ -524,6 +542,9 @@ export function readFixCsv(text: string, file: string, cfg: HindcastConfig, opt:
       lat *= DEG_PER_RAD;
       lon *= DEG_PER_RAD;
     }
+    // hemisphere letters beside unsigned angles (S and W are negative)
+    if (index.latHemisphere >= 0 && /^\s*s/i.test(rec[index.latHemisphere] ?? '')) lat = -Math.abs(lat);
+    if (index.lonHemisphere >= 0 && /^\s*w/i.test(rec[index.lonHemisphere] ?? '')) lon = -Math.abs(lon);
     if (!Number.isFinite(lat) || !Number.isFinite(lon) || Math.abs(lat) > 90 || Math.abs(lon) > 180) {
       w.add(
         'row-skipped',
@@ -591,4 +612,32 @@ function resolveLocalTimes(b: FixSeriesBuilder, pending: PendingRow[], zone: str
         undecided[0],
       );
   }
+}
+
+/** Data rows sampled at each end of a file to decide the order of its separated dates. */
+const DATE_ORDER_SAMPLE_ROWS = 500;
+
+/**
+ * The day/month order of a column of separated dates (calendar-text.ts), from the first and last
+ * DATE_ORDER_SAMPLE_ROWS data rows; null when the column holds no such dates. A column that does
+ * not decide the order (slashes, no field above 12) is refused, naming the setting that decides it.
+ */
+function separatedDateOrder(lines: Lines, from: number, delimiter: string, col: number, file: string): DateOrder | null {
+  const samples: string[] = [];
+  const take = (j: number) => {
+    const l = lines.at(j);
+    if (l.trim() === '' || l.trimStart().startsWith('#')) return;
+    const f = splitCsvLine(l, delimiter).fields[col];
+    if (f !== undefined) samples.push(f);
+  };
+  const n = lines.length;
+  for (let j = from; j < Math.min(n, from + DATE_ORDER_SAMPLE_ROWS); j++) take(j);
+  for (let j = Math.max(from + DATE_ORDER_SAMPLE_ROWS, n - DATE_ORDER_SAMPLE_ROWS); j < n; j++) take(j);
+  const order = dateOrderOf(samples);
+  if (order !== 'ambiguous') return order;
+  const ex = samples.find((x) => /\//.test(x)) ?? samples[0] ?? '';
+  throw new InputError(
+    { file, line: from + 1 },
+    `dates like "${ex.slice(0, 30)}" read either way (day or month first) and none in the file decides it; set input.timeFormat, e.g. "dd/MM/yyyy HH:mm:ss" or "MM/dd/yyyy HH:mm:ss"`,
+  );
 }

@@ -5,7 +5,7 @@
  *
  * | extension (optionally + .gz) | read as |
  * |---|---|
- * | .csv | CSV |
+ * | .csv .tsv | CSV (delimiter detected) |
  * | .nmea .nma | NMEA 0183 |
  * | .gpx | GPX 1.1 |
  * | .txt .log | NMEA when the first sentence-like line starts with "$", GPX when the text starts with "<", else CSV |
@@ -24,7 +24,7 @@ import { readNmea } from './nmea.js';
 import { NOTE_CODES } from './row-warnings.js';
 
 /** Extensions (lower case, without a trailing .gz) read as fix logs. */
-export const FIX_LOG_EXTENSIONS = ['.csv', '.txt', '.nmea', '.nma', '.log', '.gpx'] as const;
+export const FIX_LOG_EXTENSIONS = ['.csv', '.tsv', '.txt', '.nmea', '.nma', '.log', '.gpx'] as const;
 
 /** Files beside a log that are not logs themselves (IMU streams, user decisions). */
 export const COMPANION_SUFFIXES = ['.imu.csv', '.decisions.csv'] as const;
@@ -56,7 +56,7 @@ export function isFixLogName(fileName: string): boolean {
 /** Format from the name, or 'sniff' for names that do not decide it (.txt, .log, unknown). */
 export function formatFromName(fileName: string): LogFormat | 'sniff' {
   const lower = withoutGz(fileName.replace(/^.*[\\/]/, '').toLowerCase());
-  if (lower.endsWith('.csv')) return 'csv';
+  if (lower.endsWith('.csv') || lower.endsWith('.tsv')) return 'csv';
   if (lower.endsWith('.nmea') || lower.endsWith('.nma')) return 'nmea';
   if (lower.endsWith('.gpx')) return 'gpx';
   return 'sniff';
