@@ -60,6 +60,8 @@ export interface CalibrationInfo {
   estimates: Partial<Record<ParamName, ParamEstimate>>;
   /** Whether the white sigmas are a scale of the log's reported sigmas. */
   reportedSigmaScale: boolean;
+  /** The robust process-noise estimate and the q the second round's decisions were classified under (classification-start.ts). */
+  classificationStart?: { robustQHorizontal: number; qHorizontal: number };
 }
 
 export interface CalibrationOptions {

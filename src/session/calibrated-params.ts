@@ -11,6 +11,7 @@
 import type { HindcastConfig } from '../config/schema.js';
 import { axisParamsFromConfig, buildAxisModels, filterOptions, reviewOptions, runPrepared, segmentData, type AxisParams, type PreparedSession } from './process-session.js';
 import { FIRST_ROUND, calibrateSession, type CalibrationInfo } from './calibrate.js';
+import { classificationStart } from './classification-start.js';
 import type { ReviewOptions } from './review.js';
 import { localScaleOptions, reviewWithLocalScale } from './local-noise-scale.js';
 import type { SessionResult } from './result.js';
@@ -49,16 +50,16 @@ export function calibratedParams(ps: PreparedSession, cfg: HindcastConfig): Cali
   const cal1 = calibrateSession(ps, cfg, prior, FIRST_ROUND);
   let params = cal1.params;
   let info = cal1.info;
-  let plans = classify(ps, cfg, params, ro);
   if (cal1.info.status === 'estimated') {
+    // the first classification under the stiffer start model (classification-start.ts)
+    const start = classificationStart(ps, cfg, params);
     const uses = new Map<number, Uint8Array>();
-    plans.forEach((pl, si) => uses.set(si, Uint8Array.from(pl.offered, (u, k) => (u === 0 ? 0 : pl.decisions.kept[k] ? 2 : 0))));
+    classify(ps, start.cfg, start.params, ro).forEach((pl, si) => uses.set(si, Uint8Array.from(pl.offered, (u, k) => (u === 0 ? 0 : pl.decisions.kept[k] ? 2 : 0))));
     const cal2 = calibrateSession(ps, cfg, prior, undefined, params, uses);
     params = cal2.params;
-    info = { ...cal2.info, estimates: { ...cal1.info.estimates, ...cal2.info.estimates }, evaluations: cal1.info.evaluations + cal2.info.evaluations };
-    plans = classify(ps, cfg, params, ro);
+    info = { ...cal2.info, estimates: { ...cal1.info.estimates, ...cal2.info.estimates }, evaluations: cal1.info.evaluations + cal2.info.evaluations, classificationStart: { robustQHorizontal: start.robustQHorizontal, qHorizontal: start.params.qHorizontal } };
   }
-  return { params, info, warnings: cal1.warnings, plans };
+  return { params, info, warnings: cal1.warnings, plans: classify(ps, cfg, params, ro) };
 }
 
 /** The fixes-only result of processSession on a prepared session, with its calibrated parameters. */

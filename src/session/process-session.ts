@@ -11,6 +11,7 @@ import { covStride } from '../estimation/track-filter.js';
 import { errorEllipse } from '../output/ellipse.js';
 import { epochGrid, nominalIntervalSec, splitSegments } from './segments.js';
 import { factorsWithExponents, fixSigmaFactors } from './fix-noise.js';
+import { classificationStart } from './classification-start.js';
 import { DEFAULT_CALIBRATION, FIRST_ROUND, calibrateSession, calibrationWindows, sliceSegment } from './calibrate.js';
 import { reviewSegment, type ReviewOptions, type ReviewOutcome } from './review.js';
 import type { DecisionLog } from './decision-log.js';
@@ -310,11 +311,13 @@ export function processSession(series: FixSeries, cfg: HindcastConfig, name: str
   if (cal1.info.status === 'estimated') {
     // stage 2: classification under the first calibration, where the second one will look (the
     // whole log when it is used whole, else its calibration chunks with margins)
+    // (under a stiffer model where bursts inflated the first round's process noise: classification-start.ts)
     const uses = new Map<number, Uint8Array>();
     const windows = calibrationWindows(ps, cfg.segments.bridgeFactor, DEFAULT_CALIBRATION.maxEpochs);
-    if (windows) classifyWindows(ps, cfg, params, ro, windows, uses, tm);
+    const start = classificationStart(ps, cfg, params);
+    if (windows) classifyWindows(ps, start.cfg, start.params, ro, windows, uses, tm);
     else
-      classify(ps, cfg, params, ro, tm).forEach((pl, si) => {
+      classify(ps, start.cfg, start.params, ro, tm).forEach((pl, si) => {
         uses.set(si, Uint8Array.from(pl.offered, (u, k) => (u === 0 ? 0 : pl.decisions!.kept[k] ? 2 : 0)));
       });
     // stage 3: calibration with the decisions held fixed
@@ -322,7 +325,7 @@ export function processSession(series: FixSeries, cfg: HindcastConfig, name: str
     const cal2 = calibrateSession(ps, cfg, prior, undefined, params, uses);
     if (tm) tm.calibrate += performance.now() - t0;
     params = cal2.params;
-    info = { ...cal2.info, estimates: { ...cal1.info.estimates, ...cal2.info.estimates }, evaluations: cal1.info.evaluations + cal2.info.evaluations };
+    info = { ...cal2.info, estimates: { ...cal1.info.estimates, ...cal2.info.estimates }, evaluations: cal1.info.evaluations + cal2.info.evaluations, classificationStart: { robustQHorizontal: start.robustQHorizontal, qHorizontal: start.params.qHorizontal } };
   }
   // stage 4 (stage 2 of a log the calibration fell back on): classify under the final model
   const plans = classify(ps, cfg, params, ro, tm);
