@@ -95,7 +95,9 @@ export const CLOSURE_CHI2 = 9.21;
  * vertices are the occupied points (each one vertex, its average position) and, where the track
  * moves, epochs at least VERTEX_SD_FACTOR × the session's median horizontal sd (and at least
  * VERTEX_MIN_M) apart along the smoothed track, starting at each segment's first epoch (or its
- * first occupied point, when that is within the spacing of it).
+ * first occupied point, when that is within the spacing of it), and its last epoch where that lies
+ * beyond the simplification tolerance of the last vertex. A free vertex at a turn becomes the
+ * intersection of lines fitted to the legs on either side (session/leg-corners.ts).
  */
 export const VERTEX_MIN_M = 5;
 export const VERTEX_SD_FACTOR = 4;

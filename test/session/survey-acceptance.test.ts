@@ -5,14 +5,16 @@
  *   the truth moves at walking speed (≥ 1 m/s);
  * - the 95% ellipses of the occupied points hold the true point (the truth averaged over the same
  *   epochs) 0.90–0.99 of the time, pooled (on the walk a measured shortfall on the cautious side,
- *   it.fails: 1.000, 41 of 41; on the loops 0.966);
+ *   it.fails: 1.000, 41 of 41, from these logs' calibrated correlated error: docs/survey.md; on the
+ *   loops 0.966);
  * - the horizontal length of each segment (on the measured polyline's vertices; the truth's polyline
  *   through the same vertices, each built from the truth at the same epochs: truthVertex) has a mean
  *   error within its mean sd; its 95% interval holds the truth 0.90–0.99 pooled (walk 0.917; on the
  *   loops a measured shortfall, it.fails: 0.875);
  * - on closed loops (a rectangle walked round, stops at its corners) every loop is found closed,
  *   corner-to-corner distances' intervals hold the truth 0.90–0.99, the area's mean error is within
- *   its sd, and its 95% interval's coverage is a measured shortfall (it.fails: 0.83).
+ *   its sd, and its 95% interval's coverage is a measured shortfall (it.fails: 0.83; the corner
+ *   points' errors along their bisectors, docs/survey.md).
  * The criteria are the product's own (uncertainty is a product: common practice for coverage checks).
  */
 import { describe, expect, it } from 'vitest';
@@ -159,6 +161,8 @@ describe('survey products on the walking survey with stops (pooled over seeds)',
   it('reports no occupation while the truth moves at walking speed', () => {
     expect(p.movingOcc).toBe(0);
   });
+  // measured: 41/41 here, 37/39 on seeds 201–212; with the correlated error at its true σ and τ
+  // 40/41: the over-coverage follows these logs' calibration (docs/survey.md)
   it.fails('95% ellipses of occupied points hold the true point 0.90–0.99 pooled', () => {
     expect(p.occupations).toBeGreaterThan(30);
     const c = p.inEll / p.occupations;
@@ -271,13 +275,16 @@ describe('survey products on closed loops (a rectangle walked round, pooled over
     expect(nArea).toBe(SEEDS.length);
     expect(Math.abs(areaErr / nArea)).toBeLessThanOrEqual(areaSd / nArea);
   });
-  // measured shortfall: 20/24 (0.83; at a true 0.95, 20 or fewer of 24 has probability 0.03)
+  // measured shortfall: 20/24 (0.83; at a true 0.95, 20 or fewer of 24 has probability 0.03; on
+  // seeds 301–324: 23/24); the same outward corners (docs/survey.md)
   it.fails('area 95% intervals hold the true area 0.90–0.99 pooled', () => {
     const c = inArea / nArea;
     expect(c).toBeGreaterThanOrEqual(0.9);
     expect(c).toBeLessThanOrEqual(0.99);
   });
-  // measured shortfall: 21 of 24 (0.875), mean error 1.16 m against a mean sd of 3.54 m
+  // measured shortfall: 21 of 24 (0.875), mean error 1.16 m against a mean sd of 3.54 m; the corner
+  // points sit outward along their bisectors by 0.14–0.35 sd and scatter 1.01–1.17 sd there (the
+  // model's braking into a stop; docs/survey.md); on seeds 301–324: 20 of 24
   it.fails('loop length 95% intervals hold the truth 0.90–0.99 pooled, mean error within the mean sd', () => {
     const c = p.inLen / p.nLen;
     expect(c).toBeGreaterThanOrEqual(0.9);
