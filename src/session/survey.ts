@@ -13,6 +13,7 @@ import { sampleBackward, type TrackPosterior } from './posterior.js';
 import { detectOccupations, type Occupation } from './occupations.js';
 import { recentre, summarize, type Quantity } from './draws.js';
 import { expectedStepLength, stepErrorVariance } from './raw-length.js';
+import { cornerOf, legSums, legWindow, lineOfSums, intersectLines, type LegSums } from './leg-corners.js';
 
 export interface SurveyOptions {
   /** Posterior draws for the measured quantities (0: none; occupations are still found). */
@@ -46,6 +47,11 @@ export interface SurveyVertex {
   last: number;
   /** Index into occupations, or −1 for a single epoch. */
   occupation: number;
+  /**
+   * A turn rebuilt from its legs (session/leg-corners.ts): the epochs of the two fitted windows
+   * before and after it; the vertex is their lines' intersection, not the epoch's position.
+   */
+  corner?: { legA: [number, number]; legB: [number, number] };
 }
 
 export interface DistanceEntry {
@@ -89,7 +95,9 @@ export const CLOSURE_CHI2 = 9.21;
  * vertices are the occupied points (each one vertex, its average position) and, where the track
  * moves, epochs at least VERTEX_SD_FACTOR × the session's median horizontal sd (and at least
  * VERTEX_MIN_M) apart along the smoothed track, starting at each segment's first epoch (or its
- * first occupied point, when that is within the spacing of it).
+ * first occupied point, when that is within the spacing of it), and its last epoch where that lies
+ * beyond the simplification tolerance of the last vertex. A free vertex at a turn becomes the
+ * intersection of lines fitted to the legs on either side (session/leg-corners.ts).
  */
 export const VERTEX_MIN_M = 5;
 export const VERTEX_SD_FACTOR = 4;
@@ -130,6 +138,15 @@ export function surveyProducts(r: SessionResult, post: TrackPosterior, o: Survey
   vx.forEach((v, i) => {
     if (v.occupation < 0) vertexAt[v.first] = i;
   });
+  // turns without a stop: the corner rebuilt from the straight legs on either side (leg-corners.ts)
+  const corners = legCornersOf(r, vx, SIMPLIFY_SD_FACTOR * (spacing / VERTEX_SD_FACTOR), spacing);
+  const nE = corners.windows.length;
+  const edgeAt = new Int32Array(r.N).fill(-1);
+  corners.windows.forEach((w, i) => {
+    if (w && corners.used[i]) edgeAt.fill(i, w[0], w[1] + 1);
+  });
+  // per used edge and draw: Σe, Σn, Σe², Σn², Σen about the edge's reference point
+  const legAcc = Array.from({ length: nE }, (_, i) => (corners.used[i] ? [0, 1, 2, 3, 4].map(() => new Float64Array(D)) : null));
   const vPos = [0, 1, 2].map(() => Array.from({ length: nV }, () => new Float64Array(D)));
   const occSum = occ.map(() => [new Float64Array(D), new Float64Array(D), new Float64Array(D)]);
   const area2 = new Float64Array(D);
@@ -146,6 +163,19 @@ export function surveyProducts(r: SessionResult, post: TrackPosterior, o: Survey
           // shoelace term of the edge j → j + 1 (across segment gaps too: the polygon is the whole track)
           area2[d] += e[d]! * prev[1][d]! - prev[0][d]! * n[d]!;
         }
+      const ei = edgeAt[j]!;
+      if (ei >= 0) {
+        const acc = legAcc[ei]!, ce = corners.ref[ei]![0]!, cn = corners.ref[ei]![1]!;
+        const s0 = acc[0]!, s1 = acc[1]!, s2 = acc[2]!, s3 = acc[3]!, s4 = acc[4]!;
+        for (let d = 0; d < D; d++) {
+          const x = e[d]! - ce, y = n[d]! - cn;
+          s0[d] += x;
+          s1[d] += y;
+          s2[d] += x * x;
+          s3[d] += y * y;
+          s4[d] += x * y;
+        }
+      }
       const vi = vertexAt[j]!;
       if (vi >= 0) for (let a = 0; a < post.nAx; a++) vPos[a]![vi]!.set(pos[a]!);
       const oi = occAt[j]!;
@@ -169,6 +199,28 @@ export function surveyProducts(r: SessionResult, post: TrackPosterior, o: Survey
   vx.forEach((v, i) => {
     if (v.occupation >= 0) for (let a = 0; a < post.nAx; a++) vPos[a]![i]!.set(means[v.occupation]![a]!);
   });
+  // rebuilt corners: each draw's own legs' lines intersected (a draw whose lines are parallel keeps its epoch)
+  const sums: LegSums = { n: 0, se: 0, sn: 0, see: 0, snn: 0, sen: 0 };
+  const drawLine = (ei: number, d: number) => {
+    const acc = legAcc[ei]!, w = corners.windows[ei]!;
+    sums.n = w[1] - w[0] + 1;
+    sums.se = acc[0]![d]!;
+    sums.sn = acc[1]![d]!;
+    sums.see = acc[2]![d]!;
+    sums.snn = acc[3]![d]!;
+    sums.sen = acc[4]![d]!;
+    return lineOfSums(sums, corners.ref[ei]![0]!, corners.ref[ei]![1]!);
+  };
+  vx.forEach((v, i) => {
+    if (!corners.at[i]) return;
+    for (let d = 0; d < D; d++) {
+      const x = intersectLines(drawLine(i - 1, d), drawLine(i, d));
+      if (Number.isFinite(x.e) && Number.isFinite(x.n)) {
+        vPos[0]![i]![d] = x.e;
+        vPos[1]![i]![d] = x.n;
+      }
+    }
+  });
   const lenH = Array.from({ length: nSeg }, () => new Float64Array(D));
   const len3 = Array.from({ length: nSeg }, () => new Float64Array(D));
   for (let i = 1; i < nV; i++) {
@@ -184,9 +236,14 @@ export function surveyProducts(r: SessionResult, post: TrackPosterior, o: Survey
 
   // the same polyline on the smoothed track (vertex = the smoothed positions' average over its epochs)
   const sH = new Float64Array(nSeg), s3 = new Float64Array(nSeg);
-  const sv = vx.map((v) => {
+  const sv = vx.map((v, i) => {
     const m = [0, 0, 0];
     for (let j = v.first; j <= v.last; j++) for (let a = 0; a < post.nAx; a++) m[a] += r.posEnu[a]![j]! / (v.last - v.first + 1);
+    const c = corners.at[i];
+    if (c) {
+      m[0] = c.e;
+      m[1] = c.n;
+    }
     return m;
   });
   for (let i = 1; i < nV; i++) {
@@ -250,6 +307,40 @@ export function surveyProducts(r: SessionResult, post: TrackPosterior, o: Survey
   return { draws: D, requestedDraws: o.draws, seed: o.seed, occupationMinSec: o.occupationMinSec, occupations: occ, lengths, closed, closureGapM: gap, closureToleranceM: tol, areaM2, distances, vertexSpacingM: spacing, vertices: vx };
 }
 
+/**
+ * The rebuilt corners of a polyline's vertices (session/leg-corners.ts): per edge (vertex i to
+ * i + 1 of one segment) its leg window, the reference point its sums are taken about, and whether a
+ * corner uses it; per vertex the corner on the smoothed track, or null. Marks each rebuilt vertex's
+ * `corner` with its two windows.
+ */
+export function legCornersOf(r: SessionResult, vx: SurveyVertex[], tolM: number, spacingM: number): { windows: Array<[number, number] | null>; ref: Array<[number, number] | null>; used: Uint8Array; at: Array<{ e: number; n: number } | null> } {
+  const nV = vx.length;
+  const e = r.posEnu[0], n = r.posEnu[1];
+  const windows: Array<[number, number] | null> = [];
+  const ref: Array<[number, number] | null> = [];
+  const lines = [];
+  for (let i = 0; i + 1 < nV; i++) {
+    const w = vx[i]!.segment === vx[i + 1]!.segment ? legWindow(r.tSec, vx[i]!.last, vx[i + 1]!.first) : null;
+    windows.push(w);
+    ref.push(w ? [e[w[0]]!, n[w[0]]!] : null);
+    lines.push(w ? lineOfSums(legSums(e, n, w[0], w[1], e[w[0]]!, n[w[0]]!), e[w[0]]!, n[w[0]]!) : null);
+  }
+  const used = new Uint8Array(Math.max(nV - 1, 0));
+  const at: Array<{ e: number; n: number } | null> = vx.map(() => null);
+  for (let i = 1; i + 1 < nV; i++) {
+    const v = vx[i]!;
+    const wA = windows[i - 1], wB = windows[i];
+    if (v.occupation >= 0 || !wA || !wB) continue;
+    const c = cornerOf(e, n, wA, wB, lines[i - 1]!, lines[i]!, e[v.first]!, n[v.first]!, tolM, spacingM);
+    if (!c) continue;
+    at[i] = c;
+    used[i - 1] = 1;
+    used[i] = 1;
+    v.corner = { legA: wA, legB: wB };
+  }
+  return { windows, ref, used, at };
+}
+
 /** The spacing of the measured polyline's vertices for a result (see VERTEX_SD_FACTOR). */
 export function vertexSpacing(r: SessionResult, factor = VERTEX_SD_FACTOR): number {
   const sd = r.metrics?.medianSdHorizontalM;
@@ -261,6 +352,7 @@ export function surveyVertices(r: SessionResult, occ: Occupation[], post: TrackP
   const occAt = new Int32Array(r.N).fill(-1);
   occ.forEach((p, i) => occAt.fill(i, p.first, p.last + 1));
   const out: SurveyVertex[] = [];
+  const endTol = SIMPLIFY_SD_FACTOR * (spacing / VERTEX_SD_FACTOR);
   for (let si = 0; si < post.segments.length; si++) {
     const sp = post.segments[si]!;
     const j0 = sp.epoch0, j1 = sp.epoch0 + sp.data.N - 1;
@@ -281,9 +373,11 @@ export function surveyVertices(r: SessionResult, occ: Occupation[], post: TrackP
         continue;
       }
       const e = r.posEnu[0][j]!, n = r.posEnu[1][j]!;
-      // the segment's last epoch only at the spacing too (an end within it of an occupied point, or
-      // of the last vertex, would add the difference of two noisy positions of one place)
-      if (j === j0 || !(Math.hypot(e - le, n - ln) < spacing)) {
+      // the segment's last epoch ends the polyline when it lies beyond the simplification tolerance
+      // of the last vertex (the walked stub after the last vertex was otherwise lost: up to a
+      // spacing, 0–10 m a segment on the walking survey); within it, an end near an occupied point
+      // or the last vertex would add the difference of two noisy positions of one place
+      if (j === j0 || !(Math.hypot(e - le, n - ln) < (j === j1 ? endTol : spacing))) {
         out.push({ segment: si, first: j, last: j, occupation: -1 });
         le = e;
         ln = n;

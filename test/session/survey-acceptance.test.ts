@@ -5,13 +5,16 @@
  *   the truth moves at walking speed (≥ 1 m/s);
  * - the 95% ellipses of the occupied points hold the true point (the truth averaged over the same
  *   epochs) 0.90–0.99 of the time, pooled (on the walk a measured shortfall on the cautious side,
- *   it.fails: 1.000, 41 of 41; on the loops 0.966);
+ *   it.fails: 1.000, 41 of 41, from these logs' calibrated correlated error: docs/survey.md; on the
+ *   loops 0.966);
  * - the horizontal length of each segment (on the measured polyline's vertices; the truth's polyline
- *   through the same vertices) has a mean error within its mean sd; its 95% interval holds the truth
- *   0.90–0.99 pooled, a measured shortfall on the walk and on the loops (it.fails: 0.875 each);
+ *   through the same vertices, each built from the truth at the same epochs: truthVertex) has a mean
+ *   error within its mean sd; its 95% interval holds the truth 0.90–0.99 pooled (walk 0.917; on the
+ *   loops a measured shortfall, it.fails: 0.875);
  * - on closed loops (a rectangle walked round, stops at its corners) every loop is found closed,
  *   corner-to-corner distances' intervals hold the truth 0.90–0.99, the area's mean error is within
- *   its sd, and its 95% interval's coverage is a measured shortfall (it.fails: 0.83).
+ *   its sd, and its 95% interval's coverage is a measured shortfall (it.fails: 0.83; the corner
+ *   points' errors along their bisectors, docs/survey.md).
  * The criteria are the product's own (uncertainty is a product: common practice for coverage checks).
  */
 import { describe, expect, it } from 'vitest';
@@ -22,6 +25,8 @@ import { K2_95 } from '../../src/output/ellipse.js';
 import { defaultSpec, scenarioCsv, simulate, type Scenario } from '../../src/simulate/scenario.js';
 import { truthAt, type TruthTrack } from '../../src/simulate/truth.js';
 import type { SessionResult } from '../../src/session/result.js';
+import type { SurveyVertex } from '../../src/session/survey.js';
+import { intersectLines, legSums, lineOfSums, type Line } from '../../src/session/leg-corners.js';
 
 const cfg = loadConfig();
 
@@ -50,6 +55,34 @@ function truthSpeed(tr: TruthTrack, t: number): number {
   truthAt(tr, t - 0.5, p);
   truthAt(tr, t + 0.5, q);
   return Math.hypot(q[0]! - p[0]!, q[1]! - p[1]!);
+}
+
+/**
+ * The truth at a vertex of the measured polyline, built as the vertex is: the truth averaged over an
+ * occupied point's epochs, the truth at a single epoch, and at a corner rebuilt from its legs the
+ * intersection of the truth's own lines fitted over the same two windows of epochs.
+ */
+function truthVertex(sc: Scenario, r: SessionResult, v: SurveyVertex): number[] {
+  const m = [0, 0, 0];
+  for (let j = v.first; j <= v.last; j++) {
+    const t = sc.truthEnuAt(r.tSec[j]!);
+    for (let a = 0; a < 3; a++) m[a] += t[a]! / (v.last - v.first + 1);
+  }
+  if (v.corner) {
+    const line = (w: [number, number]): Line => {
+      const e: number[] = [], n: number[] = [];
+      for (let j = w[0]; j <= w[1]; j++) {
+        const t = sc.truthEnuAt(r.tSec[j]!);
+        e.push(t[0]!);
+        n.push(t[1]!);
+      }
+      return lineOfSums(legSums(e, n, 0, e.length - 1, e[0]!, n[0]!), e[0]!, n[0]!);
+    };
+    const x = intersectLines(line(v.corner.legA), line(v.corner.legB));
+    m[0] = x.e;
+    m[1] = x.n;
+  }
+  return m;
 }
 
 interface Pool {
@@ -92,14 +125,7 @@ function scoreWalk(sc: Scenario, r: SessionResult, p: Pool): void {
     const de = e - m[0]!, dn = n - m[1]!;
     if (de * de / o.sdEnu[0] ** 2 + dn * dn / o.sdEnu[1] ** 2 <= K2_95) p.inEll++;
   }
-  const vt = sv.vertices.map((v) => {
-    const m = [0, 0, 0];
-    for (let j = v.first; j <= v.last; j++) {
-      const t = sc.truthEnuAt(r.tSec[j]!);
-      for (let a = 0; a < 3; a++) m[a] += t[a]! / (v.last - v.first + 1);
-    }
-    return m;
-  });
+  const vt = sv.vertices.map((v) => truthVertex(sc, r, v));
   for (const L of sv.lengths) {
     if (L.segment < 0 || !L.horizontalM) continue;
     // the truth's polyline through the same vertices
@@ -135,6 +161,8 @@ describe('survey products on the walking survey with stops (pooled over seeds)',
   it('reports no occupation while the truth moves at walking speed', () => {
     expect(p.movingOcc).toBe(0);
   });
+  // measured: 41/41 here, 37/39 on seeds 201–212; with the correlated error at its true σ and τ
+  // 40/41: the over-coverage follows these logs' calibration (docs/survey.md)
   it.fails('95% ellipses of occupied points hold the true point 0.90–0.99 pooled', () => {
     expect(p.occupations).toBeGreaterThan(30);
     const c = p.inEll / p.occupations;
@@ -145,9 +173,9 @@ describe('survey products on the walking survey with stops (pooled over seeds)',
     expect(p.nLen).toBeGreaterThanOrEqual(20);
     expect(Math.abs(p.lenErr / p.nLen)).toBeLessThanOrEqual(p.lenSd / p.nLen);
   });
-  // measured shortfall: 21/24 (0.875; at a true 0.95, 21 or fewer of 24 has probability 0.12), on
-  // model-following truth below 30/32 (docs/survey.md)
-  it.fails('length 95% intervals hold the truth 0.90–0.99 pooled', () => {
+  // with corners rebuilt from their legs (session/leg-corners.ts): 22/24, mean error −0.1 m against
+  // a mean sd of 3.7 m (before: 21/24, −2.2 m, the smoothed track cutting the turns)
+  it('length 95% intervals hold the truth 0.90–0.99 pooled', () => {
     const c = p.inLen / p.nLen;
     expect(c).toBeGreaterThanOrEqual(0.9);
     expect(c).toBeLessThanOrEqual(0.99);
@@ -247,13 +275,16 @@ describe('survey products on closed loops (a rectangle walked round, pooled over
     expect(nArea).toBe(SEEDS.length);
     expect(Math.abs(areaErr / nArea)).toBeLessThanOrEqual(areaSd / nArea);
   });
-  // measured shortfall: 20/24 (0.83; at a true 0.95, 20 or fewer of 24 has probability 0.03)
+  // measured shortfall: 20/24 (0.83; at a true 0.95, 20 or fewer of 24 has probability 0.03; on
+  // seeds 301–324: 23/24); the same outward corners (docs/survey.md)
   it.fails('area 95% intervals hold the true area 0.90–0.99 pooled', () => {
     const c = inArea / nArea;
     expect(c).toBeGreaterThanOrEqual(0.9);
     expect(c).toBeLessThanOrEqual(0.99);
   });
-  // measured shortfall: 21 of 24 (0.875), mean error 1.16 m against a mean sd of 3.54 m
+  // measured shortfall: 21 of 24 (0.875), mean error 1.16 m against a mean sd of 3.54 m; the corner
+  // points sit outward along their bisectors by 0.14–0.35 sd and scatter 1.01–1.17 sd there (the
+  // model's braking into a stop; docs/survey.md); on seeds 301–324: 20 of 24
   it.fails('loop length 95% intervals hold the truth 0.90–0.99 pooled, mean error within the mean sd', () => {
     const c = p.inLen / p.nLen;
     expect(c).toBeGreaterThanOrEqual(0.9);
@@ -288,7 +319,7 @@ describe('lengths on logs whose truth follows the model (pooled over seeds)', ()
     const sc = simulate(defaultSpec('model', seed, { durationSec: 600 }));
     const r = run(sc);
     const sv = r.survey!;
-    const vt = sv.vertices.map((v) => sc.truthEnuAt(r.tSec[v.first]!));
+    const vt = sv.vertices.map((v) => truthVertex(sc, r, v));
     for (const L of sv.lengths) {
       if (L.segment < 0 || !L.horizontalM) continue;
       let T = 0;
