@@ -179,6 +179,8 @@ export async function runBatch(opt: BatchOptions): Promise<BatchResult> {
       : undefined,
   );
   if (removed > 0) note(`removed ${removed} temporary file(s) left by an interrupted run`);
+  // the full report data an earlier version kept per session (the pages are drawn in the workers now)
+  await rm(join(out, STATE_DIR, 'payloads'), { recursive: true, force: true });
   // a summary is there only once its batch has finished: remove the last one now (a shard's run
   // also makes the joined summary out of date)
   await rm(join(out, mySummary), { force: true });
