@@ -9,11 +9,12 @@ import { floorsBench } from './floors.js';
 import { imuBench } from './imu.js';
 import { manyLogsBench } from './many-logs.js';
 import { pipelineBench } from './pipeline.js';
+import { reportOverviewBench } from './report-overview.js';
 import { surveyBench } from './survey.js';
 import type { BenchPart } from './part.js';
 
 // floors after the pipeline part: it prices the pipeline's 1M run (bench/results.json)
-const PARTS: BenchPart[] = [imuBench, pipelineBench, floorsBench, batchBench, manyLogsBench, surveyBench];
+const PARTS: BenchPart[] = [imuBench, pipelineBench, floorsBench, batchBench, manyLogsBench, surveyBench, reportOverviewBench];
 
 let failed = 0;
 let targets = 0;

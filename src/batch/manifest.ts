@@ -3,9 +3,11 @@
  * atomically after the session's outputs, removed before they are rewritten. An entry records the
  * content hashes (SHA-256) of the session's input files, the effective configuration and its hash,
  * the tool version, and the outputs with their sizes, so a rerun can tell a current session from a
- * stale one without reading its outputs. Per-session report payloads sit beside it under
- * `<out>/.hindcast/payloads/`, in the structured-clone serialization of node:v8 (the same
- * algorithm that carries them from the worker threads), so typed arrays and NaN survive a resume.
+ * stale one without reading its outputs. With the report on, a session's outputs include its page
+ * (report/<stem>.html), and the small data of its row in report.html (thumbnail, a few figures:
+ * output/report/overview-data.ts) sits beside the entry under `<out>/.hindcast/overview/`, in the
+ * structured-clone serialization of node:v8 (the same algorithm that carries it from the worker
+ * threads), so NaN survives a resume and the overview is written without processing the session.
  */
 import { createHash } from 'node:crypto';
 import { createReadStream } from 'node:fs';
@@ -14,11 +16,13 @@ import { join } from 'node:path';
 import { deserialize, serialize } from 'node:v8';
 import type { HindcastConfig } from '../config/schema.js';
 import type { SessionSummary } from '../output/summary.js';
+import { sessionPageName } from '../output/report/page-path.js';
 import { writeFileAtomic } from './atomic-write.js';
 
-/** The hidden folder of the output folder that holds the manifest and the report payloads. */
+/** The hidden folder of the output folder that holds the manifest and the overview data. */
 export const STATE_DIR = '.hindcast';
-export const MANIFEST_SCHEMA = 1;
+/** 2: the session's page is one of its outputs and `payload` marks its overview data. */
+export const MANIFEST_SCHEMA = 2;
 
 export interface InputHash {
   /** "/"-separated path relative to the input root. */
@@ -42,7 +46,7 @@ export interface ManifestEntry {
   configHash: string;
   config: HindcastConfig;
   outputs: OutputFile[];
-  /** A report payload was saved for this session. */
+  /** The session's page was written (listed in outputs) and its overview data saved. */
   payload: boolean;
   /** The session's summary entry, reused as it is when the session is skipped. */
   summary: SessionSummary;
@@ -75,20 +79,20 @@ export function canonicalJson(v: unknown): string {
 
 /**
  * Hash of the settings a session's outputs depend on: the whole effective configuration except
- * `output.report` (whether report.html is drawn at the end; a session that lacks the report's data
- * is redone anyway when the report is switched on).
+ * `output.report` (whether the report is drawn; a session that lacks its page or overview data is
+ * redone anyway when the report is switched on).
  */
 export function configHash(cfg: HindcastConfig): string {
   const { report: _report, ...output } = cfg.output;
   return createHash('sha256').update(canonicalJson({ ...cfg, output })).digest('hex');
 }
 
-function stateFile(out: string, kind: 'manifest' | 'payloads', name: string, ext: string): string {
+function stateFile(out: string, kind: 'manifest' | 'overview', name: string, ext: string): string {
   return join(out, STATE_DIR, kind, ...`${name}${ext}`.split('/'));
 }
 
 export const manifestPath = (out: string, name: string): string => stateFile(out, 'manifest', name, '.json');
-export const payloadPath = (out: string, name: string): string => stateFile(out, 'payloads', name, '.v8');
+export const overviewDataPath = (out: string, name: string): string => stateFile(out, 'overview', name, '.v8');
 
 export async function readEntry(out: string, name: string): Promise<ManifestEntry | null> {
   try {
@@ -107,23 +111,23 @@ export async function removeEntry(out: string, name: string): Promise<void> {
   await rm(manifestPath(out, name), { force: true });
 }
 
-export async function writePayload(out: string, name: string, payload: unknown): Promise<void> {
-  await writeFileAtomic(payloadPath(out, name), serialize(payload));
+export async function writeOverviewData(out: string, name: string, data: unknown): Promise<void> {
+  await writeFileAtomic(overviewDataPath(out, name), serialize(data));
 }
 
-export async function readPayload(out: string, name: string): Promise<unknown> {
-  return deserialize(await readFile(payloadPath(out, name))) as unknown;
+export async function readOverviewData(out: string, name: string): Promise<unknown> {
+  return deserialize(await readFile(overviewDataPath(out, name))) as unknown;
 }
 
-export async function removePayload(out: string, name: string): Promise<void> {
-  await rm(payloadPath(out, name), { force: true });
+export async function removeOverviewData(out: string, name: string): Promise<void> {
+  await rm(overviewDataPath(out, name), { force: true });
 }
 
 export interface CurrentCheck {
   version: string;
   configHash: string;
   inputs: InputHash[];
-  /** The report module is present, so an ok session needs a saved payload. */
+  /** The report is on, so an ok session needs its page and its overview data. */
   needPayload: boolean;
 }
 
@@ -146,10 +150,10 @@ export async function staleReason(out: string, e: ManifestEntry | null, want: Cu
     }
   }
   if (e.summary.status === 'failed') return null;
-  if (want.needPayload && !e.payload) return 'no report data';
+  if (want.needPayload && (!e.payload || !e.outputs.some((o) => o.file === sessionPageName(e.name)))) return 'no report page';
   if (e.payload) {
     try {
-      await stat(payloadPath(out, e.name));
+      await stat(overviewDataPath(out, e.name));
     } catch {
       return 'report data missing';
     }

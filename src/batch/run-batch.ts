@@ -1,11 +1,13 @@
 /**
  * A batch: discover sessions, keep those whose outputs are current (resume manifest), process the
- * rest in parallel (worker threads) with each output written atomically, and write summary.json
- * last, then the report. One session's failure, or its worker's crash, never stops the others;
+ * rest in parallel (worker threads) with each output written atomically (each session's report
+ * page is drawn in its worker, as one of its outputs), and write summary.json last, then the
+ * overview report.html from the summary and the saved overview data. One session's failure, or its worker's crash, never stops the others;
  * a kill at any moment leaves only complete outputs plus temporaries that the next run removes.
  *
- * Order of writes for one session: manifest entry removed → outputs (all to temporaries, then
- * renamed) → report payload → manifest entry. So an entry exists only for outputs that are
+ * Order of writes for one session: manifest entry and overview data removed → outputs, the
+ * session's page among them with the report on (all to temporaries, then renamed) → overview data
+ * → manifest entry. So an entry exists only for outputs that are
  * complete and belong to the inputs it names. A session that fails leaves the outputs of an
  * earlier run in place: its summary entry says so (`stale`, `staleOutputs`) and its manifest entry
  * lists them, so a later run redoes the session when they are changed or gone.
@@ -16,7 +18,8 @@ import pLimit from 'p-limit';
 import type { HindcastConfig } from '../config/schema.js';
 import { UsageError } from '../errors.js';
 import { buildSummary, markStale, toJson, type BatchSummary, type SessionSummary } from '../output/summary.js';
-import type { ReportPayload } from '../output/report/payload.js';
+import type { OverviewData } from '../output/report/overview-data.js';
+import { pageOwner, REPORT_FILE } from '../output/report/page-path.js';
 import { VERSION } from '../version.js';
 import { cleanTemporaries, writeFileAtomic } from './atomic-write.js';
 import { discover, type SessionInput } from './discover.js';
@@ -24,12 +27,13 @@ import {
   configHash,
   hashFile,
   readEntry,
-  readPayload,
+  readOverviewData,
   removeEntry,
-  removePayload,
+  removeOverviewData,
   staleReason,
   writeEntry,
-  writePayload,
+  writeOverviewData,
+  MANIFEST_SCHEMA,
   STATE_DIR,
   type InputHash,
   type ManifestEntry,
@@ -120,8 +124,11 @@ export async function checkFolders(input: string, out: string): Promise<void> {
 
 /** Which session a file of the output folder (relative, "/"-separated) belongs to; null for batch-level files. */
 export function ownerOfOutput(rel: string): string | null {
+  const page = pageOwner(rel);
+  if (page !== null) return page;
+  if (rel === REPORT_FILE) return null;
   const parts = rel.split('/');
-  if (parts[0] === STATE_DIR && (parts[1] === 'manifest' || parts[1] === 'payloads') && parts.length > 2)
+  if (parts[0] === STATE_DIR && (parts[1] === 'manifest' || parts[1] === 'overview' || parts[1] === 'payloads') && parts.length > 2)
     return parts.slice(2).join('/').replace(/\.(json|v8)$/, '');
   if (parts[0] === STATE_DIR) return null;
   if (parts.length === 1 && /^summary(\.shard-\d+-of-\d+)?\.json$/.test(rel)) return null;
@@ -172,6 +179,8 @@ export async function runBatch(opt: BatchOptions): Promise<BatchResult> {
       : undefined,
   );
   if (removed > 0) note(`removed ${removed} temporary file(s) left by an interrupted run`);
+  // the full report data an earlier version kept per session (the pages are drawn in the workers now)
+  await rm(join(out, STATE_DIR, 'payloads'), { recursive: true, force: true });
   // a summary is there only once its batch has finished: remove the last one now (a shard's run
   // also makes the joined summary out of date)
   await rm(join(out, mySummary), { force: true });
@@ -201,16 +210,18 @@ export async function runBatch(opt: BatchOptions): Promise<BatchResult> {
     planned.map((p) =>
       ioLimit(async () => {
         if (p.refused) return;
-        const paths = Object.values(outputPaths(out, p.si.name));
+        const files = outputPaths(out, p.si.name);
+        const paths = Object.values(files);
         if (paths.some((x) => inputFiles.has(x))) {
           p.refused = 'an output file of this session would replace an input file; write to another folder';
           return;
         }
-        const parent = dirname(paths[0]!);
-        await mkdir(parent, { recursive: true });
-        if (inputIsFolder && inside(found.root, await realpath(parent))) {
-          p.refused = 'the output folder of this session lies inside the input folder (symbolic link?); write to another folder';
-          return;
+        for (const parent of report ? [dirname(files.track), dirname(files.page)] : [dirname(files.track)]) {
+          await mkdir(parent, { recursive: true });
+          if (inputIsFolder && inside(found.root, await realpath(parent))) {
+            p.refused = 'the output folder of this session lies inside the input folder (symbolic link?); write to another folder';
+            return;
+          }
         }
         p.inputs = await hashInputs(p.si);
         p.entry = await readEntry(out, p.si.name);
@@ -241,7 +252,7 @@ export async function runBatch(opt: BatchOptions): Promise<BatchResult> {
         limit(async () => {
           const name = p.si.name;
           await removeEntry(out, name);
-          await removePayload(out, name);
+          await removeOverviewData(out, name);
           opt.onEvent?.({ type: 'start', name, input: p.si.relPath });
           const decisions = p.si.companions.find((c) => c.suffix === '.decisions.csv');
           const imu = p.si.companions.find((c) => c.suffix === '.imu.csv');
@@ -264,10 +275,10 @@ export async function runBatch(opt: BatchOptions): Promise<BatchResult> {
               r.outputs = kept;
             }
           }
-          if (r.summary.status === 'ok' && r.payload !== undefined) await writePayload(out, name, r.payload);
+          if (r.summary.status === 'ok' && r.overview !== undefined) await writeOverviewData(out, name, r.overview);
           if (r.summary.status === 'ok' || r.settled)
             await writeEntry(out, {
-              schema: 1,
+              schema: MANIFEST_SCHEMA,
               tool: 'hindcast',
               version: VERSION,
               name,
@@ -275,7 +286,7 @@ export async function runBatch(opt: BatchOptions): Promise<BatchResult> {
               configHash: cfgHash,
               config: opt.config,
               outputs: r.outputs,
-              payload: r.summary.status === 'ok' && r.payload !== undefined,
+              payload: r.summary.status === 'ok' && r.overview !== undefined,
               summary: r.summary,
               settled: r.settled,
             });
@@ -316,21 +327,28 @@ export async function runBatch(opt: BatchOptions): Promise<BatchResult> {
   return res;
 }
 
-/** Load the saved payloads of the ok sessions and write the report; returns an error message or null. */
+/**
+ * Write the overview report.html from the summary and the saved overview data of the ok sessions
+ * (their pages are written already, by their workers); returns an error message or null.
+ */
 export async function buildReport(out: string, summary: BatchSummary): Promise<string | null> {
   try {
-    // loaded on demand: the chart library is large, and runs without a report never need it
     const { writeReport } = await import('../output/report/write-report.js');
-    const payloads = new Map<string, ReportPayload>();
-    for (const s of summary.sessions) {
-      if (s.status !== 'ok') continue;
-      try {
-        payloads.set(s.name, (await readPayload(out, s.name)) as ReportPayload);
-      } catch {
-        /* a session without report data is left out of the report */
-      }
-    }
-    await writeReport(out, summary, payloads);
+    const data = new Map<string, OverviewData>();
+    const ioLimit = pLimit(8);
+    await Promise.all(
+      summary.sessions.map((s) =>
+        ioLimit(async () => {
+          if (s.status !== 'ok') return;
+          try {
+            data.set(s.name, (await readOverviewData(out, s.name)) as OverviewData);
+          } catch {
+            /* a session without overview data gets the row its summary entry allows */
+          }
+        }),
+      ),
+    );
+    await writeReport(out, summary, data);
     return null;
   } catch (e) {
     return (e as Error)?.message ?? String(e);

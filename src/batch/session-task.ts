@@ -1,9 +1,10 @@
 /**
  * One session from log to outputs: read, user decisions (`<stem>.decisions.csv`), process (with
- * the IMU when `<stem>.imu.csv` lies beside the log), write every output atomically, and compute
- * the report payload. Runs inside a worker thread (worker.ts) or in-process; it takes and returns
- * only structured-clone-safe data, and returns the summary entry and the small payload instead of
- * the SessionResult, so the batch's memory does not grow with its size.
+ * the IMU when `<stem>.imu.csv` lies beside the log), and write every output atomically; with the
+ * report on, the session's page (report/<stem>.html) is drawn here too and staged with the other
+ * outputs. Runs inside a worker thread (worker.ts) or in-process; it takes and returns only
+ * structured-clone-safe data, and returns the summary entry and the overview's few kilobytes
+ * instead of the SessionResult, so the batch's memory and its last step do not grow with its size.
  */
 import { readFile, rm, stat } from 'node:fs/promises';
 import { join } from 'node:path';
@@ -25,7 +26,10 @@ import { sessionGpxChunks } from '../output/gpx.js';
 import { pointsCsvChunks } from '../output/points-csv.js';
 import { releasePosterior } from '../session/posterior.js';
 import { reportPayload } from '../output/report/payload.js';
+import { overviewData, type OverviewData } from '../output/report/overview-data.js';
+import { sessionPageName } from '../output/report/page-path.js';
 import { okEntry, type SessionSummary } from '../output/summary.js';
+import { VERSION } from '../version.js';
 import { commitTemporaries, writeChunksToTemporary } from './atomic-write.js';
 import type { OutputFile } from './manifest.js';
 
@@ -42,14 +46,15 @@ export interface SessionTask {
   /** Absolute output folder. */
   out: string;
   config: HindcastConfig;
-  /** Compute a report payload (the report is on). */
+  /** Draw the session's page and its overview data (the report is on). */
   withPayload: boolean;
 }
 
 export interface SessionOutcome {
   summary: SessionSummary;
   outputs: OutputFile[];
-  payload?: unknown;
+  /** The session's row data of report.html (with the report on, ok sessions). */
+  overview?: OverviewData;
   /** The failure would repeat on the same inputs and configuration (bad input or settings). */
   settled: boolean;
 }
@@ -65,14 +70,16 @@ export interface SessionFiles {
   epochsLayer: string;
   gpx: string;
   points: string;
+  /** The session's report page (with the report on). */
+  page: string;
 }
 
-/** Every output a session may have (the GPX only with output.gpx), relative to the output folder ("/"-separated). */
+/** Every output a session may have (the GPX only with output.gpx, the page only with the report), relative to the output folder ("/"-separated). */
 export function outputNames(name: string): SessionFiles {
   return {
     track: `${name}.track.csv`, outliers: `${name}.outliers.csv`, geojson: `${name}.geojson`,
     trackLayer: `${name}.track.geojson`, flagsLayer: `${name}.flags.geojson`, occupationsLayer: `${name}.occupations.geojson`, epochsLayer: `${name}.epochs.geojson`,
-    gpx: `${name}.gpx`, points: `${name}.points.csv`,
+    gpx: `${name}.gpx`, points: `${name}.points.csv`, page: sessionPageName(name),
   };
 }
 
@@ -83,17 +90,26 @@ export function outputPaths(out: string, name: string): SessionFiles {
   return {
     track: abs(n.track), outliers: abs(n.outliers), geojson: abs(n.geojson),
     trackLayer: abs(n.trackLayer), flagsLayer: abs(n.flagsLayer), occupationsLayer: abs(n.occupationsLayer), epochsLayer: abs(n.epochsLayer),
-    gpx: abs(n.gpx), points: abs(n.points),
+    gpx: abs(n.gpx), points: abs(n.points), page: abs(n.page),
   };
+}
+
+export interface WriteOptions {
+  /**
+   * Draw the session's page (report/<stem>.html), given the names of all the session's outputs
+   * (the page's own included); it is staged with the others. Without it, a page of an earlier
+   * run is removed.
+   */
+  page?: (outputs: string[]) => Promise<string>;
 }
 
 /**
  * Write the outputs of one session (streamed in chunks of about a megabyte so no output is held
  * whole in memory): every file goes to a temporary first, and only when all are complete are they
- * renamed into place, so a failure while writing leaves the earlier outputs as they were. Returns
- * them relative to `out` with sizes.
+ * renamed into place, so a failure while writing (or drawing the page) leaves the earlier outputs
+ * as they were. Returns them relative to `out` with sizes.
  */
-export async function writeSessionOutputs(out: string, r: SessionResult, cfg: HindcastConfig): Promise<OutputFile[]> {
+export async function writeSessionOutputs(out: string, r: SessionResult, cfg: HindcastConfig, opt: WriteOptions = {}): Promise<OutputFile[]> {
   const n = outputNames(r.name);
   const p = outputPaths(out, r.name);
   const written: Array<keyof SessionFiles> = ['track', 'outliers', 'geojson'];
@@ -106,7 +122,11 @@ export async function writeSessionOutputs(out: string, r: SessionResult, cfg: Hi
   // occupied points (fixes-only sessions: the IMU path has no joint posterior yet)
   if (r.survey) written.push('points');
   else absent.push('points');
+  if (opt.page) written.push('page');
+  else absent.push('page');
+  let pageHtml = '';
   const chunksOf = (k: keyof SessionFiles) => {
+    if (k === 'page') return [pageHtml];
     if (k === 'track') return trackCsvChunks(r);
     if (k === 'outliers') return outliersCsvChunks(r);
     if (k === 'geojson') return sessionGeoJsonChunks(r, geoJsonOptions(cfg));
@@ -118,6 +138,7 @@ export async function writeSessionOutputs(out: string, r: SessionResult, cfg: Hi
   // while writing leaves the earlier run's files untouched
   const staged: Array<{ tmp: string; path: string }> = [];
   try {
+    if (opt.page) pageHtml = await opt.page(written.map((k) => n[k]));
     for (const k of written) staged.push({ tmp: await writeChunksToTemporary(p[k], chunksOf(k)), path: p[k] });
   } catch (e) {
     for (const s of staged) await rm(s.tmp, { force: true });
@@ -172,9 +193,19 @@ export async function runSessionTask(t: SessionTask): Promise<SessionOutcome> {
     // the survey products are computed: the joint posterior's arrays can go before the writes
     releasePosterior(r);
     const payload = t.withPayload ? reportPayload(r, { maxPoints: t.config.output.reportMaxPoints }) : undefined;
-    const outputs = await writeSessionOutputs(t.out, r, t.config);
-    const summary = okEntry(r, t.relPath, outputs.map((o) => o.file), round3((performance.now() - t0) / 1000));
-    return { summary, outputs, payload, settled: false };
+    let entry: SessionSummary | undefined;
+    const page = payload
+      ? async (names: string[]) => {
+          // the chart library is large: loaded only where a page is drawn
+          const { sessionPageHtml } = await import('../output/report/session-page.js');
+          entry = okEntry(r, t.relPath, names, 0);
+          return sessionPageHtml(entry, payload, { tool: 'hindcast', version: VERSION, profile: t.config.profile });
+        }
+      : undefined;
+    const outputs = await writeSessionOutputs(t.out, r, t.config, { page });
+    const elapsedSec = round3((performance.now() - t0) / 1000);
+    const summary = entry ? { ...entry, elapsedSec } : okEntry(r, t.relPath, outputs.map((o) => o.file), elapsedSec);
+    return { summary, outputs, ...(payload ? { overview: overviewData(payload) } : {}), settled: false };
   } catch (e) {
     // the outputs of an earlier run stay where they are (the batch marks them stale)
     const warnings = (e as { warnings?: InputWarning[] }).warnings ?? [];

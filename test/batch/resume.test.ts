@@ -4,7 +4,7 @@
  * In-process runs (the thread pool has its own tests).
  */
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
-import { appendFile, mkdir, readdir, readFile, rm, symlink, writeFile } from 'node:fs/promises';
+import { appendFile, mkdir, readdir, readFile, rm, stat, symlink, writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import { loadConfig } from '../../src/config/load.js';
 import { runBatch } from '../../src/batch/run-batch.js';
@@ -37,6 +37,30 @@ describe('resume', () => {
     expect(second.upToDate).toEqual(names);
     expect(second.summary.run).toMatchObject({ processed: 0, upToDate: 4 });
     expect(differingFiles(await comparableOutputs(out), before)).toEqual([]);
+  });
+
+  it('with the report, each session has its page as an output: an unchanged session\'s page is kept as it is (bytes and mtime), a changed session\'s page replaced', async () => {
+    const names = await writeSessions(input, 3);
+    const first = await runBatch({ input, out, config: withReport });
+    expect(first.exitCode).toBe(0);
+    const page = (n: string) => join(out, 'report', `${n}.html`);
+    const look = async (n: string) => ({ bytes: await readFile(page(n)), mtimeMs: (await stat(page(n))).mtimeMs });
+    const before = new Map(await Promise.all(names.map(async (n) => [n, await look(n)] as const)));
+    for (const s of first.summary.sessions) expect(s.outputs).toContain(`report/${s.name}.html`);
+    // the overview links every page
+    const overview = await readFile(join(out, 'report.html'), 'utf8');
+    for (const n of names) expect(overview).toContain(`href="report/${n}.html"`);
+    await writeFile(join(input, 'log01.csv'), sessionCsv(4242));
+    const second = await runBatch({ input, out, config: withReport });
+    expect(second.processed).toEqual([names[1]]);
+    for (const n of [names[0]!, names[2]!]) expect(await look(n), n).toEqual(before.get(n));
+    const changed = await look(names[1]!);
+    expect(changed.bytes.equals(before.get(names[1]!)!.bytes)).toBe(false);
+    // a page removed by hand redoes its session only
+    await rm(page(names[2]!));
+    const third = await runBatch({ input, out, config: withReport });
+    expect(third.processed).toEqual([names[2]]);
+    expect(await look(names[0]!)).toEqual(before.get(names[0]!));
   });
 
   it('a changed log redoes that session only', async () => {
@@ -138,6 +162,20 @@ describe('failures and safety', () => {
     expect(await readFile(join(out, 'log01.track.csv'))).toEqual(before);
     expect(r.summary.sessions[1]).toMatchObject({ status: 'failed', stale: true, staleOutputs: ['log01.track.csv', 'log01.outliers.csv', 'log01.geojson', 'log01.track.geojson', 'log01.flags.geojson', 'log01.points.csv'] });
     await readFile(join(out, 'log00.track.csv'));
+  });
+
+  it('with the report, a session that fails after an earlier success keeps its old page among its stale outputs, linked as such from the overview', async () => {
+    await writeSessions(input, 2);
+    await runBatch({ input, out, config: withReport });
+    const before = await readFile(join(out, 'report', 'log01.html'));
+    await writeFile(join(input, 'log01.csv'), 'garbage\n');
+    const r = await runBatch({ input, out, config: withReport });
+    expect(r.processed).toEqual(['log01']);
+    expect(await readFile(join(out, 'report', 'log01.html'))).toEqual(before);
+    expect(r.summary.sessions[1]!.staleOutputs).toContain('report/log01.html');
+    const row = (await readFile(join(out, 'report.html'), 'utf8')).split('<tr class="failed">')[1]!.split('</tr>')[0]!;
+    expect(row).toContain('href="report/log01.html"');
+    expect(row).toContain('(page of an earlier run)');
   });
 
   it('refuses an output folder equal to or inside the input folder, before writing anything', async () => {

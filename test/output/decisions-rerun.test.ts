@@ -16,7 +16,7 @@ import { trackCsv } from '../../src/output/track-csv.js';
 import { outliersCsv } from '../../src/output/outliers-csv.js';
 import { sessionGeoJson } from '../../src/output/geojson.js';
 import { buildSummary, okEntry } from '../../src/output/summary.js';
-import { reportHtml, reportPayload } from '../../src/output/report/index.js';
+import { overviewData, reportHtml, reportPayload, sessionPageHtml } from '../../src/output/report/index.js';
 import { loadConfig } from '../../src/config/load.js';
 import { readFixCsv } from '../../src/input/csv-fixes.js';
 import { DEFAULT_ERRORS, defaultSpec, scenarioCsv, simulate } from '../../src/simulate/scenario.js';
@@ -124,8 +124,9 @@ describe('decisions fed back on a rerun', () => {
     expect(p.decisionCount).toBe(2);
     expect(p.decisions.map((d) => d.decision).sort()).toEqual(['keep', 'reject']);
     const times = trackTimes(after);
-    const html = await reportHtml(buildSummary('t', 'logs', 'default', [okEntry(after, 'vehicle-7.csv', [], 0)]), new Map([['vehicle-7', p]]));
-    const section = html.slice(html.indexOf('<section class="session"'));
+    const entry = okEntry(after, 'vehicle-7.csv', [], 0);
+    const page = await sessionPageHtml(entry, p, { tool: 'hindcast', version: 't', profile: 'default' });
+    const section = page.slice(page.indexOf('<section class="session"'));
     expect(section).toContain(`<td><code>${times[rejectKept]}</code></td><td>rejected by you (user-rejected)</td>`);
     expect(section).toContain(`<td><code>${times[keepFlagged]}</code></td><td>kept by you (user-kept)</td>`);
     // and in the flagged-fix table, the user's rejection is marked as theirs
@@ -135,6 +136,6 @@ describe('decisions fed back on a rerun', () => {
     expect(row).toContain('>looked at it, reject</td>');
     expect(section).toContain('<td>looked at it, keep</td>');
     // the overview counts them
-    expect(html).toContain('2 decided by you');
+    expect(reportHtml(buildSummary('t', 'logs', 'default', [entry]), new Map([['vehicle-7', overviewData(p)]]))).toContain('2 decided by you');
   });
 });

@@ -7,7 +7,7 @@ import { processSession } from '../../src/session/process-session.js';
 import type { SessionResult } from '../../src/session/result.js';
 import { buildSummary, okEntry, type BatchSummary } from '../../src/output/summary.js';
 import { defaultSpec, scenarioCsv, simulate, type ScenarioSpec } from '../../src/simulate/scenario.js';
-import { reportPayload, type ReportPayload } from '../../src/output/report/index.js';
+import { overviewData, reportPayload, sessionPageName, type OverviewData, type ReportPayload } from '../../src/output/report/index.js';
 
 export interface Fixture {
   cfg: HindcastConfig;
@@ -51,14 +51,19 @@ export function withImu(r: SessionResult, name = `${r.name}-imu`): SessionResult
   };
 }
 
-/** A batch of four ok sessions (one long enough to be thinned, one IMU-aided) and one failed session. */
-export function batch(): { summary: BatchSummary; payloads: Map<string, ReportPayload>; results: SessionResult[] } {
+/**
+ * A batch of four ok sessions (one long enough to be thinned, one IMU-aided) and one failed
+ * session: the summary (each ok session lists its page among its outputs, as the batch writes
+ * them), the report payloads and the overview data made from them.
+ */
+export function batch(): { summary: BatchSummary; payloads: Map<string, ReportPayload>; overviews: Map<string, OverviewData>; results: SessionResult[] } {
   const v = session('vehicle', 7, { durationSec: 300 }).result;
   const results = [v, session('walk', 3, { durationSec: 420 }).result, session('drone', 5, { durationSec: 300 }).result, withImu(v)];
-  const entries = results.map((r) => okEntry(r, `${r.name}.csv`, [`${r.name}.track.csv`], 0.1));
+  const entries = results.map((r) => okEntry(r, `${r.name}.csv`, [`${r.name}.track.csv`, sessionPageName(r.name)], 0.1));
   entries.push({ name: 'broken', input: 'broken.csv', status: 'failed', reason: 'broken.csv:1: no time column found', warnings: [] });
   const summary = buildSummary('0.0.0-test', 'logs', 'default', entries);
   // the drone session (1500 epochs at 5 Hz) is thinned for drawing
   const payloads = new Map(results.map((r) => [r.name, reportPayload(r, { maxPoints: r.name.startsWith('drone') ? 600 : 2000 })] as const));
-  return { summary, payloads, results };
+  const overviews = new Map([...payloads].map(([k, p]) => [k, overviewData(p)] as const));
+  return { summary, payloads, overviews, results };
 }

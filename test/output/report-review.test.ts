@@ -5,8 +5,8 @@
  * the facts in words (no projection string, no key=value parameter line).
  */
 import { describe, expect, test } from 'vitest';
-import { reportHtml, reportPayload } from '../../src/output/report/index.js';
-import { buildSummary, okEntry } from '../../src/output/summary.js';
+import { reportPayload, sessionPageHtml } from '../../src/output/report/index.js';
+import { okEntry } from '../../src/output/summary.js';
 import { frameInWords } from '../../src/output/report/payload.js';
 import { localTime } from '../../src/output/report/html-text.js';
 import { CLOSEUPS_MAX, CLOSEUP_JOIN_EPOCHS } from '../../src/output/report/closeup-data.js';
@@ -17,7 +17,7 @@ const r = session('vehicle', 7, { durationSec: 300 }).result;
 
 async function sectionOf(res: typeof r): Promise<{ html: string; p: ReturnType<typeof reportPayload> }> {
   const p = reportPayload(res);
-  const h = await reportHtml(buildSummary('t', 'in', 'default', [okEntry(res, 'x.csv', [], 0)]), new Map([[res.name, p]]));
+  const h = await sessionPageHtml(okEntry(res, 'x.csv', [], 0), p, { tool: 'hindcast', version: 't', profile: 'default' });
   return { html: h.slice(h.indexOf('<section class="session"')), p };
 }
 

@@ -1,11 +1,18 @@
 /**
  * The batch overview: one row per session (ok or failed) with what tells at a glance whether it
- * needs a look: status, what to look at, length, duration, flagged fixes, bridged time, median and
- * worst 95% ellipse, calibrated noise, decisions, warnings. Sortable by any column (sort-script.ts).
+ * needs a look: its name linking to its page (report/<stem>.html), a track thumbnail, status, what
+ * to look at, length, duration, flagged fixes, bridged time, median and worst 95% ellipse,
+ * calibrated noise, decisions, warnings. Sortable by any column with a heading button
+ * (sort-script.ts). Reads only the summary entries and the small per-session overview data.
  */
 import type { BatchSummary, SessionSummary } from '../summary.js';
-import { esc, duration, num, sessionAnchor, sortKey } from './html-text.js';
-import { calibratedNoise, type CalibratedNoise, type ReportPayload } from './payload.js';
+import { esc, duration, num, sortKey } from './html-text.js';
+import { calibratedNoise, type CalibratedNoise } from './payload.js';
+import type { OverviewData, OverviewFacts } from './overview-data.js';
+import { sessionPageHref, sessionPageName } from './page-path.js';
+import { thumbnailSvg } from './thumbnail.js';
+
+type P = OverviewFacts | undefined;
 
 /** "1.25 / 2.40 m" */
 export function noiseText(c: CalibratedNoise): string {
@@ -14,13 +21,13 @@ export function noiseText(c: CalibratedNoise): string {
 
 interface Column {
   head: string;
-  /** 'num' columns sort numerically on data-sort. */
-  type: 'num' | 'text';
-  cell(s: SessionSummary, p: ReportPayload | undefined, i: number): { text: string; sort: string; html?: string };
+  /** 'num' columns sort numerically on data-sort; 'none' columns do not sort. */
+  type: 'num' | 'text' | 'none';
+  cell(s: SessionSummary, p: OverviewData | undefined): { text: string; sort: string; html?: string; cls?: string };
 }
 
 /** What to look at in a session, in words (empty when nothing stands out). */
-export function attention(s: SessionSummary, p: ReportPayload | undefined): string[] {
+export function attention(s: SessionSummary, p: P): string[] {
   if (s.status === 'failed') return s.stale ? ['failed', 'outputs of an earlier run kept (stale)'] : ['failed'];
   const m = s.metrics;
   const out: string[] = [];
@@ -32,7 +39,7 @@ export function attention(s: SessionSummary, p: ReportPayload | undefined): stri
   return out;
 }
 
-function bridgedSec(s: SessionSummary, p: ReportPayload | undefined): number {
+function bridgedSec(s: SessionSummary, p: P): number {
   if (p) return p.bridgedSec;
   const m = s.metrics;
   return m ? m.bridgedCount * m.nominalIntervalSec : NaN;
@@ -41,7 +48,15 @@ function bridgedSec(s: SessionSummary, p: ReportPayload | undefined): number {
 const COLUMNS: Column[] = [
   {
     head: 'session', type: 'text',
-    cell: (s, _p, i) => ({ text: s.name, sort: s.name, html: `<a href="#${sessionAnchor(i)}">${esc(s.name)}</a>` }),
+    cell: (s) => {
+      const page = sessionPage(s);
+      const link = page === null ? esc(s.name) : `<a href="${esc(sessionPageHref(s.name))}">${esc(s.name)}</a>${page === 'stale' ? ' (page of an earlier run)' : ''}`;
+      return { text: s.name, sort: s.name, html: link };
+    },
+  },
+  {
+    head: 'track', type: 'none',
+    cell: (s, p) => (p && p.thumbnail.lines.length > 0 ? { text: '', sort: '', html: thumbnailSvg(p.thumbnail, `Track of ${s.name}`), cls: 'thumb' } : { text: '–', sort: '' }),
   },
   { head: 'status', type: 'text', cell: (s) => ({ text: s.stale ? 'failed, stale outputs kept' : s.status, sort: s.status }) },
   {
@@ -75,22 +90,31 @@ const COLUMNS: Column[] = [
   { head: 'warnings', type: 'num', cell: (s) => ({ text: String(s.warnings.length), sort: String(s.warnings.length) }) },
 ];
 
-export function overviewTable(summary: BatchSummary, payloads: Map<string, ReportPayload>): string {
-  const head = COLUMNS.map((c, i) => `<th scope="col" data-type="${c.type}" data-col="${i}" aria-sort="none"><button type="button">${esc(c.head)}</button></th>`).join('');
+/** Whether a session's page is on disk as one of its outputs: 'current', 'stale' (an earlier run's, kept), or null. */
+export function sessionPage(s: SessionSummary): 'current' | 'stale' | null {
+  const page = sessionPageName(s.name);
+  if (s.status === 'ok') return s.outputs?.includes(page) ? 'current' : null;
+  return s.staleOutputs?.includes(page) ? 'stale' : null;
+}
+
+export function overviewTable(summary: BatchSummary, data: ReadonlyMap<string, OverviewData>): string {
+  const head = COLUMNS.map((c, i) =>
+    c.type === 'none' ? `<th scope="col" data-col="${i}">${esc(c.head)}</th>` : `<th scope="col" data-type="${c.type}" data-col="${i}" aria-sort="none"><button type="button">${esc(c.head)}</button></th>`,
+  ).join('');
   const rows = summary.sessions
-    .map((s, i) => {
-      const p = payloads.get(s.name);
+    .map((s) => {
+      const p = data.get(s.name);
       const cells = COLUMNS.map((c, ci) => {
-        const v = c.cell(s, p, i);
+        const v = c.cell(s, p);
         const tag = ci === 0 ? 'th scope="row"' : 'td';
         const end = ci === 0 ? 'th' : 'td';
-        return `<${tag} data-sort="${esc(v.sort)}">${v.html ?? esc(v.text)}</${end}>`;
+        return `<${tag}${v.cls ? ` class="${v.cls}"` : ''} data-sort="${esc(v.sort)}">${v.html ?? esc(v.text)}</${end}>`;
       }).join('');
       return `<tr class="${s.status === 'failed' ? 'failed' : 'ok'}">${cells}</tr>`;
     })
     .join('\n');
   return `<table class="overview sortable" id="overview">
-<caption>Sessions of this batch. Select a column heading to sort by it; select it again to reverse.</caption>
+<caption>Sessions of this batch. Select a session to open its page (plots, close-ups, flagged fixes); select a column heading to sort by it, again to reverse.</caption>
 <thead><tr>${head}</tr></thead>
 <tbody>
 ${rows}

@@ -1,90 +1,47 @@
 /**
- * report.html as one self-contained page: inline style, inline SVG plots, one small inline script,
- * a Content-Security-Policy that forbids every load, so the file opens the same from a USB stick
- * with no network. The cautions stand at the top and the bottom.
+ * report.html, the overview of a batch: the cautions, the batch in one line, the sortable table of
+ * sessions (each with a track thumbnail and a link to its own page, report/<stem>.html, drawn by
+ * the worker that processed it: session-page.ts), and the reasons of the failed sessions. Nothing
+ * is drawn here, so its size and time grow only by a small row a session.
  */
-import { CAUTION } from '../caution.js';
 import type { BatchSummary } from '../summary.js';
-import { REPORT_EXTENSIONS, type ReportExtension } from './extensions.js';
 import { esc } from './html-text.js';
+import { OVERVIEW_DATA_VERSION, type OverviewData } from './overview-data.js';
 import { overviewTable } from './overview-table.js';
-import { PAYLOAD_VERSION, type ReportPayload } from './payload.js';
-import { sessionSection } from './session-section.js';
+import { reportPage } from './page-shell.js';
 import { SORT_SCRIPT } from './sort-script.js';
-import { FLAG_LINKS_SCRIPT } from './flag-links-script.js';
 
-const STYLE = `
-body { font-family: system-ui, -apple-system, "Segoe UI", Roboto, sans-serif; margin: 1.5rem auto; max-width: 72rem; padding: 0 1rem; color: #1b1b1b; line-height: 1.4; }
-h1 { font-size: 1.6rem; margin-bottom: .2rem; }
-h2 { border-top: 2px solid #444; padding-top: .8rem; margin-top: 2.5rem; }
-h2 .status { font-size: .9rem; font-weight: normal; border: 1px solid #666; border-radius: 3px; padding: 0 .3rem; }
-.caution { border: 2px solid #8a6d00; background: #fff8dc; padding: .6rem .9rem; margin: 1rem 0; }
-table { border-collapse: collapse; margin: .8rem 0; font-size: .86rem; }
-caption { text-align: left; font-weight: 600; padding: .3rem 0; }
-th, td { border: 1px solid #bbb; padding: .2rem .45rem; text-align: left; vertical-align: top; }
-td { font-variant-numeric: tabular-nums; }
-td code { white-space: nowrap; }
-thead th { background: #eef1f4; }
-thead th button { font: inherit; font-weight: 600; border: 0; background: none; cursor: pointer; padding: 0; text-align: left; }
-thead th[aria-sort="ascending"] button::after { content: " ▲"; }
-thead th[aria-sort="descending"] button::after { content: " ▼"; }
-tr.failed th, tr.failed td { background: #fbeaea; font-style: italic; }
-dl.figures { display: grid; grid-template-columns: max-content 1fr; gap: .1rem 1rem; font-size: .88rem; }
-dl.figures dt { color: #444; }
-dl.figures dd { margin: 0; overflow-wrap: anywhere; }
-figure.plot { margin: 1.2rem 0; }
-figure.plot svg { max-width: 100%; height: auto; display: block; }
-figcaption { font-size: .86rem; margin-bottom: .3rem; }
-.note, .howto { font-size: .86rem; color: #333; }
-.warnings .code { color: #555; }
-div.closeups { display: flex; flex-wrap: wrap; gap: .8rem 1.2rem; }
-figure.closeup { margin: .4rem 0; width: 22rem; }
-figure.closeup svg { max-width: 100%; height: auto; display: block; }
-table.flagged tr:target td, table.flagged tr.picked td { background: #fff3c4; }
-footer { margin-top: 3rem; font-size: .85rem; border-top: 1px solid #999; padding-top: .6rem; }
-@media print { .caution { background: none; } h2 { break-before: page; } }
-`;
+export { REPORT_CSP } from './page-shell.js';
 
-export const REPORT_CSP = "default-src 'none'; style-src 'unsafe-inline'; script-src 'unsafe-inline'; img-src data:; base-uri 'none'; form-action 'none'";
+function failures(summary: BatchSummary): string {
+  const failed = summary.sessions.filter((s) => s.status === 'failed');
+  if (failed.length === 0) return '';
+  const items = failed
+    .map((s) => {
+      const w = s.warnings.length ? ` (${s.warnings.length} warning${s.warnings.length > 1 ? 's' : ''} in summary.json)` : '';
+      return `<li data-session="${esc(s.name)}"><strong>${esc(s.name)}</strong> (<code>${esc(s.input)}</code>): ${esc(s.reason ?? 'unknown reason')}${w}</li>`;
+    })
+    .join('\n');
+  return `<h2 id="failed-heading">Failed sessions (${failed.length})</h2>
+<ul class="failures">
+${items}
+</ul>`;
+}
 
-export async function reportHtml(summary: BatchSummary, payloads: Map<string, ReportPayload>, extensions: readonly ReportExtension[] = REPORT_EXTENSIONS): Promise<string> {
-  const sections: string[] = [];
-  for (let i = 0; i < summary.sessions.length; i++) {
-    const s = summary.sessions[i]!;
-    // a payload saved by another version of the report (a resumed batch) is not drawn
-    const p = payloads.get(s.name);
-    sections.push(await sessionSection(s, p && p.version === PAYLOAD_VERSION ? p : undefined, i, extensions));
-  }
+/** @param data the overview data of the ok sessions, by session name (data of another version is left out) */
+export function reportHtml(summary: BatchSummary, data: ReadonlyMap<string, OverviewData>): string {
+  const current = new Map([...data].filter(([, d]) => d && d.version === OVERVIEW_DATA_VERSION));
   const t = summary.totals;
-  const caution = `<p class="caution" role="note"><strong>Caution.</strong> ${esc(CAUTION)}</p>`;
-  return `<!DOCTYPE html>
-<html lang="en">
-<head>
-<meta charset="utf-8">
-<meta http-equiv="Content-Security-Policy" content="${REPORT_CSP}">
-<meta name="viewport" content="width=device-width, initial-scale=1">
-<meta name="generator" content="${esc(`${summary.tool} ${summary.version}`)}">
-<title>Hindcast review report: ${esc(summary.input)}</title>
-<style>${STYLE}</style>
-</head>
-<body>
-<header>
-<h1>Hindcast review report</h1>
+  return reportPage({
+    title: `Hindcast review report: ${summary.input}`,
+    generator: `${summary.tool} ${summary.version}`,
+    header: `<h1>Hindcast review report</h1>
 <p>Input <code>${esc(summary.input)}</code>, profile <code>${esc(summary.profile)}</code>, written ${esc(summary.createdUtc)} by ${esc(summary.tool)} ${esc(summary.version)}.
-${t.sessions} session(s): ${t.ok} ok, ${t.failed} failed; ${t.fixes} fixes, ${t.outliers} flagged, ${t.bridged} bridged epochs.</p>
-${caution}
-</header>
-<main>
-<h2 id="overview-heading">Overview</h2>
-${overviewTable(summary, payloads)}
-${sections.join('\n')}
-</main>
-<footer>
-${caution}
-<p>Times are UTC, and also in the log's own zone where the configuration names one (input.timeZone). Positions in the plots are metres in each session's local frame (named in its figures); the GeoJSON, GPX and CSV outputs hold WGS84 coordinates.</p>
-</footer>
-<script>${SORT_SCRIPT}${FLAG_LINKS_SCRIPT}</script>
-</body>
-</html>
-`;
+${t.sessions} session(s): ${t.ok} ok, ${t.failed} failed; ${t.fixes} fixes, ${t.outliers} flagged, ${t.bridged} bridged epochs.</p>`,
+    main: `<h2 id="overview-heading">Overview</h2>
+${overviewTable(summary, current)}
+<p class="note">Each session's page (under <code>report/</code>) holds its figures, plots, close-ups of the flagged fixes, the flagged table and its survey section.</p>
+${failures(summary)}`,
+    script: SORT_SCRIPT,
+  });
 }

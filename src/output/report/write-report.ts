@@ -1,15 +1,17 @@
 /**
- * Writing report.html into the output folder, atomically (temporary name, then rename), once at
- * the end of a batch.
+ * Writing the overview report.html into the output folder, atomically (temporary name, then
+ * rename), once at the end of a batch. It draws nothing, so the chart library is not loaded here
+ * (a session's page: session-page.ts).
  */
 import { join } from 'node:path';
 import { writeFileAtomic } from '../../batch/atomic-write.js';
 import type { BatchSummary } from '../summary.js';
 import { reportHtml } from './page.js';
-import type { ReportPayload } from './payload.js';
+import type { OverviewData } from './overview-data.js';
+import { REPORT_FILE } from './page-path.js';
 
-export const REPORT_FILE = 'report.html';
+export { REPORT_FILE };
 
-export async function writeReport(outDir: string, summary: BatchSummary, payloads: Map<string, ReportPayload>): Promise<void> {
-  await writeFileAtomic(join(outDir, REPORT_FILE), await reportHtml(summary, payloads));
+export async function writeReport(outDir: string, summary: BatchSummary, data: ReadonlyMap<string, OverviewData>): Promise<void> {
+  await writeFileAtomic(join(outDir, REPORT_FILE), reportHtml(summary, data));
 }
