@@ -1,17 +1,15 @@
 /**
- * The calibrated noise of a session, obtained exactly as processSession obtains it (process-session.ts,
- * stages 1–4): maximum-likelihood calibration under a capped likelihood (calibrate.ts), classification
- * of the fixes (two-way gate and two-sided review, review.ts), calibration again with those decisions
- * held fixed, and classification once more. Returned with the decisions, so that
- * runPrepared(ps, cfg, params, name, plans) reproduces processSession's result; used by the IMU-aided
- * session for its fixes-only baseline and its GNSS noise. Keep in step with processSession (a test in
- * test/imu/calibrated-params.test.ts compares the two).
+ * The calibrated noise of a session, obtained as processSession obtains it: its calibration rounds
+ * (process-session.ts calibrationRounds: calibration under a capped likelihood, classification,
+ * calibration with those decisions held fixed), then the classification under their model. Returned
+ * with the decisions, so that runPrepared(ps, cfg, params, name, plans) reproduces processSession's
+ * result; used by the IMU-aided session for its fixes-only baseline and its GNSS noise
+ * (test/imu/products.test.ts compares the two).
  * Sources: as in calibrate.ts (Schweppe 1965; Harvey 1989 §3.4) and review.ts.
  */
 import type { HindcastConfig } from '../config/schema.js';
-import { axisParamsFromConfig, buildAxisModels, filterOptions, reviewOptions, runPrepared, segmentData, type AxisParams, type PreparedSession } from './process-session.js';
-import { FIRST_ROUND, calibrateSession, type CalibrationInfo } from './calibrate.js';
-import { classificationStart } from './classification-start.js';
+import { axisParamsFromConfig, buildAxisModels, calibrationRounds, filterOptions, reviewOptions, runPrepared, segmentData, type AxisParams, type PreparedSession } from './process-session.js';
+import type { CalibrationInfo } from './calibrate.js';
 import type { ReviewOptions } from './review.js';
 import { localScaleOptions, reviewWithLocalScale } from './local-noise-scale.js';
 import type { SessionResult } from './result.js';
@@ -43,23 +41,12 @@ function classify(ps: PreparedSession, cfg: HindcastConfig, params: AxisParams, 
   });
 }
 
-/** Stages 1–4 of processSession: calibrate, classify, calibrate with the decisions held fixed, classify. */
+/** Stages 1–4 of processSession: its calibration rounds (calibrationRounds), then the classification under their model. */
 export function calibratedParams(ps: PreparedSession, cfg: HindcastConfig): CalibratedSession {
   const prior = axisParamsFromConfig(cfg, ps.factors.reported);
   const ro = reviewOptions(cfg, ps.intervalSec);
-  const cal1 = calibrateSession(ps, cfg, prior, FIRST_ROUND);
-  let params = cal1.params;
-  let info = cal1.info;
-  if (cal1.info.status === 'estimated') {
-    // the first classification under the stiffer start model (classification-start.ts)
-    const start = classificationStart(ps, cfg, params);
-    const uses = new Map<number, Uint8Array>();
-    classify(ps, start.cfg, start.params, ro).forEach((pl, si) => uses.set(si, Uint8Array.from(pl.offered, (u, k) => (u === 0 ? 0 : pl.decisions.kept[k] ? 2 : 0))));
-    const cal2 = calibrateSession(ps, cfg, prior, undefined, params, uses);
-    params = cal2.params;
-    info = { ...cal2.info, estimates: { ...cal1.info.estimates, ...cal2.info.estimates }, evaluations: cal1.info.evaluations + cal2.info.evaluations, classificationStart: { robustQHorizontal: start.robustQHorizontal, qHorizontal: start.params.qHorizontal } };
-  }
-  return { params, info, warnings: cal1.warnings, plans: classify(ps, cfg, params, ro) };
+  const { params, info, warnings } = calibrationRounds(ps, cfg, prior, ro);
+  return { params, info, warnings, plans: classify(ps, cfg, params, ro) };
 }
 
 /** The fixes-only result of processSession on a prepared session, with its calibrated parameters. */

@@ -12,7 +12,7 @@ import { errorEllipse } from '../output/ellipse.js';
 import { epochGrid, nominalIntervalSec, splitSegments } from './segments.js';
 import { factorsWithExponents, fixSigmaFactors } from './fix-noise.js';
 import { classificationStart } from './classification-start.js';
-import { DEFAULT_CALIBRATION, FIRST_ROUND, calibrateSession, calibrationWindows, sliceSegment } from './calibrate.js';
+import { DEFAULT_CALIBRATION, FIRST_ROUND, calibrateSession, calibrationWindows, sliceSegment, type CalibrationInfo } from './calibrate.js';
 import { reviewSegment, type ReviewOptions, type ReviewOutcome } from './review.js';
 import type { DecisionLog } from './decision-log.js';
 import { reviewThresholds } from './review-decisions.js';
@@ -302,31 +302,8 @@ export function processSession(series: FixSeries, cfg: HindcastConfig, name: str
   if (tm) tm.project += performance.now() - t0;
   const prior = axisParamsFromConfig(cfg, ps.factors.reported);
   const ro = reviewOptions(cfg, ps.intervalSec);
-  if (tm) t0 = performance.now();
-  const cal1 = calibrateSession(ps, cfg, prior, FIRST_ROUND);
-  if (tm) tm.calibrate += performance.now() - t0;
-  let params = cal1.params;
-  let info = cal1.info;
-  const warnings = cal1.warnings;
-  if (cal1.info.status === 'estimated') {
-    // stage 2: classification under the first calibration, where the second one will look (the
-    // whole log when it is used whole, else its calibration chunks with margins)
-    // (under a stiffer model where bursts inflated the first round's process noise: classification-start.ts)
-    const uses = new Map<number, Uint8Array>();
-    const windows = calibrationWindows(ps, cfg.segments.bridgeFactor, DEFAULT_CALIBRATION.maxEpochs);
-    const start = classificationStart(ps, cfg, params);
-    if (windows) classifyWindows(ps, start.cfg, start.params, ro, windows, uses, tm);
-    else
-      classify(ps, start.cfg, start.params, ro, tm).forEach((pl, si) => {
-        uses.set(si, Uint8Array.from(pl.offered, (u, k) => (u === 0 ? 0 : pl.decisions!.kept[k] ? 2 : 0)));
-      });
-    // stage 3: calibration with the decisions held fixed
-    if (tm) t0 = performance.now();
-    const cal2 = calibrateSession(ps, cfg, prior, undefined, params, uses);
-    if (tm) tm.calibrate += performance.now() - t0;
-    params = cal2.params;
-    info = { ...cal2.info, estimates: { ...cal1.info.estimates, ...cal2.info.estimates }, evaluations: cal1.info.evaluations + cal2.info.evaluations, classificationStart: { robustQHorizontal: start.robustQHorizontal, qHorizontal: start.params.qHorizontal } };
-  }
+  // stages 1–3: the noise calibration
+  const { params, info, warnings } = calibrationRounds(ps, cfg, prior, ro, tm);
   // stage 4 (stage 2 of a log the calibration fell back on): classify under the final model
   const plans = classify(ps, cfg, params, ro, tm);
   let r = runPrepared(ps, cfg, params, name, plans, tm);
@@ -350,6 +327,40 @@ export function processSession(series: FixSeries, cfg: HindcastConfig, name: str
     if (tm) tm.products += performance.now() - t0;
   }
   return r;
+}
+
+/**
+ * Stages 1–3 of a session: calibration under the gate (capped likelihood), classification of the
+ * fixes under the start model (classification-start.ts) where the second round will look (the
+ * whole log when it is used whole, else its calibration chunks with margins), and calibration again
+ * with those decisions held fixed. The fixes-only session and the IMU session's GNSS noise
+ * (calibrated-params.ts) both take their parameters from here.
+ */
+export function calibrationRounds(ps: PreparedSession, cfg: HindcastConfig, prior: AxisParams, ro: ReviewOptions, tm?: StageTimings): { params: AxisParams; info: CalibrationInfo; warnings: string[] } {
+  let t0 = tm ? performance.now() : 0;
+  const cal1 = calibrateSession(ps, cfg, prior, FIRST_ROUND);
+  if (tm) tm.calibrate += performance.now() - t0;
+  if (cal1.info.status !== 'estimated') return cal1;
+  // stage 2: classification under the start model
+  const uses = new Map<number, Uint8Array>();
+  const windows = calibrationWindows(ps, cfg.segments.bridgeFactor, DEFAULT_CALIBRATION.maxEpochs);
+  const start = classificationStart(ps, cfg, cal1.params);
+  if (windows) classifyWindows(ps, start.cfg, start.params, ro, windows, uses, tm);
+  else
+    classify(ps, start.cfg, start.params, ro, tm).forEach((pl, si) => {
+      uses.set(si, Uint8Array.from(pl.offered, (u, k) => (u === 0 ? 0 : pl.decisions!.kept[k] ? 2 : 0)));
+    });
+  // stage 3: calibration with the decisions held fixed
+  if (tm) t0 = performance.now();
+  const cal2 = calibrateSession(ps, cfg, prior, undefined, cal1.params, uses);
+  if (tm) tm.calibrate += performance.now() - t0;
+  const info: CalibrationInfo = {
+    ...cal2.info,
+    estimates: { ...cal1.info.estimates, ...cal2.info.estimates },
+    evaluations: cal1.info.evaluations + cal2.info.evaluations,
+    classificationStart: { robustQHorizontal: start.robustQHorizontal, qHorizontal: start.params.qHorizontal },
+  };
+  return { params: cal2.params, info, warnings: cal1.warnings };
 }
 
 /** Classification of every segment's fixes: two-way gate, then the two-sided review. */
