@@ -57,7 +57,12 @@ export async function writeChunksToTemporary(path: string, chunks: Iterable<stri
     await once(ws, 'finish');
     return tmp;
   } catch (e) {
-    ws.destroy();
+    // the stream may still be opening the file: wait for it to close, or the file appears after the rm
+    if (!ws.closed) {
+      const closed = once(ws, 'close').catch(() => undefined);
+      ws.destroy();
+      await closed;
+    }
     await rm(tmp, { force: true });
     throw e;
   }
