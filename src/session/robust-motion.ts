@@ -11,7 +11,7 @@
  *
  * so q ≈ 3c/2. A burst or a heavy-tailed manoeuvre moves the mean of D² but hardly its median: the
  * likelihood calibration (calibrate.ts) follows the mean, this follows the bulk of the log. Used by
- * the burst probe (session/burst-probe.ts) to tell a process noise inflated by bursts from the
+ * the classification start (session/classification-start.ts) to tell a process noise inflated by bursts from the
  * motion of the log.
  */
 import type { PreparedSession } from './process-session.js';
