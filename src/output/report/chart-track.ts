@@ -16,6 +16,8 @@ import { CLOSEUP_JOIN_EPOCHS, isKeptFix } from './closeup-data.js';
 export const TRACK_LABELS_MAX = 30;
 
 const ELLIPSE_VERTICES = 36;
+/** Kept raw fixes closer than this (px) on the track plot are drawn as one dot (the dot is about 1.4 px across). */
+export const KEPT_CELL_PX = 1.5;
 export const TRACK_KINDS = ['smoothed track', 'bridged (no fix)'] as const;
 
 /** Points of a 95% ellipse (azimuth clockwise from north) around its centre, closed. */
@@ -69,9 +71,9 @@ export function trackChart(p: PlotSeries, ellipses: EllipseMark[], name: string,
   const flagged: Array<{ e: number | null; n: number | null; mark: string; label: string }> = [];
   // one text label a burst: its first id, and how many more it holds
   const labels: Array<{ e: number | null; n: number | null; text: string; epoch: number; count: number }> = [];
-  const kept: Array<{ e: number | null; n: number | null }> = [];
+  const keptAt: number[] = [];
   for (let k = 0; k < M; k++) {
-    if (isKeptFix(p.status[k]!) && Number.isFinite(p.rawEast[k]!)) kept.push({ e: r4(p.rawEast[k]!), n: r4(p.rawNorth[k]!) });
+    if (isKeptFix(p.status[k]!) && Number.isFinite(p.rawEast[k]!)) keptAt.push(k);
     const m = flagMark(p.status[k]!);
     // the raw fix where there is one (that is what was judged), else the smoothed position
     if (!m) continue;
@@ -97,18 +99,28 @@ export function trackChart(p: PlotSeries, ellipses: EllipseMark[], name: string,
   }
   if (!Number.isFinite(eMin)) [eMin, eMax, nMin, nMax] = [-1, 1, -1, 1];
   const ax = equalAxes(eMin, eMax, nMin, nMax, CHART_WIDTH);
+  // the kept raw fixes: one dot a cell of KEPT_CELL_PX (more in one cell draw the same dot)
+  const cellM = (KEPT_CELL_PX * (ax.x[1] - ax.x[0])) / CHART_WIDTH;
+  const cells = new Set<string>();
+  const kept: Array<{ e: number | null; n: number | null }> = [];
+  for (const k of keptAt) {
+    const key = `${Math.floor(p.rawEast[k]! / cellM)},${Math.floor(p.rawNorth[k]! / cellM)}`;
+    if (cells.has(key)) continue;
+    cells.add(key);
+    kept.push({ e: r4(p.rawEast[k]!), n: r4(p.rawNorth[k]!) });
+  }
   const x = { field: 'e', type: 'quantitative', scale: { domain: ax.x, nice: false, zero: false }, axis: { title: 'east (m)' } };
   const y = { field: 'n', type: 'quantitative', scale: { domain: ax.y, nice: false, zero: false }, axis: { title: 'north (m)' } };
   const start = line.length ? [{ e: line[0]!.e, n: line[0]!.n, label: 'start' }] : [];
   const layers: unknown[] = [
     {
       data: { values: kept },
-      mark: { type: 'point', shape: 'circle', size: 6, filled: true, color: '#777777', opacity: 0.55, clip: true },
+      mark: { type: 'point', shape: 'circle', size: 6, filled: true, color: '#777777', opacity: 0.55, clip: true, aria: false },
       encoding: { x, y },
     },
     {
       data: { values: ell },
-      mark: { type: 'line', strokeWidth: 0.8, color: '#5d6d7e', opacity: 0.8, clip: true },
+      mark: { type: 'line', strokeWidth: 0.8, color: '#5d6d7e', opacity: 0.8, clip: true, aria: false },
       encoding: { x, y, detail: { field: 'id' }, order: { field: 'k' } },
     },
     {

@@ -13,7 +13,7 @@ import { nisChart, residualChart, sdChart, speedChart } from './chart-time.js';
 import { surveySectionHtml } from './survey-section.js';
 import { REPORT_EXTENSIONS, type ExtensionChart, type ReportExtension } from './extensions.js';
 import { esc, duration, isoTime, localTime, num, sessionAnchor, sortKey } from './html-text.js';
-import { closeupChart } from './chart-closeup.js';
+import { closeupSvg } from './chart-closeup.js';
 import { testName } from './test-words.js';
 import type { ReportPayload } from './payload.js';
 import { noiseText } from './overview-table.js';
@@ -141,14 +141,14 @@ async function closeupsPart(p: ReportPayload, anchor: string): Promise<string> {
   for (let i = 0; i < p.closeups.length; i++) {
     const c = p.closeups[i]!;
     const title = `Close-up ${i + 1}: ${c.ids.join(', ')}`;
-    const svg = await renderSvg(closeupChart(c, title));
+    const svg = closeupSvg(c, title, closeupId(anchor, i));
     const when = `${bothTimes(p, c.tSec[0]!)} to ${isoTime(c.tSec[c.tSec.length - 1]!).slice(11)}`;
     const links = c.ids.map((id) => `<a href="#${esc(flagRowId(anchor, id))}">${esc(id)}</a>`).join(', ');
     figs.push(`<figure class="closeup" id="${closeupId(anchor, i)}" data-ids="${esc(c.ids.join(' '))}"><figcaption><strong>Close-up ${i + 1}</strong> (${links}), ${esc(when)}.</figcaption>${svg}</figure>`);
   }
   const more = p.flagged.some((f) => f.closeup < 0 && f.epoch >= 0) ? ' Flagged fixes without a close-up are in the table and the track plot.' : '';
   return `<h3>Close-ups of the flagged fixes (${p.closeups.length})</h3>
-<p class="note">Each flagged fix with its neighbours, east and north in metres at equal scale: smoothed track (line), its 95% error ellipse at each epoch (grey rings), raw fixes kept (grey dots), flagged fixes (symbols, labelled with their id) and their offset from the smoothed position (dotted). Review first: the close-ups of the fixes closest to their threshold are drawn first when there are more bursts than close-ups.${more}</p>
+<p class="note">Each flagged fix with its neighbours, east and north in metres at equal scale: smoothed track (line), its 95% error ellipse at each epoch (grey rings), raw fixes kept (grey dots), flagged fixes (symbols as in the track plot's legend, labelled with their id) and their offset from the smoothed position (dotted). Review first: the close-ups of the fixes closest to their threshold are drawn first when there are more bursts than close-ups.${more}</p>
 <div class="closeups">${figs.join('\n')}</div>`;
 }
 
