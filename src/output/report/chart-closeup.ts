@@ -9,17 +9,16 @@
  * page's CSS classes (CLOSEUP_STYLE), coordinates to 0.1 px; axis ticks from Vega's linear scale.
  */
 import { scale as vegaScale } from 'vega';
-import { FLAG_MARKS, flagMark } from './chart-common.js';
-import { ellipsePoints, equalAxes } from './chart-track.js';
+import { FLAG_MARKS, flagMark, flagSymbolPath } from './chart-common.js';
+import { ellipseArcPath, equalAxes } from './chart-track.js';
 import { isKeptFix, type Closeup } from './closeup-data.js';
 import { esc } from './html-text.js';
 
 export const CLOSEUP_WIDTH = 300;
 /** Least margin (m) around the flagged fixes in a close-up. */
 export const CLOSEUP_PAD_M = 8;
-/** Most ellipses drawn in one close-up (every epoch in the frame up to this, else evenly spaced), and their vertices. */
+/** Most ellipses drawn in one close-up (every epoch in the frame up to this, else evenly spaced). */
 const ELLIPSES_MAX = 25;
-const ELLIPSE_VERTICES = 16;
 
 /** The label of a flagged mark (its aria-label in the SVG): "flag <id>", read by the page's script and tests. */
 export function flagLabel(id: string): string {
@@ -36,7 +35,6 @@ svg.cu .el { fill: none; stroke: #7f8c8d; stroke-width: .7; opacity: .7; }
 svg.cu .of { fill: none; stroke: #c0392b; stroke-width: .8; stroke-dasharray: 2 2; }
 svg.cu .tr { fill: none; stroke: #1f4e79; stroke-width: 1.6; stroke-linejoin: round; }
 svg.cu .kd { fill: none; stroke: #555; stroke-width: 3.6; stroke-linecap: round; opacity: .75; }
-svg.cu .fl { opacity: .95; }
 svg.cu .id { fill: #000; }
 svg.cu .tt { font-size: 11px; font-weight: bold; fill: #333; }
 `;
@@ -46,13 +44,6 @@ const MARGIN = { left: 46, right: 8, top: 6, bottom: 36 };
 /** A number as SVG coordinate text, to 0.1 px. */
 function c1(v: number): string {
   return String(Math.round(v * 10) / 10);
-}
-
-/** A flag symbol's outline around (0, 0), about 8 px across: cross, triangle down, diamond. */
-function symbolPath(shape: string): string {
-  if (shape === 'triangle-down') return 'M-4.5,-3.2L4.5,-3.2L0,4.6Z';
-  if (shape === 'diamond') return 'M0,-4.8L4.2,0L0,4.8L-4.2,0Z';
-  return 'M-4.2,-1.5V1.5H-1.5V4.2H1.5V1.5H4.2V-1.5H1.5V-4.2H-1.5V-1.5Z';
 }
 
 /** The close-up as SVG text; `title` is its accessible name, `domId` a prefix unique in the page (its clip path's id). */
@@ -96,11 +87,11 @@ export function closeupSvg(c: Closeup, title: string, domId: string): string {
   const within: number[] = [];
   for (let k = 0; k < n; k++) if (Number.isFinite(c.ell95MajorM[k]!) && inside(c.east[k]!, c.north[k]!, c.ell95MajorM[k]!)) within.push(k);
   const step = Math.max(1, Math.ceil(within.length / ELLIPSES_MAX));
+  const pxPerM = W / (ax.x[1] - ax.x[0]);
   const ells: string[] = [];
   for (let q = 0; q < within.length; q += step) {
     const k = within[q]!;
-    const pts = ellipsePoints({ tSec: c.tSec[k]!, east: c.east[k]!, north: c.north[k]!, majorM: c.ell95MajorM[k]!, minorM: c.ell95MinorM[k]!, azimuthDeg: c.ell95AzimuthDeg[k]! }, ELLIPSE_VERTICES);
-    ells.push(`<path class="el" d="M${pts.slice(0, -1).map(([e, nn]) => at(e, nn)).join('L')}Z"/>`);
+    ells.push(`<path class="el" d="${ellipseArcPath(px(c.east[k]!), py(c.north[k]!), c.ell95MajorM[k]! * pxPerM, c.ell95MinorM[k]! * pxPerM, c.ell95AzimuthDeg[k]!)}"/>`);
   }
   let offsets = '';
   for (const f of c.flags) if ([f.east, f.north, f.trackEast, f.trackNorth].every(Number.isFinite)) offsets += `M${at(f.east, f.north)}L${at(f.trackEast, f.trackNorth)}`;
@@ -109,8 +100,7 @@ export function closeupSvg(c: Closeup, title: string, domId: string): string {
   c.flags.forEach((f, q) => {
     if (!Number.isFinite(f.east) || !Number.isFinite(f.north)) return;
     const m = flagMark(f.status) ?? FLAG_MARKS[0]!;
-    const x = c1(px(f.east)), y = c1(py(f.north));
-    marks.push(`<path class="fl" role="graphics-symbol" aria-roledescription="point" aria-label="${esc(flagLabel(f.id))}" transform="translate(${x},${y})" d="${symbolPath(m.shape)}" fill="${m.color}"/>`);
+    marks.push(flagSymbolPath(px(f.east), py(f.north), m, flagLabel(f.id), 0.95));
     // ids above and below their marks by turns, so that the labels of a dense burst do not all overlap
     ids.push(`<text class="id" x="${c1(px(f.east) + 6)}" y="${c1(py(f.north) + (q % 2 === 0 ? -7 : 13))}">${esc(f.id)}</text>`);
   });

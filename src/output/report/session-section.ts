@@ -111,6 +111,11 @@ export function reviewOrder(rows: readonly ReportPayload['flagged'][number][]): 
   return [...rows].sort((a, b) => m(a.margin) - m(b.margin) || a.tSec - b.tSec);
 }
 
+/** A sort key to 7 significant digits (the table shows 2 decimals; a key of 17 digits only costs bytes). */
+function sortKey7(v: number): string {
+  return sortKey(Number.isFinite(v) ? +v.toPrecision(7) : v);
+}
+
 function flaggedTable(p: ReportPayload, anchor: string): string {
   if (p.flaggedCount === 0) return '<p>No fix was flagged.</p>';
   const zone = p.timeZone;
@@ -120,7 +125,7 @@ function flaggedTable(p: ReportPayload, anchor: string): string {
       const local = zone ? `<td data-sort="${sortKey(f.tSec)}"><code>${esc(localTime(f.tSec, zone))}</code></td>` : '';
       const margin = Number.isFinite(f.margin) ? `${(100 * f.margin).toFixed(1)}%` : '–';
       const summary = `${isoTime(f.tSec)} UTC, ${testName(f.test)}${Number.isFinite(f.statistic) ? ` ${num(f.statistic, 2)} > ${num(f.threshold, 2)}` : ''}`;
-      return `<tr id="${esc(flagRowId(anchor, f.id))}" data-flag="${esc(f.id)}" data-summary="${esc(summary)}"><td data-sort="${esc(f.id)}"><strong>${esc(f.id)}</strong></td><td data-sort="${sortKey(f.tSec)}"><code>${esc(isoTime(f.tSec))}</code></td>${local}<td data-sort="${f.line}">${f.line}</td><td data-sort="${esc(testName(f.test))}">${esc(testName(f.test))}</td><td data-sort="${sortKey(f.statistic)}">${num(f.statistic, 2)}</td><td data-sort="${sortKey(f.threshold)}">${num(f.threshold, 2)}</td><td data-sort="${sortKey(f.margin)}">${margin}</td><td data-sort="${sortKey(f.offsetM)}">${num(f.offsetM, 2)}</td><td data-sort="${esc(f.status)}">${esc(f.status)}</td><td data-sort="${esc(f.note ?? '')}">${esc(f.note ?? '')}</td><td>${shot}</td><td>${esc(f.detail)}</td></tr>`;
+      return `<tr id="${esc(flagRowId(anchor, f.id))}" data-flag="${esc(f.id)}" data-summary="${esc(summary)}"><td data-sort="${esc(f.id)}"><strong>${esc(f.id)}</strong></td><td data-sort="${sortKey(f.tSec)}"><code>${esc(isoTime(f.tSec))}</code></td>${local}<td data-sort="${f.line}">${f.line}</td><td data-sort="${esc(testName(f.test))}">${esc(testName(f.test))}</td><td data-sort="${sortKey7(f.statistic)}">${num(f.statistic, 2)}</td><td data-sort="${sortKey7(f.threshold)}">${num(f.threshold, 2)}</td><td data-sort="${sortKey7(f.margin)}">${margin}</td><td data-sort="${sortKey7(f.offsetM)}">${num(f.offsetM, 2)}</td><td data-sort="${esc(f.status)}">${esc(f.status)}</td><td data-sort="${esc(f.note ?? '')}">${esc(f.note ?? '')}</td><td>${shot}</td><td>${esc(f.detail)}</td></tr>`;
     })
     .join('\n');
   const more = p.flaggedCount > p.flagged.length ? `<p>${p.flaggedCount - p.flagged.length} more are listed in the session's outliers.csv (all are drawn in the plots).</p>` : '';
