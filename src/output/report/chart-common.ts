@@ -70,7 +70,7 @@ const SYMBOL_OUTLINE: Record<string, string> = {
  * Flagged rows as SVG symbols, one path a kind (shape and colour of FLAG_MARKS), at the pixels of
  * the given scales; rows outside the w × h plot area are left out.
  */
-export function flagSymbolsSvg(rows: ReadonlyArray<{ t: number; y: number; mark: string }>, sx: (v: number) => number, sy: (v: number) => number, w: number, h: number): string {
+export function flagSymbolsSvg(rows: ReadonlyArray<{ t: number; y: number; mark: string }>, sx: (v: number) => number, sy: (v: number) => number, w: number, h: number, opacity = 0.7): string {
   let out = '';
   for (const m of FLAG_MARKS) {
     let d = '';
@@ -79,7 +79,7 @@ export function flagSymbolsSvg(rows: ReadonlyArray<{ t: number; y: number; mark:
       const x = sx(r.t), y = sy(r.y);
       if (x >= -5 && x <= w + 5 && y >= -5 && y <= h + 5) d += `M${Math.round(x * 10) / 10},${Math.round(y * 10) / 10}${SYMBOL_OUTLINE[m.shape]}`;
     }
-    if (d) out += `<path d="${d}" fill="${m.color}" opacity="0.7"/>`;
+    if (d) out += `<path d="${d}" fill="${m.color}" opacity="${opacity}"/>`;
   }
   return out;
 }

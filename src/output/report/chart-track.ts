@@ -7,7 +7,7 @@
  */
 import type { TopLevelSpec } from 'vega-lite';
 import { STATUS } from '../../session/result.js';
-import { CHART_WIDTH, FLAG_MARKS, flagEncoding, flagMark, flagSymbolPath, r4 } from './chart-common.js';
+import { CHART_WIDTH, FLAG_MARKS, flagEncoding, flagMark, flagSymbolPath, flagSymbolsSvg, r4 } from './chart-common.js';
 import type { EllipseMark, PlotSeries } from './payload.js';
 import { flagLabel } from './chart-closeup.js';
 import { CLOSEUP_JOIN_EPOCHS, isKeptFix } from './closeup-data.js';
@@ -86,7 +86,7 @@ export function trackChart(p: PlotSeries, ellipses: EllipseMark[], name: string,
   }
   const ell: Array<{ e: number | null; n: number | null; id: number; k: number }> = [];
   ellipses.forEach((el, id) => ellipsePoints(el).forEach(([e, n], k) => ell.push({ e: r4(e), n: r4(n), id, k })));
-  const flagged: Array<{ e: number | null; n: number | null; mark: string; label: string }> = [];
+  const flagged: Array<{ e: number | null; n: number | null; mark: string; label: string; listed: boolean }> = [];
   // one text label a burst: its first id, and how many more it holds
   const labels: Array<{ e: number | null; n: number | null; text: string; epoch: number; count: number }> = [];
   const keptAt: number[] = [];
@@ -98,7 +98,7 @@ export function trackChart(p: PlotSeries, ellipses: EllipseMark[], name: string,
     const e = Number.isFinite(p.rawEast[k]!) ? p.rawEast[k]! : p.east[k]!;
     const n = Number.isFinite(p.rawNorth[k]!) ? p.rawNorth[k]! : p.north[k]!;
     const id = flagIds.get(p.epoch[k]!);
-    flagged.push({ e: r4(e), n: r4(n), mark: m.label, label: id ? flagLabel(id) : m.label });
+    flagged.push({ e: r4(e), n: r4(n), mark: m.label, label: id ? flagLabel(id) : m.label, listed: id !== undefined });
     if (!id) continue;
     const last = labels.at(-1);
     if (last && p.epoch[k]! - last.epoch <= CLOSEUP_JOIN_EPOCHS) {
@@ -137,11 +137,16 @@ export function trackChart(p: PlotSeries, ellipses: EllipseMark[], name: string,
     const pxPerM = sx(1) - sx(0);
     for (const el of ellipses)
       if ([el.east, el.north, el.majorM, el.minorM, el.azimuthDeg].every(Number.isFinite)) rings += `<path d="${ellipseArcPath(sx(el.east), sy(el.north), el.majorM * pxPerM, el.minorM * pxPerM, el.azimuthDeg)}"/>`;
+    // a listed fix (with an id, linked to its row) one path each; the unlisted ones one path a kind
     let symbols = '';
+    const unlisted: Array<{ t: number; y: number; mark: string }> = [];
     for (const f of flagged) {
+      if (f.e === null || f.n === null) continue;
       const m = FLAG_MARKS.find((q) => q.label === f.mark)!;
-      if (f.e !== null && f.n !== null) symbols += flagSymbolPath(sx(f.e), sy(f.n), m, f.label, 0.9);
+      if (f.listed) symbols += flagSymbolPath(sx(f.e), sy(f.n), m, f.label, 0.9);
+      else unlisted.push({ t: f.e, y: f.n, mark: f.mark });
     }
+    symbols += flagSymbolsSvg(unlisted, sx, sy, CHART_WIDTH, ax.height, 0.9);
     return {
       ...(flagged.length ? { [FLAG_LAYER]: symbols } : {}),
       [KEPT_LAYER]: dots ? `<path d="${dots}" fill="none" stroke="#777777" stroke-width="2.8" stroke-linecap="round" opacity="0.55"/>` : '',
