@@ -59,6 +59,39 @@ export function flaggedRows(p: PlotSeries, y: (k: number) => number): Array<{ t:
   return rows;
 }
 
+/** Outline of each symbol shape about 7 px across, relative to its centre (SVG path after an M to the centre). */
+const SYMBOL_OUTLINE: Record<string, string> = {
+  cross: 'm-3.5,-1.4v2.8h2.1v2.1h2.8v-2.1h2.1v-2.8h-2.1v-2.1h-2.8v2.1z',
+  'triangle-down': 'm-4,-2.6h8l-4,6.9z',
+  diamond: 'm0,-4.5l3.9,4.5l-3.9,4.5l-3.9,-4.5z',
+};
+
+/**
+ * Flagged rows as SVG symbols, one path a kind (shape and colour of FLAG_MARKS), at the pixels of
+ * the given scales; rows outside the w × h plot area are left out.
+ */
+export function flagSymbolsSvg(rows: ReadonlyArray<{ t: number; y: number; mark: string }>, sx: (v: number) => number, sy: (v: number) => number, w: number, h: number, opacity = 0.7): string {
+  let out = '';
+  for (const m of FLAG_MARKS) {
+    let d = '';
+    for (const r of rows) {
+      if (r.mark !== m.label) continue;
+      const x = sx(r.t), y = sy(r.y);
+      if (x >= -5 && x <= w + 5 && y >= -5 && y <= h + 5) d += `M${Math.round(x * 10) / 10},${Math.round(y * 10) / 10}${SYMBOL_OUTLINE[m.shape]}`;
+    }
+    if (d) out += `<path d="${d}" fill="${m.color}" opacity="${opacity}"/>`;
+  }
+  return out;
+}
+
+/**
+ * One flagged symbol as an SVG path of its own (the page's script and the tests find it by its
+ * aria-label, "flag <id>" for a listed fix), centred at pixel (x, y).
+ */
+export function flagSymbolPath(x: number, y: number, mark: (typeof FLAG_MARKS)[number], label: string, opacity: number): string {
+  return `<path role="graphics-symbol" aria-roledescription="point" aria-label="${label.replace(/&/g, '&amp;').replace(/"/g, '&quot;').replace(/</g, '&lt;')}" d="M${Math.round(x * 10) / 10},${Math.round(y * 10) / 10}${SYMBOL_OUTLINE[mark.shape]}" fill="${mark.color}" opacity="${opacity}"/>`;
+}
+
 /** Round for chart data (keeps the inline SVG data small). */
 export function r4(v: number): number | null {
   return Number.isFinite(v) ? Math.round(v * 1e4) / 1e4 : null;

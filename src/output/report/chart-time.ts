@@ -5,7 +5,10 @@
  * lines break between segments and where a series has no value; bridged spans are grey dashed bands.
  */
 import type { TopLevelSpec } from 'vega-lite';
-import { bridgedBands, CHART_WIDTH, flagEncoding, flaggedRows, r4, TIME_CHART_HEIGHT, timeX } from './chart-common.js';
+import { bridgedBands, CHART_WIDTH, flagEncoding, flaggedRows, flagSymbolsSvg, r4, TIME_CHART_HEIGHT, timeX } from './chart-common.js';
+import { withSvgOverlay, type SvgOverlay } from './render-svg.js';
+
+const FLAG_LAYER = 'flags';
 import type { PlotSeries } from './payload.js';
 
 const DASHES: number[][] = [[1, 0], [6, 3], [2, 2], [8, 3, 2, 3]];
@@ -25,6 +28,20 @@ export interface SeriesChartOptions {
   flaggedY?: (k: number) => number;
   /** Break a line where consecutive values jump by more than this (e.g. 180 for a heading wrapping at 360°). */
   breakJump?: number;
+}
+
+/**
+ * Leave out the inner rows of a stretch of equal values within one line (a constant threshold, a
+ * steady sd): the line drawn is the same, with two points where there were hundreds.
+ */
+function dropFlatRuns(rows: Array<{ t: number; v: number | null; s: string; run: number }>): void {
+  let w = 0;
+  for (let i = 0; i < rows.length; i++) {
+    const a = rows[i - 1], b = rows[i]!, c = rows[i + 1];
+    const inner = a && c && a.run === b.run && c.run === b.run && a.v === b.v && c.v === b.v;
+    if (!inner) rows[w++] = b;
+  }
+  rows.length = w;
 }
 
 /** Lines over time, one per series (dash and colour by series), broken between segments. */
@@ -49,6 +66,7 @@ export function seriesChart(p: PlotSeries, series: SeriesSpec[], bridged: Array<
     }
     run++;
   }
+  dropFlatRuns(rows);
   const names = series.map((s) => s.name);
   const y = { field: 'v', type: 'quantitative', scale: { zero: false, ...(opt.yScale ?? {}) }, axis: { title: opt.yTitle } };
   const layers: unknown[] = [];
@@ -65,21 +83,28 @@ export function seriesChart(p: PlotSeries, series: SeriesSpec[], bridged: Array<
       strokeDash: { field: 's', type: 'nominal', scale: { domain: names, range: DASHES.slice(0, names.length) }, legend: { title: null, orient: 'bottom' } },
     },
   });
+  let overlay: SvgOverlay | undefined;
   if (opt.flaggedY) {
     const flagged = flaggedRows(p, opt.flaggedY);
-    if (flagged.length)
+    if (flagged.length) {
+      // the symbols (shape and fill by kind, legend as before) drawn by renderSvg as one path a
+      // kind into the empty 'flags' layer: an element a symbol cost about 300 bytes
       layers.push({
-        data: { values: flagged.map((f) => ({ t: f.t, v: r4(f.y), mark: f.mark })) },
-        mark: { type: 'point', size: 50, filled: true, clip: true },
+        name: FLAG_LAYER,
+        data: { values: [] },
+        mark: { type: 'point', size: 50, filled: true, clip: true, aria: false },
         encoding: { x: timeX('t'), y: { field: 'v', type: 'quantitative' }, ...flagEncoding() },
       });
+      overlay = (scale) => ({ [FLAG_LAYER]: flagSymbolsSvg(flagged, scale('x'), scale('y'), CHART_WIDTH, TIME_CHART_HEIGHT) });
+    }
   }
-  return {
+  const spec = {
     description: opt.description,
     width: CHART_WIDTH,
     height: TIME_CHART_HEIGHT,
     layer: layers,
   } as TopLevelSpec;
+  return overlay ? withSvgOverlay(spec, overlay) : spec;
 }
 
 export function sdChart(p: PlotSeries, bridged: Array<[number, number]>, hasHeight: boolean): TopLevelSpec {

@@ -7,15 +7,21 @@
  */
 import type { TopLevelSpec } from 'vega-lite';
 import { STATUS } from '../../session/result.js';
-import { CHART_WIDTH, flagEncoding, flagMark, r4 } from './chart-common.js';
+import { CHART_WIDTH, FLAG_MARKS, flagEncoding, flagMark, flagSymbolPath, flagSymbolsSvg, r4 } from './chart-common.js';
 import type { EllipseMark, PlotSeries } from './payload.js';
 import { flagLabel } from './chart-closeup.js';
 import { CLOSEUP_JOIN_EPOCHS, isKeptFix } from './closeup-data.js';
+import { px1, withSvgOverlay, type SvgOverlay } from './render-svg.js';
 
 /** Bursts labelled on the track plot at most (more would cover the track; the close-ups label every fix). */
 export const TRACK_LABELS_MAX = 30;
 
-const ELLIPSE_VERTICES = 36;
+const ELLIPSE_VERTICES = 24;
+/** Kept raw fixes closer than this (px) on the track plot are drawn as one dot (the dot is about 1.4 px across). */
+export const KEPT_CELL_PX = 1.5;
+const KEPT_LAYER = 'kept';
+const ELLIPSE_LAYER = 'ellipses';
+const FLAG_LAYER = 'flagged';
 export const TRACK_KINDS = ['smoothed track', 'bridged (no fix)'] as const;
 
 /** Points of a 95% ellipse (azimuth clockwise from north) around its centre, closed. */
@@ -30,6 +36,20 @@ export function ellipsePoints(e: EllipseMark, vertices = ELLIPSE_VERTICES): Arra
     pts.push([e.east + a * ue + b * un, e.north + a * un - b * ue]);
   }
   return pts;
+}
+
+/**
+ * A 95% ellipse as an SVG path of two elliptical arcs (exact, about 60 bytes), in pixels of a plot
+ * with the same scale on both axes and y down: centre (x, y), semi-axes in px, azimuth of the major
+ * axis clockwise from north (up), so the major axis lies (azimuth − 90)° clockwise from +x.
+ */
+export function ellipseArcPath(x: number, y: number, majorPx: number, minorPx: number, azimuthDeg: number): string {
+  const rot = azimuthDeg - 90;
+  const th = (rot * Math.PI) / 180;
+  const dx = majorPx * Math.cos(th), dy = majorPx * Math.sin(th);
+  const r = (v: number) => Math.round(v * 10) / 10;
+  const a = `A${r(majorPx)},${r(minorPx)},${r(rot)},0,1,`;
+  return `M${r(x + dx)},${r(y + dy)}${a}${r(x - dx)},${r(y - dy)}${a}${r(x + dx)},${r(y + dy)}Z`;
 }
 
 /** Domains giving the same metres per pixel on both axes, and the plot height for a fixed width. */
@@ -66,19 +86,19 @@ export function trackChart(p: PlotSeries, ellipses: EllipseMark[], name: string,
   }
   const ell: Array<{ e: number | null; n: number | null; id: number; k: number }> = [];
   ellipses.forEach((el, id) => ellipsePoints(el).forEach(([e, n], k) => ell.push({ e: r4(e), n: r4(n), id, k })));
-  const flagged: Array<{ e: number | null; n: number | null; mark: string; label: string }> = [];
+  const flagged: Array<{ e: number | null; n: number | null; mark: string; label: string; listed: boolean }> = [];
   // one text label a burst: its first id, and how many more it holds
   const labels: Array<{ e: number | null; n: number | null; text: string; epoch: number; count: number }> = [];
-  const kept: Array<{ e: number | null; n: number | null }> = [];
+  const keptAt: number[] = [];
   for (let k = 0; k < M; k++) {
-    if (isKeptFix(p.status[k]!) && Number.isFinite(p.rawEast[k]!)) kept.push({ e: r4(p.rawEast[k]!), n: r4(p.rawNorth[k]!) });
+    if (isKeptFix(p.status[k]!) && Number.isFinite(p.rawEast[k]!)) keptAt.push(k);
     const m = flagMark(p.status[k]!);
     // the raw fix where there is one (that is what was judged), else the smoothed position
     if (!m) continue;
     const e = Number.isFinite(p.rawEast[k]!) ? p.rawEast[k]! : p.east[k]!;
     const n = Number.isFinite(p.rawNorth[k]!) ? p.rawNorth[k]! : p.north[k]!;
     const id = flagIds.get(p.epoch[k]!);
-    flagged.push({ e: r4(e), n: r4(n), mark: m.label, label: id ? flagLabel(id) : m.label });
+    flagged.push({ e: r4(e), n: r4(n), mark: m.label, label: id ? flagLabel(id) : m.label, listed: id !== undefined });
     if (!id) continue;
     const last = labels.at(-1);
     if (last && p.epoch[k]! - last.epoch <= CLOSEUP_JOIN_EPOCHS) {
@@ -97,19 +117,57 @@ export function trackChart(p: PlotSeries, ellipses: EllipseMark[], name: string,
   }
   if (!Number.isFinite(eMin)) [eMin, eMax, nMin, nMax] = [-1, 1, -1, 1];
   const ax = equalAxes(eMin, eMax, nMin, nMax, CHART_WIDTH);
+  // the kept raw fixes, one dot a cell of KEPT_CELL_PX (more in one cell draw the same dot), all
+  // of them one SVG path of zero-length round-capped segments; and the 95% ellipses, one path
+  // each: drawn by renderSvg into the empty 'kept' and 'ellipses' layers (a chart library's
+  // element a dot cost 1–2 kB and most of the plot's time)
+  const overlay: SvgOverlay = (scale) => {
+    const sx = scale('x'), sy = scale('y');
+    const cells = new Set<string>();
+    let dots = '';
+    for (const k of keptAt) {
+      const x = sx(p.rawEast[k]!), y = sy(p.rawNorth[k]!);
+      if (!(x >= 0 && x <= CHART_WIDTH && y >= 0 && y <= ax.height)) continue;
+      const key = `${Math.floor(x / KEPT_CELL_PX)},${Math.floor(y / KEPT_CELL_PX)}`;
+      if (cells.has(key)) continue;
+      cells.add(key);
+      dots += `M${px1(x)},${px1(y)}h0`;
+    }
+    let rings = '';
+    const pxPerM = sx(1) - sx(0);
+    for (const el of ellipses)
+      if ([el.east, el.north, el.majorM, el.minorM, el.azimuthDeg].every(Number.isFinite)) rings += `<path d="${ellipseArcPath(sx(el.east), sy(el.north), el.majorM * pxPerM, el.minorM * pxPerM, el.azimuthDeg)}"/>`;
+    // a listed fix (with an id, linked to its row) one path each; the unlisted ones one path a kind
+    let symbols = '';
+    const unlisted: Array<{ t: number; y: number; mark: string }> = [];
+    for (const f of flagged) {
+      if (f.e === null || f.n === null) continue;
+      const m = FLAG_MARKS.find((q) => q.label === f.mark)!;
+      if (f.listed) symbols += flagSymbolPath(sx(f.e), sy(f.n), m, f.label, 0.9);
+      else unlisted.push({ t: f.e, y: f.n, mark: f.mark });
+    }
+    symbols += flagSymbolsSvg(unlisted, sx, sy, CHART_WIDTH, ax.height, 0.9);
+    return {
+      ...(flagged.length ? { [FLAG_LAYER]: symbols } : {}),
+      [KEPT_LAYER]: dots ? `<path d="${dots}" fill="none" stroke="#777777" stroke-width="2.8" stroke-linecap="round" opacity="0.55"/>` : '',
+      [ELLIPSE_LAYER]: rings ? `<g fill="none" stroke="#5d6d7e" stroke-width="0.8" opacity="0.8">${rings}</g>` : '',
+    };
+  };
   const x = { field: 'e', type: 'quantitative', scale: { domain: ax.x, nice: false, zero: false }, axis: { title: 'east (m)' } };
   const y = { field: 'n', type: 'quantitative', scale: { domain: ax.y, nice: false, zero: false }, axis: { title: 'north (m)' } };
   const start = line.length ? [{ e: line[0]!.e, n: line[0]!.n, label: 'start' }] : [];
   const layers: unknown[] = [
     {
-      data: { values: kept },
-      mark: { type: 'point', shape: 'circle', size: 6, filled: true, color: '#777777', opacity: 0.55, clip: true },
+      name: KEPT_LAYER,
+      data: { values: [] },
+      mark: { type: 'point', clip: true, aria: false },
       encoding: { x, y },
     },
     {
-      data: { values: ell },
-      mark: { type: 'line', strokeWidth: 0.8, color: '#5d6d7e', opacity: 0.8, clip: true },
-      encoding: { x, y, detail: { field: 'id' }, order: { field: 'k' } },
+      name: ELLIPSE_LAYER,
+      data: { values: [] },
+      mark: { type: 'line', clip: true, aria: false },
+      encoding: { x, y },
     },
     {
       data: { values: line },
@@ -130,11 +188,13 @@ export function trackChart(p: PlotSeries, ellipses: EllipseMark[], name: string,
       encoding: { x, y, text: { field: 'label' } },
     },
   ];
+  // the flagged symbols (legend from the empty layer's scales) drawn by the overlay, one path each
   if (flagged.length)
     layers.push({
-      data: { values: flagged },
+      name: FLAG_LAYER,
+      data: { values: [] },
       mark: { type: 'point', size: 60, filled: true, opacity: 0.9, clip: true },
-      encoding: { x, y, ...flagEncoding(), description: { field: 'label' } },
+      encoding: { x, y, ...flagEncoding() },
     });
   if (labels.length && labels.length <= TRACK_LABELS_MAX)
     layers.push({
@@ -142,10 +202,10 @@ export function trackChart(p: PlotSeries, ellipses: EllipseMark[], name: string,
       mark: { type: 'text', dx: 6, dy: -6, align: 'left', fontSize: 10, color: '#7b241c', clip: true, aria: false },
       encoding: { x, y, text: { field: 'text' } },
     });
-  return {
+  return withSvgOverlay({
     description: `Track of ${name} in the local frame`,
     width: CHART_WIDTH,
     height: ax.height,
     layer: layers,
-  } as TopLevelSpec;
+  } as TopLevelSpec, overlay);
 }

@@ -5,6 +5,7 @@
  * no network. The cautions stand at the top and the bottom of every page.
  */
 import { CAUTION } from '../caution.js';
+import { CLOSEUP_STYLE } from './chart-closeup.js';
 import { esc } from './html-text.js';
 
 export const REPORT_STYLE = `
@@ -60,6 +61,8 @@ export interface PageParts {
   main: string;
   /** Inline script text (no data, no network). */
   script: string;
+  /** Whether the page holds close-ups (their shared style is added). */
+  closeups?: boolean;
 }
 
 export function reportPage(p: PageParts): string {
@@ -71,7 +74,7 @@ export function reportPage(p: PageParts): string {
 <meta name="viewport" content="width=device-width, initial-scale=1">
 <meta name="generator" content="${esc(p.generator)}">
 <title>${esc(p.title)}</title>
-<style>${REPORT_STYLE}</style>
+<style>${REPORT_STYLE}${p.closeups ? CLOSEUP_STYLE : ''}</style>
 </head>
 <body>
 <header>

@@ -14,6 +14,12 @@ import { collectExtensions, type ExtensionData } from './extensions.js';
 export const PAYLOAD_VERSION = 3;
 /** Ellipses drawn on the track plot of a session (about; plus the worst one). */
 export const ELLIPSES_PER_SESSION = 30;
+/**
+ * Epochs drawn in the time and track plots at most (besides the ones always kept): two a pixel
+ * column of the 620 px charts, in buckets of three (first epoch, sd peak, statistic peak) of about
+ * 1.5 px each; more points land on the same pixels and only cost bytes and time.
+ */
+export const PLOT_POINTS_MAX = 1240;
 /** Flagged fixes and decisions listed in a session's table (all are plotted). */
 export const LISTED_ROWS_MAX = 400;
 /** Warnings carried per session (the count is always exact). */
@@ -125,7 +131,7 @@ export interface ReportPayload {
 }
 
 export interface PayloadOptions {
-  /** Most epochs drawn (flagged fixes always on top); default 2000. */
+  /** Most epochs drawn (flagged fixes always on top); default PLOT_POINTS_MAX. */
   maxPoints?: number;
 }
 
@@ -237,7 +243,7 @@ function facts(r: SessionResult): Array<[string, string]> {
 }
 
 export function reportPayload(r: SessionResult, opt: PayloadOptions = {}): ReportPayload {
-  const idx = plotEpochs(r, opt.maxPoints ?? 2000);
+  const idx = plotEpochs(r, opt.maxPoints ?? PLOT_POINTS_MAX);
   const M = idx.length;
   const f64 = () => new Float64Array(M);
   const f32 = () => new Float32Array(M);

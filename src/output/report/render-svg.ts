@@ -16,13 +16,80 @@ noLoader.sanitize = () => Promise.reject(new Error('the report renders inline da
  */
 const LEGEND_CONFIG = { labelLimit: 0, columns: 2, symbolLimit: 0 };
 
+/** Geometry attributes whose numbers are rounded to a tenth of a pixel (what a screen or a print shows). */
+const GEOMETRY_ATTR = /\b(d|transform|x|y|x1|y1|x2|y2|width|height)="([^"]*)"/g;
+const LONG_DECIMAL = /(-?\d+\.\d)\d+/g;
+
+/** The SVG text with coordinates rounded to 0.1 px (Vega writes up to 15 digits); text and labels are left as they are. */
+export function roundSvgGeometry(svg: string): string {
+  return svg.replace(GEOMETRY_ATTR, (_, name: string, value: string) => {
+    const v = value.replace(LONG_DECIMAL, (m: string) => String(Math.round(Number(m) * 10) / 10));
+    return `${name}="${name === 'd' ? straightRunsOut(v) : v}"`;
+  });
+}
+
+const POLYLINE = /^M-?[\d.]+,-?[\d.]+(L-?[\d.]+,-?[\d.]+)+$/;
+
+/**
+ * A polyline (M x,y L x,y …) without the inner points of its horizontal and vertical runs (after
+ * rounding, a steady sd or a constant threshold repeats its pixel row for hundreds of points): the
+ * same line. Other paths are returned as they are.
+ */
+export function straightRunsOut(d: string): string {
+  if (!POLYLINE.test(d)) return d;
+  const pts = d.slice(1).split('L').map((p) => p.split(','));
+  const keep: string[] = [];
+  for (let i = 0; i < pts.length; i++) {
+    const a = pts[i - 1], b = pts[i]!, c = pts[i + 1];
+    if (a && c && ((a[1] === b[1] && b[1] === c[1]) || (a[0] === b[0] && b[0] === c[0]))) continue;
+    keep.push(`${b[0]},${b[1]}`);
+  }
+  return `M${keep.join('L')}`;
+}
+
+/** A scale of the rendered chart by name ('x', 'y'): data value → pixel of the plot area. */
+export type ChartScale = (name: string) => (v: number) => number;
+
+/**
+ * SVG text to put into the (empty) group of a named layer, by layer name, from the chart's scales
+ * once laid out: marks drawn as one path where the library would write an element a point (kept
+ * dots, ellipses, flagged symbols of the time plots). The text is in the plot area's pixel frame,
+ * inside the layer's clip.
+ */
+export type SvgOverlay = (scale: ChartScale) => Record<string, string>;
+
+const OVERLAYS = new WeakMap<object, SvgOverlay>();
+
+/** The spec, with an overlay that renderSvg draws into its empty named layers. */
+export function withSvgOverlay<T extends object>(spec: T, overlay: SvgOverlay): T {
+  OVERLAYS.set(spec, overlay);
+  return spec;
+}
+
+function putOverlays(svg: string, overlays: Record<string, string>): string {
+  let out = svg;
+  for (const [name, inner] of Object.entries(overlays)) {
+    const re = new RegExp(`(<g class="mark-[a-z]+ role-mark ${name}_marks"[^>]*?)/>`);
+    if (!re.test(out)) throw new Error(`the report chart has no empty layer "${name}" to draw into`);
+    out = out.replace(re, (_, open: string) => `${open}>${inner}</g>`);
+  }
+  return out;
+}
+
+/** A pixel coordinate as SVG text, to 0.1 px. */
+export function px1(v: number): string {
+  return String(Math.round(v * 10) / 10);
+}
+
 export async function renderSvg(spec: TopLevelSpec): Promise<string> {
   const s = spec as TopLevelSpec & { config?: Record<string, unknown> };
+  const overlay = OVERLAYS.get(spec);
   const config = { ...(s.config ?? {}), legend: { ...LEGEND_CONFIG, ...((s.config?.legend as object | undefined) ?? {}) } };
   const vg = compile({ ...s, config } as TopLevelSpec).spec;
   const view = new vega.View(vega.parse(vg), { renderer: 'none', loader: noLoader });
   try {
-    return await view.toSVG();
+    const svg = roundSvgGeometry(await view.toSVG());
+    return overlay ? putOverlays(svg, overlay((name) => view.scale(name) as (v: number) => number)) : svg;
   } finally {
     view.finalize();
   }

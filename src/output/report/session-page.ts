@@ -32,6 +32,7 @@ export async function sessionPageHtml(s: SessionSummary, p: ReportPayload | unde
 <p>Log <code>${esc(s.input)}</code>, profile <code>${esc(ctx.profile)}</code>, by ${esc(ctx.tool)} ${esc(ctx.version)}. <a href="${esc(overviewHref(s.name))}">Overview of the batch</a></p>`,
     main: section,
     script: SORT_SCRIPT + FLAG_LINKS_SCRIPT,
+    closeups: true,
   });
 }
 

@@ -13,7 +13,7 @@ import { nisChart, residualChart, sdChart, speedChart } from './chart-time.js';
 import { surveySectionHtml } from './survey-section.js';
 import { REPORT_EXTENSIONS, type ExtensionChart, type ReportExtension } from './extensions.js';
 import { esc, duration, isoTime, localTime, num, sessionAnchor, sortKey } from './html-text.js';
-import { closeupChart } from './chart-closeup.js';
+import { closeupSvg } from './chart-closeup.js';
 import { testName } from './test-words.js';
 import type { ReportPayload } from './payload.js';
 import { noiseText } from './overview-table.js';
@@ -111,6 +111,11 @@ export function reviewOrder(rows: readonly ReportPayload['flagged'][number][]): 
   return [...rows].sort((a, b) => m(a.margin) - m(b.margin) || a.tSec - b.tSec);
 }
 
+/** A sort key to 7 significant digits (the table shows 2 decimals; a key of 17 digits only costs bytes). */
+function sortKey7(v: number): string {
+  return sortKey(Number.isFinite(v) ? +v.toPrecision(7) : v);
+}
+
 function flaggedTable(p: ReportPayload, anchor: string): string {
   if (p.flaggedCount === 0) return '<p>No fix was flagged.</p>';
   const zone = p.timeZone;
@@ -120,7 +125,7 @@ function flaggedTable(p: ReportPayload, anchor: string): string {
       const local = zone ? `<td data-sort="${sortKey(f.tSec)}"><code>${esc(localTime(f.tSec, zone))}</code></td>` : '';
       const margin = Number.isFinite(f.margin) ? `${(100 * f.margin).toFixed(1)}%` : '–';
       const summary = `${isoTime(f.tSec)} UTC, ${testName(f.test)}${Number.isFinite(f.statistic) ? ` ${num(f.statistic, 2)} > ${num(f.threshold, 2)}` : ''}`;
-      return `<tr id="${esc(flagRowId(anchor, f.id))}" data-flag="${esc(f.id)}" data-summary="${esc(summary)}"><td data-sort="${esc(f.id)}"><strong>${esc(f.id)}</strong></td><td data-sort="${sortKey(f.tSec)}"><code>${esc(isoTime(f.tSec))}</code></td>${local}<td data-sort="${f.line}">${f.line}</td><td data-sort="${esc(testName(f.test))}">${esc(testName(f.test))}</td><td data-sort="${sortKey(f.statistic)}">${num(f.statistic, 2)}</td><td data-sort="${sortKey(f.threshold)}">${num(f.threshold, 2)}</td><td data-sort="${sortKey(f.margin)}">${margin}</td><td data-sort="${sortKey(f.offsetM)}">${num(f.offsetM, 2)}</td><td data-sort="${esc(f.status)}">${esc(f.status)}</td><td data-sort="${esc(f.note ?? '')}">${esc(f.note ?? '')}</td><td>${shot}</td><td>${esc(f.detail)}</td></tr>`;
+      return `<tr id="${esc(flagRowId(anchor, f.id))}" data-flag="${esc(f.id)}" data-summary="${esc(summary)}"><td data-sort="${esc(f.id)}"><strong>${esc(f.id)}</strong></td><td data-sort="${sortKey(f.tSec)}"><code>${esc(isoTime(f.tSec))}</code></td>${local}<td data-sort="${f.line}">${f.line}</td><td data-sort="${esc(testName(f.test))}">${esc(testName(f.test))}</td><td data-sort="${sortKey7(f.statistic)}">${num(f.statistic, 2)}</td><td data-sort="${sortKey7(f.threshold)}">${num(f.threshold, 2)}</td><td data-sort="${sortKey7(f.margin)}">${margin}</td><td data-sort="${sortKey7(f.offsetM)}">${num(f.offsetM, 2)}</td><td data-sort="${esc(f.status)}">${esc(f.status)}</td><td data-sort="${esc(f.note ?? '')}">${esc(f.note ?? '')}</td><td>${shot}</td><td>${esc(f.detail)}</td></tr>`;
     })
     .join('\n');
   const more = p.flaggedCount > p.flagged.length ? `<p>${p.flaggedCount - p.flagged.length} more are listed in the session's outliers.csv (all are drawn in the plots).</p>` : '';
@@ -141,14 +146,14 @@ async function closeupsPart(p: ReportPayload, anchor: string): Promise<string> {
   for (let i = 0; i < p.closeups.length; i++) {
     const c = p.closeups[i]!;
     const title = `Close-up ${i + 1}: ${c.ids.join(', ')}`;
-    const svg = await renderSvg(closeupChart(c, title));
+    const svg = closeupSvg(c, title, closeupId(anchor, i));
     const when = `${bothTimes(p, c.tSec[0]!)} to ${isoTime(c.tSec[c.tSec.length - 1]!).slice(11)}`;
     const links = c.ids.map((id) => `<a href="#${esc(flagRowId(anchor, id))}">${esc(id)}</a>`).join(', ');
     figs.push(`<figure class="closeup" id="${closeupId(anchor, i)}" data-ids="${esc(c.ids.join(' '))}"><figcaption><strong>Close-up ${i + 1}</strong> (${links}), ${esc(when)}.</figcaption>${svg}</figure>`);
   }
   const more = p.flagged.some((f) => f.closeup < 0 && f.epoch >= 0) ? ' Flagged fixes without a close-up are in the table and the track plot.' : '';
   return `<h3>Close-ups of the flagged fixes (${p.closeups.length})</h3>
-<p class="note">Each flagged fix with its neighbours, east and north in metres at equal scale: smoothed track (line), its 95% error ellipse at each epoch (grey rings), raw fixes kept (grey dots), flagged fixes (symbols, labelled with their id) and their offset from the smoothed position (dotted). Review first: the close-ups of the fixes closest to their threshold are drawn first when there are more bursts than close-ups.${more}</p>
+<p class="note">Each flagged fix with its neighbours, east and north in metres at equal scale: smoothed track (line), its 95% error ellipse at each epoch (grey rings), raw fixes kept (grey dots), flagged fixes (symbols as in the track plot's legend, labelled with their id) and their offset from the smoothed position (dotted). Review first: the close-ups of the fixes closest to their threshold are drawn first when there are more bursts than close-ups.${more}</p>
 <div class="closeups">${figs.join('\n')}</div>`;
 }
 
