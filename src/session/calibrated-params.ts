@@ -8,10 +8,9 @@
  * Sources: as in calibrate.ts (Schweppe 1965; Harvey 1989 §3.4) and review.ts.
  */
 import type { HindcastConfig } from '../config/schema.js';
-import { axisParamsFromConfig, buildAxisModels, calibrationRounds, filterOptions, reviewOptions, runPrepared, segmentData, type AxisParams, type PreparedSession } from './process-session.js';
+import { axisParamsFromConfig, calibrationRounds, classify, reviewOptions, runPrepared, type AxisParams, type PreparedSession } from './process-session.js';
 import type { CalibrationInfo } from './calibrate.js';
 import type { ReviewOptions } from './review.js';
-import { localScaleOptions, reviewWithLocalScale } from './local-noise-scale.js';
 import type { SessionResult } from './result.js';
 import type { DecisionLog } from './decision-log.js';
 
@@ -29,16 +28,9 @@ export interface CalibratedSession {
   plans: CalibrationPlan[];
 }
 
-/** Classification of every segment's fixes under `params`: two-way gate, then the two-sided review. */
-function classify(ps: PreparedSession, cfg: HindcastConfig, params: AxisParams, ro: ReviewOptions): CalibrationPlan[] {
-  const opt = filterOptions(cfg, params);
-  const models = buildAxisModels(params, ps.hasHeight);
-  return ps.segments.map((seg) => {
-    const { data } = segmentData(ps, seg, params, cfg.segments.bridgeFactor);
-    const offered = data.use.slice();
-    const { rev, scale } = reviewWithLocalScale(models, data, offered, opt, ro, localScaleOptions(cfg.noise.localScaleWindowSec, cfg.gate.probability));
-    return { offered, decisions: { kept: rev.kept, gateRejected: rev.gateRejected, why: rev.why }, scale };
-  });
+/** processSession's classification of every segment under `params`, as plans (without its review outcomes). */
+function classifyPlans(ps: PreparedSession, cfg: HindcastConfig, params: AxisParams, ro: ReviewOptions): CalibrationPlan[] {
+  return classify(ps, cfg, params, ro).map(({ offered, decisions, scale }) => ({ offered, decisions: decisions!, scale: scale ?? null }));
 }
 
 /** Stages 1–4 of processSession: its calibration rounds (calibrationRounds), then the classification under their model. */
@@ -46,7 +38,7 @@ export function calibratedParams(ps: PreparedSession, cfg: HindcastConfig): Cali
   const prior = axisParamsFromConfig(cfg, ps.factors.reported);
   const ro = reviewOptions(cfg, ps.intervalSec);
   const { params, info, warnings } = calibrationRounds(ps, cfg, prior, ro);
-  return { params, info, warnings, plans: classify(ps, cfg, params, ro) };
+  return { params, info, warnings, plans: classifyPlans(ps, cfg, params, ro) };
 }
 
 /** The fixes-only result of processSession on a prepared session, with its calibrated parameters. */

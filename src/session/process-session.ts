@@ -364,7 +364,7 @@ export function calibrationRounds(ps: PreparedSession, cfg: HindcastConfig, prio
 }
 
 /** Classification of every segment's fixes: two-way gate, then the two-sided review. */
-function classify(ps: PreparedSession, cfg: HindcastConfig, params: AxisParams, ro: ReviewOptions, tm?: StageTimings): SegmentPlan[] {
+export function classify(ps: PreparedSession, cfg: HindcastConfig, params: AxisParams, ro: ReviewOptions, tm?: StageTimings): SegmentPlan[] {
   const opt = filterOptions(cfg, params);
   const models = buildAxisModels(params, ps.hasHeight);
   return ps.segments.map((seg) => {
