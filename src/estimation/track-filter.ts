@@ -392,40 +392,302 @@ function recordReacquisition(models: AxisModel[], data: SegmentData, h: FilterHi
  * With `resume`, only the epochs affected by a change of use are recomputed (see FilterResume).
  */
 export function forwardFilter(models: AxisModel[], data: SegmentData, opt: FilterOptions, history?: FilterHistory, resume?: FilterResume): FilterHistory {
-  const N = data.N;
-  const h = history ?? allocateHistory(N, models);
-  const w = makeWork(models);
-  const nAx = models.length;
+  const h = history ?? allocateHistory(data.N, models);
+  if (resume && !history) throw new Error('forwardFilter: resume needs the previous history');
+  if (h.N !== data.N) throw new Error(`forwardFilter: the history holds ${h.N} epochs, the segment ${data.N}`);
+  if (h.x.length !== models.length || h.P.length !== models.length) throw new Error(`forwardFilter: the history has ${h.x.length} axes, the models ${models.length}`);
   const thresholds = [0, 0, 0, 0].map((_, d) => (d === 0 ? Infinity : chiSquareQuantile(opt.gateProbability, d)));
-  const rewound = new Set<number>();
-  const rScale = opt.rScale ?? models.map(() => 1);
-
-  const likelihood = opt.likelihood === true;
   // north takes east's covariances (predict and update its state only)
   const share = horizontalShare(models, data, opt.rScale, opt.qScale);
-  // Δt of the step whose F, Q are in w.F, w.Q (NaN: none, or not reusable; see ensureStep)
-  let lastDt = NaN;
+  const nAx = models.length;
+  // the common case (every axis n = 3, north sharing east's covariances, no scales, no likelihood)
+  // has its own epoch steps: the same kernels on the same numbers, so the same bits
+  const steps: EpochSteps =
+    share && opt.likelihood !== true && !opt.qScale && !opt.rScale && (nAx === 2 || (nAx === 3 && models[2]!.n === 3))
+      ? new Shared3Steps(models, data, h)
+      : new GeneralSteps(models, data, opt, h, share);
+  return forwardPass(steps, models, data, opt, h, thresholds, resume);
+}
+
+/**
+ * The prediction, innovation and update of one epoch over all axes, and the save/compare of an
+ * epoch's state for a re-run; forwardPass holds the gate, re-acquisition and re-run logic.
+ */
+interface EpochSteps {
+  /** x⁻ = F x, P⁻ = F P Fᵀ + Q from epoch k − 1 to k, every axis. */
+  predict(k: number): void;
+  /** Innovations of epoch k: returns the degrees of freedom (axes measured) and leaves NIS and Σ(log 2π + log S) in nis, ll. */
+  measure(k: number): number;
+  /** Kalman update of epoch k with the innovations of measure(k). */
+  update(k: number): void;
+  /** Keep epoch k's state for sameAsSaved. */
+  save(k: number): void;
+  /** Whether epoch k's state equals the one saved, within tol. */
+  sameAsSaved(k: number, tol: number): boolean;
+  nis: number;
+  ll: number;
+}
+
+/** Any axes (n = 3 packed kernels, else the generic ones), q and r scales, the likelihood. */
+class GeneralSteps implements EpochSteps {
+  nis = 0;
+  ll = 0;
+  private readonly w: Work;
+  private readonly rScale: number[];
+  private readonly likelihood: boolean;
+  private readonly sx: Float64Array[];
+  private readonly sP: Float64Array[];
+  /** Δt of the step whose F, Q are in w.F, w.Q (NaN: none, or not reusable; see ensureStep). */
+  private lastDt = NaN;
+
+  constructor(
+    private readonly models: AxisModel[],
+    private readonly data: SegmentData,
+    private readonly opt: FilterOptions,
+    private readonly h: FilterHistory,
+    private readonly share: boolean,
+  ) {
+    this.w = makeWork(models);
+    this.rScale = opt.rScale ?? models.map(() => 1);
+    this.likelihood = opt.likelihood === true;
+    this.sx = models.map((m) => new Float64Array(m.n));
+    this.sP = models.map((m) => new Float64Array(covStride(m.n)));
+  }
+
+  predict(k: number): void {
+    const { models, h, w } = this;
+    this.lastDt = ensureStep(models, this.data, h, k, this.opt.qScale, w.F, w.Q, w.cache, this.lastDt);
+    for (let a = 0; a < models.length; a++) {
+      const n = models[a]!.n;
+      if (this.share && a === 1) {
+        predictState3(w.F[1]!, h.x[1]!, (k - 1) * 3, h.x[1]!, k * 3);
+        copy6(h.P[0]!, h.P[1]!, k * 6);
+      } else if (n === 3) predict3p(w.F[a]!, w.Q[a]!, h.x[a]!, (k - 1) * 3, h.P[a]!, (k - 1) * 6, h.x[a]!, k * 3, h.P[a]!, k * 6);
+      else predict(n, w.F[a]!, w.Q[a]!, h.x[a]!, (k - 1) * n, h.P[a]!, (k - 1) * n * n, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!);
+    }
+  }
+
+  measure(k: number): number {
+    const { models, h, w, data } = this;
+    let nis = 0;
+    let dof = 0;
+    let ll = 0;
+    for (let a = 0; a < models.length; a++) {
+      const z = data.z[a]![k]!;
+      if (!Number.isFinite(z)) {
+        w.S[a] = NaN;
+        continue;
+      }
+      const m = models[a]!;
+      const n = m.n;
+      const r = data.r[a]![k]! * this.rScale[a]!;
+      // ν = z − h x⁻, S = h P hᵀ + r (P hᵀ left in the axis's scratch for the update)
+      const nu = n === 3 ? innovation3p(m.h, z, r, h.x[a]!, k * 3, h.P[a]!, k * 6, w.s[a]!.w, w.out1) : innovation(n, m.h, z, r, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!, w.out1);
+      const S = w.out1[0]!;
+      w.nu[a] = nu;
+      w.S[a] = S;
+      // NIS = Σ ν²/S over independent axes
+      nis += (nu * nu) / S;
+      if (this.likelihood) ll += LOG_2PI + Math.log(S);
+      dof++;
+    }
+    this.nis = nis;
+    this.ll = ll;
+    return dof;
+  }
+
+  update(k: number): void {
+    const { models, h, w, data } = this;
+    for (let a = 0; a < models.length; a++) {
+      // an axis whose S is not finite is not updated
+      if (!Number.isFinite(w.S[a]!)) continue;
+      const m = models[a]!;
+      const n = m.n;
+      const r = data.r[a]![k]! * this.rScale[a]!;
+      if (this.share && a === 1) {
+        // north: x ← x + K ν with east's gain; P: east's updated one
+        updateState3(w.nu[1]!, w.S[1]!, w.s[1]!.w, h.x[1]!, k * 3);
+        copy6(h.P[0]!, h.P[1]!, k * 6);
+      } else if (n === 3) updateJoseph3p(m.h, w.nu[a]!, w.S[a]!, r, w.s[a]!.w, h.x[a]!, k * 3, h.P[a]!, k * 6);
+      else updateJoseph(n, m.h, w.nu[a]!, w.S[a]!, r, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!);
+    }
+  }
+
+  save(k: number): void {
+    const { models, h } = this;
+    for (let a = 0; a < models.length; a++) {
+      const n = models[a]!.n;
+      for (let i = 0; i < n; i++) this.sx[a]![i] = h.x[a]![k * n + i]!;
+      const ps = covStride(n);
+      for (let i = 0; i < ps; i++) this.sP[a]![i] = h.P[a]![k * ps + i]!;
+    }
+  }
+
+  sameAsSaved(k: number, tol: number): boolean {
+    return sameState(this.models, this.h, k, this.sx, this.sP, tol);
+  }
+}
+
+/**
+ * The common case: every axis n = 3, north (1) sharing east's (0) covariances (horizontalShare), no
+ * q or r scale, no likelihood; 2 axes, or 3 with the vertical. The step matrices are looked up only
+ * when Δt changes or at a step with re-acquisition noise (ensureStep would return at once otherwise),
+ * and east's innovation (P hᵀ, S) serves north too (the same P and r, so the same numbers): the
+ * general steps' result bit for bit (test/estimation/forward-filter-shared.test.ts).
+ */
+class Shared3Steps implements EpochSteps {
+  nis = 0;
+  ll = 0;
+  private readonly up: boolean;
+  private readonly zE: Float64Array;
+  private readonly zN: Float64Array;
+  private readonly zU: Float64Array;
+  private readonly rE: Float64Array;
+  private readonly rU: Float64Array;
+  private readonly xE: Float64Array;
+  private readonly xN: Float64Array;
+  private readonly xU: Float64Array;
+  private readonly PE: Float64Array;
+  private readonly PN: Float64Array;
+  private readonly PU: Float64Array;
+  /** North's covariances are east's array (allocateHistory's shareHorizontal): nothing to copy. */
+  private readonly oneP: boolean;
+  private readonly hH: Float64Array;
+  private readonly hV: Float64Array;
+  private readonly w: Work;
+  /** P hᵀ of east (north's too) and up, from innovation3p for updateJoseph3p; S in out1. */
+  private readonly wH = new Float64Array(3);
+  private readonly wV = new Float64Array(3);
+  private readonly out1 = new Float64Array(1);
+  private nuE = 0;
+  private nuN = 0;
+  private SH = NaN;
+  private nuU = 0;
+  private SU = NaN;
+  private lastDt = NaN;
+  /** The saved state of one epoch (x: 3 per axis, P: 6 per axis). */
+  private readonly sx = new Float64Array(9);
+  private readonly sP = new Float64Array(18);
+
+  constructor(
+    private readonly models: AxisModel[],
+    private readonly data: SegmentData,
+    private readonly h: FilterHistory,
+  ) {
+    const up = models.length === 3;
+    this.up = up;
+    this.zE = data.z[0]!; this.zN = data.z[1]!; this.zU = up ? data.z[2]! : this.zE;
+    this.rE = data.r[0]!; this.rU = up ? data.r[2]! : this.rE;
+    this.xE = h.x[0]!; this.xN = h.x[1]!; this.xU = up ? h.x[2]! : this.xE;
+    this.PE = h.P[0]!; this.PN = h.P[1]!; this.PU = up ? h.P[2]! : this.PE;
+    this.oneP = this.PN === this.PE;
+    this.hH = models[0]!.h;
+    this.hV = up ? models[2]!.h : this.hH;
+    this.w = makeWork(models);
+  }
+
+  predict(k: number): void {
+    const { w, h } = this;
+    const xk = k * 3, pk = k * 6;
+    // Δt of this step; F, Q already in place unless it changed or the step has re-acquisition noise
+    const dt = this.data.tSec[k]! - this.data.tSec[k - 1]!;
+    if (dt !== this.lastDt || (h.extraQ.size > 0 && h.extraQ.has(k))) this.lastDt = ensureStep(this.models, this.data, h, k, null, w.F, w.Q, w.cache, this.lastDt);
+    // east: x⁻ = F x, P⁻ = F P Fᵀ + Q
+    predict3p(w.F[0]!, w.Q[0]!, this.xE, xk - 3, this.PE, pk - 6, this.xE, xk, this.PE, pk);
+    // north: its state (x⁻ = F x), east's covariance
+    predictState3(w.F[1]!, this.xN, xk - 3, this.xN, xk);
+    if (!this.oneP) copy6(this.PE, this.PN, pk);
+    // up: x⁻ = F x, P⁻ = F P Fᵀ + Q
+    if (this.up) predict3p(w.F[2]!, w.Q[2]!, this.xU, xk - 3, this.PU, pk - 6, this.xU, xk, this.PU, pk);
+  }
+
+  measure(k: number): number {
+    const xk = k * 3, pk = k * 6;
+    let nis = 0;
+    let dof = 0;
+    const ze = this.zE[k]!;
+    this.SH = NaN;
+    this.SU = NaN;
+    if (Number.isFinite(ze)) {
+      // ν = z − h x⁻, S = h P hᵀ + r (east's; north's S and P hᵀ are the same numbers)
+      const nuE = innovation3p(this.hH, ze, this.rE[k]!, this.xE, xk, this.PE, pk, this.wH, this.out1);
+      const SH = this.out1[0]!;
+      const hH = this.hH, xN = this.xN;
+      const nuN = this.zN[k]! - (hH[0]! * xN[xk]! + hH[1]! * xN[xk + 1]! + hH[2]! * xN[xk + 2]!);
+      // NIS = Σ ν²/S over independent axes
+      nis += (nuE * nuE) / SH;
+      dof++;
+      nis += (nuN * nuN) / SH;
+      dof++;
+      this.nuE = nuE;
+      this.nuN = nuN;
+      this.SH = SH;
+    }
+    const zu = this.up ? this.zU[k]! : NaN;
+    if (this.up && Number.isFinite(zu)) {
+      const nuU = innovation3p(this.hV, zu, this.rU[k]!, this.xU, xk, this.PU, pk, this.wV, this.out1);
+      const SU = this.out1[0]!;
+      nis += (nuU * nuU) / SU;
+      dof++;
+      this.nuU = nuU;
+      this.SU = SU;
+    }
+    this.nis = nis;
+    return dof;
+  }
+
+  update(k: number): void {
+    const xk = k * 3, pk = k * 6;
+    // an axis whose S is not finite is not updated
+    if (Number.isFinite(this.SH)) {
+      // east: x ← x + K ν, P ← (I − K h) P (I − K h)ᵀ + K r Kᵀ (Joseph form)
+      updateJoseph3p(this.hH, this.nuE, this.SH, this.rE[k]!, this.wH, this.xE, xk, this.PE, pk);
+      // north: x ← x + K ν with east's P hᵀ and S; P: east's updated one
+      updateState3(this.nuN, this.SH, this.wH, this.xN, xk);
+      if (!this.oneP) copy6(this.PE, this.PN, pk);
+    }
+    // up: Joseph form as east
+    if (Number.isFinite(this.SU)) updateJoseph3p(this.hV, this.nuU, this.SU, this.rU[k]!, this.wV, this.xU, xk, this.PU, pk);
+  }
+
+  save(k: number): void {
+    const xo = k * 3, po = k * 6;
+    saveAxis3(this.xE, this.PE, xo, po, this.sx, this.sP, 0);
+    saveAxis3(this.xN, this.PN, xo, po, this.sx, this.sP, 1);
+    if (this.up) saveAxis3(this.xU, this.PU, xo, po, this.sx, this.sP, 2);
+  }
+
+  sameAsSaved(k: number, tol: number): boolean {
+    const xo = k * 3, po = k * 6;
+    return sameAxis3(this.xE, this.PE, xo, po, this.sx, this.sP, 0, tol) && sameAxis3(this.xN, this.PN, xo, po, this.sx, this.sP, 1, tol) && (!this.up || sameAxis3(this.xU, this.PU, xo, po, this.sx, this.sP, 2, tol));
+  }
+}
+
+/**
+ * The forward loop over epochs, for either kind of epoch steps: predict, the joint chi-square gate
+ * on the NIS of each fix (Bar-Shalom, Li, Kirubarajan 2001 §5.4), update (Kalman 1960; Joseph form:
+ * Grewal & Andrews 2015 §6), re-acquisition after a lasting run of rejections, and with `resume`
+ * the skip over epochs whose state is unchanged.
+ */
+function forwardPass(steps: EpochSteps, models: AxisModel[], data: SegmentData, opt: FilterOptions, h: FilterHistory, thresholds: number[], resume?: FilterResume): FilterHistory {
+  const N = data.N;
+  const likelihood = opt.likelihood === true;
+  const nisA = h.nis, dofA = h.dof, thrA = h.threshold, accepted = h.accepted, logLik = h.logLik;
+  const rewound = new Set<number>();
   let runStart = -1;
   let runCount = 0;
   let k = 0;
-  // resume: the old state of the epoch being recomputed, the next change not yet reached, the window's first epoch
-  const sx = resume ? models.map((m) => new Float64Array(m.n)) : [];
-  const sP = resume ? models.map((m) => new Float64Array(covStride(m.n))) : [];
+  // resume: the next change not yet reached, the window's first epoch
   let ci = 0;
   let winStart = -1;
   if (resume) {
-    if (!history) throw new Error('forwardFilter: resume needs the previous history');
     if (resume.changed.length === 0) return h;
     k = resume.changed[0]!;
     winStart = k;
   }
-  // the common case (every axis n = 3, north sharing east's covariances, no scales, no likelihood)
-  // in its own loop; the same operations in the same order, so the same bits (see forwardShared3)
-  if (share && !likelihood && !opt.qScale && !opt.rScale && (nAx === 2 || (nAx === 3 && models[2]!.n === 3)))
-    return forwardShared3(models, data, opt, h, w, thresholds, k, resume);
   while (k < N) {
     if (resume) {
-      if (k > winStart && sameState(models, h, k - 1, sx, sP, resume.tol)) {
+      if (k > winStart && steps.sameAsSaved(k - 1, resume.tol)) {
         // same state, same inputs up to the next change: skip to it
         resume.windows.push(winStart, k - 1);
         if (ci >= resume.changed.length) {
@@ -437,89 +699,43 @@ export function forwardFilter(models: AxisModel[], data: SegmentData, opt: Filte
       }
       while (ci < resume.changed.length && resume.changed[ci]! <= k) ci++;
       if (data.use[k] === 1) throw new Error('forwardFilter: resume is for ungated passes (use 0 or 2)');
-      for (let a = 0; a < nAx; a++) {
-        const n = models[a]!.n;
-        for (let i = 0; i < n; i++) sx[a]![i] = h.x[a]![k * n + i]!;
-        const ps = covStride(n);
-        for (let i = 0; i < ps; i++) sP[a]![i] = h.P[a]![k * ps + i]!;
-      }
+      steps.save(k);
     }
     // ---- prediction (or prior at the first epoch) ----
     if (k === 0) writePrior(models, data, opt, h);
-    if (k > 0) {
-      lastDt = ensureStep(models, data, h, k, opt.qScale, w.F, w.Q, w.cache, lastDt);
-      for (let a = 0; a < nAx; a++) {
-        const n = models[a]!.n;
-        if (share && a === 1) {
-          predictState3(w.F[1]!, h.x[1]!, (k - 1) * 3, h.x[1]!, k * 3);
-          copy6(h.P[0]!, h.P[1]!, k * 6);
-        } else if (n === 3) predict3p(w.F[a]!, w.Q[a]!, h.x[a]!, (k - 1) * 3, h.P[a]!, (k - 1) * 6, h.x[a]!, k * 3, h.P[a]!, k * 6);
-        else predict(n, w.F[a]!, w.Q[a]!, h.x[a]!, (k - 1) * n, h.P[a]!, (k - 1) * n * n, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!);
-      }
-    }
-    h.accepted[k] = 0;
-    h.logLik[k] = 0;
-    h.nis[k] = NaN;
-    h.dof[k] = 0;
-    h.threshold[k] = NaN;
+    else steps.predict(k);
+    accepted[k] = 0;
+    logLik[k] = 0;
+    nisA[k] = NaN;
+    dofA[k] = 0;
+    thrA[k] = NaN;
     const use = data.use[k]!;
     if (use === 0) {
       k++;
       continue;
     }
     // ---- innovations and the joint gate ----
-    let nis = 0;
-    let dof = 0;
-    let ll = 0;
-    for (let a = 0; a < nAx; a++) {
-      const z = data.z[a]![k]!;
-      if (!Number.isFinite(z)) {
-        w.S[a] = NaN;
-        continue;
-      }
-      const m = models[a]!;
-      const n = m.n;
-      const r = data.r[a]![k]! * rScale[a]!;
-      const nu = n === 3 ? innovation3p(m.h, z, r, h.x[a]!, k * 3, h.P[a]!, k * 6, w.s[a]!.w, w.out1) : innovation(n, m.h, z, r, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!, w.out1);
-      const S = w.out1[0]!;
-      w.nu[a] = nu;
-      w.S[a] = S;
-      // NIS = Σ ν²/S over independent axes
-      nis += (nu * nu) / S;
-      if (likelihood) ll += LOG_2PI + Math.log(S);
-      dof++;
-    }
+    const dof = steps.measure(k);
     if (dof === 0) {
       k++;
       continue;
     }
+    const nis = steps.nis;
     const thr = thresholds[dof]!;
-    h.nis[k] = nis;
-    h.dof[k] = dof;
-    h.threshold[k] = thr;
-    const pass = use === 2 || nis <= thr;
-    if (pass) {
-      for (let a = 0; a < nAx; a++) {
-        if (!Number.isFinite(w.S[a]!)) continue;
-        const m = models[a]!;
-        const n = m.n;
-        // innovation() left P hᵀ in this axis's own scratch
-        const r = data.r[a]![k]! * rScale[a]!;
-        if (share && a === 1) {
-          updateState3(w.nu[1]!, w.S[1]!, w.s[1]!.w, h.x[1]!, k * 3);
-          copy6(h.P[0]!, h.P[1]!, k * 6);
-        } else if (n === 3) updateJoseph3p(m.h, w.nu[a]!, w.S[a]!, r, w.s[a]!.w, h.x[a]!, k * 3, h.P[a]!, k * 6);
-        else updateJoseph(n, m.h, w.nu[a]!, w.S[a]!, r, h.x[a]!, k * n, h.P[a]!, k * n * n, w.s[a]!);
-      }
-      h.accepted[k] = 1;
-      if (likelihood) h.logLik[k] = -0.5 * (ll + nis);
+    nisA[k] = nis;
+    dofA[k] = dof;
+    thrA[k] = thr;
+    if (use === 2 || nis <= thr) {
+      steps.update(k);
+      accepted[k] = 1;
+      if (likelihood) logLik[k] = -0.5 * (steps.ll + nis);
       runStart = -1;
       runCount = 0;
       k++;
       continue;
     }
     // rejected: capped likelihood contribution keeps outliers from dominating calibration
-    if (likelihood) h.logLik[k] = -0.5 * (ll + thr);
+    if (likelihood) logLik[k] = -0.5 * (steps.ll + thr);
     if (runCount === 0) runStart = k;
     runCount++;
     if (runCount >= opt.reacquireAfter && runStart > 0 && !rewound.has(runStart) && runLasted(data.tSec, runStart, k, opt.reacquireAfterSec)) {
@@ -544,226 +760,12 @@ function sameAxis3(x: Float64Array, P: Float64Array, xo: number, po: number, sx:
     Math.abs(P[po]! - sP[pa]!) <= tol && Math.abs(P[po + 1]! - sP[pa + 1]!) <= tol && Math.abs(P[po + 2]! - sP[pa + 2]!) <= tol &&
     Math.abs(P[po + 3]! - sP[pa + 3]!) <= tol && Math.abs(P[po + 4]! - sP[pa + 4]!) <= tol && Math.abs(P[po + 5]! - sP[pa + 5]!) <= tol;
 }
-
 /** Save one 3-state axis a (x at xo, P at po) into sx, sP. */
 function saveAxis3(x: Float64Array, P: Float64Array, xo: number, po: number, sx: Float64Array, sP: Float64Array, a: number): void {
   const sa = a * 3, pa = a * 6;
   sx[sa] = x[xo]!; sx[sa + 1] = x[xo + 1]!; sx[sa + 2] = x[xo + 2]!;
   sP[pa] = P[po]!; sP[pa + 1] = P[po + 1]!; sP[pa + 2] = P[po + 2]!;
   sP[pa + 3] = P[po + 3]!; sP[pa + 4] = P[po + 4]!; sP[pa + 5] = P[po + 5]!;
-}
-
-/**
- * forwardFilter's loop for its common case: every axis n = 3, north (1) sharing east's (0)
- * covariances (horizontalShare), no q or r scale, no likelihood; 2 axes, or 3 with the vertical.
- * The general loop's operations in its order, written for this case: the step matrices are looked
- * up only when Δt changes or at a step with re-acquisition noise (ensureStep would return at once
- * otherwise), east's innovation (P hᵀ, S) serves north too (the same P and r, so the same numbers),
- * the per-epoch buffers of the general loop are locals, and a re-run (resume) saves and compares
- * the 3-state axes written out. Bit for bit the general loop's result
- * (test/estimation/forward-filter-shared.test.ts compares it with the previous form, kept in
- * test/helpers/reference-track-filter.ts). Sources as forwardFilter's (Bar-Shalom et al. 2001 §5.4;
- * Kalman 1960; Joseph form: Grewal & Andrews 2015 §6).
- */
-function forwardShared3(models: AxisModel[], data: SegmentData, opt: FilterOptions, h: FilterHistory, w: Work, thresholds: number[], kStart: number, resume?: FilterResume): FilterHistory {
-  const N = data.N;
-  const up = models.length === 3;
-  const tSec = data.tSec, use = data.use;
-  const zE = data.z[0]!, zN = data.z[1]!, zU = up ? data.z[2]! : zE;
-  const rE = data.r[0]!, rU = up ? data.r[2]! : rE;
-  const xE = h.x[0]!, xN = h.x[1]!, xU = up ? h.x[2]! : xE;
-  const PE = h.P[0]!, PN = h.P[1]!, PU = up ? h.P[2]! : PE;
-  // north's covariances are east's array (allocateHistory's shareHorizontal)
-  const oneP = PN === PE;
-  const hH = models[0]!.h, hV = up ? models[2]!.h : hH;
-  const e0 = hH[0]!, e1 = hH[1]!, e2 = hH[2]!;
-  const v0 = hV[0]!, v1 = hV[1]!, v2 = hV[2]!;
-  const nisA = h.nis, dofA = h.dof, thrA = h.threshold, accepted = h.accepted, logLik = h.logLik;
-  const rewound = new Set<number>();
-  let lastDt = NaN;
-  let runStart = -1;
-  let runCount = 0;
-  let k = kStart;
-  // resume: the old state of the epoch being recomputed (x: 3 per axis, P: 6 per axis)
-  const sx = new Float64Array(9);
-  const sP = new Float64Array(18);
-  const tol = resume ? resume.tol : 0;
-  let ci = 0;
-  let winStart = resume ? k : -1;
-  while (k < N) {
-    if (resume) {
-      if (k > winStart) {
-        // sameState at k − 1, written out for the 3-state axes
-        const xo = (k - 1) * 3, po = (k - 1) * 6;
-        const same = sameAxis3(xE, PE, xo, po, sx, sP, 0, tol) && sameAxis3(xN, PN, xo, po, sx, sP, 1, tol) && (!up || sameAxis3(xU, PU, xo, po, sx, sP, 2, tol));
-        if (same) {
-          // same state, same inputs up to the next change: skip to it
-          resume.windows.push(winStart, k - 1);
-          if (ci >= resume.changed.length) {
-            winStart = -1;
-            break;
-          }
-          k = resume.changed[ci]!;
-          winStart = k;
-        }
-      }
-      while (ci < resume.changed.length && resume.changed[ci]! <= k) ci++;
-      if (use[k] === 1) throw new Error('forwardFilter: resume is for ungated passes (use 0 or 2)');
-      const xo = k * 3, po = k * 6;
-      saveAxis3(xE, PE, xo, po, sx, sP, 0);
-      saveAxis3(xN, PN, xo, po, sx, sP, 1);
-      if (up) saveAxis3(xU, PU, xo, po, sx, sP, 2);
-    }
-    const xk = k * 3, pk = k * 6;
-    // ---- prediction (or prior at the first epoch) ----
-    if (k === 0) writePrior(models, data, opt, h);
-    else {
-      // Δt of this step; F, Q already in place unless it changed or the step has re-acquisition noise
-      const dt = tSec[k]! - tSec[k - 1]!;
-      if (dt !== lastDt || (h.extraQ.size > 0 && h.extraQ.has(k))) lastDt = ensureStep(models, data, h, k, null, w.F, w.Q, w.cache, lastDt);
-      // east: x⁻ = F x, P⁻ = F P Fᵀ + Q
-      predict3p(w.F[0]!, w.Q[0]!, xE, xk - 3, PE, pk - 6, xE, xk, PE, pk);
-      // north: its state (x⁻ = F x), east's covariance (nothing to copy where it is east's array, see allocateHistory)
-      predictState3(w.F[1]!, xN, xk - 3, xN, xk);
-      if (!oneP) copy6(PE, PN, pk);
-      // up: x⁻ = F x, P⁻ = F P Fᵀ + Q
-      if (up) predict3p(w.F[2]!, w.Q[2]!, xU, xk - 3, PU, pk - 6, xU, xk, PU, pk);
-    }
-    accepted[k] = 0;
-    logLik[k] = 0;
-    nisA[k] = NaN;
-    dofA[k] = 0;
-    thrA[k] = NaN;
-    const u = use[k]!;
-    if (u === 0) {
-      k++;
-      continue;
-    }
-    // ---- innovations and the joint gate ----
-    let nis = 0;
-    let dof = 0;
-    // horizontal: east and north are measured together (horizontalShare); r · rScale = r (no scale)
-    const ze = zE[k]!;
-    const hasH = Number.isFinite(ze);
-    let nuE = 0, nuN = 0, SH = NaN, wH0 = 0, wH1 = 0, wH2 = 0;
-    if (hasH) {
-      const r = rE[k]!;
-      const p00 = PE[pk]!, p01 = PE[pk + 1]!, p02 = PE[pk + 2]!, p11 = PE[pk + 3]!, p12 = PE[pk + 4]!, p22 = PE[pk + 5]!;
-      // P hᵀ
-      const w0 = p00 * e0 + p01 * e1 + p02 * e2;
-      const w1 = p01 * e0 + p11 * e1 + p12 * e2;
-      const w2 = p02 * e0 + p12 * e1 + p22 * e2;
-      wH0 = w0; wH1 = w1; wH2 = w2;
-      // S = h P hᵀ + r (east's; north's is the same numbers)
-      SH = r + e0 * w0 + e1 * w1 + e2 * w2;
-      // ν = z − h x⁻
-      nuE = ze - (e0 * xE[xk]! + e1 * xE[xk + 1]! + e2 * xE[xk + 2]!);
-      nuN = zN[k]! - (e0 * xN[xk]! + e1 * xN[xk + 1]! + e2 * xN[xk + 2]!);
-      // NIS = Σ ν²/S over independent axes
-      nis += (nuE * nuE) / SH;
-      dof++;
-      nis += (nuN * nuN) / SH;
-      dof++;
-    }
-    const zu = up ? zU[k]! : NaN;
-    const hasU = up && Number.isFinite(zu);
-    let nuU = 0, SU = NaN, rVk = 0, wV0 = 0, wV1 = 0, wV2 = 0;
-    if (hasU) {
-      rVk = rU[k]!;
-      const p00 = PU[pk]!, p01 = PU[pk + 1]!, p02 = PU[pk + 2]!, p11 = PU[pk + 3]!, p12 = PU[pk + 4]!, p22 = PU[pk + 5]!;
-      // P hᵀ
-      const w0 = p00 * v0 + p01 * v1 + p02 * v2;
-      const w1 = p01 * v0 + p11 * v1 + p12 * v2;
-      const w2 = p02 * v0 + p12 * v1 + p22 * v2;
-      wV0 = w0; wV1 = w1; wV2 = w2;
-      // S = h P hᵀ + r
-      SU = rVk + v0 * w0 + v1 * w1 + v2 * w2;
-      // ν = z − h x⁻
-      nuU = zu - (v0 * xU[xk]! + v1 * xU[xk + 1]! + v2 * xU[xk + 2]!);
-      nis += (nuU * nuU) / SU;
-      dof++;
-    }
-    if (dof === 0) {
-      k++;
-      continue;
-    }
-    const thr = thresholds[dof]!;
-    nisA[k] = nis;
-    dofA[k] = dof;
-    thrA[k] = thr;
-    if (u === 2 || nis <= thr) {
-      // an axis whose S is not finite is not updated (as in the general loop)
-      if (Number.isFinite(SH)) {
-        {
-          // updateJoseph3p written out: K = P hᵀ S⁻¹, x ← x + K ν, P ← P − K wᵀ − w Kᵀ + (h P hᵀ + r) K Kᵀ
-          const w0 = wH0, w1 = wH1, w2 = wH2;
-          // K = P hᵀ S⁻¹
-          const k0 = w0 / SH, k1 = w1 / SH, k2 = w2 / SH;
-          // x ← x + K ν
-          xE[xk] += k0 * nuE;
-          xE[xk + 1] += k1 * nuE;
-          xE[xk + 2] += k2 * nuE;
-          // h P hᵀ recomputed from w (= S − r up to rounding), as updateJoseph3p
-          const c = e0 * w0 + e1 * w1 + e2 * w2 + rE[k]!;
-          // P ← P − K wᵀ − w Kᵀ + (h P hᵀ + r) K Kᵀ
-          const n00 = PE[pk]! - 2 * k0 * w0 + c * k0 * k0;
-          const n01 = PE[pk + 1]! - k0 * w1 - w0 * k1 + c * k0 * k1;
-          const n02 = PE[pk + 2]! - k0 * w2 - w0 * k2 + c * k0 * k2;
-          const n11 = PE[pk + 3]! - 2 * k1 * w1 + c * k1 * k1;
-          const n12 = PE[pk + 4]! - k1 * w2 - w1 * k2 + c * k1 * k2;
-          const n22 = PE[pk + 5]! - 2 * k2 * w2 + c * k2 * k2;
-          PE[pk] = n00; PE[pk + 1] = n01; PE[pk + 2] = n02;
-          PE[pk + 3] = n11; PE[pk + 4] = n12; PE[pk + 5] = n22;
-        }
-        // K = P hᵀ S⁻¹, x ← x + K ν (north, with east's P hᵀ and S); P: east's updated one
-        xN[xk] += (wH0 / SH) * nuN;
-        xN[xk + 1] += (wH1 / SH) * nuN;
-        xN[xk + 2] += (wH2 / SH) * nuN;
-        if (!oneP) copy6(PE, PN, pk);
-      }
-      if (Number.isFinite(SU))
-        {
-          // updateJoseph3p written out: K = P hᵀ S⁻¹, x ← x + K ν, P ← P − K wᵀ − w Kᵀ + (h P hᵀ + r) K Kᵀ
-          const w0 = wV0, w1 = wV1, w2 = wV2;
-          // K = P hᵀ S⁻¹
-          const k0 = w0 / SU, k1 = w1 / SU, k2 = w2 / SU;
-          // x ← x + K ν
-          xU[xk] += k0 * nuU;
-          xU[xk + 1] += k1 * nuU;
-          xU[xk + 2] += k2 * nuU;
-          // h P hᵀ recomputed from w (= S − r up to rounding), as updateJoseph3p
-          const c = v0 * w0 + v1 * w1 + v2 * w2 + rVk;
-          // P ← P − K wᵀ − w Kᵀ + (h P hᵀ + r) K Kᵀ
-          const n00 = PU[pk]! - 2 * k0 * w0 + c * k0 * k0;
-          const n01 = PU[pk + 1]! - k0 * w1 - w0 * k1 + c * k0 * k1;
-          const n02 = PU[pk + 2]! - k0 * w2 - w0 * k2 + c * k0 * k2;
-          const n11 = PU[pk + 3]! - 2 * k1 * w1 + c * k1 * k1;
-          const n12 = PU[pk + 4]! - k1 * w2 - w1 * k2 + c * k1 * k2;
-          const n22 = PU[pk + 5]! - 2 * k2 * w2 + c * k2 * k2;
-          PU[pk] = n00; PU[pk + 1] = n01; PU[pk + 2] = n02;
-          PU[pk + 3] = n11; PU[pk + 4] = n12; PU[pk + 5] = n22;
-        }
-      accepted[k] = 1;
-      runStart = -1;
-      runCount = 0;
-      k++;
-      continue;
-    }
-    if (runCount === 0) runStart = k;
-    runCount++;
-    if (runCount >= opt.reacquireAfter && runStart > 0 && !rewound.has(runStart) && runLasted(data.tSec, runStart, k, opt.reacquireAfterSec)) {
-      // ---- re-acquire: rewind to the run start with inflated covariance ----
-      rewound.add(runStart);
-      recordReacquisition(models, data, h, k, runStart);
-      k = runStart;
-      runStart = -1;
-      runCount = 0;
-      continue;
-    }
-    k++;
-  }
-  if (resume && winStart >= 0) resume.windows.push(winStart, N - 1);
-  return h;
 }
 
 /** Whether the run of rejections runStart..k (runStart > 0) has lasted minSec, from the epoch before it to epoch k (minSec absent or 0: always). */
