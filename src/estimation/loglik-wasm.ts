@@ -33,7 +33,7 @@ export const LOGLIK_KERNEL: { prefer: 'wasm' | 'js' } = { prefer: 'wasm' };
 
 const P_ST = 0; // 22 doubles
 const P_PAR = 22 * 8; // 14 doubles
-const P_TAB = 40 * 8; // the first segment's inputs start here
+const P_TAB = 48 * 8; // 8 doubles of the kernel's scratch after par; the first segment's inputs start here
 
 /** A segment's inputs in the module's memory: its distinct steps and where its per-epoch arrays start. */
 interface Loaded {

@@ -98,9 +98,104 @@ function ld(p: usize, i: i32): f64 {
   return load<f64>(p + (<usize>i << 3));
 }
 
+// @ts-ignore: decorator
+@inline
+function st(p: usize, i: i32, v: f64): void {
+  store<f64>(p + (<usize>i << 3), v);
+}
+
+/*
+ * One axis's state in memory: x (3 doubles) at px, its packed covariance P (upper triangle
+ * [p00, p01, p02, p11, p12, p22]) at pP. The steps are kalman3.ts's predict3p, innovation3p,
+ * updateJoseph3p and updateState3, operation for operation.
+ */
+
+/** x⁻ = F x, P⁻ = F P Fᵀ + Q (F at T, Q at T + 9 doubles, both 3×3 row-major); in place. */
+// @ts-ignore: decorator
+@inline
+function predict3p(T: usize, px: usize, pP: usize): void {
+  const f00 = ld(T, 0), f01 = ld(T, 1), f02 = ld(T, 2), f10 = ld(T, 3), f11 = ld(T, 4), f12 = ld(T, 5), f20 = ld(T, 6), f21 = ld(T, 7), f22 = ld(T, 8);
+  const x0 = ld(px, 0), x1 = ld(px, 1), x2 = ld(px, 2);
+  const p00 = ld(pP, 0), p01 = ld(pP, 1), p02 = ld(pP, 2), p11 = ld(pP, 3), p12 = ld(pP, 4), p22 = ld(pP, 5);
+  // x⁻ = F x
+  st(px, 0, f00 * x0 + f01 * x1 + f02 * x2);
+  st(px, 1, f10 * x0 + f11 * x1 + f12 * x2);
+  st(px, 2, f20 * x0 + f21 * x1 + f22 * x2);
+  // A = F P
+  const a00 = f00 * p00 + f01 * p01 + f02 * p02, a01 = f00 * p01 + f01 * p11 + f02 * p12, a02 = f00 * p02 + f01 * p12 + f02 * p22;
+  const a10 = f10 * p00 + f11 * p01 + f12 * p02, a11 = f10 * p01 + f11 * p11 + f12 * p12, a12 = f10 * p02 + f11 * p12 + f12 * p22;
+  const a20 = f20 * p00 + f21 * p01 + f22 * p02, a21 = f20 * p01 + f21 * p11 + f22 * p12, a22 = f20 * p02 + f21 * p12 + f22 * p22;
+  // P⁻ = A Fᵀ + Q (upper triangle)
+  st(pP, 0, ld(T, 9) + a00 * f00 + a01 * f01 + a02 * f02);
+  st(pP, 1, ld(T, 10) + a00 * f10 + a01 * f11 + a02 * f12);
+  st(pP, 2, ld(T, 11) + a00 * f20 + a01 * f21 + a02 * f22);
+  st(pP, 3, ld(T, 13) + a10 * f10 + a11 * f11 + a12 * f12);
+  st(pP, 4, ld(T, 14) + a10 * f20 + a11 * f21 + a12 * f22);
+  st(pP, 5, ld(T, 17) + a20 * f20 + a21 * f21 + a22 * f22);
+}
+
+/** x⁻ = F x alone (an axis whose covariance is another's). */
+// @ts-ignore: decorator
+@inline
+function predictState3(T: usize, px: usize): void {
+  const x0 = ld(px, 0), x1 = ld(px, 1), x2 = ld(px, 2);
+  st(px, 0, ld(T, 0) * x0 + ld(T, 1) * x1 + ld(T, 2) * x2);
+  st(px, 1, ld(T, 3) * x0 + ld(T, 4) * x1 + ld(T, 5) * x2);
+  st(px, 2, ld(T, 6) * x0 + ld(T, 7) * x1 + ld(T, 8) * x2);
+}
+
+/** P hᵀ into pw (3 doubles) and S = h P hᵀ + r into pw + 3; returns ν = z − h x⁻. */
+// @ts-ignore: decorator
+@inline
+function innovation3p(h0: f64, h1: f64, h2: f64, z: f64, r: f64, px: usize, pP: usize, pw: usize): f64 {
+  const hx = h0 * ld(px, 0) + h1 * ld(px, 1) + h2 * ld(px, 2);
+  // P hᵀ
+  const w0 = ld(pP, 0) * h0 + ld(pP, 1) * h1 + ld(pP, 2) * h2;
+  const w1 = ld(pP, 1) * h0 + ld(pP, 3) * h1 + ld(pP, 4) * h2;
+  const w2 = ld(pP, 2) * h0 + ld(pP, 4) * h1 + ld(pP, 5) * h2;
+  st(pw, 0, w0); st(pw, 1, w1); st(pw, 2, w2);
+  // S = h P hᵀ + r
+  st(pw, 3, r + h0 * w0 + h1 * w1 + h2 * w2);
+  // ν = z − h x⁻
+  return z - hx;
+}
+
+/** Joseph-form update with P hᵀ, S from innovation3p at pw: x ← x + K ν, P ← P − K wᵀ − w Kᵀ + (h P hᵀ + r) K Kᵀ. */
+// @ts-ignore: decorator
+@inline
+function updateJoseph3p(h0: f64, h1: f64, h2: f64, nu: f64, r: f64, pw: usize, px: usize, pP: usize): void {
+  const w0 = ld(pw, 0), w1 = ld(pw, 1), w2 = ld(pw, 2), S = ld(pw, 3);
+  // K = P hᵀ S⁻¹
+  const k0 = w0 / S, k1 = w1 / S, k2 = w2 / S;
+  // x ← x + K ν
+  st(px, 0, ld(px, 0) + k0 * nu);
+  st(px, 1, ld(px, 1) + k1 * nu);
+  st(px, 2, ld(px, 2) + k2 * nu);
+  // h P hᵀ recomputed from w (= S − r up to rounding) so the expansion matches (I − K h) P (I − K h)ᵀ
+  const c = h0 * w0 + h1 * w1 + h2 * w2 + r;
+  // P ← P − K wᵀ − w Kᵀ + (h P hᵀ + r) K Kᵀ (symmetric under rounding, valid for any gain)
+  const n00 = ld(pP, 0) - 2 * k0 * w0 + c * k0 * k0;
+  const n01 = ld(pP, 1) - k0 * w1 - w0 * k1 + c * k0 * k1;
+  const n02 = ld(pP, 2) - k0 * w2 - w0 * k2 + c * k0 * k2;
+  const n11 = ld(pP, 3) - 2 * k1 * w1 + c * k1 * k1;
+  const n12 = ld(pP, 4) - k1 * w2 - w1 * k2 + c * k1 * k2;
+  const n22 = ld(pP, 5) - 2 * k2 * w2 + c * k2 * k2;
+  st(pP, 0, n00); st(pP, 1, n01); st(pP, 2, n02); st(pP, 3, n11); st(pP, 4, n12); st(pP, 5, n22);
+}
+
+/** x ← x + K ν with K = P hᵀ S⁻¹ from pw (an axis sharing another's covariance and gain). */
+// @ts-ignore: decorator
+@inline
+function updateState3(nu: f64, pw: usize, px: usize): void {
+  const S = ld(pw, 3);
+  st(px, 0, ld(px, 0) + (ld(pw, 0) / S) * nu);
+  st(px, 1, ld(px, 1) + (ld(pw, 1) / S) * nu);
+  st(px, 2, ld(px, 2) + (ld(pw, 2) / S) * nu);
+}
+
 /**
- * The loop of forwardLogLik from epoch 0 (the prior in st) to N − 1; returns the sum, leaves the
- * last epoch's filtered state in st.
+ * The loop of forwardLogLik from epoch 0 (the prior in the state at pSt) to N − 1; returns the sum,
+ * leaves the last epoch's filtered state in it. Scratch: 8 doubles after the 14 of pPar.
  */
 export function run(N: i32, pSt: usize, pPar: usize, pTab: usize, pSlot: usize, pUse: usize, pZE: usize, pZN: usize, pZU: usize, pRE: usize, pRU: usize): f64 {
   const up = ld(pPar, 12) != 0;
@@ -108,143 +203,65 @@ export function run(N: i32, pSt: usize, pPar: usize, pTab: usize, pSlot: usize, 
   const e0 = ld(pPar, 4), e1 = ld(pPar, 5), e2 = ld(pPar, 6);
   const v0 = ld(pPar, 7), v1 = ld(pPar, 8), v2 = ld(pPar, 9);
   const sH = ld(pPar, 10), sU = ld(pPar, 11);
-  let xe0 = ld(pSt, 0), xe1 = ld(pSt, 1), xe2 = ld(pSt, 2);
-  let xn0 = ld(pSt, 3), xn1 = ld(pSt, 4), xn2 = ld(pSt, 5);
-  let xu0 = ld(pSt, 6), xu1 = ld(pSt, 7), xu2 = ld(pSt, 8);
-  let pe00 = ld(pSt, 9), pe01 = ld(pSt, 10), pe02 = ld(pSt, 11), pe11 = ld(pSt, 12), pe12 = ld(pSt, 13), pe22 = ld(pSt, 14);
-  let pu00 = ld(pSt, 15), pu01 = ld(pSt, 16), pu02 = ld(pSt, 17), pu11 = ld(pSt, 18), pu12 = ld(pSt, 19), pu22 = ld(pSt, 20);
+  // x east, north, up; P east (= north), up; P hᵀ and S of east, up
+  const xE = pSt, xN = pSt + 24, xU = pSt + 48, PE = pSt + 72, PU = pSt + 120;
+  const wH = pPar + 14 * 8, wV = wH + 32;
   let sum = ld(pSt, 21);
   for (let k: i32 = 0; k < N; k++) {
     if (k > 0) {
       const T = pTab + (<usize>load<i32>(pSlot + (<usize>k << 2)) * 36 << 3);
-      {
-        // east: x⁻ = F x, P⁻ = F P Fᵀ + Q (predict3p written out)
-        const f00 = ld(T, 0), f01 = ld(T, 1), f02 = ld(T, 2), f10 = ld(T, 3), f11 = ld(T, 4), f12 = ld(T, 5), f20 = ld(T, 6), f21 = ld(T, 7), f22 = ld(T, 8);
-        const x0 = xe0, x1 = xe1, x2 = xe2;
-        const p00 = pe00, p01 = pe01, p02 = pe02, p11 = pe11, p12 = pe12, p22 = pe22;
-        xe0 = f00 * x0 + f01 * x1 + f02 * x2;
-        xe1 = f10 * x0 + f11 * x1 + f12 * x2;
-        xe2 = f20 * x0 + f21 * x1 + f22 * x2;
-        const a00 = f00 * p00 + f01 * p01 + f02 * p02, a01 = f00 * p01 + f01 * p11 + f02 * p12, a02 = f00 * p02 + f01 * p12 + f02 * p22;
-        const a10 = f10 * p00 + f11 * p01 + f12 * p02, a11 = f10 * p01 + f11 * p11 + f12 * p12, a12 = f10 * p02 + f11 * p12 + f12 * p22;
-        const a20 = f20 * p00 + f21 * p01 + f22 * p02, a21 = f20 * p01 + f21 * p11 + f22 * p12, a22 = f20 * p02 + f21 * p12 + f22 * p22;
-        pe00 = ld(T, 9) + a00 * f00 + a01 * f01 + a02 * f02;
-        pe01 = ld(T, 10) + a00 * f10 + a01 * f11 + a02 * f12;
-        pe02 = ld(T, 11) + a00 * f20 + a01 * f21 + a02 * f22;
-        pe11 = ld(T, 13) + a10 * f10 + a11 * f11 + a12 * f12;
-        pe12 = ld(T, 14) + a10 * f20 + a11 * f21 + a12 * f22;
-        pe22 = ld(T, 17) + a20 * f20 + a21 * f21 + a22 * f22;
-        // north: x⁻ = F x; P⁻ is east's
-        const y0 = xn0, y1 = xn1, y2 = xn2;
-        xn0 = f00 * y0 + f01 * y1 + f02 * y2;
-        xn1 = f10 * y0 + f11 * y1 + f12 * y2;
-        xn2 = f20 * y0 + f21 * y1 + f22 * y2;
-      }
-      if (up) {
-        const V = T + (18 << 3);
-        const f00 = ld(V, 0), f01 = ld(V, 1), f02 = ld(V, 2), f10 = ld(V, 3), f11 = ld(V, 4), f12 = ld(V, 5), f20 = ld(V, 6), f21 = ld(V, 7), f22 = ld(V, 8);
-        const x0 = xu0, x1 = xu1, x2 = xu2;
-        const p00 = pu00, p01 = pu01, p02 = pu02, p11 = pu11, p12 = pu12, p22 = pu22;
-        xu0 = f00 * x0 + f01 * x1 + f02 * x2;
-        xu1 = f10 * x0 + f11 * x1 + f12 * x2;
-        xu2 = f20 * x0 + f21 * x1 + f22 * x2;
-        const a00 = f00 * p00 + f01 * p01 + f02 * p02, a01 = f00 * p01 + f01 * p11 + f02 * p12, a02 = f00 * p02 + f01 * p12 + f02 * p22;
-        const a10 = f10 * p00 + f11 * p01 + f12 * p02, a11 = f10 * p01 + f11 * p11 + f12 * p12, a12 = f10 * p02 + f11 * p12 + f12 * p22;
-        const a20 = f20 * p00 + f21 * p01 + f22 * p02, a21 = f20 * p01 + f21 * p11 + f22 * p12, a22 = f20 * p02 + f21 * p12 + f22 * p22;
-        pu00 = ld(V, 9) + a00 * f00 + a01 * f01 + a02 * f02;
-        pu01 = ld(V, 10) + a00 * f10 + a01 * f11 + a02 * f12;
-        pu02 = ld(V, 11) + a00 * f20 + a01 * f21 + a02 * f22;
-        pu11 = ld(V, 13) + a10 * f10 + a11 * f11 + a12 * f12;
-        pu12 = ld(V, 14) + a10 * f20 + a11 * f21 + a12 * f22;
-        pu22 = ld(V, 17) + a20 * f20 + a21 * f21 + a22 * f22;
-      }
+      // east: x⁻ = F x, P⁻ = F P Fᵀ + Q; north: x⁻ = F x, P⁻ is east's
+      predict3p(T, xE, PE);
+      predictState3(T, xN);
+      if (up) predict3p(T + (18 << 3), xU, PU);
     }
     const u = ld(pUse, k);
-    if (u != 0) {
-      let nis: f64 = 0;
-      let dof: i32 = 0;
-      let ll: f64 = 0;
-      const ze = ld(pZE, k);
-      let nuE: f64 = 0, nuN: f64 = 0, SH: f64 = NaN, rH: f64 = 0, wH0: f64 = 0, wH1: f64 = 0, wH2: f64 = 0;
-      if (isFinite(ze)) {
-        rH = ld(pRE, k) * sH;
-        const hx = e0 * xe0 + e1 * xe1 + e2 * xe2;
-        wH0 = pe00 * e0 + pe01 * e1 + pe02 * e2;
-        wH1 = pe01 * e0 + pe11 * e1 + pe12 * e2;
-        wH2 = pe02 * e0 + pe12 * e1 + pe22 * e2;
-        SH = rH + e0 * wH0 + e1 * wH1 + e2 * wH2;
-        nuE = ze - hx;
-        nuN = ld(pZN, k) - (e0 * xn0 + e1 * xn1 + e2 * xn2);
-        const lH = LOG_2PI + ln(SH);
-        nis += (nuE * nuE) / SH;
-        ll += lH;
-        dof++;
-        nis += (nuN * nuN) / SH;
-        ll += lH;
-        dof++;
+    if (u == 0) continue;
+    let nis: f64 = 0;
+    let dof: i32 = 0;
+    let ll: f64 = 0;
+    const ze = ld(pZE, k);
+    let nuE: f64 = 0, nuN: f64 = 0, SH: f64 = NaN, rH: f64 = 0;
+    if (isFinite(ze)) {
+      rH = ld(pRE, k) * sH;
+      nuE = innovation3p(e0, e1, e2, ze, rH, xE, PE, wH);
+      SH = ld(wH, 3);
+      nuN = ld(pZN, k) - (e0 * ld(xN, 0) + e1 * ld(xN, 1) + e2 * ld(xN, 2));
+      // log 2π + log S, one per axis (north's equals east's); NIS = Σ ν²/S
+      const lH = LOG_2PI + ln(SH);
+      nis += (nuE * nuE) / SH;
+      ll += lH;
+      dof++;
+      nis += (nuN * nuN) / SH;
+      ll += lH;
+      dof++;
+    }
+    const zu = up ? ld(pZU, k) : NaN;
+    let nuU: f64 = 0, SU: f64 = NaN, rV: f64 = 0;
+    if (up && isFinite(zu)) {
+      rV = ld(pRU, k) * sU;
+      nuU = innovation3p(v0, v1, v2, zu, rV, xU, PU, wV);
+      SU = ld(wV, 3);
+      nis += (nuU * nuU) / SU;
+      ll += LOG_2PI + ln(SU);
+      dof++;
+    }
+    if (dof == 0) continue;
+    const thr = dof == 1 ? thr1 : dof == 2 ? thr2 : thr3;
+    if (u == 2 || nis <= thr) {
+      // an axis whose S is not finite is not updated
+      if (isFinite(SH)) {
+        updateJoseph3p(e0, e1, e2, nuE, rH, wH, xE, PE);
+        updateState3(nuN, wH, xN);
       }
-      const zu = up ? ld(pZU, k) : NaN;
-      let nuU: f64 = 0, SU: f64 = NaN, rV: f64 = 0, wV0: f64 = 0, wV1: f64 = 0, wV2: f64 = 0;
-      if (up && isFinite(zu)) {
-        rV = ld(pRU, k) * sU;
-        const hx = v0 * xu0 + v1 * xu1 + v2 * xu2;
-        wV0 = pu00 * v0 + pu01 * v1 + pu02 * v2;
-        wV1 = pu01 * v0 + pu11 * v1 + pu12 * v2;
-        wV2 = pu02 * v0 + pu12 * v1 + pu22 * v2;
-        SU = rV + v0 * wV0 + v1 * wV1 + v2 * wV2;
-        nuU = zu - hx;
-        nis += (nuU * nuU) / SU;
-        ll += LOG_2PI + ln(SU);
-        dof++;
-      }
-      if (dof != 0) {
-        const thr = dof == 1 ? thr1 : dof == 2 ? thr2 : thr3;
-        if (u == 2 || nis <= thr) {
-          if (isFinite(SH)) {
-            const w0 = wH0, w1 = wH1, w2 = wH2;
-            const k0 = w0 / SH, k1 = w1 / SH, k2 = w2 / SH;
-            xe0 += k0 * nuE;
-            xe1 += k1 * nuE;
-            xe2 += k2 * nuE;
-            const c = e0 * w0 + e1 * w1 + e2 * w2 + rH;
-            const n00 = pe00 - 2 * k0 * w0 + c * k0 * k0;
-            const n01 = pe01 - k0 * w1 - w0 * k1 + c * k0 * k1;
-            const n02 = pe02 - k0 * w2 - w0 * k2 + c * k0 * k2;
-            const n11 = pe11 - 2 * k1 * w1 + c * k1 * k1;
-            const n12 = pe12 - k1 * w2 - w1 * k2 + c * k1 * k2;
-            const n22 = pe22 - 2 * k2 * w2 + c * k2 * k2;
-            pe00 = n00; pe01 = n01; pe02 = n02; pe11 = n11; pe12 = n12; pe22 = n22;
-            xn0 += k0 * nuN;
-            xn1 += k1 * nuN;
-            xn2 += k2 * nuN;
-          }
-          if (isFinite(SU)) {
-            const w0 = wV0, w1 = wV1, w2 = wV2;
-            const k0 = w0 / SU, k1 = w1 / SU, k2 = w2 / SU;
-            xu0 += k0 * nuU;
-            xu1 += k1 * nuU;
-            xu2 += k2 * nuU;
-            const c = v0 * w0 + v1 * w1 + v2 * w2 + rV;
-            const n00 = pu00 - 2 * k0 * w0 + c * k0 * k0;
-            const n01 = pu01 - k0 * w1 - w0 * k1 + c * k0 * k1;
-            const n02 = pu02 - k0 * w2 - w0 * k2 + c * k0 * k2;
-            const n11 = pu11 - 2 * k1 * w1 + c * k1 * k1;
-            const n12 = pu12 - k1 * w2 - w1 * k2 + c * k1 * k2;
-            const n22 = pu22 - 2 * k2 * w2 + c * k2 * k2;
-            pu00 = n00; pu01 = n01; pu02 = n02; pu11 = n11; pu12 = n12; pu22 = n22;
-          }
-          sum += -0.5 * (ll + nis);
-        } else {
-          sum += -0.5 * (ll + thr);
-        }
-      }
+      if (isFinite(SU)) updateJoseph3p(v0, v1, v2, nuU, rV, wV, xU, PU);
+      // accepted: −½ (Σ (log 2π + log S) + NIS)
+      sum += -0.5 * (ll + nis);
+    } else {
+      // rejected: capped likelihood contribution keeps outliers from dominating calibration
+      sum += -0.5 * (ll + thr);
     }
   }
-  store<f64>(pSt, xe0); store<f64>(pSt + 8, xe1); store<f64>(pSt + 16, xe2);
-  store<f64>(pSt + 24, xn0); store<f64>(pSt + 32, xn1); store<f64>(pSt + 40, xn2);
-  store<f64>(pSt + 48, xu0); store<f64>(pSt + 56, xu1); store<f64>(pSt + 64, xu2);
-  store<f64>(pSt + 72, pe00); store<f64>(pSt + 80, pe01); store<f64>(pSt + 88, pe02); store<f64>(pSt + 96, pe11); store<f64>(pSt + 104, pe12); store<f64>(pSt + 112, pe22);
-  store<f64>(pSt + 120, pu00); store<f64>(pSt + 128, pu01); store<f64>(pSt + 136, pu02); store<f64>(pSt + 144, pu11); store<f64>(pSt + 152, pu12); store<f64>(pSt + 160, pu22);
-  store<f64>(pSt + 168, sum);
+  st(pSt, 21, sum);
   return sum;
 }
