@@ -116,7 +116,7 @@ export function boxBfgs(f: (x: number[]) => number, x0: number[], opt: BoxBfgsOp
     const free = x.map((xi, i) => !((xi <= lo[i]! && g[i]! > 0) || (xi >= hi[i]! && g[i]! < 0)));
     // d = −H g over the free variables (the active ones stay where they are)
     const d = new Array<number>(n).fill(0);
-    if (Hinv) for (let i = 0; i < n; i++) if (free[i]) for (let j = 0; j < n; j++) if (free[j]) d[i] -= Hinv[i]![j]! * g[j]!;
+    if (Hinv) for (let i = 0; i < n; i++) if (free[i]) for (let j = 0; j < n; j++) if (free[j]) d[i] = d[i]! - Hinv[i]![j]! * g[j]!;
     let slope = 0;
     for (let i = 0; i < n; i++) slope += d[i]! * g[i]!;
     if (!Hinv || !(slope < 0)) {
@@ -195,7 +195,7 @@ export function boxBfgs(f: (x: number[]) => number, x0: number[], opt: BoxBfgsOp
       let yHy = 0;
       for (let i = 0; i < n; i++) yHy += yv[i]! * Hy[i]!;
       for (let i = 0; i < n; i++)
-        for (let j = 0; j < n; j++) Hinv[i]![j] += -rho * (Hy[i]! * s[j]! + s[i]! * Hy[j]!) + (rho * rho * yHy + rho) * s[i]! * s[j]!;
+        for (let j = 0; j < n; j++) Hinv[i]![j] = Hinv[i]![j]! + (-rho * (Hy[i]! * s[j]! + s[i]! * Hy[j]!) + (rho * rho * yHy + rho) * s[i]! * s[j]!);
     }
     // a step that changed f by less than rounding: refine the gradient, then stop
     if (Math.abs(fPrev - fCur) < 1e-12 * Math.max(1, Math.abs(fCur))) {

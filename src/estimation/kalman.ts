@@ -112,7 +112,7 @@ export function updateJoseph(
   // K = P hᵀ S⁻¹
   for (let i = 0; i < n; i++) K[i] = s.w[i]! / S;
   // x ← x + K ν
-  for (let i = 0; i < n; i++) x[xOff + i] += K[i]! * nu;
+  for (let i = 0; i < n; i++) x[xOff + i] = x[xOff + i]! + K[i]! * nu;
   // A = I − K h
   const A = s.A;
   for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) A[i * n + j] = (i === j ? 1 : 0) - K[i]! * h[j]!;

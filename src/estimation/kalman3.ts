@@ -62,9 +62,9 @@ export function predictState3(F: Float64Array, x: Float64Array, xOff: number, xO
 /** The state half of updateJoseph3p (x ← x + K ν, K = P hᵀ S⁻¹ with w = P hᵀ), for an axis sharing another's covariance. */
 export function updateState3(nu: number, S: number, w: Float64Array, x: Float64Array, xOff: number): void {
   // K = P hᵀ S⁻¹, x ← x + K ν (the same operations as updateJoseph3p's, so the same bits)
-  x[xOff] += (w[0]! / S) * nu;
-  x[xOff + 1] += (w[1]! / S) * nu;
-  x[xOff + 2] += (w[2]! / S) * nu;
+  x[xOff] = x[xOff]! + (w[0]! / S) * nu;
+  x[xOff + 1] = x[xOff + 1]! + (w[1]! / S) * nu;
+  x[xOff + 2] = x[xOff + 2]! + (w[2]! / S) * nu;
 }
 
 export function updateJoseph3p(h: Float64Array, nu: number, S: number, r: number, w: Float64Array, x: Float64Array, xOff: number, P: Float64Array, POff: number): void {
@@ -72,9 +72,9 @@ export function updateJoseph3p(h: Float64Array, nu: number, S: number, r: number
   // K = P hᵀ S⁻¹
   const k0 = w0 / S, k1 = w1 / S, k2 = w2 / S;
   // x ← x + K ν
-  x[xOff] += k0 * nu;
-  x[xOff + 1] += k1 * nu;
-  x[xOff + 2] += k2 * nu;
+  x[xOff] = x[xOff]! + k0 * nu;
+  x[xOff + 1] = x[xOff + 1]! + k1 * nu;
+  x[xOff + 2] = x[xOff + 2]! + k2 * nu;
   // h P hᵀ recomputed from w (= S − r up to rounding) so the expansion matches (I − K h) P (I − K h)ᵀ
   const hph = h[0]! * w0 + h[1]! * w1 + h[2]! * w2;
   const c = hph + r;

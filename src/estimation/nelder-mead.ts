@@ -33,7 +33,7 @@ export function nelderMead(f: (x: number[]) => number, x0: number[], opt: Nelder
   let simplex: number[][] = [x0.slice()];
   for (let i = 0; i < n; i++) {
     const v = x0.slice();
-    v[i] += opt.step[i]!;
+    v[i] = v[i]! + opt.step[i]!;
     simplex.push(v);
   }
   let values = simplex.map(fx);
@@ -51,7 +51,7 @@ export function nelderMead(f: (x: number[]) => number, x0: number[], opt: Nelder
     }
     // centroid of all but the worst
     const c = new Array<number>(n).fill(0);
-    for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) c[j] += simplex[i]![j]! / n;
+    for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) c[j] = c[j]! + simplex[i]![j]! / n;
     const worst = simplex[n]!;
     const along = (t: number) => c.map((cj, j) => cj + t * (cj - worst[j]!));
     const xr = along(1);
@@ -103,7 +103,7 @@ export function numericalHessian(f: (x: number[]) => number, x: number[], h: num
   const f0 = f(x);
   const at = (d: Array<[number, number]>) => {
     const y = x.slice();
-    for (const [i, s] of d) y[i] += s;
+    for (const [i, s] of d) y[i] = y[i]! + s;
     return f(y);
   };
   for (let i = 0; i < n; i++) {

@@ -57,7 +57,7 @@ export function rtsStep(
   for (let i = 0; i < n; i++) {
     let acc = 0;
     for (let j = 0; j < n; j++) acc += Gt[j * n + i]! * dx[j]!;
-    x[xk + i] += acc;
+    x[xk + i] = x[xk + i]! + acc;
   }
   // D = Pˢₖ₊₁ − P⁻ₖ₊₁;  Pˢₖ = Pₖ + G D Gᵀ
   const D = s.D;

@@ -227,7 +227,7 @@ export function stepMatrices(models: AxisModel[], data: SegmentData, h: FilterHi
       // no usable cache: compute into the caller's arrays
       m.fillF(dt, F[a]!);
       m.fillQ(dt, Q[a]!, qs);
-      if (extra) for (let i = 0; i < m.n; i++) Q[a]![i * m.n + i] += extra[a]![i]!;
+      if (extra) for (let i = 0; i < m.n; i++) Q[a]![i * m.n + i] = Q[a]![i * m.n + i]! + extra[a]![i]!;
       continue;
     }
     const base = a * cache.slots;
@@ -261,7 +261,7 @@ export function stepMatrices(models: AxisModel[], data: SegmentData, h: FilterHi
     m.fillF(dt, oF);
     m.fillQ(dt, oQ, qs);
     const e = extra[a]!;
-    for (let i = 0; i < m.n; i++) oQ[i * m.n + i] += e[i]!;
+    for (let i = 0; i < m.n; i++) oQ[i * m.n + i] = oQ[i * m.n + i]! + e[i]!;
     F[a] = oF;
     Q[a] = oQ;
     cache.current[a] = -1;
