@@ -140,30 +140,8 @@ export function resmoothWindows(
       continue;
     }
     if (runTop < 0) runTop = k;
-    for (let a = 0; a < nAx; a++) {
-      const n = models[a]!.n;
-      if (n === 3) {
-        // the loops below written out for n = 3 (3 states, 6 packed covariance elements)
-        const x = s.x[a]!, P = s.P[a]!, fx = f.x[a]!, fP = f.P[a]!, ox = sx[a]!, oP = sP[a]!;
-        const xk = k * 3, Pk = k * 6;
-        ox[0] = x[xk]!; ox[1] = x[xk + 1]!; ox[2] = x[xk + 2]!;
-        x[xk] = fx[xk]!; x[xk + 1] = fx[xk + 1]!; x[xk + 2] = fx[xk + 2]!;
-        oP[0] = P[Pk]!; oP[1] = P[Pk + 1]!; oP[2] = P[Pk + 2]!; oP[3] = P[Pk + 3]!; oP[4] = P[Pk + 4]!; oP[5] = P[Pk + 5]!;
-        P[Pk] = fP[Pk]!; P[Pk + 1] = fP[Pk + 1]!; P[Pk + 2] = fP[Pk + 2]!; P[Pk + 3] = fP[Pk + 3]!; P[Pk + 4] = fP[Pk + 4]!; P[Pk + 5] = fP[Pk + 5]!;
-        continue;
-      }
-      const nn = covStride(n);
-      const x = s.x[a]!, P = s.P[a]!, fx = f.x[a]!, fP = f.P[a]!, ox = sx[a]!, oP = sP[a]!;
-      const xk = k * n, Pk = k * nn;
-      for (let i = 0; i < n; i++) {
-        ox[i] = x[xk + i]!;
-        x[xk + i] = fx[xk + i]!;
-      }
-      for (let i = 0; i < nn; i++) {
-        oP[i] = P[Pk + i]!;
-        P[Pk + i] = fP[Pk + i]!;
-      }
-    }
+    // keep the smoothed state of k, put the filtered one back for the RTS step
+    saveAndRestoreFiltered(models, f, s, k, sx, sP);
     if (k < N - 1) {
       lastDt = ensureStep(models, data, s, k + 1, qScale, F, Q, cache, lastDt);
       // filtered covariances at k (just restored) and smoothed ones at k + 1 equal (see smootherCanShare)
@@ -171,28 +149,61 @@ export function resmoothWindows(
       rtsEpoch(models, F, Q, s, k, share, gT, rs);
       sharedNext = share;
     } else sharedNext = false;
-    let same = true;
-    for (let a = 0; a < nAx && same; a++) {
-      const n = models[a]!.n;
-      const nn = covStride(n);
-      const x = s.x[a]!, P = s.P[a]!, ox = sx[a]!, oP = sP[a]!;
-      const xk = k * n, Pk = k * nn;
-      if (n === 3) {
-        same =
-          Math.abs(x[xk]! - ox[0]!) <= tol && Math.abs(x[xk + 1]! - ox[1]!) <= tol && Math.abs(x[xk + 2]! - ox[2]!) <= tol &&
-          Math.abs(P[Pk]! - oP[0]!) <= tol && Math.abs(P[Pk + 1]! - oP[1]!) <= tol && Math.abs(P[Pk + 2]! - oP[2]!) <= tol &&
-          Math.abs(P[Pk + 3]! - oP[3]!) <= tol && Math.abs(P[Pk + 4]! - oP[4]!) <= tol && Math.abs(P[Pk + 5]! - oP[5]!) <= tol;
-        continue;
-      }
-      for (let i = 0; i < n; i++) if (!(Math.abs(x[xk + i]! - ox[i]!) <= tol)) same = false;
-      for (let i = 0; i < nn; i++) if (!(Math.abs(P[Pk + i]! - oP[i]!) <= tol)) same = false;
-    }
+    const same = sameAsSaved(models, s, k, sx, sP, tol);
     dirty = !same;
     count++;
     k--;
   }
   if (runTop >= 0) changedOut.push(runTop, Math.max(k + 1, 0));
   return count;
+}
+
+/** Save epoch k's smoothed state of every axis into sx, sP and put the filtered one (from f) in its place. */
+function saveAndRestoreFiltered(models: AxisModel[], f: FilterHistory, s: FilterHistory, k: number, sx: Float64Array[], sP: Float64Array[]): void {
+  for (let a = 0; a < models.length; a++) {
+    const n = models[a]!.n;
+    const x = s.x[a]!, P = s.P[a]!, fx = f.x[a]!, fP = f.P[a]!, ox = sx[a]!, oP = sP[a]!;
+    if (n === 3) {
+      // the loops below written out for n = 3 (3 states, 6 packed covariance elements)
+      const xk = k * 3, Pk = k * 6;
+      ox[0] = x[xk]!; ox[1] = x[xk + 1]!; ox[2] = x[xk + 2]!;
+      x[xk] = fx[xk]!; x[xk + 1] = fx[xk + 1]!; x[xk + 2] = fx[xk + 2]!;
+      oP[0] = P[Pk]!; oP[1] = P[Pk + 1]!; oP[2] = P[Pk + 2]!; oP[3] = P[Pk + 3]!; oP[4] = P[Pk + 4]!; oP[5] = P[Pk + 5]!;
+      P[Pk] = fP[Pk]!; P[Pk + 1] = fP[Pk + 1]!; P[Pk + 2] = fP[Pk + 2]!; P[Pk + 3] = fP[Pk + 3]!; P[Pk + 4] = fP[Pk + 4]!; P[Pk + 5] = fP[Pk + 5]!;
+      continue;
+    }
+    const nn = covStride(n);
+    const xk = k * n, Pk = k * nn;
+    for (let i = 0; i < n; i++) {
+      ox[i] = x[xk + i]!;
+      x[xk + i] = fx[xk + i]!;
+    }
+    for (let i = 0; i < nn; i++) {
+      oP[i] = P[Pk + i]!;
+      P[Pk + i] = fP[Pk + i]!;
+    }
+  }
+}
+
+/** Whether epoch k's smoothed state of every axis equals the saved one within tol. */
+function sameAsSaved(models: AxisModel[], s: FilterHistory, k: number, sx: Float64Array[], sP: Float64Array[], tol: number): boolean {
+  for (let a = 0; a < models.length; a++) {
+    const n = models[a]!.n;
+    const nn = covStride(n);
+    const x = s.x[a]!, P = s.P[a]!, ox = sx[a]!, oP = sP[a]!;
+    const xk = k * n, Pk = k * nn;
+    if (n === 3) {
+      const same =
+        Math.abs(x[xk]! - ox[0]!) <= tol && Math.abs(x[xk + 1]! - ox[1]!) <= tol && Math.abs(x[xk + 2]! - ox[2]!) <= tol &&
+        Math.abs(P[Pk]! - oP[0]!) <= tol && Math.abs(P[Pk + 1]! - oP[1]!) <= tol && Math.abs(P[Pk + 2]! - oP[2]!) <= tol &&
+        Math.abs(P[Pk + 3]! - oP[3]!) <= tol && Math.abs(P[Pk + 4]! - oP[4]!) <= tol && Math.abs(P[Pk + 5]! - oP[5]!) <= tol;
+      if (!same) return false;
+      continue;
+    }
+    for (let i = 0; i < n; i++) if (!(Math.abs(x[xk + i]! - ox[i]!) <= tol)) return false;
+    for (let i = 0; i < nn; i++) if (!(Math.abs(P[Pk + i]! - oP[i]!) <= tol)) return false;
+  }
+  return true;
 }
 
 /**
