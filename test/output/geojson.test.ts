@@ -203,7 +203,7 @@ describe('streamed GeoJSON = JSON.stringify of the object (RFC 7946 text unchang
   });
   test('a session whose every position is out of range has no features and no bbox', () => {
     const r = plain().result;
-    const bad = { ...r, latDeg: new Float64Array(r.N).fill(91), outliers: [] };
+    const bad = { ...r, latDeg: new Float64Array(r.N).fill(91), outliers: [], survey: r.survey && { ...r.survey, occupations: r.survey.occupations.map((o) => ({ ...o, latDeg: 91 })) } };
     expect(sessionGeoJsonText(bad, { decimals: 7 })).toBe('{"type":"FeatureCollection","features":[]}\n');
   });
 });
@@ -259,7 +259,7 @@ describe('GeoJSON layers, one geometry type a file (geojson-layers.ts)', () => {
     const r = get();
     const whole = sessionGeoJson(r, { decimals: 7, points: true }) as FC;
     let total = 0;
-    for (const only of ['track', 'flags', 'epochs'] as const) {
+    for (const only of ['track', 'flags', 'occupations', 'epochs'] as const) {
       const opt = { decimals: 7, only };
       const text = chunksToString(sessionGeoJsonChunks(r, opt, 4096));
       expect(text, only).toBe(JSON.stringify(sessionGeoJson(r, opt)) + '\n');
