@@ -4,11 +4,10 @@
  * totalLogLik(forwardFilter(models, data, { ...opt, likelihood: true })) returns, for the case the
  * calibration runs about a thousand times per round (calibrate.ts negLogLik): every axis n = 3,
  * north sharing east's covariances (horizontalShare), an r scale, no q scale, no re-acquisition.
- * The state of the current epoch lives in locals, so nothing is stored per epoch; the operations
- * are forwardFilter's general loop's in its order (predict3p, innovation3p, updateJoseph3p,
- * updateState3 written out; east's P hᵀ, S and log S serve north, the same numbers), so the value
- * is the same bits (test/estimation/forward-loglik.test.ts, against the general loop and its
- * previous form in test/helpers/reference-track-filter.ts).
+ * The loop runs in WebAssembly (asm/loglik-kernel.ts through loglik-wasm.ts: the same per-axis
+ * steps as kalman3.ts, predict3p, innovation3p, updateJoseph3p, updateState3, on the state in the
+ * module's memory, nothing stored per epoch); without the module it is the forward filter's own
+ * loop. test/estimation/forward-loglik.test.ts and loglik-wasm.test.ts compare the two.
  * Sources as track-filter.ts: gate Bar-Shalom, Li, Kirubarajan (2001) §5.4; Kalman (1960); Joseph
  * form Grewal & Andrews (2015) §6.
  */
