@@ -64,61 +64,87 @@ export function scanXml(text: string, ev: XmlEvents): number | null {
     }
     if (lt > pos) ev.text(decodeXmlText(text.slice(pos, lt)), lineOf(pos));
     const at = lineOf(lt);
-    if (text.startsWith('<!--', lt)) {
-      const e = text.indexOf('-->', lt + 4);
-      if (e < 0) return at;
-      pos = e + 3;
-    } else if (text.startsWith('<![CDATA[', lt)) {
-      const e = text.indexOf(']]>', lt + 9);
-      if (e < 0) return at;
-      ev.text(text.slice(lt + 9, e), at);
-      pos = e + 3;
-    } else if (text.startsWith('<?', lt)) {
-      const e = text.indexOf('?>', lt + 2);
-      if (e < 0) return at;
-      pos = e + 2;
-    } else if (text.startsWith('<!', lt)) {
-      // DOCTYPE, possibly with an internal subset in brackets
-      const gt = text.indexOf('>', lt);
-      if (gt < 0) return at;
-      const br = text.slice(lt, gt).indexOf('[');
-      if (br >= 0) {
-        const e = text.indexOf(']>', lt + br);
-        if (e < 0) return at;
-        pos = e + 2;
-      } else pos = gt + 1;
-    } else {
-      // a tag: find its end outside quoted attribute values
-      let i = lt + 1;
-      let q = 0;
-      for (; i < n; i++) {
-        const c = text.charCodeAt(i);
-        if (q) {
-          if (c === q) q = 0;
-        } else if (c === 34 || c === 39) q = c;
-        else if (c === 62) break;
-        else if (c === 60) break; // a "<" inside a tag: the tag was cut; resynchronise there
-      }
-      if (i >= n) return at;
-      if (text.charCodeAt(i) === 60) {
-        pos = i;
-        continue;
-      }
-      const inner = text.slice(lt + 1, i);
-      pos = i + 1;
-      if (inner[0] === '/') {
-        ev.tag({ kind: 'close', name: localName(inner.slice(1).trim()), attrs: {}, line: at });
-        continue;
-      }
-      const empty = inner.endsWith('/');
-      const body = empty ? inner.slice(0, -1) : inner;
-      const m = /^[^\s/>]+/.exec(body);
-      if (!m) continue;
-      const attrs: Record<string, string> = {};
-      ATTR.lastIndex = m[0].length;
-      for (let a = ATTR.exec(body); a; a = ATTR.exec(body)) attrs[localName(a[1]!)] = decodeXmlText(a[2] ?? a[3] ?? '');
-      ev.tag({ kind: empty ? 'empty' : 'open', name: localName(m[0]), attrs, line: at });
+    const declEnd = declarationEnd(text, lt, at, ev);
+    if (declEnd === CUT) return at;
+    if (declEnd !== NOT_DECLARATION) {
+      pos = declEnd;
+      continue;
     }
+    const i = tagEnd(text, lt);
+    if (i >= n) return at;
+    // a "<" inside a tag: the tag was cut; resynchronise there
+    if (text.charCodeAt(i) === 60) {
+      pos = i;
+      continue;
+    }
+    pos = i + 1;
+    emitTag(text.slice(lt + 1, i), at, ev);
   }
   return null;
+}
+
+/** declarationEnd: the markup is cut short (no end before the end of the text). */
+const CUT = -1;
+/** declarationEnd: a tag, not a comment, CDATA section, processing instruction or DOCTYPE. */
+const NOT_DECLARATION = -2;
+
+/**
+ * The position after the comment, CDATA section (its text to `ev`), processing instruction or
+ * DOCTYPE (possibly with an internal subset in brackets) at `lt`; CUT or NOT_DECLARATION.
+ */
+function declarationEnd(text: string, lt: number, at: number, ev: XmlEvents): number {
+  if (text.startsWith('<!--', lt)) {
+    const e = text.indexOf('-->', lt + 4);
+    return e < 0 ? CUT : e + 3;
+  }
+  if (text.startsWith('<![CDATA[', lt)) {
+    const e = text.indexOf(']]>', lt + 9);
+    if (e < 0) return CUT;
+    ev.text(text.slice(lt + 9, e), at);
+    return e + 3;
+  }
+  if (text.startsWith('<?', lt)) {
+    const e = text.indexOf('?>', lt + 2);
+    return e < 0 ? CUT : e + 2;
+  }
+  if (text.startsWith('<!', lt)) {
+    const gt = text.indexOf('>', lt);
+    if (gt < 0) return CUT;
+    const br = text.slice(lt, gt).indexOf('[');
+    if (br < 0) return gt + 1;
+    const e = text.indexOf(']>', lt + br);
+    return e < 0 ? CUT : e + 2;
+  }
+  return NOT_DECLARATION;
+}
+
+/** The index of the ">" ending the tag at `lt` (outside quoted attribute values), of a "<" before it, or the text's length. */
+function tagEnd(text: string, lt: number): number {
+  const n = text.length;
+  let i = lt + 1;
+  let q = 0;
+  for (; i < n; i++) {
+    const c = text.charCodeAt(i);
+    if (q) {
+      if (c === q) q = 0;
+    } else if (c === 34 || c === 39) q = c;
+    else if (c === 62 || c === 60) break;
+  }
+  return i;
+}
+
+/** The tag with text `inner` (between "<" and ">") to `ev`: close, empty or open with its attributes. */
+function emitTag(inner: string, at: number, ev: XmlEvents): void {
+  if (inner[0] === '/') {
+    ev.tag({ kind: 'close', name: localName(inner.slice(1).trim()), attrs: {}, line: at });
+    return;
+  }
+  const empty = inner.endsWith('/');
+  const body = empty ? inner.slice(0, -1) : inner;
+  const m = /^[^\s/>]+/.exec(body);
+  if (!m) return;
+  const attrs: Record<string, string> = {};
+  ATTR.lastIndex = m[0].length;
+  for (let a = ATTR.exec(body); a; a = ATTR.exec(body)) attrs[localName(a[1]!)] = decodeXmlText(a[2] ?? a[3] ?? '');
+  ev.tag({ kind: empty ? 'empty' : 'open', name: localName(m[0]), attrs, line: at });
 }
