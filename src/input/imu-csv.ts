@@ -10,10 +10,8 @@
  * (\r\n, \n or a lone \r); a data line whose needed cells are plain decimal numbers (sign, digits,
  * one point, an optional exponent; no spaces or quotes) is parsed from the bytes directly, every other
  * line (the header, ISO times, blanks, anything unusual) goes through the general line parser, so
- * warnings, errors and line numbers are the same. A decimal with at most 2⁵³ as its digit string and
- * a power of ten within ±22 is converted as one exact-operand multiplication or division, which IEEE
- * 754 rounds correctly: the same double as Number() (Clinger, "How to read floating point numbers
- * accurately", PLDI 1990, the fast path — from memory); others fall back.
+ * warnings, errors and line numbers are the same. The numbers are
+ * converted as Number() converts them (input/plain-decimal-bytes.ts); others fall back.
  */
 import { createReadStream } from 'node:fs';
 import { createInterface } from 'node:readline';
@@ -22,6 +20,8 @@ import { InputError, type InputWarning } from '../errors.js';
 import { rotationZyx } from '../models/ins/attitude.js';
 import { parseIsoToUnix } from '../time/parse-time.js';
 import { LocalTimeReader } from '../time/local-time.js';
+import { IMU_AXES, readImuHeader, type ImuCsvLayout } from './imu-csv-header.js';
+import { scanPlainDecimal } from './plain-decimal-bytes.js';
 
 /** ISO text that carries its own offset (read as it is, whatever input.timeZone says). */
 const ISO_WITH_OFFSET = /T.*(Z|[+-]\d{2}(:?\d{2})?)$/;
@@ -29,8 +29,8 @@ const ISO_WITH_OFFSET = /T.*(Z|[+-]\d{2}(:?\d{2})?)$/;
 /** Standard gravity (m/s² per g), the conventional unit of accelerometers (CGPM 1901). */
 export const STANDARD_GRAVITY_MPS2 = 9.80665;
 
-const TIME_NAMES = ['time', 't', 'timestamp', 'unix_time', 'utc'];
-const AXES = ['ax', 'ay', 'az', 'gx', 'gy', 'gz'] as const;
+/** Skipped rows listed one by one (all are counted). */
+const LISTED_SKIPS = 20;
 
 export interface ImuReadStats {
   samples: number;
@@ -41,119 +41,122 @@ export interface ImuReadStats {
 /** Receives one sample: UTC Unix seconds, specific force (m/s²) and angular rate (rad/s) in the body frame. */
 export type ImuSampleSink = (tSec: number, fx: number, fy: number, fz: number, wx: number, wy: number, wz: number) => void;
 
-function detect(header: string): string {
-  let best = ',';
-  let count = 0;
-  for (const d of [',', ';', '\t', '|']) {
-    const c = header.split(d).length - 1;
-    if (c > count) {
-      best = d;
-      count = c;
-    }
-  }
-  return best;
+/** A line parser for a given header, config and sink (exported for tests and in-memory use). */
+export function makeImuLineParser(file: string, cfg: HindcastConfig, sink: ImuSampleSink): ImuLineParser {
+  return new ImuLineParser(file, cfg, sink);
 }
 
-/** A line parser for a given header, config and sink (exported for tests and in-memory use). */
-export function makeImuLineParser(file: string, cfg: HindcastConfig, sink: ImuSampleSink) {
-  const imu = cfg.imu;
-  const accelScale = imu.accelUnit === 'g' ? STANDARD_GRAVITY_MPS2 : 1;
-  const gyroScale = imu.gyroUnit === 'degps' ? Math.PI / 180 : 1;
-  const d2r = Math.PI / 180;
-  const Cbs = rotationZyx(imu.sensorToBodyDeg.roll * d2r, imu.sensorToBodyDeg.pitch * d2r, imu.sensorToBodyDeg.yaw * d2r, new Float64Array(9));
-  const identity = Cbs[0] === 1 && Cbs[4] === 1 && Cbs[8] === 1;
-  const stats: ImuReadStats = { samples: 0, skipped: 0, warnings: [] };
-  let delimiter = cfg.input.delimiter ?? ',';
-  let iTime = -1;
-  const iAx = [-1, -1, -1, -1, -1, -1];
-  let lineNo = 0;
-  let headerDone = false;
-  let msNoted = false;
-  const zone = cfg.input.timeZone;
-  const unit = cfg.input.timeUnit;
-  // local times in a zone with clock changes, or a custom format (text times only)
-  const local = cfg.input.timeFormat !== undefined || (zone !== undefined && zone !== 'UTC') ? new LocalTimeReader(zone, cfg.input.timeFormat) : null;
-  let prevT = -Infinity;
-  let clockChangeRows = 0;
-  const v = new Float64Array(6);
-  // fast path: the cell index of each needed value (slot 0 time, 1..6 the axes), set with the header
-  let slotOf = new Int8Array(0);
-  let maxCol = -1;
-  let delimByte = -1;
-  const fv = new Float64Array(7);
-  const skip = (why: string) => {
-    stats.skipped++;
-    if (stats.warnings.length < 20) stats.warnings.push({ file, line: lineNo, code: 'row-skipped', message: why });
-  };
-  const line = (raw: string): void => {
-    lineNo++;
-    const text = lineNo === 1 ? raw.replace(/^\uFEFF/, '') : raw;
-    if (!headerDone) {
-      if (text.trim() === '') throw new InputError({ file, line: lineNo }, 'empty header line: an IMU CSV needs a header row');
-      delimiter = cfg.input.delimiter ?? detect(text);
-      const names = text.split(delimiter).map((s) => s.trim().toLowerCase().replace(/^"|"$/g, ''));
-      iTime = names.findIndex((n) => TIME_NAMES.includes(n));
-      AXES.forEach((a, j) => (iAx[j] = names.indexOf(a)));
-      const missing = [iTime < 0 ? 'time' : '', ...AXES.filter((_, j) => iAx[j]! < 0)].filter((s) => s);
-      if (missing.length) throw new InputError({ file, line: 1 }, `no ${missing.join(', ')} column in the IMU header (${names.join(', ')}); expected time, ax, ay, az, gx, gy, gz`);
-      headerDone = true;
-      maxCol = Math.max(iTime, ...iAx);
-      slotOf = new Int8Array(maxCol + 1).fill(-1);
-      slotOf[iTime] = 0;
-      for (let j = 0; j < 6; j++) slotOf[iAx[j]!] = j + 1;
-      delimByte = delimiter.length === 1 && delimiter.charCodeAt(0) < 128 ? delimiter.charCodeAt(0) : -1;
+/** Lines in, samples out: the header first, then one sample a line (text, or bytes by the fast path). */
+class ImuLineParser {
+  private readonly stats: ImuReadStats = { samples: 0, skipped: 0, warnings: [] };
+  private readonly accelScale: number;
+  private readonly gyroScale: number;
+  /** Sensor → body rotation; `identity`: none. */
+  private readonly Cbs: Float64Array;
+  private readonly identity: boolean;
+  private readonly zone: string | undefined;
+  private readonly unit: HindcastConfig['input']['timeUnit'];
+  /** Local times in a zone with clock changes, or a custom format (text times only). */
+  private readonly local: LocalTimeReader | null;
+  /** The header's layout, null until the header line is read. */
+  private layout: ImuCsvLayout | null = null;
+  private lineNo = 0;
+  private msNoted = false;
+  private prevT = -Infinity;
+  private clockChangeRows = 0;
+  /** The sample being read: sensor axes, SI units. */
+  private readonly v = new Float64Array(6);
+  /** Fast path: the values by slot (0 time, 1..6 the axes, as read). */
+  private readonly fv = new Float64Array(7);
+
+  constructor(private readonly file: string, private readonly cfg: HindcastConfig, private readonly sink: ImuSampleSink) {
+    const imu = cfg.imu;
+    this.accelScale = imu.accelUnit === 'g' ? STANDARD_GRAVITY_MPS2 : 1;
+    this.gyroScale = imu.gyroUnit === 'degps' ? Math.PI / 180 : 1;
+    const d2r = Math.PI / 180;
+    this.Cbs = rotationZyx(imu.sensorToBodyDeg.roll * d2r, imu.sensorToBodyDeg.pitch * d2r, imu.sensorToBodyDeg.yaw * d2r, new Float64Array(9));
+    this.identity = this.Cbs[0] === 1 && this.Cbs[4] === 1 && this.Cbs[8] === 1;
+    this.zone = cfg.input.timeZone;
+    this.unit = cfg.input.timeUnit;
+    this.local = cfg.input.timeFormat !== undefined || (this.zone !== undefined && this.zone !== 'UTC') ? new LocalTimeReader(this.zone, cfg.input.timeFormat) : null;
+  }
+
+  private skip(why: string): void {
+    this.stats.skipped++;
+    if (this.stats.warnings.length < LISTED_SKIPS) this.stats.warnings.push({ file: this.file, line: this.lineNo, code: 'row-skipped', message: why });
+  }
+
+  /** The general parser: one line of text (the header, or a sample). */
+  line(raw: string): void {
+    this.lineNo++;
+    const text = this.lineNo === 1 ? raw.replace(/^\uFEFF/, '') : raw;
+    const layout = this.layout;
+    if (!layout) {
+      this.layout = readImuHeader(text, this.file, this.cfg, this.lineNo);
       return;
     }
     if (text.trim() === '') return;
-    const cells = text.split(delimiter);
-    const tt = (cells[iTime] ?? '').trim();
-    let t = Number(tt);
-    if (tt === '') t = NaN;
-    else if (Number.isFinite(t)) {
-      const ms = unit === 'ms' || (unit === 'auto' && Math.abs(t) > 1e11);
-      if (ms) {
-        t /= 1000;
-        if (unit === 'auto' && !msNoted) {
-          msNoted = true;
-          stats.warnings.push({ file, code: 'time-unit', message: 'numeric IMU times larger than 1e11 read as Unix milliseconds' });
-        }
-      }
-    } else {
-      const text = tt.replace(/^"|"$/g, '');
-      if (local === null || (cfg.input.timeFormat === undefined && ISO_WITH_OFFSET.test(text))) t = parseIsoToUnix(text, zone);
-      else {
-        const r = local.read(text);
-        if (r === null) t = NaN;
-        else if (!('kind' in r)) t = r.utcMs / 1000;
-        else if (r.kind === 'unique') t = r.utcMs[0]! / 1000;
-        else {
-          // a clock change: the one reading that follows the previous sample within a minute, else skipped
-          const fits = r.utcMs.map((ms) => ms / 1000).filter((x) => x >= prevT && x - prevT <= 60);
-          if (fits.length !== 1)
-            return skip(`local time "${tt}" ${r.kind === 'ambiguous' ? 'occurs twice' : 'does not exist'} in ${zone} (clock change) and the order of the samples does not decide it; write IMU times with an offset or in UTC`);
-          t = fits[0]!;
-          clockChangeRows++;
-        }
-      }
-    }
-    if (!Number.isFinite(t)) return skip(`time "${tt}" is not an ISO 8601 time with a zone nor a Unix time${cfg.input.timeFormat !== undefined ? ` nor in input.timeFormat "${cfg.input.timeFormat}"` : ''}`);
+    const cells = text.split(layout.delimiter);
+    const tt = (cells[layout.iTime] ?? '').trim();
+    const t = this.cellTime(tt);
+    if (t === null) return;
+    if (!Number.isFinite(t)) return this.skip(`time "${tt}" is not an ISO 8601 time with a zone nor a Unix time${this.cfg.input.timeFormat !== undefined ? ` nor in input.timeFormat "${this.cfg.input.timeFormat}"` : ''}`);
+    const v = this.v;
     for (let j = 0; j < 6; j++) {
-      const c = cells[iAx[j]!];
+      const c = cells[layout.iAx[j]!];
       const x = c === undefined || c.trim() === '' ? NaN : Number(c);
-      if (!Number.isFinite(x)) return skip(`${AXES[j]} "${c ?? ''}" is not a number`);
-      v[j] = x * (j < 3 ? accelScale : gyroScale);
+      if (!Number.isFinite(x)) return this.skip(`${IMU_AXES[j]} "${c ?? ''}" is not a number`);
+      v[j] = x * (j < 3 ? this.accelScale : this.gyroScale);
     }
-    emit(t);
-  };
+    this.emit(t);
+  }
+
+  /** The time cell (trimmed) as UTC Unix seconds; NaN when unreadable; null when the row was skipped already. */
+  private cellTime(tt: string): number | null {
+    if (tt === '') return NaN;
+    const t = Number(tt);
+    if (Number.isFinite(t)) return this.numericTime(t);
+    const text = tt.replace(/^"|"$/g, '');
+    const local = this.local;
+    if (local === null || (this.cfg.input.timeFormat === undefined && ISO_WITH_OFFSET.test(text))) return parseIsoToUnix(text, this.zone);
+    const r = local.read(text);
+    if (r === null) return NaN;
+    if (!('kind' in r)) return r.utcMs / 1000;
+    if (r.kind === 'unique') return r.utcMs[0]! / 1000;
+    // a clock change: the one reading that follows the previous sample within a minute, else skipped
+    const prevT = this.prevT;
+    const fits = r.utcMs.map((ms) => ms / 1000).filter((x) => x >= prevT && x - prevT <= 60);
+    if (fits.length !== 1) {
+      this.skip(`local time "${tt}" ${r.kind === 'ambiguous' ? 'occurs twice' : 'does not exist'} in ${this.zone} (clock change) and the order of the samples does not decide it; write IMU times with an offset or in UTC`);
+      return null;
+    }
+    this.clockChangeRows++;
+    return fits[0]!;
+  }
+
+  /** A numeric time in Unix seconds (milliseconds by input.timeUnit, or guessed above 1e11 with a note). */
+  private numericTime(t: number): number {
+    const unit = this.unit;
+    if (unit === 'ms' || (unit === 'auto' && Math.abs(t) > 1e11)) {
+      t /= 1000;
+      if (unit === 'auto' && !this.msNoted) {
+        this.msNoted = true;
+        this.stats.warnings.push({ file: this.file, code: 'time-unit', message: 'numeric IMU times larger than 1e11 read as Unix milliseconds' });
+      }
+    }
+    return t;
+  }
+
   /** Hand the sample in v (sensor axes, SI units) at time t to the sink in the body frame. */
-  const emit = (t: number): void => {
-    stats.samples++;
-    prevT = t;
-    if (identity) sink(t, v[0]!, v[1]!, v[2]!, v[3]!, v[4]!, v[5]!);
+  private emit(t: number): void {
+    const v = this.v;
+    this.stats.samples++;
+    this.prevT = t;
+    if (this.identity) this.sink(t, v[0]!, v[1]!, v[2]!, v[3]!, v[4]!, v[5]!);
     else {
       // body = C_bs · sensor
-      const C = Cbs;
-      sink(
+      const C = this.Cbs;
+      this.sink(
         t,
         C[0]! * v[0]! + C[1]! * v[1]! + C[2]! * v[2]!,
         C[3]! * v[0]! + C[4]! * v[1]! + C[5]! * v[2]!,
@@ -163,97 +166,47 @@ export function makeImuLineParser(file: string, cfg: HindcastConfig, sink: ImuSa
         C[6]! * v[3]! + C[7]! * v[4]! + C[8]! * v[5]!,
       );
     }
-  };
+  }
+
   /**
    * The fast path for the line in bytes [s, e) of buf (no line break): true when it was a sample of
    * plain numbers and has been handled; false, with nothing consumed, when the general parser must
    * take it.
    */
-  const fastLine = (buf: Uint8Array, s: number, e: number): boolean => {
-    if (!headerDone || delimByte < 0 || s >= e) return false;
+  fastLine(buf: Uint8Array, s: number, e: number): boolean {
+    const layout = this.layout;
+    if (!layout || layout.delimByte < 0 || s >= e) return false;
+    const { slotOf, maxCol, delimByte } = layout;
+    const fv = this.fv;
     let p = s, col = 0, got = 0;
     for (;;) {
       const slot = col <= maxCol ? slotOf[col]! : -1;
       if (slot >= 0) {
-        let c = buf[p];
-        let neg = false;
-        if (c === 45) {
-          neg = true;
-          p++;
-        } else if (c === 43) p++;
-        let m = 0, digits = 0, frac = 0, dot = false;
-        while (p < e) {
-          c = buf[p]!;
-          if (c >= 48 && c <= 57) {
-            if (m > 900719925474098) return false; // m·10 + 9 would pass 2⁵³
-            m = m * 10 + (c - 48);
-            digits++;
-            if (dot) frac++;
-          } else if (c === 46 && !dot) dot = true;
-          else break;
-          p++;
-        }
-        if (digits === 0) return false;
-        let ex = 0;
-        if (p < e && (buf[p] === 101 || buf[p] === 69)) {
-          p++;
-          let eneg = false;
-          if (buf[p] === 45) {
-            eneg = true;
-            p++;
-          } else if (buf[p] === 43) p++;
-          let ed = 0;
-          while (p < e && buf[p]! >= 48 && buf[p]! <= 57) {
-            if (ex > 1000) return false;
-            ex = ex * 10 + (buf[p]! - 48);
-            ed++;
-            p++;
-          }
-          if (ed === 0) return false;
-          if (eneg) ex = -ex;
-        }
-        if (p < e && buf[p] !== delimByte) return false;
-        const pw = ex - frac;
-        let x = m;
-        if (pw > 0) {
-          if (pw > 22) return false;
-          x = m * POW10[pw]!;
-        } else if (pw < 0) {
-          if (pw < -22) return false;
-          x = m / POW10[-pw]!;
-        }
-        fv[slot] = neg ? -x : x;
+        p = scanPlainDecimal(buf, p, e, delimByte, fv, slot);
+        if (p < 0) return false;
         if (++got === 7) break;
       } else while (p < e && buf[p] !== delimByte) p++;
       if (p >= e) return false;
       p++;
       col++;
     }
-    lineNo++;
-    let t = fv[0]!;
-    if (unit === 'ms' || (unit === 'auto' && Math.abs(t) > 1e11)) {
-      t /= 1000;
-      if (unit === 'auto' && !msNoted) {
-        msNoted = true;
-        stats.warnings.push({ file, code: 'time-unit', message: 'numeric IMU times larger than 1e11 read as Unix milliseconds' });
-      }
-    }
-    for (let j = 0; j < 6; j++) v[j] = fv[j + 1]! * (j < 3 ? accelScale : gyroScale);
-    emit(t);
+    this.lineNo++;
+    const t = this.numericTime(fv[0]!);
+    const v = this.v;
+    for (let j = 0; j < 6; j++) v[j] = fv[j + 1]! * (j < 3 ? this.accelScale : this.gyroScale);
+    this.emit(t);
     return true;
-  };
-  const finish = (): ImuReadStats => {
-    if (!headerDone) throw new InputError({ file }, 'empty IMU file');
-    if (stats.skipped > 20) stats.warnings.push({ file, code: 'row-skipped', message: `${stats.skipped} IMU rows skipped in all (first 20 listed)` });
-    if (clockChangeRows > 0)
-      stats.warnings.push({ file, code: 'local-time-clock-change', message: `${clockChangeRows} IMU row(s) at local times repeated or skipped by a clock change in ${zone}, read by the order of the samples` });
-    return stats;
-  };
-  return { line, fastLine, finish };
-}
+  }
 
-/** Exact powers of ten (10²² is the largest exactly representable as a double). */
-const POW10 = Array.from({ length: 23 }, (_, i) => Number(`1e${i}`));
+  finish(): ImuReadStats {
+    const stats = this.stats;
+    if (!this.layout) throw new InputError({ file: this.file }, 'empty IMU file');
+    if (stats.skipped > LISTED_SKIPS) stats.warnings.push({ file: this.file, code: 'row-skipped', message: `${stats.skipped} IMU rows skipped in all (first 20 listed)` });
+    if (this.clockChangeRows > 0)
+      stats.warnings.push({ file: this.file, code: 'local-time-clock-change', message: `${this.clockChangeRows} IMU row(s) at local times repeated or skipped by a clock change in ${this.zone}, read by the order of the samples` });
+    return stats;
+  }
+}
 
 /**
  * Read an IMU CSV file as a stream, calling `sink` for every sample in file order: bytes split into

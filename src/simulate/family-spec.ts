@@ -172,20 +172,71 @@ function drawTime(rng: Rng, zone: string): FamilyLogSpec['time'] {
   return { format: f };
 }
 
-/** Draw one log of a kind from its seed (see the table in the file header). */
+/**
+ * Draw one log of a kind from its seed (see the table in the file header). The draws come from one
+ * stream in a fixed order (site, rate, span, noise levels, tail, steps, quality, bursts, gaps,
+ * start, correlated errors, step size, invalid rows, time format, header): the order is part of
+ * the family's definition.
+ */
 export function drawLogSpec(kind: FamilyKind, index: number, seed: number): FamilyLogSpec {
   const rng = new Rng(seed);
   const site = pick(rng, SITES);
-  let rateHz: number;
+  const rateHz = drawRateHz(rng, kind);
+  const { durationSec, drive, driveStartSec } = drawSpan(rng, kind, index, rateHz);
+  const lv = drawNoiseLevels(rng, kind);
+  const tail = drawTail(rng);
+  const nSteps = rng.next() < 0.5 ? 0 : rng.int(1, 3);
+  const modeSteps = Array.from({ length: nSteps }, () => rng.uniform(0.1, 0.9) * durationSec).sort((a, b) => a - b);
+  const quality = drawQuality(rng);
+  const degraded = kind === 'degraded';
+  const bursts: BurstSpec = degraded
+    ? { perMinute: rng.uniform(3, 6), rampShare: 0.4, minSigmas: 4, maxSigmas: 10, minM: 60 }
+    : { perMinute: rng.uniform(0.2, 1), rampShare: rng.uniform(0.2, 0.5), minSigmas: 6, maxSigmas: 20, minM: 15 };
+  const gaps = drawGaps(rng, durationSec);
+  const start = Date.UTC(2026, 4 + rng.int(0, 4), rng.int(1, 28), rng.int(6, 17), rng.int(0, 59), 0) / 1000;
+  return {
+    id: `${kind}-${String(index + 1).padStart(2, '0')}`,
+    kind,
+    seed,
+    durationSec,
+    rateHz,
+    origin: site.origin,
+    startUnixSec: start,
+    ...(drive !== undefined ? { drive, driveStartSec } : {}),
+    receiver: {
+      grade: lv.grade,
+      whiteHM: lv.whiteHM,
+      whiteVM: lv.whiteVM,
+      tail,
+      correlatedH: drawCorrelated(rng, lv.corrHM, lv.tauH),
+      correlatedV: drawCorrelated(rng, lv.corrVM, lv.tauV),
+      modeSteps,
+      stepSigmaM: rng.uniform(0.5, 2) * (degraded ? 5 : 1),
+    },
+    quality,
+    bursts,
+    gaps,
+    zeroRows: rng.int(0, 3),
+    emptyRows: rng.int(0, 2),
+    time: drawTime(rng, site.zone),
+    header: rng.int(0, 3),
+  };
+}
+
+function drawRateHz(rng: Rng, kind: FamilyKind): number {
   switch (kind) {
-    case 'walk': rateHz = pick(rng, [1, 1, 2, 5, 10, 20]); break;
-    case 'van': rateHz = 10; break;
-    case 'urban': rateHz = pick(rng, [1, 1, 2, 5]); break;
-    case 'drone': rateHz = 5; break;
-    case 'circle': rateHz = 1; break;
-    case 'degraded': rateHz = 1; break;
-    case 'real': rateHz = pick(rng, [1, 2]); break;
+    case 'walk': return pick(rng, [1, 1, 2, 5, 10, 20]);
+    case 'van': return 10;
+    case 'urban': return pick(rng, [1, 1, 2, 5]);
+    case 'drone': return 5;
+    case 'circle': return 1;
+    case 'degraded': return 1;
+    case 'real': return pick(rng, [1, 2]);
   }
+}
+
+/** The log's length (s, whole), and for a real drive its name and the start within it. */
+function drawSpan(rng: Rng, kind: FamilyKind, index: number, rateHz: number): { durationSec: number; drive?: string; driveStartSec?: number } {
   let durationSec = rateHz >= 10 ? rng.uniform(300, 480) : rng.uniform(480, 1200);
   let drive: string | undefined;
   let driveStartSec: number | undefined;
@@ -195,7 +246,11 @@ export function drawLogSpec(kind: FamilyKind, index: number, seed: number): Fami
     durationSec = Math.min(len - 2, rng.uniform(480, 1200));
     driveStartSec = rng.uniform(0, Math.max(0, len - 2 - durationSec));
   }
-  durationSec = Math.round(durationSec);
+  return { durationSec: Math.round(durationSec), drive, driveStartSec };
+}
+
+/** The receiver grade and its white and correlated error levels (m) and time constants (s). */
+function drawNoiseLevels(rng: Rng, kind: FamilyKind) {
   const grade = pick(rng, KIND_GRADES[kind]);
   let whiteHM: number, corrHM: number;
   if (grade === 'deep-urban') {
@@ -209,55 +264,33 @@ export function drawLogSpec(kind: FamilyKind, index: number, seed: number): Fami
   const corrVM = Math.min(grade === 'deep-urban' ? 50 : 8, corrHM * rng.uniform(1, 2.5));
   const tauH = grade === 'deep-urban' ? logUniform(rng, 60, 300) : logUniform(rng, 10, 300);
   const tauV = Math.min(300, Math.max(10, tauH * logUniform(rng, 0.3, 3)));
+  return { grade, whiteHM, corrHM, whiteVM, corrVM, tauH, tauV };
+}
+
+function drawTail(rng: Rng): WhiteTail {
   const tu = rng.next();
-  const tail: WhiteTail = tu < 0.55 ? { kind: 'normal' } : tu < 0.8 ? { kind: 'student', nu: rng.int(3, 6) } : { kind: 'contaminated', share: rng.uniform(0.02, 0.05), scale: rng.uniform(3, 5) };
-  const nSteps = rng.next() < 0.5 ? 0 : rng.int(1, 3);
-  const modeSteps = Array.from({ length: nSteps }, () => rng.uniform(0.1, 0.9) * durationSec).sort((a, b) => a - b);
+  return tu < 0.55 ? { kind: 'normal' } : tu < 0.8 ? { kind: 'student', nu: rng.int(3, 6) } : { kind: 'contaminated', share: rng.uniform(0.02, 0.05), scale: rng.uniform(3, 5) };
+}
+
+function drawQuality(rng: Rng): QualitySpec {
   const qu = rng.next();
   const mode: QualityMode = qu < 0.4 ? 'informative' : qu < 0.75 ? 'weak' : 'absent';
-  const quality: QualitySpec = {
+  return {
     mode,
     alpha: mode === 'informative' ? rng.uniform(0.6, 1.2) : mode === 'weak' ? rng.uniform(0, 0.25) : 0,
     hiddenLogSd: mode === 'informative' ? 0 : rng.uniform(0.1, 0.35),
     tauSec: logUniform(rng, 60, 600),
   };
-  const degraded = kind === 'degraded';
-  const bursts: BurstSpec = degraded
-    ? { perMinute: rng.uniform(3, 6), rampShare: 0.4, minSigmas: 4, maxSigmas: 10, minM: 60 }
-    : { perMinute: rng.uniform(0.2, 1), rampShare: rng.uniform(0.2, 0.5), minSigmas: 6, maxSigmas: 20, minM: 15 };
+}
+
+/** Outages [start (s), length (s)] in time order: up to two short ones, sometimes a long one. */
+function drawGaps(rng: Rng, durationSec: number): Array<[number, number]> {
   const gaps: Array<[number, number]> = [];
   const nGaps = rng.int(0, 2);
   for (let g = 0; g < nGaps; g++) gaps.push([rng.uniform(0.15, 0.85) * durationSec, rng.uniform(5, 40)]);
   if (rng.next() < 0.15) gaps.push([rng.uniform(0.3, 0.7) * durationSec, rng.uniform(70, 120)]);
   gaps.sort((a, b) => a[0] - b[0]);
-  const start = Date.UTC(2026, 4 + rng.int(0, 4), rng.int(1, 28), rng.int(6, 17), rng.int(0, 59), 0) / 1000;
-  return {
-    id: `${kind}-${String(index + 1).padStart(2, '0')}`,
-    kind,
-    seed,
-    durationSec,
-    rateHz,
-    origin: site.origin,
-    startUnixSec: start,
-    ...(drive !== undefined ? { drive, driveStartSec } : {}),
-    receiver: {
-      grade,
-      whiteHM,
-      whiteVM,
-      tail,
-      correlatedH: drawCorrelated(rng, corrHM, tauH),
-      correlatedV: drawCorrelated(rng, corrVM, tauV),
-      modeSteps,
-      stepSigmaM: rng.uniform(0.5, 2) * (degraded ? 5 : 1),
-    },
-    quality,
-    bursts,
-    gaps,
-    zeroRows: rng.int(0, 3),
-    emptyRows: rng.int(0, 2),
-    time: drawTime(rng, site.zone),
-    header: rng.int(0, 3),
-  };
+  return gaps;
 }
 
 /** Logs per kind in the standard family (64 logs). */

@@ -65,10 +65,39 @@ export function equalAxes(eMin: number, eMax: number, nMin: number, nMax: number
   return { x: [cx - hx, cx + hx], y: [cy - hy, cy + hy], height };
 }
 
+type Coord = number | null;
+type TrackPoint = { e: Coord; n: Coord; part: number; kind: string; k: number };
+type FlaggedPoint = { e: Coord; n: Coord; mark: string; label: string; listed: boolean };
+type BurstLabel = { e: Coord; n: Coord; text: string; epoch: number; count: number };
+type Axes = ReturnType<typeof equalAxes>;
+
 /** @param flagIds the id of each listed flagged fix by its epoch in the full session */
 export function trackChart(p: PlotSeries, ellipses: EllipseMark[], name: string, flagIds: ReadonlyMap<number, string> = new Map()): TopLevelSpec {
-  // track as runs of one kind within a segment; a bridged run includes its neighbours so it joins up
-  const line: Array<{ e: number | null; n: number | null; part: number; kind: string; k: number }> = [];
+  const line = trackRuns(p);
+  const ell: Array<{ e: Coord; n: Coord; id: number; k: number }> = [];
+  ellipses.forEach((el, id) => ellipsePoints(el).forEach(([e, n], k) => ell.push({ e: r4(e), n: r4(n), id, k })));
+  const { flagged, labels, keptAt } = flaggedFixes(p, flagIds);
+  let eMin = Infinity, eMax = -Infinity, nMin = Infinity, nMax = -Infinity;
+  for (const q of [...line, ...ell, ...flagged]) {
+    if (q.e === null || q.n === null) continue;
+    eMin = Math.min(eMin, q.e);
+    eMax = Math.max(eMax, q.e);
+    nMin = Math.min(nMin, q.n);
+    nMax = Math.max(nMax, q.n);
+  }
+  if (!Number.isFinite(eMin)) [eMin, eMax, nMin, nMax] = [-1, 1, -1, 1];
+  const ax = equalAxes(eMin, eMax, nMin, nMax, CHART_WIDTH);
+  return withSvgOverlay({
+    description: `Track of ${name} in the local frame`,
+    width: CHART_WIDTH,
+    height: ax.height,
+    layer: trackLayers(line, flagged, labels, ax),
+  } as TopLevelSpec, trackOverlay(p, keptAt, ellipses, flagged, ax));
+}
+
+/** The track as runs of one kind within a segment; a bridged run includes its neighbours so it joins up. */
+function trackRuns(p: PlotSeries): TrackPoint[] {
+  const line: TrackPoint[] = [];
   let part = -1;
   let prevKind = '';
   let prevSeg = -1;
@@ -84,12 +113,15 @@ export function trackChart(p: PlotSeries, ellipses: EllipseMark[], name: string,
     prevKind = kind;
     prevSeg = p.segment[k]!;
   }
-  const ell: Array<{ e: number | null; n: number | null; id: number; k: number }> = [];
-  ellipses.forEach((el, id) => ellipsePoints(el).forEach(([e, n], k) => ell.push({ e: r4(e), n: r4(n), id, k })));
-  const flagged: Array<{ e: number | null; n: number | null; mark: string; label: string; listed: boolean }> = [];
-  // one text label a burst: its first id, and how many more it holds
-  const labels: Array<{ e: number | null; n: number | null; text: string; epoch: number; count: number }> = [];
+  return line;
+}
+
+/** The flagged fixes' marks, one text label a burst (its first id, and how many more it holds), and the kept raw fixes. */
+function flaggedFixes(p: PlotSeries, flagIds: ReadonlyMap<number, string>): { flagged: FlaggedPoint[]; labels: BurstLabel[]; keptAt: number[] } {
+  const flagged: FlaggedPoint[] = [];
+  const labels: BurstLabel[] = [];
   const keptAt: number[] = [];
+  const M = p.tSec.length;
   for (let k = 0; k < M; k++) {
     if (isKeptFix(p.status[k]!) && Number.isFinite(p.rawEast[k]!)) keptAt.push(k);
     const m = flagMark(p.status[k]!);
@@ -107,21 +139,17 @@ export function trackChart(p: PlotSeries, ellipses: EllipseMark[], name: string,
     } else labels.push({ e: r4(e), n: r4(n), text: id, epoch: p.epoch[k]!, count: 1 });
   }
   for (const l of labels) if (l.count > 1) l.text += ` +${l.count - 1}`;
-  let eMin = Infinity, eMax = -Infinity, nMin = Infinity, nMax = -Infinity;
-  for (const q of [...line, ...ell, ...flagged]) {
-    if (q.e === null || q.n === null) continue;
-    eMin = Math.min(eMin, q.e);
-    eMax = Math.max(eMax, q.e);
-    nMin = Math.min(nMin, q.n);
-    nMax = Math.max(nMax, q.n);
-  }
-  if (!Number.isFinite(eMin)) [eMin, eMax, nMin, nMax] = [-1, 1, -1, 1];
-  const ax = equalAxes(eMin, eMax, nMin, nMax, CHART_WIDTH);
-  // the kept raw fixes, one dot a cell of KEPT_CELL_PX (more in one cell draw the same dot), all
-  // of them one SVG path of zero-length round-capped segments; and the 95% ellipses, one path
-  // each: drawn by renderSvg into the empty 'kept' and 'ellipses' layers (a chart library's
-  // element a dot cost 1–2 kB and most of the plot's time)
-  const overlay: SvgOverlay = (scale) => {
+  return { flagged, labels, keptAt };
+}
+
+/**
+ * The kept raw fixes, one dot a cell of KEPT_CELL_PX (more in one cell draw the same dot), all of
+ * them one SVG path of zero-length round-capped segments; and the 95% ellipses, one path each:
+ * drawn by renderSvg into the empty 'kept' and 'ellipses' layers (a chart library's element a dot
+ * cost 1–2 kB and most of the plot's time); and the flagged symbols.
+ */
+function trackOverlay(p: PlotSeries, keptAt: number[], ellipses: EllipseMark[], flagged: FlaggedPoint[], ax: Axes): SvgOverlay {
+  return (scale) => {
     const sx = scale('x'), sy = scale('y');
     const cells = new Set<string>();
     let dots = '';
@@ -153,6 +181,10 @@ export function trackChart(p: PlotSeries, ellipses: EllipseMark[], name: string,
       [ELLIPSE_LAYER]: rings ? `<g fill="none" stroke="#5d6d7e" stroke-width="0.8" opacity="0.8">${rings}</g>` : '',
     };
   };
+}
+
+/** The chart's layers: the empty layers the overlay draws into, the track, its start, the burst labels. */
+function trackLayers(line: TrackPoint[], flagged: FlaggedPoint[], labels: BurstLabel[], ax: Axes): unknown[] {
   const x = { field: 'e', type: 'quantitative', scale: { domain: ax.x, nice: false, zero: false }, axis: { title: 'east (m)' } };
   const y = { field: 'n', type: 'quantitative', scale: { domain: ax.y, nice: false, zero: false }, axis: { title: 'north (m)' } };
   const start = line.length ? [{ e: line[0]!.e, n: line[0]!.n, label: 'start' }] : [];
@@ -202,10 +234,5 @@ export function trackChart(p: PlotSeries, ellipses: EllipseMark[], name: string,
       mark: { type: 'text', dx: 6, dy: -6, align: 'left', fontSize: 10, color: '#7b241c', clip: true, aria: false },
       encoding: { x, y, text: { field: 'text' } },
     });
-  return withSvgOverlay({
-    description: `Track of ${name} in the local frame`,
-    width: CHART_WIDTH,
-    height: ax.height,
-    layer: layers,
-  } as TopLevelSpec, overlay);
+  return layers;
 }

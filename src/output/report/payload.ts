@@ -244,6 +244,39 @@ function facts(r: SessionResult): Array<[string, string]> {
 
 export function reportPayload(r: SessionResult, opt: PayloadOptions = {}): ReportPayload {
   const idx = plotEpochs(r, opt.maxPoints ?? PLOT_POINTS_MAX);
+  const plot = plotSeries(r, idx);
+  const { bridgedSpans, bridgedSec } = bridgedSpansOf(r);
+  const ellipses = ellipseMarks(r);
+  const { flagged, shots } = flaggedRows(r);
+  const { decisions, decisionCount } = decisionRows(r);
+  return {
+    version: PAYLOAD_VERSION,
+    name: r.name,
+    file: r.file,
+    epochs: r.N,
+    hasHeight: r.hasHeight,
+    metrics: { ...r.metrics },
+    bridgedSec,
+    bridgedSpans,
+    calibratedNoise: calibratedNoise(r.info),
+    calibrationLine: calibrationLine(r.info),
+    facts: facts(r),
+    warningCount: r.warnings.length,
+    warnings: r.warnings.slice(0, WARNINGS_MAX).map((w) => ({ ...w })),
+    plot,
+    ellipses,
+    flagged,
+    flaggedCount: r.outliers.length,
+    decisions,
+    decisionCount,
+    extensions: collectExtensions(r, idx),
+    closeups: shots,
+    timeZone: typeof r.info.timeZone === 'string' ? r.info.timeZone : null,
+  };
+}
+
+/** The plotted epochs' values (idx: their epochs in the full session). */
+function plotSeries(r: SessionResult, idx: Int32Array): PlotSeries {
   const M = idx.length;
   const f64 = () => new Float64Array(M);
   const f32 = () => new Float32Array(M);
@@ -274,7 +307,11 @@ export function reportPayload(r: SessionResult, opt: PayloadOptions = {}): Repor
     plot.resUp[k] = raw && r.hasHeight ? raw[2][j]! - r.posEnu[2][j]! : NaN;
     plot.speedMps[k] = Math.hypot(r.velEnu[0][j]!, r.velEnu[1][j]!);
   }
-  // bridged spans, from the full-rate data, extended to the epochs on each side within the segment
+  return plot;
+}
+
+/** Bridged spans, from the full-rate data, extended to the epochs on each side within the segment, and their total length (s). */
+function bridgedSpansOf(r: SessionResult): { bridgedSpans: Array<[number, number]>; bridgedSec: number } {
   const bridgedSpans: Array<[number, number]> = [];
   let bridgedSec = 0;
   for (let j = 0; j < r.N; ) {
@@ -290,17 +327,24 @@ export function reportPayload(r: SessionResult, opt: PayloadOptions = {}): Repor
     bridgedSec += r.tSec[b]! - r.tSec[a]!;
     j = e + 1;
   }
-  // ellipses at regular epoch intervals over the whole session, plus the worst one
+  return { bridgedSpans, bridgedSec };
+}
+
+/** Ellipses at regular epoch intervals over the whole session, plus the worst one. */
+function ellipseMarks(r: SessionResult): EllipseMark[] {
   const all = new Int32Array(r.N);
   for (let j = 0; j < r.N; j++) all[j] = j;
   const ellIdx = Array.from(everyNth(all, ELLIPSES_PER_SESSION));
   let worst = -1;
   for (let j = 0; j < r.N; j++) if (worst < 0 || r.ell95MajorM[j]! > r.ell95MajorM[worst]!) worst = j;
   if (worst >= 0 && !ellIdx.includes(worst)) ellIdx.push(worst);
-  const ellipses: EllipseMark[] = ellIdx
+  return ellIdx
     .filter((j) => Number.isFinite(r.ell95MajorM[j]!))
     .map((j) => ({ tSec: r.tSec[j]!, east: r.posEnu[0][j]!, north: r.posEnu[1][j]!, majorM: r.ell95MajorM[j]!, minorM: r.ell95MinorM[j]!, azimuthDeg: r.ell95AzimuthDeg[j]! }));
-  // flagged fixes, with the status of their epoch
+}
+
+/** The listed flagged fixes, with the status of their epoch and their close-up, and the close-ups. */
+function flaggedRows(r: SessionResult): { flagged: FlaggedRow[]; shots: Closeup[] } {
   const listed = r.outliers.slice(0, LISTED_ROWS_MAX);
   // the last epoch holding each listed fix (−1: none), found in one pass without a map of every epoch
   const epochOfFix = new Map<number, number>();
@@ -323,6 +367,11 @@ export function reportPayload(r: SessionResult, opt: PayloadOptions = {}): Repor
       closeup: closeupOf.get(o.id) ?? -1,
     };
   });
+  return { flagged, shots };
+}
+
+/** The user's decisions found in the track (the first LISTED_ROWS_MAX listed), and their count. */
+function decisionRows(r: SessionResult): { decisions: DecisionRow[]; decisionCount: number } {
   const decisions: DecisionRow[] = [];
   let decisionCount = 0;
   for (let j = 0; j < r.N; j++) {
@@ -332,28 +381,5 @@ export function reportPayload(r: SessionResult, opt: PayloadOptions = {}): Repor
     if (decisions.length < LISTED_ROWS_MAX)
       decisions.push({ tSec: r.tSec[j]!, decision: st === STATUS.userKept ? 'keep' : 'reject', statistic: r.nis[j]!, threshold: r.nisThreshold[j]!, note: r.decisionNotes?.get(r.fix[j]!) ?? null });
   }
-  return {
-    version: PAYLOAD_VERSION,
-    name: r.name,
-    file: r.file,
-    epochs: r.N,
-    hasHeight: r.hasHeight,
-    metrics: { ...r.metrics },
-    bridgedSec,
-    bridgedSpans,
-    calibratedNoise: calibratedNoise(r.info),
-    calibrationLine: calibrationLine(r.info),
-    facts: facts(r),
-    warningCount: r.warnings.length,
-    warnings: r.warnings.slice(0, WARNINGS_MAX).map((w) => ({ ...w })),
-    plot,
-    ellipses,
-    flagged,
-    flaggedCount: r.outliers.length,
-    decisions,
-    decisionCount,
-    extensions: collectExtensions(r, idx),
-    closeups: shots,
-    timeZone: typeof r.info.timeZone === 'string' ? r.info.timeZone : null,
-  };
+  return { decisions, decisionCount };
 }
