@@ -116,7 +116,7 @@ function mulSparseLeft(A: Float64Array, nzA: Nonzeros, B: Float64Array, C: Float
       const k = idx[r + m]!;
       const f = A[r + k]!;
       const rk = k * n;
-      for (let j = 0; j < n; j++) C[r + j] += f * B[rk + j]!;
+      for (let j = 0; j < n; j++) C[r + j] = C[r + j]! + f * B[rk + j]!;
     }
   }
 }
@@ -161,7 +161,7 @@ export function discretize(F: Float64Array, dtSec: number, mp: ErrorModelParams,
   mulSparseLeft(F2, s.nzF2, F, F3);
   // Φ = I + FΔt + ½F²Δt² + ⅙F³Δt³
   for (let i = 0; i < n * n; i++) Phi[i] = F[i]! * t + 0.5 * F2[i]! * t2 + (F3[i]! * t3) / 6;
-  for (let i = 0; i < n; i++) Phi[i * n + i] += 1;
+  for (let i = 0; i < n; i++) Phi[i * n + i] = Phi[i * n + i]! + 1;
   const qc = s.qc;
   fillQcDiag(qc, mp);
   const FQ = s.FQ;

@@ -39,7 +39,7 @@ export function insRtsStep(Pf: Float64Array, Pm: Float64Array, Phi: Float64Array
     for (let m = 0; m < n; m++) {
       const f = Phi[i * n + m]!;
       if (f === 0) continue;
-      for (let j = 0; j < n; j++) Gt[i * n + j] += f * Pf[m * n + j]!;
+      for (let j = 0; j < n; j++) Gt[i * n + j] = Gt[i * n + j]! + f * Pf[m * n + j]!;
     }
   choleskySolve(n, s.L, Gt, n);
   // δxˢₖ = G dNext, G[i][j] = Gt[j][i]

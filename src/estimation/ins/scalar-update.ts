@@ -28,7 +28,7 @@ export function scalarJosephUpdate(n: number, h: Float64Array, nu: number, r: nu
   for (let j = 0; j < n; j++) {
     const hj = h[j]!;
     if (hj === 0) continue;
-    for (let i = 0; i < n; i++) w[i] += P[i * n + j]! * hj;
+    for (let i = 0; i < n; i++) w[i] = w[i]! + P[i * n + j]! * hj;
   }
   // S = hᵀ P h + r
   let hph = 0;
@@ -37,7 +37,7 @@ export function scalarJosephUpdate(n: number, h: Float64Array, nu: number, r: nu
   // K = P hᵀ S⁻¹
   for (let i = 0; i < n; i++) k[i] = w[i]! / S;
   // x ← x + K ν
-  for (let i = 0; i < n; i++) x[i] += k[i]! * nu;
+  for (let i = 0; i < n; i++) x[i] = x[i]! + k[i]! * nu;
   // P ← P − k wᵀ − w kᵀ + S k kᵀ (upper triangle, mirrored)
   for (let i = 0; i < n; i++) {
     const ki = k[i]!, wi = w[i]!;

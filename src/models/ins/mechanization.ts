@@ -122,9 +122,9 @@ export function mechanizeRates(x: Float64Array, rates: Float64Array, mp: MechPar
   const vn1 = vn + dn + cn * dtSec;
   const vu1 = vu + du + (cu - g) * dtSec;
   // trapezoidal position: p += ½ (v_k + v_{k+1}) Δt
-  x[NAV_P] += 0.5 * (ve + ve1) * dtSec;
-  x[NAV_P + 1] += 0.5 * (vn + vn1) * dtSec;
-  x[NAV_P + 2] += 0.5 * (vu + vu1) * dtSec;
+  x[NAV_P] = x[NAV_P]! + 0.5 * (ve + ve1) * dtSec;
+  x[NAV_P + 1] = x[NAV_P + 1]! + 0.5 * (vn + vn1) * dtSec;
+  x[NAV_P + 2] = x[NAV_P + 2]! + 0.5 * (vu + vu1) * dtSec;
   x[NAV_V] = ve1;
   x[NAV_V + 1] = vn1;
   x[NAV_V + 2] = vu1;
