@@ -24,6 +24,8 @@ export const E_BA = 9;
 export const E_BG = 12;
 export const E_GM = 15;
 export const NE = 18;
+/** Shape of an error-state covariance, for the step functions' size-check messages. */
+export const NE_SHAPE = `${NE}×${NE}`;
 /** Packed symmetric size n(n+1)/2. */
 export const NE_PACKED = (NE * (NE + 1)) / 2;
 /** Compact Φ: rows 0..8 × cols 0..14, then the diagonal of rows 9..17. */
