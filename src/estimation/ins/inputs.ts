@@ -57,3 +57,14 @@ export interface InsOptions {
 export function epochHasFix(ep: InsEpochs, k: number): boolean {
   return ep.use[k]! > 0 && Number.isFinite(ep.z[0][k]!) && Number.isFinite(ep.z[1][k]!);
 }
+
+/** Every per-epoch array of the grid holds N entries (checked once, when a filter is made). */
+export function checkInsEpochs(ep: InsEpochs): void {
+  const N = ep.N;
+  if (!(Number.isInteger(N) && N >= 0)) throw new Error(`InsEpochs: N = ${N} is not a count of epochs`);
+  const arrays: Array<[string, ArrayLike<number>]> = [
+    ['tSec', ep.tSec], ['use', ep.use], ['segStart', ep.segStart],
+    ['z[0]', ep.z[0]], ['z[1]', ep.z[1]], ['z[2]', ep.z[2]], ['r[0]', ep.r[0]], ['r[1]', ep.r[1]], ['r[2]', ep.r[2]],
+  ];
+  for (const [name, v] of arrays) if (v.length !== N) throw new Error(`InsEpochs: ${name} has ${v.length} elements, expected ${N} (one an epoch)`);
+}

@@ -28,7 +28,7 @@ import { bufferSample, insAlign, newAlignmentBuffer } from './alignment.js';
 import { insEpochUpdate, makeZeroUpdateParams, type InsPass } from './epoch-update.js';
 import { gnssGateThresholds } from './gnss-update.js';
 import { historyForPass, type InsHistory } from './history.js';
-import { epochHasFix, type InsEpochs, type InsInit, type InsOptions } from './inputs.js';
+import { checkInsEpochs, epochHasFix, type InsEpochs, type InsInit, type InsOptions } from './inputs.js';
 import { copyForwardProducts, newInsProducts, type InsProducts } from './products.js';
 import { insAdvance, insPropagate } from './propagate.js';
 import { insSmoothChains } from './smooth.js';
@@ -81,6 +81,7 @@ export class InsSmoother {
    * `resume.snapshot.sample` only.
    */
   constructor(private readonly ep: InsEpochs, private readonly init: InsInit, private readonly opt: InsOptions, private readonly tm?: InsTimings, history?: InsHistory, resume?: InsResume) {
+    checkInsEpochs(ep);
     this.kern = makeInsKernels(opt.err, opt.kernels);
     this.s = makeInsState(this.kern.filter);
     this.w = makeInsScratch(this.kern.filter);
