@@ -11,7 +11,7 @@ import { makeMechParams, makeMechScratch, mechanize, NAV_BA, NAV_BG, NAV_LEN, NA
 import { quatFromEuler, quatRotateNav, quatToDcm } from '../../src/models/ins/attitude.js';
 import { discretize, fillErrorF, leftMultiply, makeDiscScratch, NE, propagateCovariance, type ErrorModelParams } from '../../src/estimation/ins/error-model.js';
 import { bodyVelocityRow, gnssRow } from '../../src/estimation/ins/measurements.js';
-import { applyCorrection } from '../../src/estimation/ins/ins-filter.js';
+import { applyCorrection } from '../../src/estimation/ins/correction.js';
 import { scalarJosephUpdate, makeScalarScratch } from '../../src/estimation/ins/scalar-update.js';
 import { innovation, makeScratch, updateJoseph } from '../../src/estimation/kalman.js';
 import { Rng } from '../../src/simulate/rng.js';

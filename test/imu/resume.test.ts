@@ -1,6 +1,6 @@
 /**
  * Resumed passes of the IMU review loop (src/session/imu-session.ts, IMU_REVIEW_RESUME;
- * src/estimation/ins/ins-filter.ts, InsSnapshot): a pass starts from the previous pass's snapshot
+ * src/estimation/ins/snapshot.ts, InsSnapshot): a pass starts from the previous pass's snapshot
  * before the first changed decision (after the gated first pass: before its first refused fix or
  * the first fix the review rejects). On a 15-minute drive at 10 Hz fixes (two passes, the second
  * resumed from the first) and on a seeded one-hour drive at 1 Hz fixes whose

@@ -16,6 +16,7 @@
  */
 import { FREE_AIR_GRADIENT_PER_M } from '../../models/ins/gravity.js';
 import { gmPhi, gmQ } from '../../models/gauss-markov.js';
+import { checkSize, sizeError } from './check-size.js';
 
 export const E_P = 0;
 export const E_V = 3;
@@ -24,6 +25,8 @@ export const E_BA = 9;
 export const E_BG = 12;
 export const E_GM = 15;
 export const NE = 18;
+/** Shape of an error-state covariance, for the step functions' size-check messages. */
+export const NE_SHAPE = `${NE}×${NE}`;
 /** Packed symmetric size n(n+1)/2. */
 export const NE_PACKED = (NE * (NE + 1)) / 2;
 /** Compact Φ: rows 0..8 × cols 0..14, then the diagonal of rows 9..17. */
@@ -45,6 +48,9 @@ export interface ErrorModelParams {
 
 /** Continuous-time error dynamics F (18×18, row-major, fully overwritten) about the nominal. */
 export function fillErrorF(F: Float64Array, Cnb: Float64Array, fNav: Float64Array, mp: ErrorModelParams): void {
+  checkSize('fillErrorF', 'F', F, NE * NE, NE_SHAPE);
+  checkSize('fillErrorF', 'Cnb', Cnb, 9, '3×3');
+  checkSize('fillErrorF', 'fNav', fNav, 3, 'ENU');
   F.fill(0);
   const n = NE;
   const w = mp.earthRateEnu;
@@ -95,6 +101,7 @@ export function makeNonzeros(): Nonzeros {
 }
 
 export function findNonzeros(A: Float64Array, nz: Nonzeros): void {
+  checkSize('findNonzeros', 'A', A, NE * NE, NE_SHAPE);
   const { cnt, idx } = nz;
   for (let i = 0; i < NE; i++) {
     const r = i * NE;
@@ -116,7 +123,7 @@ function mulSparseLeft(A: Float64Array, nzA: Nonzeros, B: Float64Array, C: Float
       const k = idx[r + m]!;
       const f = A[r + k]!;
       const rk = k * n;
-      for (let j = 0; j < n; j++) C[r + j] += f * B[rk + j]!;
+      for (let j = 0; j < n; j++) C[r + j] = C[r + j]! + f * B[rk + j]!;
     }
   }
 }
@@ -149,6 +156,9 @@ export function fillQcDiag(qc: Float64Array, mp: ErrorModelParams): void {
 
 /** Φ and Qd (18×18 each, fully overwritten) for a step Δt with the continuous F. */
 export function discretize(F: Float64Array, dtSec: number, mp: ErrorModelParams, Phi: Float64Array, Qd: Float64Array, s: DiscScratch): void {
+  checkSize('discretize', 'F', F, NE * NE, NE_SHAPE);
+  checkSize('discretize', 'Phi', Phi, NE * NE, NE_SHAPE);
+  checkSize('discretize', 'Qd', Qd, NE * NE, NE_SHAPE);
   const n = NE;
   const t = dtSec, t2 = t * t, t3 = t2 * t;
   const F2 = s.F2;
@@ -161,7 +171,7 @@ export function discretize(F: Float64Array, dtSec: number, mp: ErrorModelParams,
   mulSparseLeft(F2, s.nzF2, F, F3);
   // Φ = I + FΔt + ½F²Δt² + ⅙F³Δt³
   for (let i = 0; i < n * n; i++) Phi[i] = F[i]! * t + 0.5 * F2[i]! * t2 + (F3[i]! * t3) / 6;
-  for (let i = 0; i < n; i++) Phi[i * n + i] += 1;
+  for (let i = 0; i < n; i++) Phi[i * n + i] = Phi[i * n + i]! + 1;
   const qc = s.qc;
   fillQcDiag(qc, mp);
   const FQ = s.FQ;
@@ -208,6 +218,10 @@ const defaultNz = makeNonzeros();
  * `nz` is scratch for Φ's nonzeros (a module-level one when omitted).
  */
 export function propagateCovariance(Phi: Float64Array, Qd: Float64Array, P: Float64Array, tmp: Float64Array, nz: Nonzeros = defaultNz): void {
+  checkSize('propagateCovariance', 'Phi', Phi, NE * NE, NE_SHAPE);
+  checkSize('propagateCovariance', 'Qd', Qd, NE * NE, NE_SHAPE);
+  checkSize('propagateCovariance', 'P', P, NE * NE, NE_SHAPE);
+  checkSize('propagateCovariance', 'tmp', tmp, NE * NE, NE_SHAPE);
   const n = NE;
   findNonzeros(Phi, nz);
   // tmp = Φ P
@@ -232,6 +246,9 @@ export function propagateCovariance(Phi: Float64Array, Qd: Float64Array, P: Floa
 
 /** A ← Φ A (18×18), for the transition accumulated between epochs; `nz` as in propagateCovariance (Φ's nonzeros found again when omitted). */
 export function leftMultiply(Phi: Float64Array, A: Float64Array, tmp: Float64Array, nz?: Nonzeros): void {
+  checkSize('leftMultiply', 'Phi', Phi, NE * NE, NE_SHAPE);
+  checkSize('leftMultiply', 'A', A, NE * NE, NE_SHAPE);
+  checkSize('leftMultiply', 'tmp', tmp, NE * NE, NE_SHAPE);
   if (!nz) {
     nz = defaultNz;
     findNonzeros(Phi, nz);
@@ -245,6 +262,8 @@ export function leftMultiply(Phi: Float64Array, A: Float64Array, tmp: Float64Arr
  * leaves +0; every other element is Φᵢⱼ·1 plus zeros).
  */
 export function setFromIdentityProduct(Phi: Float64Array, A: Float64Array): void {
+  checkSize('setFromIdentityProduct', 'Phi', Phi, NE * NE, NE_SHAPE);
+  checkSize('setFromIdentityProduct', 'A', A, NE * NE, NE_SHAPE);
   for (let i = 0; i < NE * NE; i++) {
     const v = Phi[i]!;
     A[i] = v === 0 ? 0 : v;
@@ -253,11 +272,15 @@ export function setFromIdentityProduct(Phi: Float64Array, A: Float64Array): void
 
 /** Pack the upper triangle of a symmetric 18×18 into out[off..off+171). */
 export function packSym(P: Float64Array, out: Float64Array, off: number): void {
+  checkSize('packSym', 'P', P, NE * NE, NE_SHAPE);
+  if (out.length < off + NE_PACKED) throw sizeError('packSym', 'out', out.length, off + NE_PACKED, `packed ${NE_SHAPE} at offset ${off}`, true);
   let m = off;
   for (let i = 0; i < NE; i++) for (let j = i; j < NE; j++) out[m++] = P[i * NE + j]!;
 }
 
 export function unpackSym(src: Float64Array, off: number, P: Float64Array): void {
+  checkSize('unpackSym', 'P', P, NE * NE, NE_SHAPE);
+  if (src.length < off + NE_PACKED) throw sizeError('unpackSym', 'src', src.length, off + NE_PACKED, `packed ${NE_SHAPE} at offset ${off}`, true);
   let m = off;
   for (let i = 0; i < NE; i++)
     for (let j = i; j < NE; j++) {
@@ -272,12 +295,16 @@ export function unpackSym(src: Float64Array, off: number, P: Float64Array): void
  * Gauss–Markov rows are diagonal, and so are all products of such matrices.
  */
 export function packPhi(Phi: Float64Array, out: Float64Array, off: number): void {
+  checkSize('packPhi', 'Phi', Phi, NE * NE, NE_SHAPE);
+  if (out.length < off + PHI_COMPACT) throw sizeError('packPhi', 'out', out.length, off + PHI_COMPACT, `compact Φ at offset ${off}`, true);
   let m = off;
   for (let i = 0; i < 9; i++) for (let j = 0; j < 15; j++) out[m++] = Phi[i * NE + j]!;
   for (let i = 9; i < NE; i++) out[m++] = Phi[i * NE + i]!;
 }
 
 export function unpackPhi(src: Float64Array, off: number, Phi: Float64Array): void {
+  checkSize('unpackPhi', 'Phi', Phi, NE * NE, NE_SHAPE);
+  if (src.length < off + PHI_COMPACT) throw sizeError('unpackPhi', 'src', src.length, off + PHI_COMPACT, `compact Φ at offset ${off}`, true);
   Phi.fill(0);
   let m = off;
   for (let i = 0; i < 9; i++) for (let j = 0; j < 15; j++) Phi[i * NE + j] = src[m++]!;

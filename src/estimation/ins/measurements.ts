@@ -8,6 +8,7 @@
  * Sources: Groves (2013) §14.3 (lever arm), §15.3 (ZUPT, ZARU, non-holonomic constraints);
  * Shin (2005) §5 (NHC) — from memory.
  */
+import { checkSize, sizeError } from './check-size.js';
 import { E_A, E_BG, E_GM, E_P, E_V, NE } from './error-model.js';
 
 /**
@@ -15,6 +16,8 @@ import { E_A, E_BG, E_GM, E_P, E_V, NE } from './error-model.js';
  * the nav frame). Writes h (length 18, fully overwritten).
  */
 export function gnssRow(a: number, leverNav: Float64Array, h: Float64Array): void {
+  checkSize('gnssRow', 'leverNav', leverNav, 3, 'ENU');
+  checkSize('gnssRow', 'h', h, NE, 'error state');
   h.fill(0);
   h[E_P + a] = 1;
   h[E_GM + a] = 1;
@@ -37,6 +40,9 @@ export function gnssRow(a: number, leverNav: Float64Array, h: Float64Array): voi
  * (Ĉ_bn [v̂×])[b] φ, with C_bn = C_nbᵀ. Returns the predicted component v̂^b_b.
  */
 export function bodyVelocityRow(b: number, Cnb: Float64Array, vNav: Float64Array, vOff: number, h: Float64Array): number {
+  checkSize('bodyVelocityRow', 'Cnb', Cnb, 9, '3×3');
+  if (vNav.length < vOff + 3) throw sizeError('bodyVelocityRow', 'vNav', vNav.length, vOff + 3, `velocity at ${vOff}`, true);
+  checkSize('bodyVelocityRow', 'h', h, NE, 'error state');
   h.fill(0);
   const ve = vNav[vOff]!, vn = vNav[vOff + 1]!, vu = vNav[vOff + 2]!;
   // row b of C_bn is column b of C_nb
@@ -53,12 +59,14 @@ export function bodyVelocityRow(b: number, Cnb: Float64Array, vNav: Float64Array
 
 /** Row of a velocity component (zero-velocity update). */
 export function velocityRow(a: number, h: Float64Array): void {
+  checkSize('velocityRow', 'h', h, NE, 'error state');
   h.fill(0);
   h[E_V + a] = 1;
 }
 
 /** Row of a gyro-bias component (zero-angular-rate update). */
 export function gyroBiasRow(a: number, h: Float64Array): void {
+  checkSize('gyroBiasRow', 'h', h, NE, 'error state');
   h.fill(0);
   h[E_BG + a] = 1;
 }

@@ -11,7 +11,8 @@
  * the INS error state) — from memory.
  */
 import { cholesky, choleskySolve } from '../cholesky.js';
-import { NE } from './error-model.js';
+import { checkSize } from './check-size.js';
+import { NE, NE_SHAPE } from './error-model.js';
 
 export interface InsRtsScratch {
   L: Float64Array;
@@ -30,6 +31,13 @@ export function makeInsRtsScratch(): InsRtsScratch {
  * Outputs: dx = δxˢₖ and PsOut = Pˢₖ (may alias Pf). Returns false when P⁻ₖ₊₁ is not positive definite.
  */
 export function insRtsStep(Pf: Float64Array, Pm: Float64Array, Phi: Float64Array, Ps: Float64Array, dNext: Float64Array, dx: Float64Array, PsOut: Float64Array, s: InsRtsScratch): boolean {
+  checkSize('insRtsStep', 'Pf', Pf, NE * NE, NE_SHAPE);
+  checkSize('insRtsStep', 'Pm', Pm, NE * NE, NE_SHAPE);
+  checkSize('insRtsStep', 'Phi', Phi, NE * NE, NE_SHAPE);
+  checkSize('insRtsStep', 'Ps', Ps, NE * NE, NE_SHAPE);
+  checkSize('insRtsStep', 'PsOut', PsOut, NE * NE, NE_SHAPE);
+  checkSize('insRtsStep', 'dNext', dNext, NE, 'error state');
+  checkSize('insRtsStep', 'dx', dx, NE, 'error state');
   const n = NE;
   // Cholesky solve instead of an explicit inverse: P⁻ Gᵀ = Φ Pₖ⁺
   if (!cholesky(n, Pm, 0, s.L)) return false;
@@ -39,7 +47,7 @@ export function insRtsStep(Pf: Float64Array, Pm: Float64Array, Phi: Float64Array
     for (let m = 0; m < n; m++) {
       const f = Phi[i * n + m]!;
       if (f === 0) continue;
-      for (let j = 0; j < n; j++) Gt[i * n + j] += f * Pf[m * n + j]!;
+      for (let j = 0; j < n; j++) Gt[i * n + j] = Gt[i * n + j]! + f * Pf[m * n + j]!;
     }
   choleskySolve(n, s.L, Gt, n);
   // δxˢₖ = G dNext, G[i][j] = Gt[j][i]

@@ -86,6 +86,10 @@ export function mechanize(
  * are boxed on the heap).
  */
 export function mechanizeRates(x: Float64Array, rates: Float64Array, mp: MechParams, s: MechScratch): void {
+  // size checks once per call (a wrongly sized state would read undefined as NaN)
+  if (x.length !== NAV_LEN) throw new Error(`mechanizeRates: x has ${x.length} elements, expected ${NAV_LEN} (navigation state)`);
+  if (rates.length < 7) throw new Error(`mechanizeRates: rates has ${rates.length} elements, expected at least 7 (fx, fy, fz, wx, wy, wz, Δt)`);
+  if (s.C.length !== 9 || s.fNav.length !== 3) throw new Error('mechanizeRates: scratch of another layout (makeMechScratch)');
   const fxMps2 = rates[0]!, fyMps2 = rates[1]!, fzMps2 = rates[2]!;
   const wxRadps = rates[3]!, wyRadps = rates[4]!, wzRadps = rates[5]!;
   const dtSec = rates[6]!;
@@ -122,9 +126,9 @@ export function mechanizeRates(x: Float64Array, rates: Float64Array, mp: MechPar
   const vn1 = vn + dn + cn * dtSec;
   const vu1 = vu + du + (cu - g) * dtSec;
   // trapezoidal position: p += ½ (v_k + v_{k+1}) Δt
-  x[NAV_P] += 0.5 * (ve + ve1) * dtSec;
-  x[NAV_P + 1] += 0.5 * (vn + vn1) * dtSec;
-  x[NAV_P + 2] += 0.5 * (vu + vu1) * dtSec;
+  x[NAV_P] = x[NAV_P]! + 0.5 * (ve + ve1) * dtSec;
+  x[NAV_P + 1] = x[NAV_P + 1]! + 0.5 * (vn + vn1) * dtSec;
+  x[NAV_P + 2] = x[NAV_P + 2]! + 0.5 * (vu + vu1) * dtSec;
   x[NAV_V] = ve1;
   x[NAV_V + 1] = vn1;
   x[NAV_V + 2] = vu1;
