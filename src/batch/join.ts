@@ -7,7 +7,7 @@ import { readdir, readFile } from 'node:fs/promises';
 import { join, resolve } from 'node:path';
 import { UsageError } from '../errors.js';
 import { buildSummary, toJson, type BatchSummary } from '../output/summary.js';
-import { cleanTemporaries, writeFileAtomic } from './atomic-write.js';
+import { cleanTemporaries, writeFileAtomic } from '../io/atomic-write.js';
 import { bySessionName } from './discover.js';
 import { readEntry } from './manifest.js';
 import { buildReport } from './run-batch.js';

@@ -17,7 +17,7 @@ import { deserialize, serialize } from 'node:v8';
 import type { HindcastConfig } from '../config/schema.js';
 import type { SessionSummary } from '../output/summary.js';
 import { sessionPageName } from '../output/report/page-path.js';
-import { writeFileAtomic } from './atomic-write.js';
+import { writeFileAtomic } from '../io/atomic-write.js';
 
 /** The hidden folder of the output folder that holds the manifest and the overview data. */
 export const STATE_DIR = '.hindcast';

@@ -21,7 +21,7 @@ import { buildSummary, markStale, toJson, type BatchSummary, type SessionSummary
 import type { OverviewData } from '../output/report/overview-data.js';
 import { pageOwner, REPORT_FILE } from '../output/report/page-path.js';
 import { VERSION } from '../version.js';
-import { cleanTemporaries, writeFileAtomic } from './atomic-write.js';
+import { cleanTemporaries, writeFileAtomic } from '../io/atomic-write.js';
 import { discover } from './discover.js';
 import { checkFolders } from './folders.js';
 import { configHash, readOverviewData, removeEntry, removeOverviewData, writeEntry, writeOverviewData, MANIFEST_SCHEMA, STATE_DIR } from './manifest.js';

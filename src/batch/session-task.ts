@@ -30,7 +30,7 @@ import { overviewData, type OverviewData } from '../output/report/overview-data.
 import { sessionPageName } from '../output/report/page-path.js';
 import { okEntry, type SessionSummary } from '../output/summary.js';
 import { VERSION } from '../version.js';
-import { commitTemporaries, writeChunksToTemporary } from './atomic-write.js';
+import { commitTemporaries, writeChunksToTemporary } from '../io/atomic-write.js';
 import type { OutputFile } from './manifest.js';
 
 export interface SessionTask {

@@ -3,7 +3,7 @@
  * urban drive or a delivery round, drawn from a seeded random stream, as pieces in time.
  */
 import type { Rng } from './rng.js';
-import type { DeliveryDrive } from './imu.js';
+import type { DeliveryDrive } from './imu-spec.js';
 
 export interface SpeedPiece {
   t0: number;

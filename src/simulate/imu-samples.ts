@@ -7,7 +7,7 @@
 import { gravityAtHeightMps2 } from '../models/ins/gravity.js';
 import { rotationZyx } from '../models/ins/attitude.js';
 import type { DriveTruth } from './imu-kinematics.js';
-import type { EngineVibration, ImuErrorSpec, ImuScenarioSpec } from './imu.js';
+import type { EngineVibration, ImuErrorSpec, ImuScenarioSpec } from './imu-spec.js';
 import { Rng } from './rng.js';
 
 export type ImuSampleSink = (tSec: number, fx: number, fy: number, fz: number, wx: number, wy: number, wz: number) => void;

@@ -6,7 +6,7 @@ import { mkdtemp, mkdir, readdir, readFile, rm, writeFile } from 'node:fs/promis
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { defaultSpec, scenarioCsv, simulate } from '../../src/simulate/scenario.js';
-import { TEMP_PREFIX } from '../../src/batch/atomic-write.js';
+import { TEMP_PREFIX } from '../../src/io/atomic-write.js';
 
 export async function tempDir(tag: string): Promise<string> {
   return mkdtemp(join(tmpdir(), `hindcast-${tag}-`));

@@ -10,7 +10,7 @@ import { spawn, spawnSync } from 'node:child_process';
 import { existsSync, readdirSync } from 'node:fs';
 import { writeFile } from 'node:fs/promises';
 import { join, resolve } from 'node:path';
-import { TEMP_PREFIX } from '../../src/batch/atomic-write.js';
+import { TEMP_PREFIX } from '../../src/io/atomic-write.js';
 import { comparableOutputs, differingFiles, readTree, removeDir, temporaries, tempDir, writeSessions } from './batch-helpers.js';
 
 const CLI = resolve('dist/src/cli/main.js');

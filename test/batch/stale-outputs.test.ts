@@ -9,7 +9,7 @@ import { readFile, rm, writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import { loadConfig } from '../../src/config/load.js';
 import { runBatch } from '../../src/batch/run-batch.js';
-import { commitTemporaries, writeChunksToTemporary } from '../../src/batch/atomic-write.js';
+import { commitTemporaries, writeChunksToTemporary } from '../../src/io/atomic-write.js';
 import { removeDir, tempDir, temporaries, writeSessions } from './batch-helpers.js';
 
 let root: string;

@@ -9,7 +9,7 @@
  * page's CSS classes (CLOSEUP_STYLE), coordinates to 0.1 px; axis ticks from Vega's linear scale.
  */
 import { scale as vegaScale } from 'vega';
-import { FLAG_MARKS, flagMark, flagSymbolPath } from './chart-common.js';
+import { FLAG_MARKS, flagLabel, flagMark, flagSymbolPath } from './chart-common.js';
 import { ellipseArcPath, equalAxes } from './chart-track.js';
 import { isKeptFix, type Closeup } from './closeup-data.js';
 import { esc } from './html-text.js';
@@ -19,11 +19,6 @@ export const CLOSEUP_WIDTH = 300;
 export const CLOSEUP_PAD_M = 8;
 /** Most ellipses drawn in one close-up (every epoch in the frame up to this, else evenly spaced). */
 const ELLIPSES_MAX = 25;
-
-/** The label of a flagged mark (its aria-label in the SVG): "flag <id>", read by the page's script and tests. */
-export function flagLabel(id: string): string {
-  return `flag ${id}`;
-}
 
 /** The close-ups' style, shared by all of them through the page's style sheet (page-shell.ts). */
 export const CLOSEUP_STYLE = `

@@ -4,7 +4,7 @@
  * grey print and for colour-blind readers).
  */
 import { STATUS } from '../../session/result.js';
-import type { PlotSeries } from './payload.js';
+import type { PlotSeries } from './types.js';
 
 export const CHART_WIDTH = 620;
 export const TIME_CHART_HEIGHT = 170;
@@ -95,4 +95,9 @@ export function flagSymbolPath(x: number, y: number, mark: (typeof FLAG_MARKS)[n
 /** Round for chart data (keeps the inline SVG data small). */
 export function r4(v: number): number | null {
   return Number.isFinite(v) ? Math.round(v * 1e4) / 1e4 : null;
+}
+
+/** The label of a flagged mark (its aria-label in the SVG): "flag <id>", read by the page's script and tests. */
+export function flagLabel(id: string): string {
+  return `flag ${id}`;
 }

@@ -9,7 +9,7 @@ import { bridgedBands, CHART_WIDTH, flagEncoding, flaggedRows, flagSymbolsSvg, r
 import { withSvgOverlay, type SvgOverlay } from './render-svg.js';
 
 const FLAG_LAYER = 'flags';
-import type { PlotSeries } from './payload.js';
+import type { PlotSeries } from './types.js';
 
 const DASHES: number[][] = [[1, 0], [6, 3], [2, 2], [8, 3, 2, 3]];
 const COLORS = ['#1f4e79', '#d35400', '#117a65', '#6c3483'];

@@ -7,9 +7,8 @@
  */
 import type { TopLevelSpec } from 'vega-lite';
 import { STATUS } from '../../session/result.js';
-import { CHART_WIDTH, FLAG_MARKS, flagEncoding, flagMark, flagSymbolPath, flagSymbolsSvg, r4 } from './chart-common.js';
-import type { EllipseMark, PlotSeries } from './payload.js';
-import { flagLabel } from './chart-closeup.js';
+import { CHART_WIDTH, FLAG_MARKS, flagEncoding, flagLabel, flagMark, flagSymbolPath, flagSymbolsSvg, r4 } from './chart-common.js';
+import type { EllipseMark, PlotSeries } from './types.js';
 import { CLOSEUP_JOIN_EPOCHS, isKeptFix } from './closeup-data.js';
 import { px1, withSvgOverlay, type SvgOverlay } from './render-svg.js';
 

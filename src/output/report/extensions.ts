@@ -11,32 +11,11 @@
  * reportPayload) and in the thread that writes the report (which runs `charts`), so it is never
  * changed at run time.
  */
-import type { TopLevelSpec } from 'vega-lite';
 import type { SessionResult } from '../../session/result.js';
-import type { PlotSeries } from './payload.js';
 import { IMU_EXTENSION } from './imu-extension.js';
+import type { ExtensionData, ReportExtension } from './types.js';
 
-/** Structured-clone-safe data of one extension for one session. */
-export type ExtensionData = Record<string, Float64Array | Float32Array | Int32Array | Uint8Array | number | string | boolean | null>;
-
-export interface ExtensionChart {
-  /** Heading shown above the plot. */
-  title: string;
-  /** One line under the plot saying how to read it. */
-  caption: string;
-  spec: TopLevelSpec;
-}
-
-export interface ReportExtension {
-  /** Key of its data in ReportPayload.extensions. */
-  id: string;
-  /** Heading of its group of plots. */
-  title: string;
-  /** Runs in the worker: the data for the plotted epochs, or undefined when the fields are absent. */
-  collect(r: SessionResult, epochs: Int32Array): ExtensionData | undefined;
-  /** Runs when the report is written: the plots of the group. */
-  charts(data: ExtensionData, plot: PlotSeries, bridgedSpans: Array<[number, number]>): ExtensionChart[];
-}
+export type { ExtensionChart, ExtensionData, ReportExtension } from './types.js';
 
 /** The registered extensions, in the order their groups appear. */
 export const REPORT_EXTENSIONS: readonly ReportExtension[] = [IMU_EXTENSION];

@@ -5,8 +5,7 @@
  */
 import type { SessionResult } from '../../session/result.js';
 import { seriesChart } from './chart-time.js';
-import type { ExtensionChart, ExtensionData, ReportExtension } from './extensions.js';
-import type { PlotSeries } from './payload.js';
+import type { ExtensionChart, ExtensionData, PlotSeries, ReportExtension } from './types.js';
 
 const RADPS_TO_DEGPH = (180 / Math.PI) * 3600;
 

@@ -8,7 +8,10 @@ import { STATUS, STATUS_NAMES, type OutlierReason, type SessionMetrics, type Ses
 import type { DecidingTest } from '../../session/decision-log.js';
 import { closeups, type Closeup } from './closeup-data.js';
 import { everyNth, plotEpochs } from './decimate.js';
-import { collectExtensions, type ExtensionData } from './extensions.js';
+import { collectExtensions } from './extensions.js';
+import type { EllipseMark, ExtensionData, PlotSeries } from './types.js';
+
+export type { EllipseMark, PlotSeries } from './types.js';
 
 /** Version of the payload's shape (3: flag ids, deciding tests, close-ups, notes, time zone); an older kept payload is not drawn (page.ts). */
 export const PAYLOAD_VERSION = 3;
@@ -24,38 +27,6 @@ export const PLOT_POINTS_MAX = 1240;
 export const LISTED_ROWS_MAX = 400;
 /** Warnings carried per session (the count is always exact). */
 export const WARNINGS_MAX = 50;
-
-/** Per plotted epoch (decimated), times in UTC Unix seconds, lengths in metres of the local frame. */
-export interface PlotSeries {
-  /** Epoch index in the full session of each plotted point. */
-  epoch: Int32Array;
-  tSec: Float64Array;
-  segment: Int32Array;
-  status: Uint8Array;
-  east: Float64Array;
-  north: Float64Array;
-  up: Float64Array;
-  sdHorizontalM: Float32Array;
-  sdUpM: Float32Array;
-  nis: Float32Array;
-  nisThreshold: Float32Array;
-  /** Raw fix minus smoothed (m); NaN where there is no valid fix. */
-  resEast: Float32Array;
-  resNorth: Float32Array;
-  resUp: Float32Array;
-  rawEast: Float64Array;
-  rawNorth: Float64Array;
-  speedMps: Float32Array;
-}
-
-export interface EllipseMark {
-  tSec: number;
-  east: number;
-  north: number;
-  majorM: number;
-  minorM: number;
-  azimuthDeg: number;
-}
 
 export interface FlaggedRow {
   /** The fix's id (OutlierRecord.id), shared with outliers.csv and the GeoJSON flags layer. */

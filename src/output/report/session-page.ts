@@ -5,7 +5,7 @@
  * overview. Drawn by the worker that processed the session, right after its outputs.
  */
 import { join } from 'node:path';
-import { writeFileAtomic } from '../../batch/atomic-write.js';
+import { writeFileAtomic } from '../../io/atomic-write.js';
 import type { SessionSummary } from '../summary.js';
 import { REPORT_EXTENSIONS, type ReportExtension } from './extensions.js';
 import { FLAG_LINKS_SCRIPT } from './flag-links-script.js';

@@ -4,7 +4,7 @@
  * (a session's page: session-page.ts).
  */
 import { join } from 'node:path';
-import { writeFileAtomic } from '../../batch/atomic-write.js';
+import { writeFileAtomic } from '../../io/atomic-write.js';
 import type { BatchSummary } from '../summary.js';
 import { reportHtml } from './page.js';
 import type { OverviewData } from './overview-data.js';

@@ -5,9 +5,9 @@
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { mkdir, readdir, writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
-import { cleanTemporaries, finalNameOfTemp, TEMP_PREFIX, writeChunksAtomic, writeChunksToTemporary, writeFileAtomic } from '../../src/batch/atomic-write.js';
+import { cleanTemporaries, finalNameOfTemp, TEMP_PREFIX, writeChunksAtomic, writeChunksToTemporary, writeFileAtomic } from '../../src/io/atomic-write.js';
 import { ownerOfOutput } from '../../src/batch/run-batch.js';
-import { readTree, removeDir, tempDir } from './batch-helpers.js';
+import { readTree, removeDir, tempDir } from '../batch/batch-helpers.js';
 
 let root: string;
 beforeEach(async () => {
