@@ -43,7 +43,8 @@ import { allocateHistory, forwardFilter, totalLogLik, type SegmentData } from '.
 import { nelderMead } from '../estimation/nelder-mead.js';
 import { STATUS, type SessionResult } from './result.js';
 import { calibrationWindows, DEFAULT_CALIBRATION, PARAM_BOUNDS } from './calibrate.js';
-import { filterOptions, segmentDataRange, segmentGrid, type AxisParams, type PreparedSession } from './process-session.js';
+import { filterOptions, type AxisParams } from './axis-params.js';
+import { segmentDataRange, segmentGrid, type PreparedSession } from './prepare.js';
 
 /** Residual autocorrelation above which the track is taken to leave the fixes in long runs. */
 export const RHO_STIFF = 0.5;

@@ -19,7 +19,8 @@ import { nelderMead, numericalHessian } from '../estimation/nelder-mead.js';
 import { boxBfgs } from '../estimation/bfgs-box.js';
 import { allocateHistory, forwardFilter, sameHorizontalInputs, totalLogLik, type FilterHistory, type SegmentData } from '../estimation/track-filter.js';
 import { forwardLogLik, forwardLogLikApplies, makeLogLikWork } from '../estimation/track-loglik.js';
-import { buildAxisModels, filterOptions, segmentData, segmentDataRange, segmentGrid, type AxisParams, type PreparedSession } from './process-session.js';
+import { buildAxisModels, filterOptions, type AxisParams } from './axis-params.js';
+import { segmentData, segmentDataRange, segmentGrid, sliceSegment, type PreparedSession } from './prepare.js';
 import { selectKth } from '../estimation/select.js';
 import { qualityLogTerms } from './fix-noise.js';
 
@@ -274,10 +275,6 @@ function thin(d: SegmentData, fix: Int32Array, stride: number): { data: SegmentD
     data: { N, tSec: pick(d.tSec, f64), z: d.z.map((a) => pick(a, f64)), r: d.r.map((a) => pick(a, f64)), use: pick(d.use, (n) => new Uint8Array(n)) },
     fix: pick(fix, (n) => new Int32Array(n)),
   };
-}
-
-export function sliceSegment(d: SegmentData, from: number, to: number): SegmentData {
-  return { N: to - from, tSec: d.tSec.subarray(from, to), z: d.z.map((a) => a.subarray(from, to)), r: d.r.map((a) => a.subarray(from, to)), use: d.use.subarray(from, to) };
 }
 
 /** The item from its first epoch that carries a fix (the forward filter starts on one), or null when fewer than 3 epochs remain. */

@@ -8,7 +8,11 @@
  * Sources: as in calibrate.ts (Schweppe 1965; Harvey 1989 §3.4) and review.ts.
  */
 import type { HindcastConfig } from '../config/schema.js';
-import { axisParamsFromConfig, calibrationRounds, classify, reviewOptions, runPrepared, type AxisParams, type PreparedSession } from './process-session.js';
+import { axisParamsFromConfig, reviewOptions, type AxisParams } from './axis-params.js';
+import { calibrationRounds } from './calibration-rounds.js';
+import { classify } from './classify.js';
+import { runPrepared } from './final-run.js';
+import { type PreparedSession } from './prepare.js';
 import type { CalibrationInfo } from './calibrate.js';
 import type { ReviewOptions } from './review.js';
 import type { SessionResult } from './result.js';

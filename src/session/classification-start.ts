@@ -20,7 +20,8 @@
  * Measured on the scenario family (docs/noise-model.md "Classification start").
  */
 import type { HindcastConfig } from '../config/schema.js';
-import type { AxisParams, PreparedSession } from './process-session.js';
+import type { AxisParams } from './axis-params.js';
+import type { PreparedSession } from './prepare.js';
 import { robustProcessNoise } from './robust-motion.js';
 
 /** Re-acquisition duration (s) of the first classification: longer than a multipath burst. */

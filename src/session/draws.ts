@@ -7,6 +7,9 @@
 import { NumericalError } from '../errors.js';
 import type { SessionResult } from './result.js';
 import { posteriorOf, sampleBackward, type TrackPosterior } from './posterior.js';
+import type { Quantity } from './survey-types.js';
+
+export type { Quantity } from './survey-types.js';
 
 /** One drawn track: every epoch of the result, in the local frame and as geodetic coordinates. */
 export interface DrawnTrack {
@@ -25,18 +28,6 @@ export interface TrackDraws {
   /** Segment of each epoch (the result's). */
   segment: Int32Array;
   draws: DrawnTrack[];
-}
-
-/** A posterior summary of a scalar quantity from draws. */
-export interface Quantity {
-  /** Posterior mean (measure); for the survey products the value on the smoothed track (see recentre). */
-  estimate: number;
-  /** The draws' own mean, where the estimate is not it (survey products). */
-  drawMean?: number;
-  sd: number;
-  lo95: number;
-  hi95: number;
-  draws: number;
 }
 
 function requirePosterior(r: SessionResult): TrackPosterior {

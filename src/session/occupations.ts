@@ -11,9 +11,12 @@
  * independent fixes is the variance of one fix's error (white plus correlated, the model's)
  * divided by the variance of the average.
  */
-import { errorEllipse } from '../output/ellipse.js';
+import { errorEllipse } from '../estimation/error-ellipse.js';
 import { STATUS, type SessionResult } from './result.js';
 import { meanPositionVariance, type TrackPosterior } from './posterior.js';
+import type { Occupation } from './survey-types.js';
+
+export type { Occupation } from './survey-types.js';
 
 /**
  * Smoothed horizontal speed (m/s) below which an epoch counts as still. Walking is 1–1.6 m/s. On the
@@ -46,33 +49,6 @@ export const STILL_WINDOW_SEC = 8;
 export const CENTRED_WINDOW_SEC = 8;
 /** Fewest kept fixes in an occupation. */
 export const MIN_FIXES = 3;
-
-export interface Occupation {
-  /** "P1", "P2", … in time order. */
-  id: string;
-  segment: number;
-  /** First and last epoch (indices into the result). */
-  first: number;
-  last: number;
-  startSec: number;
-  endSec: number;
-  durationSec: number;
-  /** Kept fixes inside the occupation. */
-  fixCount: number;
-  latDeg: number;
-  lonDeg: number;
-  /** NaN without height. */
-  heightM: number;
-  /** Position in the local frame (m). */
-  posEnu: [number, number, number];
-  /** 1-sigma of the position (m), from the joint posterior. */
-  sdEnu: [number, number, number];
-  ell95MajorM: number;
-  ell95MinorM: number;
-  ell95AzimuthDeg: number;
-  /** Variance of one fix's horizontal error (white + correlated) over the horizontal variance of the average. */
-  effectiveFixes: number;
-}
 
 /**
  * Seconds dropped from a still run's end where it meets a segment's start or end: there the smoother

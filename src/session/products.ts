@@ -6,7 +6,7 @@
  * `invalid`; `user`) with their test statistic, and the metrics. Pure; no file system.
  */
 import { geodesicLengthM } from '../geodesy/geodesic.js';
-import type { PreparedSession } from './process-session.js';
+import type { PreparedSession } from './prepare.js';
 import { STATUS, type OutlierRecord, type SessionResult } from './result.js';
 import { selectKth } from '../estimation/select.js';
 import { decisionMargin, type Decision, type DecidingTest, type DecisionLog } from './decision-log.js';

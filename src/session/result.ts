@@ -4,7 +4,7 @@
  */
 import type { InputWarning } from '../errors.js';
 import type { DecidingTest } from './decision-log.js';
-import type { SurveyProducts } from './survey.js';
+import type { SurveyProducts } from './survey-types.js';
 
 export const STATUS = { kept: 0, outlier: 1, bridged: 2, userKept: 3, userRejected: 4 } as const;
 export const STATUS_NAMES = ['kept', 'outlier', 'bridged', 'user-kept', 'user-rejected'] as const;

@@ -14,7 +14,7 @@
  * the classification start (session/classification-start.ts) to tell a process noise inflated by bursts from the
  * motion of the log.
  */
-import type { PreparedSession } from './process-session.js';
+import type { PreparedSession } from './prepare.js';
 import { selectKth } from '../estimation/select.js';
 
 /** Lags (s) of the second differences. */

@@ -10,8 +10,11 @@
  */
 import { STATUS, type SessionResult } from './result.js';
 import { sampleBackward, type TrackPosterior } from './posterior.js';
-import { detectOccupations, type Occupation } from './occupations.js';
-import { recentre, summarize, type Quantity } from './draws.js';
+import { detectOccupations } from './occupations.js';
+import { recentre, summarize } from './draws.js';
+import type { DistanceEntry, LengthEntry, Occupation, Quantity, SurveyProducts, SurveyVertex } from './survey-types.js';
+
+export type { DistanceEntry, LengthEntry, SurveyProducts, SurveyVertex } from './survey-types.js';
 import { expectedStepLength, stepErrorVariance } from './raw-length.js';
 import { cornerOf, legSums, legWindow, lineOfSums, intersectLines, type LegSums } from './leg-corners.js';
 
@@ -26,59 +29,6 @@ export interface SurveyOptions {
   stillWindowSec?: number;
   /** Vertex spacing factor; default VERTEX_SD_FACTOR. */
   vertexSdFactor?: number;
-}
-
-export interface LengthEntry {
-  /** Segment index, or −1 for the whole track. */
-  segment: number;
-  horizontalM: Quantity | null;
-  /** Null without height. */
-  threeDM: Quantity | null;
-  /** Horizontal length of the polyline of the kept raw fixes (m). */
-  rawHorizontalM: number;
-  /** What the model's fix noise is expected to add to that polyline (m), along the smoothed track. */
-  rawExpectedExcessM: number;
-}
-
-/** A vertex of the measured polyline: one epoch, or an occupied point (its epochs' average). */
-export interface SurveyVertex {
-  segment: number;
-  first: number;
-  last: number;
-  /** Index into occupations, or −1 for a single epoch. */
-  occupation: number;
-  /**
-   * A turn rebuilt from its legs (session/leg-corners.ts): the epochs of the two fitted windows
-   * before and after it; the vertex is their lines' intersection, not the epoch's position.
-   */
-  corner?: { legA: [number, number]; legB: [number, number] };
-}
-
-export interface DistanceEntry {
-  from: string;
-  to: string;
-  horizontalM: Quantity;
-  threeDM: Quantity | null;
-}
-
-export interface SurveyProducts {
-  /** Draws used (fewer than requested on a long log: DRAW_EPOCH_BUDGET). */
-  draws: number;
-  requestedDraws: number;
-  seed: number;
-  occupationMinSec: number;
-  occupations: Occupation[];
-  lengths: LengthEntry[];
-  /** Whether the track closes on itself (end within closureToleranceM of its start). */
-  closed: boolean;
-  closureGapM: number;
-  closureToleranceM: number;
-  /** Enclosed area (m²) of a closed track (shoelace over the drawn polygon); null otherwise. */
-  areaM2: Quantity | null;
-  distances: DistanceEntry[];
-  /** Least spacing (m, along the smoothed track) of the measured polyline's vertices. */
-  vertexSpacingM: number;
-  vertices: SurveyVertex[];
 }
 
 /**

@@ -20,9 +20,9 @@
  * that the track follows together with the fixes does not show in them, so the widened regions can
  * still be too small (test/session/verdict.test.ts prints the coverage). Pure; no file system.
  */
-import { errorEllipse } from '../output/ellipse.js';
+import { errorEllipse } from '../estimation/error-ellipse.js';
 import { STATUS, type SessionResult } from './result.js';
-import type { AxisParams } from './process-session.js';
+import type { AxisParams } from './axis-params.js';
 import { noiseScaleOf } from './local-noise-scale.js';
 
 export const FLAGGED_SHARE_DEGRADED = 0.1;

@@ -4,7 +4,7 @@
  * bit-for-bit test of the current form (test/session/height-jumps.test.ts).
  */
 import type { FixSeries } from '../../src/input/fix-series.js';
-import { HEIGHT_JUMP_RATE_MPS, HEIGHT_JUMP_SLACK_M } from '../../src/session/process-session.js';
+import { HEIGHT_JUMP_RATE_MPS, HEIGHT_JUMP_SLACK_M } from '../../src/session/valid-fixes.js';
 
 /**
  * Impossible jumps in height: a fix whose height differs from the median of its valid neighbours

@@ -7,7 +7,7 @@ import type { HindcastConfig } from '../../src/config/schema.js';
 import { readFixCsv } from '../../src/input/csv-fixes.js';
 import { processSession } from '../../src/session/process-session.js';
 import { STATUS, type SessionResult } from '../../src/session/result.js';
-import { K2_95 } from '../../src/output/ellipse.js';
+import { K2_95 } from '../../src/estimation/error-ellipse.js';
 import { scenarioCsv, type Scenario } from '../../src/simulate/scenario.js';
 
 export interface Score {

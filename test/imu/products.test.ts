@@ -3,7 +3,8 @@
  * (src/session/calibrated-params.ts) reproduce processSession exactly on a simulated IMU drive's fixes.
  */
 import { expect, it } from 'vitest';
-import { prepareSession, processSession } from '../../src/session/process-session.js';
+import { prepareSession } from '../../src/session/prepare.js';
+import { processSession } from '../../src/session/process-session.js';
 import { calibratedFixesOnly } from '../../src/session/calibrated-params.js';
 import { buildOutliersAndMetrics } from '../../src/session/products.js';
 import { reviewThresholds } from '../../src/session/review-decisions.js';

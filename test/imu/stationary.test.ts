@@ -14,7 +14,9 @@
  * a stop be detected. The figures printed here are the ones in docs/imu.md.
  */
 import { beforeAll, describe, expect, it, test } from 'vitest';
-import { processSession, prepareSession, axisParamsFromConfig } from '../../src/session/process-session.js';
+import { processSession } from '../../src/session/process-session.js';
+import { prepareSession } from '../../src/session/prepare.js';
+import { axisParamsFromConfig } from '../../src/session/axis-params.js';
 import { calibratedFixesOnly } from '../../src/session/calibrated-params.js';
 import { imuGnssParams, initFromTrack, insEpochs, insOptions, processImuSession } from '../../src/session/imu-session.js';
 import { InsSmoother } from '../../src/estimation/ins/ins-filter.js';

@@ -11,7 +11,8 @@ import { describe, expect, it } from 'vitest';
 import { loadConfig } from '../../src/config/load.js';
 import { readFixCsv } from '../../src/input/csv-fixes.js';
 import { DEFAULT_CALIBRATION, FIRST_ROUND, calibrateSession, calibrationStride, calibrationWindows } from '../../src/session/calibrate.js';
-import { axisParamsFromConfig, prepareSession, segmentData } from '../../src/session/process-session.js';
+import { axisParamsFromConfig } from '../../src/session/axis-params.js';
+import { prepareSession, segmentData } from '../../src/session/prepare.js';
 import { defaultSpec, scenarioCsv, simulate } from '../../src/simulate/scenario.js';
 import { refCalibrateSession } from '../helpers/reference-calibrate.js';
 

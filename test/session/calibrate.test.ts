@@ -7,7 +7,8 @@ import { describe, expect, test } from 'vitest';
 import { loadConfig } from '../../src/config/load.js';
 import { readFixCsv } from '../../src/input/csv-fixes.js';
 import { FIRST_ROUND, calibrateSession, calibrationStride, calibrationWindows } from '../../src/session/calibrate.js';
-import { axisParamsFromConfig, buildAxisModels, prepareSession } from '../../src/session/process-session.js';
+import { axisParamsFromConfig, buildAxisModels } from '../../src/session/axis-params.js';
+import { prepareSession } from '../../src/session/prepare.js';
 import { defaultSpec, scenarioCsv, simulate, type ScenarioSpec } from '../../src/simulate/scenario.js';
 import { runScenario } from '../helpers/score.js';
 

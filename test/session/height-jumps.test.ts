@@ -8,7 +8,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import type { FixSeries } from '../../src/input/fix-series.js';
-import { HEIGHT_JUMP_RATE_MPS, HEIGHT_JUMP_SLACK_M, flagHeightJumps } from '../../src/session/process-session.js';
+import { HEIGHT_JUMP_RATE_MPS, HEIGHT_JUMP_SLACK_M, flagHeightJumps } from '../../src/session/valid-fixes.js';
 import { refFlagHeightJumps } from '../helpers/reference-height-jumps.js';
 
 /** Park–Miller minimal standard generator (seeded). */

@@ -10,7 +10,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { loadConfig } from '../../src/config/load.js';
-import { reviewOptions } from '../../src/session/process-session.js';
+import { reviewOptions } from '../../src/session/axis-params.js';
 import { reviewSegment, type ReviewOptions, type ReviewOutcome } from '../../src/session/review.js';
 import { refReviewSegment } from '../helpers/reference-review-segment.js';
 import { expectSameHistory, firstDiff, segmentCase } from '../helpers/history-compare.js';

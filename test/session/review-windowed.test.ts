@@ -7,7 +7,8 @@
 import { describe, expect, it } from 'vitest';
 import { loadConfig } from '../../src/config/load.js';
 import { readFixCsv } from '../../src/input/csv-fixes.js';
-import { axisParamsFromConfig, buildAxisModels, filterOptions, prepareSession, reviewOptions, segmentData } from '../../src/session/process-session.js';
+import { axisParamsFromConfig, buildAxisModels, filterOptions, reviewOptions } from '../../src/session/axis-params.js';
+import { prepareSession, segmentData } from '../../src/session/prepare.js';
 import { RERUN_TOL, reviewSegment, type ReviewOutcome } from '../../src/session/review.js';
 import { defaultSpec, scenarioCsv, simulate, type ScenarioKind } from '../../src/simulate/scenario.js';
 

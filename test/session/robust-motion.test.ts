@@ -8,7 +8,7 @@
  */
 import { describe, expect, test } from 'vitest';
 import { robustProcessNoise } from '../../src/session/robust-motion.js';
-import type { PreparedSession } from '../../src/session/process-session.js';
+import type { PreparedSession } from '../../src/session/prepare.js';
 import { Rng } from '../../src/simulate/rng.js';
 
 interface Track {

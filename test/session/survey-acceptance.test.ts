@@ -21,7 +21,7 @@ import { describe, expect, it } from 'vitest';
 import { loadConfig } from '../../src/config/load.js';
 import { readFixCsv } from '../../src/input/csv-fixes.js';
 import { processSession } from '../../src/session/process-session.js';
-import { K2_95 } from '../../src/output/ellipse.js';
+import { K2_95 } from '../../src/estimation/error-ellipse.js';
 import { defaultSpec, scenarioCsv, simulate, type Scenario } from '../../src/simulate/scenario.js';
 import { truthAt, type TruthTrack } from '../../src/simulate/truth.js';
 import type { SessionResult } from '../../src/session/result.js';

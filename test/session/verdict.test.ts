@@ -15,7 +15,7 @@ import { makeTruth } from '../../src/simulate/truth.js';
 import { parsePoint3Truth } from '../../src/simulate/recorded-truth.js';
 import { Rng } from '../../src/simulate/rng.js';
 import { runScenario } from '../helpers/score.js';
-import type { AxisParams } from '../../src/session/process-session.js';
+import type { AxisParams } from '../../src/session/axis-params.js';
 
 const PROFILE: AxisParams = { motion: 'cv', qHorizontal: 0.5, qVertical: 0.1, sigmaHorizontalM: 2, sigmaVerticalM: 4, gmHorizontalSigmaM: 1.5, gmVerticalSigmaM: 3, gmTauSec: 60 };
 

@@ -1,11 +1,11 @@
 /**
- * Horizontal error ellipse of a 2×2 covariance (src/output/ellipse.ts): semi-axes √(k² λ) and the
+ * Horizontal error ellipse of a 2×2 covariance (src/estimation/error-ellipse.ts): semi-axes √(k² λ) and the
  * azimuth of the major axis clockwise from north in [0, 180).
  * k² for 95 %: χ²₂(0.95) = −2 ln 0.05 = 5.991 (NIST/SEMATECH e-Handbook §1.3.6.7.4, table to 3
  * decimals; exact for 2 dof).
  */
 import { describe, expect, it } from 'vitest';
-import { errorEllipse, K2_95 } from '../../src/output/ellipse.js';
+import { errorEllipse, K2_95 } from '../../src/estimation/error-ellipse.js';
 import { chiSquareQuantile } from '../../src/estimation/chi-square.js';
 
 /** Covariance with semi-axis standard deviations s1 ≥ s2, major axis at azimuth azDeg (clockwise from north). */
