@@ -28,6 +28,7 @@ import { readFixCsv } from '../src/input/csv-fixes.js';
 import { streamImuCsv } from '../src/input/imu-csv.js';
 import { ImuReplayWriter } from '../src/input/imu-replay.js';
 import { newImuStageTimings, processImuSession } from '../src/session/imu-session.js';
+import { imuFileSource } from '../src/input/imu-source.js';
 import { defaultImuSpec, imuScenarioFixCsv, simulateImuScenario, writeImuCsv } from '../src/simulate/imu.js';
 import type { BenchPart } from './part.js';
 import { mergeResults } from './results.js';
@@ -95,7 +96,7 @@ async function processFiles(dir: string, durationSec: number, fixRateHz: number,
   const t0 = performance.now();
   const series = readFixCsv(readFileSync(join(dir, 'bench.csv'), 'utf8'), 'bench.csv', cfg);
   const t1 = performance.now();
-  const r = await processImuSession(series, join(dir, 'bench.imu.csv'), cfg, 'bench', undefined, tm);
+  const r = await processImuSession(series, imuFileSource(join(dir, 'bench.imu.csv'), cfg), cfg, 'bench', undefined, tm);
   const t2 = performance.now();
   const peakRssMB = process.resourceUsage().maxRSS / 1024;
   // the reader alone (the session's reader and parser, a sink that only sums), fastest of three

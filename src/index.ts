@@ -12,6 +12,7 @@ export { readFixCsv } from './input/csv-fixes.js';
 export { FixSeriesBuilder, type FixSeries } from './input/fix-series.js';
 export { processSession } from './session/process-session.js';
 export { processImuSession } from './session/imu-session.js';
+export { imuFileSource, imuArraySource, IMU_SAMPLE_STRIDE, type ImuSampleSource, type ImuSampleTarget } from './input/imu-source.js';
 export type { SessionResult, OutlierRecord, SessionMetrics } from './session/result.js';
 export { sampleTracks, measure, type DrawnTrack, type TrackDraws, type Quantity } from './session/draws.js';
 export { releasePosterior } from './session/posterior.js';

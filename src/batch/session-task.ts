@@ -15,6 +15,7 @@ import { readFixLog } from '../input/read-log.js';
 import { readDecisions } from '../input/decisions-csv.js';
 import { processSession } from '../session/process-session.js';
 import { processImuSession } from '../session/imu-session.js';
+import { imuFileSource } from '../input/imu-source.js';
 import type { SessionResult } from '../session/result.js';
 import { trackCsvChunks } from '../output/track-csv.js';
 import { outliersCsvChunks } from '../output/outliers-csv.js';
@@ -187,7 +188,7 @@ export async function runSessionTask(t: SessionTask): Promise<SessionOutcome> {
     const series = await readFixLog(t.path, t.relPath, t.config);
     const decisions = t.decisionsPath ? readDecisions(t.decisionsPath, series, t.config.input) : undefined;
     const r = t.imuPath
-      ? await processImuSession(series, t.imuPath, t.config, t.name, decisions)
+      ? await processImuSession(series, imuFileSource(t.imuPath, t.config), t.config, t.name, decisions)
       : processSession(series, t.config, t.name, decisions);
     if (t.decisionsPath && decisions) attachDecisionNotes(r, parseDecisionNotes(await readFile(t.decisionsPath, 'utf8'), series));
     // the survey products are computed: the joint posterior's arrays can go before the writes

@@ -1,7 +1,9 @@
 /**
  * The IMU-aided session: the same epoch grid, per-fix noise, gate and outputs as processSession, with
  * the track between and through GNSS outages carried by the strapdown mechanization and smoothed on
- * the error state (src/estimation/ins/). The IMU file is streamed; memory grows with the epochs.
+ * the error state (src/estimation/ins/). The IMU samples come from a source the caller hands in
+ * (src/input/imu-source.ts: a file streamed once and replayed, or samples in memory), one pass over
+ * them per round of the review; memory grows with the epochs, not the samples.
  * Epochs the IMU does not cover (before its first sample, after its last, before alignment) keep the
  * fixes-only solution, which is also the source of the initial velocity and of the first-motion
  * heading (no truth needed).
@@ -9,28 +11,26 @@
  * likelihood calibration (./calibrated-params.ts), also used for the fixes-only baseline. Outliers as
  * in processSession: the filter's forward gate, then the two-sided review (./review-decisions.ts)
  * of every fix against the smoothed antenna position plus the smoothed fix error, with the deletion-
- * residual covariance R ∓ H Pˢ Hᵀ (src/estimation/ins/review.ts); the IMU log is streamed again
- * with the decisions held fixed until they no longer change (at most IMU_REVIEW_MAX_PASSES streams).
+ * residual covariance R ∓ H Pˢ Hᵀ (src/estimation/ins/review.ts); the IMU samples are passed again
+ * with the decisions held fixed until they no longer change (at most IMU_REVIEW_MAX_PASSES passes).
  * Positions in the result are of the GNSS antenna (the point the fixes measure); heading is clockwise
  * from the grid north of the session's transverse Mercator frame (within a few tenths of a degree of
  * true north inside a session).
  */
 import type { HindcastConfig } from '../config/schema.js';
 import type { FixSeries } from '../input/fix-series.js';
-import { streamImuCsv, type ImuSampleSink } from '../input/imu-csv.js';
-import { ImuReplay, ImuReplayWriter } from '../input/imu-replay.js';
+import type { ImuSampleSource } from '../input/imu-source.js';
 import { earthRateEnu } from '../models/ins/gravity.js';
 import { makeMechParams } from '../models/ins/mechanization.js';
 import { yawToHeadingDeg } from '../models/ins/attitude.js';
 import { InsSmoother, newInsTimings, type InsResume, type InsEpochs, type InsInit, type InsHistory, type InsOptions, type InsTimings } from '../estimation/ins/ins-filter.js';
 import { gnssReviewStatistic, makeGnssReviewScratch } from '../estimation/ins/review.js';
 import { errorEllipse } from '../estimation/error-ellipse.js';
-import { InputError } from '../errors.js';
 import { axisParamsFromConfig, reviewOptions, type AxisParams } from './axis-params.js';
 import { prepareSession, segmentData, type PreparedSession } from './prepare.js';
 import { calibratedFixesOnly } from './calibrated-params.js';
 import { applyReviewDecisions, reviewThresholds } from './review-decisions.js';
-import { settleDecisions } from './review.js';
+import { settleDecisions, type ReviewOptions } from './review.js';
 import type { DecisionLog } from './decision-log.js';
 import { buildOutliersAndMetrics } from './products.js';
 import { STATUS, type SessionResult } from './result.js';
@@ -222,197 +222,164 @@ export function reviewImuFixes(ep: InsEpochs, offered: Uint8Array, engine: InsSm
 }
 
 /**
- * Process one session with its IMU log: `imuPath` is `<stem>.imu.csv` beside the fix log. Returns the
- * same SessionResult as processSession, plus attitudeDeg, attitudeSdDeg and biasEstimates.
+ * Process one session with its IMU samples (`imu`, e.g. imuFileSource of `<stem>.imu.csv` beside the
+ * fix log; the session closes it when done). Returns the same SessionResult as processSession, plus
+ * attitudeDeg, attitudeSdDeg and biasEstimates.
  */
-export async function processImuSession(series: FixSeries, imuPath: string, cfg: HindcastConfig, name: string, userDecisions?: Map<number, 'keep' | 'reject'>, tm?: ImuStageTimings): Promise<SessionResult> {
+export async function processImuSession(series: FixSeries, imu: ImuSampleSource, cfg: HindcastConfig, name: string, userDecisions?: Map<number, 'keep' | 'reject'>, tm?: ImuStageTimings): Promise<SessionResult> {
+  try {
+    const lap = lapTimer();
+    const ps = prepareSession(series, cfg, userDecisions);
+    // fixes-only solution with the session's calibrated noise (initial values, uncovered epochs)
+    const { result: base, cal } = calibratedFixesOnly(ps, cfg, name);
+    const ep = insEpochs(ps, cfg, cal.params);
+    if (ep.N !== base.N) throw new Error(`IMU session: epoch grid (${ep.N}) differs from the fixes-only grid (${base.N})`);
+    const gp = imuGnssParams(cal.params, axisParamsFromConfig(cfg, ps.factors.reported));
+    const passes = imuPasses(imu, initFromTrack(base, cfg), insOptions(ps, cfg, gp), lap, tm);
+    if (tm) tm.baselineMs += lap();
+    const { engine, review } = await reviewLoop(ep, reviewOptions(cfg, ps.intervalSec), passes, lap, tm);
+    if (tm) tm.reviewMs += lap();
+    const res = assembleImuResult(base, ps, engine, passes.warnings(), review, gp);
+    if (tm) tm.productsMs += lap();
+    return res;
+  } finally {
+    imu.close();
+  }
+}
+
+/** Milliseconds since the previous call (or since the timer was made). */
+function lapTimer(): () => number {
   let t0 = performance.now();
-  const lap = (): number => {
+  return () => {
     const t = performance.now();
     const d = t - t0;
     t0 = t;
     return d;
   };
-  const ps = prepareSession(series, cfg, userDecisions);
-  // fixes-only solution with the session's calibrated noise (initial values, uncovered epochs)
-  const { result: base, cal } = calibratedFixesOnly(ps, cfg, name);
-  const ep = insEpochs(ps, cfg, cal.params);
-  if (ep.N !== base.N) throw new Error(`IMU session: epoch grid (${ep.N}) differs from the fixes-only grid (${base.N})`);
-  const init = initFromTrack(base, cfg);
-  const gp = imuGnssParams(cal.params, axisParamsFromConfig(cfg, ps.factors.reported));
-  const opt = insOptions(ps, cfg, gp);
-  const display = imuPath.replace(/^.*[\\/]/, '');
-  if (tm) tm.baselineMs += lap();
+}
+
+/** The filter-and-smoother passes over the IMU samples of one session, sharing one filter history. */
+interface ImuPasses {
+  run(epochs: InsEpochs, resume?: InsResume): Promise<InsSmoother>;
+  /** The IMU reader's warnings (after the first pass). */
+  warnings(): SessionResult['warnings'];
+}
+
+function imuPasses(imu: ImuSampleSource, init: InsInit, opt: InsOptions, lap: () => number, tm?: ImuStageTimings): ImuPasses {
   let imuWarnings: SessionResult['warnings'] | undefined;
   // one filter history for all passes: a pass's history is free once it has smoothed
   let history: InsHistory | undefined;
-  // the first pass reads the CSV and records the parsed samples; the later ones replay them (the same
-  // doubles in the same order, so the same results), or read the CSV again if recording failed
-  let replay: ImuReplay | undefined;
-  const runPass = async (epochs: InsEpochs, resume?: InsResume): Promise<InsSmoother> => {
-    const engine = new InsSmoother(epochs, init, opt, tm?.ins, history, resume);
-    const ts = performance.now();
-    const skip = resume ? resume.snapshot.sample : 0;
-    let seen = 0;
-    const sink: ImuSampleSink = (t, fx, fy, fz, wx, wy, wz) => {
-      if (seen++ >= skip) engine.addSample(t, fx, fy, fz, wx, wy, wz);
-    };
-    if (tm && resume) {
-      tm.resumedPasses++;
-      tm.resumedEpochs += resume.snapshot.epoch + 1;
-    }
-    if (replay) {
-      replay.replayAt(engine, skip);
-      if (tm) tm.replayPasses++;
-    } else {
-      const rec = imuWarnings === undefined ? ImuReplayWriter.tryCreate() : undefined;
-      let read;
-      try {
-        read = await streamImuCsv(imuPath, display, cfg, rec ? rec.tee(sink) : sink);
-      } catch (e) {
-        rec?.discard();
-        throw e;
+  return {
+    async run(epochs, resume) {
+      const engine = new InsSmoother(epochs, init, opt, tm?.ins, history, resume);
+      const ts = performance.now();
+      if (tm && resume) {
+        tm.resumedPasses++;
+        tm.resumedEpochs += resume.snapshot.epoch + 1;
       }
-      replay = rec?.finish();
-      if (read.samples === 0) {
-        replay?.close();
-        throw new InputError({ file: display }, 'no IMU samples');
+      // the first pass of a file reads the CSV and records the parsed samples; the later ones replay
+      // them (the same doubles in the same order, so the same results)
+      const st = await imu.pass(engine, resume ? resume.snapshot.sample : 0);
+      if (imuWarnings === undefined) imuWarnings = st.warnings;
+      if (tm && st.replayed) tm.replayPasses++;
+      engine.finishStream();
+      if (tm) {
+        tm.streamMs += performance.now() - ts;
+        tm.passes++;
       }
-      imuWarnings = read.warnings;
-    }
-    engine.finishStream();
-    if (tm) {
-      tm.streamMs += performance.now() - ts;
-      tm.passes++;
-    }
-    engine.smooth();
-    history = engine.releaseHistory();
-    if (tm) lap(); // the pass (stream and smoother) is counted in streamMs and ins.smoothMs
-    return engine;
+      engine.smooth();
+      history = engine.releaseHistory();
+      if (tm) lap(); // the pass (stream and smoother) is counted in streamMs and ins.smoothMs
+      return engine;
+    },
+    warnings: () => imuWarnings ?? [],
   };
-  // pass 1: the forward gate decides; then the two-sided review until the decisions are stable
+}
+
+/** The first pass's decisions: the forward gate's, per epoch (offered 2: kept without gate; 0: not offered). */
+function gateDecisions(offered: Uint8Array, engine: InsSmoother): { kept: Uint8Array; gateRejected: Uint8Array; why: DecisionLog } {
+  const N = offered.length;
+  const pr = engine.products;
+  const gateRejected = new Uint8Array(N);
+  const kept = new Uint8Array(N);
+  const why: DecisionLog = new Map();
+  for (let k = 0; k < N; k++) {
+    const gated = offered[k] === 1 && pr.covered[k] === 1;
+    kept[k] = offered[k] === 2 ? 1 : offered[k] === 0 ? 0 : gated ? pr.accepted[k]! : 1;
+    if (gated && !pr.accepted[k]) {
+      gateRejected[k] = 1;
+      why.set(k, { test: 'forward-gate', statistic: pr.nis[k]!, threshold: pr.threshold[k]!, dof: 0 });
+    }
+  }
+  return { kept, gateRejected, why };
+}
+
+/**
+ * Pass 1, where the forward gate decides; then the two-sided review of every gated fix against the
+ * smoothed track, with the decisions held fixed in a new pass, until they no longer change (at most
+ * IMU_REVIEW_MAX_PASSES passes).
+ */
+async function reviewLoop(ep: InsEpochs, ro: ReviewOptions, passes: ImuPasses, lap: () => number, tm?: ImuStageTimings): Promise<{ engine: InsSmoother; review: ImuReview }> {
   const N = ep.N;
   const offered = ep.use.slice();
-  try {
-    let engine = await runPass(ep);
-    const gateRejected = new Uint8Array(N);
-    const kept = new Uint8Array(N);
-    const why: DecisionLog = new Map();
-    for (let k = 0; k < N; k++) {
-      const gated = offered[k] === 1 && engine.products.covered[k] === 1;
-      kept[k] = offered[k] === 2 ? 1 : offered[k] === 0 ? 0 : gated ? engine.products.accepted[k]! : 1;
-      if (gated && !engine.products.accepted[k]) {
-        gateRejected[k] = 1;
-        const pr = engine.products;
-        why.set(k, { test: 'forward-gate', statistic: pr.nis[k]!, threshold: pr.threshold[k]!, dof: 0 });
-      }
+  let engine = await passes.run(ep);
+  const { kept, gateRejected, why } = gateDecisions(offered, engine);
+  const th = reviewThresholds(ro.probability);
+  const T = new Float64Array(N).fill(NaN);
+  const dof = new Uint8Array(N);
+  const threshold = new Float64Array(N).fill(NaN);
+  const gatedFix = Uint8Array.from(offered, (u, k) => (u === 1 && engine.products.covered[k] ? 1 : 0));
+  const gateStats = { gnssRejected: engine.stats.gnssRejected, reacquisitions: engine.stats.reacquisitions };
+  let pass = 1;
+  let converged = false;
+  const fixed: InsEpochs = { ...ep, use: ep.use.slice() };
+  for (;;) {
+    reviewImuFixes(ep, gatedFix, engine, th.reject, T, dof, threshold);
+    if (pass >= IMU_REVIEW_MAX_PASSES) break;
+    if (!applyReviewDecisions(N, gatedFix, kept, T, dof, threshold, ep.tSec, th, ro.guardSec, why)) {
+      converged = true;
+      break;
     }
-    const ro = reviewOptions(cfg, ps.intervalSec);
-    const th = reviewThresholds(ro.probability);
-    const T = new Float64Array(N).fill(NaN);
-    const dof = new Uint8Array(N);
-    const threshold = new Float64Array(N).fill(NaN);
-    const gatedFix = Uint8Array.from(offered, (u, k) => (u === 1 && engine.products.covered[k] ? 1 : 0));
-    const gateStats = { gnssRejected: engine.stats.gnssRejected, reacquisitions: engine.stats.reacquisitions };
-    let passes = 1;
-    let converged = false;
-    const fixed: InsEpochs = { ...ep, use: ep.use.slice() };
-    for (;;) {
-      reviewImuFixes(ep, gatedFix, engine, th.reject, T, dof, threshold);
-      if (passes >= IMU_REVIEW_MAX_PASSES) break;
-      if (!applyReviewDecisions(N, gatedFix, kept, T, dof, threshold, ep.tSec, th, ro.guardSec, why)) {
-        converged = true;
-        break;
-      }
-      // decisions held fixed: kept fixes without gate, rejected ones left out
-      const prevUse = passes >= 2 ? fixed.use.slice() : undefined;
-      for (let k = 0; k < N; k++) fixed.use[k] = gatedFix[k] ? (kept[k] ? 2 : 0) : offered[k]!;
-      // the pass equals the previous one up to the first epoch whose decision changed (after the gated
-      // first pass: the first gated fix that its gate refused or the review now rejects, since a fix
-      // the gate accepted is used alike with and without the gate), so it starts from the previous
-      // pass's last snapshot before that epoch
-      let resume: InsResume | undefined;
-      if (IMU_REVIEW_RESUME.enabled) {
-        let k1 = 0;
-        if (prevUse) while (k1 < N && prevUse[k1] === fixed.use[k1]) k1++;
-        else while (k1 < N && !(gatedFix[k1] && (gateRejected[k1] || !kept[k1]))) k1++;
-        const snapshot = engine.snapshotBefore(k1);
-        if (snapshot) resume = { snapshot, from: engine };
-      }
-      if (tm) tm.reviewMs += lap();
-      engine = await runPass(fixed, resume);
-      passes++;
-    }
-    settleDecisions(N, gatedFix, kept, T, dof, threshold, why, th.readmit);
-    // the gate measured the same axes as the review statistic
-    for (const [k, d] of why) if (d.test === 'forward-gate' && d.dof === 0) d.dof = dof[k]!;
-    const review: ImuReview = { kept, gateRejected, why, readmit: th.readmit, T, dof, threshold, passes, converged, ...gateStats };
+    // decisions held fixed: kept fixes without gate, rejected ones left out
+    const prevUse = pass >= 2 ? fixed.use.slice() : undefined;
+    for (let k = 0; k < N; k++) fixed.use[k] = gatedFix[k] ? (kept[k] ? 2 : 0) : offered[k]!;
+    const resume = IMU_REVIEW_RESUME.enabled ? resumePoint(engine, fixed.use, prevUse, gatedFix, gateRejected, kept) : undefined;
     if (tm) tm.reviewMs += lap();
-    const res = assembleImuResult(base, ps, engine, imuWarnings ?? [], review, gp);
-    if (tm) tm.productsMs += lap();
-    return res;
-  } finally {
-    replay?.close();
+    engine = await passes.run(fixed, resume);
+    pass++;
   }
+  settleDecisions(N, gatedFix, kept, T, dof, threshold, why, th.readmit);
+  // the gate measured the same axes as the review statistic
+  for (const [k, d] of why) if (d.test === 'forward-gate' && d.dof === 0) d.dof = dof[k]!;
+  return { engine, review: { kept, gateRejected, why, readmit: th.readmit, T, dof, threshold, passes: pass, converged, ...gateStats } };
+}
+
+/**
+ * Where the next pass may start: it equals the previous one up to the first epoch whose decision
+ * changed (after the gated first pass: the first gated fix that its gate refused or the review now
+ * rejects, since a fix the gate accepted is used alike with and without the gate), so it starts from
+ * the previous pass's last snapshot before that epoch.
+ */
+function resumePoint(engine: InsSmoother, use: Uint8Array, prevUse: Uint8Array | undefined, gatedFix: Uint8Array, gateRejected: Uint8Array, kept: Uint8Array): InsResume | undefined {
+  const N = use.length;
+  let k1 = 0;
+  if (prevUse) while (k1 < N && prevUse[k1] === use[k1]) k1++;
+  else while (k1 < N && !(gatedFix[k1] && (gateRejected[k1] || !kept[k1]))) k1++;
+  const snapshot = engine.snapshotBefore(k1);
+  return snapshot ? { snapshot, from: engine } : undefined;
 }
 
 /** Merge the smoother's products and the review's decisions into a copy of the fixes-only result and recompute statuses, outliers and metrics. */
 export function assembleImuResult(base: SessionResult, ps: PreparedSession, engine: InsSmoother, imuWarnings: SessionResult['warnings'], review: ImuReview, gnss?: AxisParams): SessionResult {
   const pr = engine.products;
   const N = base.N;
-  const c = (a: Float64Array) => a.slice();
-  const mk = () => new Float64Array(N).fill(NaN);
-  const res: SessionResult = {
-    ...base,
-    latDeg: c(base.latDeg), lonDeg: c(base.lonDeg), heightM: c(base.heightM),
-    posEnu: [c(base.posEnu[0]), c(base.posEnu[1]), c(base.posEnu[2])],
-    velEnu: [c(base.velEnu[0]), c(base.velEnu[1]), c(base.velEnu[2])],
-    sdEnu: [c(base.sdEnu[0]), c(base.sdEnu[1]), c(base.sdEnu[2])],
-    covEN: c(base.covEN), ell95MajorM: c(base.ell95MajorM), ell95MinorM: c(base.ell95MinorM), ell95AzimuthDeg: c(base.ell95AzimuthDeg),
-    status: base.status.slice(), nis: c(base.nis), nisThreshold: c(base.nisThreshold),
-    outliers: [],
-    warnings: [...base.warnings, ...imuWarnings],
-    attitudeDeg: { roll: mk(), pitch: mk(), heading: mk() },
-    attitudeSdDeg: { roll: mk(), pitch: mk(), heading: mk() },
-    biasEstimates: { accelMps2: [mk(), mk(), mk()], accelSdMps2: [mk(), mk(), mk()], gyroRadps: [mk(), mk(), mk()], gyroSdRadps: [mk(), mk(), mk()] },
-  };
-  const ll = [0, 0];
+  const res = copyForImu(base, imuWarnings);
   let covered = 0;
+  const ll = [0, 0];
   for (let j = 0; j < N; j++) {
     if (!pr.covered[j]) continue;
     covered++;
-    for (let a = 0; a < 3; a++) {
-      res.posEnu[a]![j] = pr.pos[a]![j]!;
-      res.velEnu[a]![j] = pr.vel[a]![j]!;
-      res.biasEstimates!.accelMps2[a]![j] = pr.accelBias[a]![j]!;
-      res.biasEstimates!.accelSdMps2[a]![j] = pr.accelBiasSd[a]![j]!;
-      res.biasEstimates!.gyroRadps[a]![j] = pr.gyroBias[a]![j]!;
-      res.biasEstimates!.gyroSdRadps[a]![j] = pr.gyroBiasSd[a]![j]!;
-    }
-    const o = 6 * j;
-    const vee = pr.covPos[o]!, ven = pr.covPos[o + 1]!, vnn = pr.covPos[o + 3]!, vuu = pr.covPos[o + 5]!;
-    res.sdEnu[0][j] = Math.sqrt(vee);
-    res.sdEnu[1][j] = Math.sqrt(vnn);
-    res.sdEnu[2][j] = ps.hasHeight ? Math.sqrt(vuu) : NaN;
-    if (!ps.hasHeight) {
-      res.posEnu[2][j] = NaN;
-      res.velEnu[2][j] = NaN;
-    }
-    res.covEN[j] = ven;
-    const el = errorEllipse(vee, vnn, ven);
-    res.ell95MajorM[j] = el.majorM;
-    res.ell95MinorM[j] = el.minorM;
-    res.ell95AzimuthDeg[j] = el.azimuthDeg;
-    ps.frame.inverse(res.posEnu[0][j]!, res.posEnu[1][j]!, ll);
-    res.lonDeg[j] = ll[0]!;
-    res.latDeg[j] = ll[1]!;
-    res.heightM[j] = ps.hasHeight ? res.posEnu[2][j]! + ps.heightRefM : NaN;
-    res.attitudeDeg!.roll[j] = pr.att[0][j]! * DEG;
-    res.attitudeDeg!.pitch[j] = pr.att[1][j]! * DEG;
-    res.attitudeDeg!.heading[j] = yawToHeadingDeg(pr.att[2][j]!);
-    res.attitudeSdDeg!.roll[j] = pr.attSd[0][j]! * DEG;
-    res.attitudeSdDeg!.pitch[j] = pr.attSd[1][j]! * DEG;
-    res.attitudeSdDeg!.heading[j] = pr.attSd[2][j]! * DEG;
+    writeImuEpoch(res, ps, pr, j, ll);
     const i = res.fix[j]!;
     res.nis[j] = review.T[j]!;
     res.nisThreshold[j] = review.threshold[j]!;
@@ -422,27 +389,7 @@ export function assembleImuResult(base: SessionResult, ps: PreparedSession, engi
     else if (ps.forced[i]) res.status[j] = STATUS.userKept;
     else res.status[j] = review.kept[j] ? STATUS.kept : STATUS.outlier;
   }
-  // gate of the first pass per fix: the IMU filter's where it covers the epoch, else the fixes-only one
-  const gateRejectedFix = new Uint8Array(ps.series.n);
-  for (const o of base.outliers) if (o.reason === 'innovation') gateRejectedFix[o.fix] = 1;
-  const dofAt = new Uint8Array(N);
-  for (let j = 0; j < N; j++) {
-    const i = res.fix[j]!;
-    if (i < 0 || !pr.covered[j]) continue;
-    gateRejectedFix[i] = review.gateRejected[j]!;
-    dofAt[j] = review.dof[j]!;
-  }
-  // the deciding tests: the IMU review's where it covers the epoch, else the fixes-only one's
-  const whyFix: DecisionLog = new Map();
-  for (const o of base.outliers)
-    if (o.test === 'forward-gate' || o.test === 'backward-gate' || o.test === 'review' || o.test === 'swap') whyFix.set(o.fix, { test: o.test, statistic: o.testStatistic, threshold: o.testThreshold, dof: o.dof });
-  for (let j = 0; j < N; j++) {
-    const i = res.fix[j]!;
-    if (i < 0 || !pr.covered[j]) continue;
-    whyFix.delete(i);
-    const d = review.why?.get(j);
-    if (d) whyFix.set(i, d);
-  }
+  const { gateRejectedFix, dofAt, whyFix } = imuDecisionsByFix(base, res, ps, pr.covered, review);
   buildOutliersAndMetrics(res, ps, gateRejectedFix, review.reacquisitions, dofAt, { why: whyFix, readmit: review.readmit ?? reviewThresholds(typeof base.info.gateProbability === 'number' ? base.info.gateProbability : 0.999).readmit });
   const st = engine.stats;
   res.info = {
@@ -467,4 +414,90 @@ export function assembleImuResult(base: SessionResult, ps: PreparedSession, engi
   };
   if (covered < N) res.warnings.push({ file: base.file, code: 'imu-coverage', message: `${N - covered} of ${N} epochs lie outside the IMU log (or before its alignment) and keep the fixes-only solution` });
   return res;
+}
+
+/** A copy of the fixes-only result whose per-epoch arrays the IMU products may overwrite, with empty attitude and bias arrays. */
+function copyForImu(base: SessionResult, imuWarnings: SessionResult['warnings']): SessionResult {
+  const N = base.N;
+  const c = (a: Float64Array) => a.slice();
+  const mk = () => new Float64Array(N).fill(NaN);
+  return {
+    ...base,
+    latDeg: c(base.latDeg), lonDeg: c(base.lonDeg), heightM: c(base.heightM),
+    posEnu: [c(base.posEnu[0]), c(base.posEnu[1]), c(base.posEnu[2])],
+    velEnu: [c(base.velEnu[0]), c(base.velEnu[1]), c(base.velEnu[2])],
+    sdEnu: [c(base.sdEnu[0]), c(base.sdEnu[1]), c(base.sdEnu[2])],
+    covEN: c(base.covEN), ell95MajorM: c(base.ell95MajorM), ell95MinorM: c(base.ell95MinorM), ell95AzimuthDeg: c(base.ell95AzimuthDeg),
+    status: base.status.slice(), nis: c(base.nis), nisThreshold: c(base.nisThreshold),
+    outliers: [],
+    warnings: [...base.warnings, ...imuWarnings],
+    attitudeDeg: { roll: mk(), pitch: mk(), heading: mk() },
+    attitudeSdDeg: { roll: mk(), pitch: mk(), heading: mk() },
+    biasEstimates: { accelMps2: [mk(), mk(), mk()], accelSdMps2: [mk(), mk(), mk()], gyroRadps: [mk(), mk(), mk()], gyroSdRadps: [mk(), mk(), mk()] },
+  };
+}
+
+/** The IMU smoother's products at a covered epoch j: position, velocity, sd and ellipse, geodetic position, attitude and biases. */
+function writeImuEpoch(res: SessionResult, ps: PreparedSession, pr: InsSmoother['products'], j: number, ll: number[]): void {
+  for (let a = 0; a < 3; a++) {
+    res.posEnu[a]![j] = pr.pos[a]![j]!;
+    res.velEnu[a]![j] = pr.vel[a]![j]!;
+    res.biasEstimates!.accelMps2[a]![j] = pr.accelBias[a]![j]!;
+    res.biasEstimates!.accelSdMps2[a]![j] = pr.accelBiasSd[a]![j]!;
+    res.biasEstimates!.gyroRadps[a]![j] = pr.gyroBias[a]![j]!;
+    res.biasEstimates!.gyroSdRadps[a]![j] = pr.gyroBiasSd[a]![j]!;
+  }
+  const o = 6 * j;
+  const vee = pr.covPos[o]!, ven = pr.covPos[o + 1]!, vnn = pr.covPos[o + 3]!, vuu = pr.covPos[o + 5]!;
+  res.sdEnu[0][j] = Math.sqrt(vee);
+  res.sdEnu[1][j] = Math.sqrt(vnn);
+  res.sdEnu[2][j] = ps.hasHeight ? Math.sqrt(vuu) : NaN;
+  if (!ps.hasHeight) {
+    res.posEnu[2][j] = NaN;
+    res.velEnu[2][j] = NaN;
+  }
+  res.covEN[j] = ven;
+  const el = errorEllipse(vee, vnn, ven);
+  res.ell95MajorM[j] = el.majorM;
+  res.ell95MinorM[j] = el.minorM;
+  res.ell95AzimuthDeg[j] = el.azimuthDeg;
+  ps.frame.inverse(res.posEnu[0][j]!, res.posEnu[1][j]!, ll);
+  res.lonDeg[j] = ll[0]!;
+  res.latDeg[j] = ll[1]!;
+  res.heightM[j] = ps.hasHeight ? res.posEnu[2][j]! + ps.heightRefM : NaN;
+  res.attitudeDeg!.roll[j] = pr.att[0][j]! * DEG;
+  res.attitudeDeg!.pitch[j] = pr.att[1][j]! * DEG;
+  res.attitudeDeg!.heading[j] = yawToHeadingDeg(pr.att[2][j]!);
+  res.attitudeSdDeg!.roll[j] = pr.attSd[0][j]! * DEG;
+  res.attitudeSdDeg!.pitch[j] = pr.attSd[1][j]! * DEG;
+  res.attitudeSdDeg!.heading[j] = pr.attSd[2][j]! * DEG;
+}
+
+/**
+ * The decisions by fix: the first pass's gate (the IMU filter's where it covers the epoch, else the
+ * fixes-only one's), the degrees of freedom of the IMU review statistic, and the deciding tests (the
+ * IMU review's where it covers the epoch, else the fixes-only one's).
+ */
+function imuDecisionsByFix(base: SessionResult, res: SessionResult, ps: PreparedSession, covered: Uint8Array, review: ImuReview): { gateRejectedFix: Uint8Array; dofAt: Uint8Array; whyFix: DecisionLog } {
+  const N = base.N;
+  const gateRejectedFix = new Uint8Array(ps.series.n);
+  for (const o of base.outliers) if (o.reason === 'innovation') gateRejectedFix[o.fix] = 1;
+  const dofAt = new Uint8Array(N);
+  for (let j = 0; j < N; j++) {
+    const i = res.fix[j]!;
+    if (i < 0 || !covered[j]) continue;
+    gateRejectedFix[i] = review.gateRejected[j]!;
+    dofAt[j] = review.dof[j]!;
+  }
+  const whyFix: DecisionLog = new Map();
+  for (const o of base.outliers)
+    if (o.test === 'forward-gate' || o.test === 'backward-gate' || o.test === 'review' || o.test === 'swap') whyFix.set(o.fix, { test: o.test, statistic: o.testStatistic, threshold: o.testThreshold, dof: o.dof });
+  for (let j = 0; j < N; j++) {
+    const i = res.fix[j]!;
+    if (i < 0 || !covered[j]) continue;
+    whyFix.delete(i);
+    const d = review.why?.get(j);
+    if (d) whyFix.set(i, d);
+  }
+  return { gateRejectedFix, dofAt, whyFix };
 }

@@ -7,6 +7,7 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import { processSession } from '../../src/session/process-session.js';
 import { processImuSession } from '../../src/session/imu-session.js';
+import { imuFileSource } from '../../src/input/imu-source.js';
 import { trackCsv } from '../../src/output/track-csv.js';
 import type { SessionResult } from '../../src/session/result.js';
 import { BRIDGED, KEPT, makeImuCase, score, type ImuCase } from './helpers.js';
@@ -23,7 +24,7 @@ describe.each([
   beforeAll(async () => {
     c = makeImuCase(seed, { leverArmM: lever }, { imu: { leverArmM: lever } }, profile);
     fixesOnly = processSession(c.series, c.cfg, 'drive');
-    imu = await processImuSession(c.series, c.imuPath, c.cfg, 'drive');
+    imu = await processImuSession(c.series, imuFileSource(c.imuPath, c.cfg), c.cfg, 'drive');
   });
 
   it('same epoch grid as fixes-only, every epoch covered by the IMU', () => {

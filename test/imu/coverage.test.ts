@@ -14,6 +14,7 @@ import { rmSync } from 'node:fs';
 import { dirname } from 'node:path';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import { processImuSession } from '../../src/session/imu-session.js';
+import { imuFileSource } from '../../src/input/imu-source.js';
 import { BRIDGED, KEPT, makeImuCase, score } from './helpers.js';
 
 const CASES: Array<{ seed: number; profile: string; lever: [number, number, number] }> = [11, 23, 31, 47, 53, 61, 71, 83].map((seed, i) =>
@@ -28,7 +29,7 @@ describe('IMU-aided drives, eight seeds: 95% regions pooled', () => {
     for (const { seed, profile, lever } of CASES) {
       const c = makeImuCase(seed, { leverArmM: lever }, { imu: { leverArmM: lever } }, profile);
       dirs.push(dirname(c.imuPath));
-      const r = await processImuSession(c.series, c.imuPath, c.cfg, 'drive');
+      const r = await processImuSession(c.series, imuFileSource(c.imuPath, c.cfg), c.cfg, 'drive');
       const k = score(r, c.sc, KEPT), b = score(r, c.sc, BRIDGED);
       console.log(`seed ${seed} (${profile}): fix epochs RMSE ${k.rmseH.toFixed(2)} m, 95% coverage ${k.coverage95.toFixed(3)}; bridged RMSE ${b.rmseH.toFixed(2)} m, coverage ${b.coverage95.toFixed(3)} (n ${b.n})`);
       kept.inside += k.coverage95 * k.n;

@@ -13,6 +13,7 @@ import { rmSync } from 'node:fs';
 import { dirname } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { IMU_REVIEW_RESUME, newImuStageTimings, processImuSession } from '../../src/session/imu-session.js';
+import { imuFileSource } from '../../src/input/imu-source.js';
 import type { SessionResult } from '../../src/session/result.js';
 import { makeImuCase, type ImuCase } from './helpers.js';
 
@@ -39,10 +40,10 @@ async function bothWays(c: ImuCase) {
   try {
     IMU_REVIEW_RESUME.enabled = false;
     const tmA = newImuStageTimings();
-    const a = await processImuSession(c.series, c.imuPath, c.cfg, 'x', undefined, tmA);
+    const a = await processImuSession(c.series, imuFileSource(c.imuPath, c.cfg), c.cfg, 'x', undefined, tmA);
     IMU_REVIEW_RESUME.enabled = true;
     const tmB = newImuStageTimings();
-    const b = await processImuSession(c.series, c.imuPath, c.cfg, 'x', undefined, tmB);
+    const b = await processImuSession(c.series, imuFileSource(c.imuPath, c.cfg), c.cfg, 'x', undefined, tmB);
     expect(tmA.resumedPasses).toBe(0);
     expect(tmB.passes).toBe(tmA.passes);
     return { a, b, tmA, tmB };

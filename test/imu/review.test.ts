@@ -8,6 +8,7 @@ import { describe, expect, it } from 'vitest';
 import { gnssReviewStatistic, jacobiEigenSym, makeGnssReviewScratch } from '../../src/estimation/ins/review.js';
 import { MIN_RESIDUAL_SHARE } from '../../src/estimation/review.js';
 import { processImuSession } from '../../src/session/imu-session.js';
+import { imuFileSource } from '../../src/input/imu-source.js';
 import { STATUS } from '../../src/session/result.js';
 import { DEFAULT_ERRORS } from '../../src/simulate/scenario.js';
 import { makeImuCase } from './helpers.js';
@@ -72,7 +73,7 @@ describe('review in the IMU-aided path', () => {
     for (let i = 1; i < s.n; i++) if (s.tSec[i]! - s.tSec[i - 1]! > 20) { i0 = i; break; }
     expect(i0).toBeGreaterThan(0);
     s.latDeg[i0] += 9 / 111_300;
-    const r = await processImuSession(s, c.imuPath, c.cfg, 'drive');
+    const r = await processImuSession(s, imuFileSource(c.imuPath, c.cfg), c.cfg, 'drive');
     const j = Array.from(r.fix).indexOf(i0);
     const rec = r.outliers.find((o) => o.fix === i0);
     console.log(`planted fix: status ${r.status[j]}, reason ${rec?.reason}, T ${rec?.statistic.toFixed(1)} / ${rec?.threshold.toFixed(1)}, passes ${(r.info.imu as { reviewPasses: number }).reviewPasses}`);
@@ -87,7 +88,7 @@ describe('review in the IMU-aided path', () => {
   it('consistent fixes rejected by an overconfident forward filter after an outage are re-admitted', async () => {
     // the filter believes its sensors nearly bias-free, so its forward prediction drifts unmodelled and the gate rejects consistent fixes (after the outage and elsewhere); the review, seeing both sides, re-admits many of them
     const c = makeImuCase(43, spec(43), { imu: { gyroBiasSigmaRadps: 1e-6, gyroBiasWalk: 1e-9, accelBiasSigmaMps2: 1e-4, accelBiasWalk: 1e-7 } }, 'vehicle');
-    const r = await processImuSession(c.series, c.imuPath, c.cfg, 'drive');
+    const r = await processImuSession(c.series, imuFileSource(c.imuPath, c.cfg), c.cfg, 'drive');
     const info = r.info.imu as { gnssRejected: number; reviewPasses: number; reviewConverged: boolean };
     const flagged = r.outliers.filter((o) => o.reason === 'innovation' || o.reason === 'review').length;
     console.log(`overconfident filter: gate rejected ${info.gnssRejected}, flagged after review ${flagged}, passes ${info.reviewPasses}, converged ${info.reviewConverged}`);

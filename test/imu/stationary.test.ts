@@ -19,6 +19,7 @@ import { prepareSession } from '../../src/session/prepare.js';
 import { axisParamsFromConfig } from '../../src/session/axis-params.js';
 import { calibratedFixesOnly } from '../../src/session/calibrated-params.js';
 import { imuGnssParams, initFromTrack, insEpochs, insOptions, processImuSession } from '../../src/session/imu-session.js';
+import { imuFileSource } from '../../src/input/imu-source.js';
 import { InsSmoother } from '../../src/estimation/ins/ins-filter.js';
 import { Rng } from '../../src/simulate/rng.js';
 import type { ImuScenarioSpec } from '../../src/simulate/imu.js';
@@ -108,7 +109,7 @@ describe('IMU-aided delivery rounds (parked start, braked stops, idling engine),
     for (const h of FAMILY) {
       const c = makeImuCase(h.seed, vanSpec(h), {}, h.profile);
       const fo = processSession(c.series, c.cfg, 'van');
-      const im = await processImuSession(c.series, c.imuPath, c.cfg, 'van');
+      const im = await processImuSession(c.series, imuFileSource(c.imuPath, c.cfg), c.cfg, 'van');
       const a = score(im, c.sc, KEPT), b = score(fo, c.sc, KEPT), g = score(im, c.sc, BRIDGED), gf = score(fo, c.sc, BRIDGED);
       add(imuKept, a);
       add(foKept, b);
@@ -197,7 +198,7 @@ describe('IMU-aided delivery round that pulls away within the levelling time', (
     // a steady 8 s pull-away from the first fix on: over the 5 s of levelling the accelerometer sd stays small
     const c = makeImuCase(h.seed, { ...spec, drive: { ...spec.drive!, parkedStartSec: 0.05, pullAwaySec: 8 } }, {}, h.profile);
     const fo = processSession(c.series, c.cfg, 'van');
-    const im = await processImuSession(c.series, c.imuPath, c.cfg, 'van');
+    const im = await processImuSession(c.series, imuFileSource(c.imuPath, c.cfg), c.cfg, 'van');
     const al = (im.info.imu as { alignments: Array<{ static: boolean; pitchDeg: number }> }).alignments[0]!;
     const a = score(im, c.sc, KEPT), b = score(fo, c.sc, KEPT);
     console.log(`pull-away start: alignment static ${al.static}, pitch ${al.pitchDeg.toFixed(2)}°; fix epochs IMU ${a.rmseH.toFixed(2)} m (95% ${a.coverage95.toFixed(3)}), fixes-only ${b.rmseH.toFixed(2)} m`);

@@ -17,6 +17,7 @@ import { E_A, E_BA, E_GM, E_P, E_V, fillErrorF, NE_PACKED, packPhi, packSym, PHI
 import { insKernelKind, makeInsKernels, makeInsRtsKernel, preferInsKernels, type InsFilterKernel, type InsRtsKernel } from '../../src/estimation/ins/kernels.js';
 import { quatFromEuler, quatRotateBody, quatToDcm } from '../../src/models/ins/attitude.js';
 import { processImuSession } from '../../src/session/imu-session.js';
+import { imuFileSource } from '../../src/input/imu-source.js';
 import { Rng } from '../../src/simulate/rng.js';
 import { phiOf, spd } from './matrices.js';
 import { makeImuCase } from './helpers.js';
@@ -210,9 +211,9 @@ describe('WebAssembly kernels = TypeScript kernels, bit for bit', () => {
     for (const seed of [11, 23]) {
       const c = makeImuCase(seed, {}, {}, 'vehicle');
       preferInsKernels('js');
-      const a = await processImuSession(c.series, c.imuPath, c.cfg, 'x');
+      const a = await processImuSession(c.series, imuFileSource(c.imuPath, c.cfg), c.cfg, 'x');
       preferInsKernels('wasm');
-      const b = await processImuSession(c.series, c.imuPath, c.cfg, 'x');
+      const b = await processImuSession(c.series, imuFileSource(c.imuPath, c.cfg), c.cfg, 'x');
       let arrays = 0;
       for (const key of Object.keys(a) as Array<keyof typeof a>) {
         const va = a[key], vb = b[key];

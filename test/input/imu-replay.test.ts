@@ -16,6 +16,7 @@ import { loadConfig } from '../../src/config/load.js';
 import { streamImuCsv } from '../../src/input/imu-csv.js';
 import { ImuReplayWriter } from '../../src/input/imu-replay.js';
 import { newImuStageTimings, processImuSession } from '../../src/session/imu-session.js';
+import { imuFileSource } from '../../src/input/imu-source.js';
 import { Rng } from '../../src/simulate/rng.js';
 import { makeImuCase } from '../imu/helpers.js';
 
@@ -114,8 +115,8 @@ describe('IMU replay where no temporary file can be made', () => {
     // seed 11 takes two passes (the second replays)
     const c = makeImuCase(11, {}, {}, 'vehicle');
     const tmA = newImuStageTimings(), tmB = newImuStageTimings();
-    const a = await processImuSession(c.series, c.imuPath, c.cfg, 'x', undefined, tmA);
-    const b = await withTmp(join(tmpdir(), 'hindcast-no-such-dir', 'x'), () => processImuSession(c.series, c.imuPath, c.cfg, 'x', undefined, tmB));
+    const a = await processImuSession(c.series, imuFileSource(c.imuPath, c.cfg), c.cfg, 'x', undefined, tmA);
+    const b = await withTmp(join(tmpdir(), 'hindcast-no-such-dir', 'x'), () => processImuSession(c.series, imuFileSource(c.imuPath, c.cfg), c.cfg, 'x', undefined, tmB));
     expect(tmA.passes).toBeGreaterThan(1);
     expect(tmA.replayPasses).toBe(tmA.passes - 1);
     expect(tmB.passes).toBe(tmA.passes);
