@@ -103,8 +103,9 @@ function fitWeighted(rows: Array<[number, number]>, active: number[]): number[] 
     const w = 1 / (v * v);
     for (let r = 0; r < k; r++) {
       const br = basis(active[r]!, L);
-      y[r] += w * br * v;
-      for (let c = 0; c < k; c++) A[r]![c] += w * br * basis(active[c]!, L);
+      y[r] = y[r]! + w * br * v;
+      const Ar = A[r]!;
+      for (let c = 0; c < k; c++) Ar[c] = Ar[c]! + w * br * basis(active[c]!, L);
     }
   }
   // Gaussian elimination with partial pivoting (k ≤ 3)
@@ -115,8 +116,9 @@ function fitWeighted(rows: Array<[number, number]>, active: number[]): number[] 
     [y[c], y[p]] = [y[p]!, y[c]!];
     for (let r = c + 1; r < k; r++) {
       const f = A[r]![c]! / A[c]![c]!;
-      for (let j = c; j < k; j++) A[r]![j] -= f * A[c]![j]!;
-      y[r] -= f * y[c]!;
+      const Ar = A[r]!, Ac = A[c]!;
+      for (let j = c; j < k; j++) Ar[j] = Ar[j]! - f * Ac[j]!;
+      y[r] = y[r]! - f * y[c]!;
     }
   }
   const x = new Array<number>(k).fill(0);
