@@ -1,6 +1,6 @@
 /**
  * The calibrated noise of a session, obtained as processSession obtains it: its calibration rounds
- * (process-session.ts calibrationRounds: calibration under a capped likelihood, classification,
+ * (calibration-rounds.ts: calibration under a capped likelihood, classification,
  * calibration with those decisions held fixed), then the classification under their model. Returned
  * with the decisions, so that runPrepared(ps, cfg, params, name, plans) reproduces processSession's
  * result; used by the IMU-aided session for its fixes-only baseline and its GNSS noise

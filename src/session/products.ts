@@ -1,6 +1,6 @@
 /**
  * The session products that follow from the final per-epoch track and statuses, shared by the
- * fixes-only pipeline (process-session.ts, runPrepared) and the IMU-aided one (imu-session.ts):
+ * fixes-only pipeline (final-run.ts, runPrepared) and the IMU-aided one (imu-session.ts):
  * the raw fix positions per epoch (report residuals), the outlier records in time order (reason
  * `innovation`: failed the gate and the review; `review`: passed the gate, failed the review;
  * `invalid`; `user`) with their test statistic, and the metrics. Pure; no file system.
