@@ -7,6 +7,7 @@
 import { EnuFrame } from '../geodesy/ecef.js';
 import { Rng } from './rng.js';
 import { makeTruth, truthAt, type ScenarioKind, type TruthTrack } from './truth.js';
+export type { ScenarioKind } from './truth.js';
 
 export interface ErrorModel {
   whiteSigmaHM: number;

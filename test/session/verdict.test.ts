@@ -67,7 +67,7 @@ describe('verdict rules', () => {
 
   test('widening: every sd at least the kept residuals\' RMS per axis, ellipses and metrics recomputed', () => {
     // residuals ±3 m east and north, ±5 m up (a flagged fix among them counts; a user-rejected one's 100 m does not): floors 3 and 5 m
-    const e = Array.from({ length: 50 }, (_, k) => (k % 2 ? 3 : -3));
+    const e = Array.from({ length: 50 }, (_, k): number => (k % 2 ? 3 : -3));
     const u = e.map((x) => (x / 3) * 5);
     const st = e.map((_, k) => (k === 7 ? STATUS.userRejected : k === 8 ? STATUS.outlier : STATUS.kept));
     e[7] = 100;
