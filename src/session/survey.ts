@@ -3,20 +3,22 @@
  * with uncertainty from whole tracks drawn from the joint smoothing posterior (simulation smoother,
  * session/posterior.ts): per segment and for the whole track the horizontal and 3D length, the area
  * enclosed by a track that closes on itself, and the distance between occupied points; each as the
- * posterior mean, sd and 95% interval (draws' 2.5% and 97.5% quantiles). Beside the lengths, what
- * the raw fixes give: the length of their polyline and the excess that the model's fix noise is
- * expected to add to it (session/raw-length.ts). Lengths and areas are in the session's local
- * transverse Mercator frame (scale 1 at its centre; the scale error is below 1e-6 within 6 km of it).
+ * posterior mean, sd and 95% interval (draws' 2.5% and 97.5% quantiles; each draw's polyline and
+ * sums come from session/survey-draws.ts). Beside the lengths, what the raw fixes give: the length
+ * of their polyline and the excess that the model's fix noise is expected to add to it
+ * (session/raw-length.ts). Lengths and areas are in the session's local transverse Mercator frame
+ * (scale 1 at its centre; the scale error is below 1e-6 within 6 km of it).
  */
 import { STATUS, type SessionResult } from './result.js';
-import { sampleBackward, type TrackPosterior } from './posterior.js';
+import type { TrackPosterior } from './posterior.js';
 import { detectOccupations } from './occupations.js';
 import { recentre, summarize } from './draws.js';
 import type { DistanceEntry, LengthEntry, Occupation, Quantity, SurveyProducts, SurveyVertex } from './survey-types.js';
 
 export type { DistanceEntry, LengthEntry, SurveyProducts, SurveyVertex } from './survey-types.js';
 import { expectedStepLength, stepErrorVariance } from './raw-length.js';
-import { cornerOf, legSums, legWindow, lineOfSums, intersectLines, type LegSums } from './leg-corners.js';
+import { cornerOf, legSums, legWindow, lineOfSums } from './leg-corners.js';
+import { accumulateDraws, drawLengths, occupationMeans, placeVertexDraws, type LegCorners } from './survey-draws.js';
 
 export interface SurveyOptions {
   /** Posterior draws for the measured quantities (0: none; occupations are still found). */
@@ -77,114 +79,24 @@ export function surveyProducts(r: SessionResult, post: TrackPosterior, o: Survey
   const nSeg = post.segments.length;
   const D = drawsFor(r.N, o.draws);
   const threeD = post.nAx === 3;
-  // occupation of each epoch (−1: none)
-  const occAt = new Int32Array(r.N).fill(-1);
-  occ.forEach((p, i) => occAt.fill(i, p.first, p.last + 1));
   // the vertices of the measured polyline (see surveyVertices); the draws' positions at each
   const spacing = vertexSpacing(r, o.vertexSdFactor);
   const vx = surveyVertices(r, occ, post, spacing);
-  const nV = vx.length;
-  const vertexAt = new Int32Array(r.N).fill(-1);
-  vx.forEach((v, i) => {
-    if (v.occupation < 0) vertexAt[v.first] = i;
-  });
   // turns without a stop: the corner rebuilt from the straight legs on either side (leg-corners.ts)
   const corners = legCornersOf(r, vx, SIMPLIFY_SD_FACTOR * (spacing / VERTEX_SD_FACTOR), spacing);
-  const nE = corners.windows.length;
-  const edgeAt = new Int32Array(r.N).fill(-1);
-  corners.windows.forEach((w, i) => {
-    if (w && corners.used[i]) edgeAt.fill(i, w[0], w[1] + 1);
-  });
-  // per used edge and draw: Σe, Σn, Σe², Σn², Σen about the edge's reference point
-  const legAcc = Array.from({ length: nE }, (_, i) => (corners.used[i] ? [0, 1, 2, 3, 4].map(() => new Float64Array(D)) : null));
-  const vPos = [0, 1, 2].map(() => Array.from({ length: nV }, () => new Float64Array(D)));
-  const occSum = occ.map(() => [new Float64Array(D), new Float64Array(D), new Float64Array(D)]);
-  const area2 = new Float64Array(D);
-  const prev = [new Float64Array(D), new Float64Array(D)];
-  const last = [new Float64Array(D), new Float64Array(D)];
-  if (D > 0)
-    sampleBackward(post, D, o.seed, (j, _seg, pos) => {
-      const e = pos[0]!, n = pos[1]!;
-      if (j === r.N - 1) {
-        last[0].set(e);
-        last[1].set(n);
-      } else
-        for (let d = 0; d < D; d++) {
-          // shoelace term of the edge j → j + 1 (across segment gaps too: the polygon is the whole track)
-          area2[d] += e[d]! * prev[1][d]! - prev[0][d]! * n[d]!;
-        }
-      const ei = edgeAt[j]!;
-      if (ei >= 0) {
-        const acc = legAcc[ei]!, ce = corners.ref[ei]![0]!, cn = corners.ref[ei]![1]!;
-        const s0 = acc[0]!, s1 = acc[1]!, s2 = acc[2]!, s3 = acc[3]!, s4 = acc[4]!;
-        for (let d = 0; d < D; d++) {
-          const x = e[d]! - ce, y = n[d]! - cn;
-          s0[d] += x;
-          s1[d] += y;
-          s2[d] += x * x;
-          s3[d] += y * y;
-          s4[d] += x * y;
-        }
-      }
-      const vi = vertexAt[j]!;
-      if (vi >= 0) for (let a = 0; a < post.nAx; a++) vPos[a]![vi]!.set(pos[a]!);
-      const oi = occAt[j]!;
-      if (oi >= 0) {
-        const sum = occSum[oi]!;
-        for (let a = 0; a < post.nAx; a++) {
-          const p = pos[a]!, t = sum[a]!;
-          for (let d = 0; d < D; d++) t[d] += p[d]!;
-        }
-      }
-      prev[0].set(e);
-      prev[1].set(n);
-    });
-  // the closing edge last → first (prev holds epoch 0 now)
-  for (let d = 0; d < D; d++) area2[d] += last[0][d]! * prev[1][d]! - prev[0][d]! * last[1][d]!;
-  // occupation vertices: the draws' mean over the occupation
-  const means = occ.map((p, i) => {
-    const m = p.last - p.first + 1;
-    return occSum[i]!.map((sum) => sum.map((v) => v / m));
-  });
-  vx.forEach((v, i) => {
-    if (v.occupation >= 0) for (let a = 0; a < post.nAx; a++) vPos[a]![i]!.set(means[v.occupation]![a]!);
-  });
-  // rebuilt corners: each draw's own legs' lines intersected (a draw whose lines are parallel keeps its epoch)
-  const sums: LegSums = { n: 0, se: 0, sn: 0, see: 0, snn: 0, sen: 0 };
-  const drawLine = (ei: number, d: number) => {
-    const acc = legAcc[ei]!, w = corners.windows[ei]!;
-    sums.n = w[1] - w[0] + 1;
-    sums.se = acc[0]![d]!;
-    sums.sn = acc[1]![d]!;
-    sums.see = acc[2]![d]!;
-    sums.snn = acc[3]![d]!;
-    sums.sen = acc[4]![d]!;
-    return lineOfSums(sums, corners.ref[ei]![0]!, corners.ref[ei]![1]!);
-  };
-  vx.forEach((v, i) => {
-    if (!corners.at[i]) return;
-    for (let d = 0; d < D; d++) {
-      const x = intersectLines(drawLine(i - 1, d), drawLine(i, d));
-      if (Number.isFinite(x.e) && Number.isFinite(x.n)) {
-        vPos[0]![i]![d] = x.e;
-        vPos[1]![i]![d] = x.n;
-      }
-    }
-  });
-  const lenH = Array.from({ length: nSeg }, () => new Float64Array(D));
-  const len3 = Array.from({ length: nSeg }, () => new Float64Array(D));
-  for (let i = 1; i < nV; i++) {
-    if (vx[i]!.segment !== vx[i - 1]!.segment) continue;
-    const lh = lenH[vx[i]!.segment]!, l3 = len3[vx[i]!.segment]!;
-    for (let d = 0; d < D; d++) {
-      const de = vPos[0]![i]![d]! - vPos[0]![i - 1]![d]!, dn = vPos[1]![i]![d]! - vPos[1]![i - 1]![d]!;
-      const h2 = de * de + dn * dn;
-      lh[d] += Math.sqrt(h2);
-      if (threeD) l3[d] += Math.sqrt(h2 + (vPos[2]![i]![d]! - vPos[2]![i - 1]![d]!) ** 2);
-    }
-  }
+  const sums = accumulateDraws(r, post, occ, vx, corners, D, o.seed);
+  const means = occupationMeans(occ, sums.occSum);
+  placeVertexDraws(vx, corners, sums, means, post.nAx, D);
+  const drawn = drawLengths(vx, sums.vPos, nSeg, D, threeD);
+  const lengths = lengthEntries(r, post, drawn, smoothedLengths(r, post, vx, corners), D, threeD);
+  const c = closureOf(r, sums.area2, D);
+  const distances = D > 0 ? occupationDistances(occ, means, D, threeD) : [];
+  return { draws: D, requestedDraws: o.draws, seed: o.seed, occupationMinSec: o.occupationMinSec, occupations: occ, lengths, closed: c.closed, closureGapM: c.gapM, closureToleranceM: c.toleranceM, areaM2: c.areaM2, distances, vertexSpacingM: spacing, vertices: vx };
+}
 
-  // the same polyline on the smoothed track (vertex = the smoothed positions' average over its epochs)
+/** The polyline's horizontal and 3D length per segment on the smoothed track (vertex = the smoothed positions' average over its epochs, or its rebuilt corner). */
+function smoothedLengths(r: SessionResult, post: TrackPosterior, vx: SurveyVertex[], corners: LegCorners): { sH: Float64Array; s3: Float64Array } {
+  const nSeg = post.segments.length;
   const sH = new Float64Array(nSeg), s3 = new Float64Array(nSeg);
   const sv = vx.map((v, i) => {
     const m = [0, 0, 0];
@@ -196,16 +108,22 @@ export function surveyProducts(r: SessionResult, post: TrackPosterior, o: Survey
     }
     return m;
   });
-  for (let i = 1; i < nV; i++) {
+  for (let i = 1; i < vx.length; i++) {
     if (vx[i]!.segment !== vx[i - 1]!.segment) continue;
     const de = sv[i]![0]! - sv[i - 1]![0]!, dn = sv[i]![1]! - sv[i - 1]![1]!, du = sv[i]![2]! - sv[i - 1]![2]!;
     sH[vx[i]!.segment] += Math.hypot(de, dn);
     s3[vx[i]!.segment] += Math.hypot(de, dn, du);
   }
+  return { sH, s3 };
+}
+
+/** The length entries: per segment, then the whole track (segment −1), from the draws (centred on the smoothed track) and the raw fixes' polyline. */
+function lengthEntries(r: SessionResult, post: TrackPosterior, drawn: { lenH: Float64Array[]; len3: Float64Array[] }, smooth: { sH: Float64Array; s3: Float64Array }, D: number, threeD: boolean): LengthEntry[] {
+  const { lenH, len3 } = drawn, { sH, s3 } = smooth;
   const lengths: LengthEntry[] = [];
   const totH = new Float64Array(D), tot3 = new Float64Array(D);
   let rawTot = 0, excessTot = 0, sHTot = 0, s3Tot = 0;
-  for (let si = 0; si < nSeg; si++) {
+  for (let si = 0; si < post.segments.length; si++) {
     for (let d = 0; d < D; d++) {
       totH[d] += lenH[si]![d]!;
       tot3[d] += len3[si]![d]!;
@@ -218,7 +136,11 @@ export function surveyProducts(r: SessionResult, post: TrackPosterior, o: Survey
     lengths.push({ segment: si, horizontalM: D > 0 ? recentre(summarize(lenH[si]!), sH[si]!) : null, threeDM: D > 0 && threeD ? recentre(summarize(len3[si]!), s3[si]!) : null, rawHorizontalM: raw.lengthM, rawExpectedExcessM: raw.expectedExcessM });
   }
   lengths.push({ segment: -1, horizontalM: D > 0 ? recentre(summarize(totH), sHTot) : null, threeDM: D > 0 && threeD ? recentre(summarize(tot3), s3Tot) : null, rawHorizontalM: rawTot, rawExpectedExcessM: excessTot });
+  return lengths;
+}
 
+/** Whether the smoothed track closes on itself (see CLOSURE_MIN_M), its end-to-start gap and tolerance, and the enclosed area from the draws' shoelace sums when it closes. */
+function closureOf(r: SessionResult, area2: Float64Array, D: number): { closed: boolean; gapM: number; toleranceM: number; areaM2: Quantity | null } {
   // closure on the smoothed track
   const gap = r.N > 1 ? Math.hypot(r.posEnu[0][r.N - 1]! - r.posEnu[0][0]!, r.posEnu[1][r.N - 1]! - r.posEnu[1][0]!) : NaN;
   let smoothLen = 0;
@@ -237,24 +159,27 @@ export function surveyProducts(r: SessionResult, post: TrackPosterior, o: Survey
     }
     areaM2 = recentre(summarize(area2.map((v) => Math.abs(v) / 2)), Math.abs(a2) / 2);
   }
+  return { closed, gapM: gap, toleranceM: tol, areaM2 };
+}
 
+/** The distances between occupied points (every pair up to ALL_PAIRS_MAX, else consecutive ones) from each draw's means, centred on the occupations' positions. */
+function occupationDistances(occ: Occupation[], means: Float64Array[][], D: number, threeD: boolean): DistanceEntry[] {
   const distances: DistanceEntry[] = [];
   const pairs: Array<[number, number]> = [];
   if (occ.length <= ALL_PAIRS_MAX) for (let a = 0; a < occ.length; a++) for (let b = a + 1; b < occ.length; b++) pairs.push([a, b]);
   else for (let a = 0; a + 1 < occ.length; a++) pairs.push([a, a + 1]);
-  if (D > 0)
-    for (const [a, b] of pairs) {
-      const h = new Float64Array(D), t = new Float64Array(D);
-      for (let d = 0; d < D; d++) {
-        const de = means[a]![0]![d]! - means[b]![0]![d]!, dn = means[a]![1]![d]! - means[b]![1]![d]!;
-        h[d] = Math.hypot(de, dn);
-        if (threeD) t[d] = Math.hypot(de, dn, means[a]![2]![d]! - means[b]![2]![d]!);
-      }
-      const pa = occ[a]!.posEnu, pb = occ[b]!.posEnu;
-      const eh = Math.hypot(pa[0] - pb[0], pa[1] - pb[1]), e3 = Math.hypot(pa[0] - pb[0], pa[1] - pb[1], pa[2] - pb[2]);
-      distances.push({ from: occ[a]!.id, to: occ[b]!.id, horizontalM: recentre(summarize(h), eh), threeDM: threeD ? recentre(summarize(t), e3) : null });
+  for (const [a, b] of pairs) {
+    const h = new Float64Array(D), t = new Float64Array(D);
+    for (let d = 0; d < D; d++) {
+      const de = means[a]![0]![d]! - means[b]![0]![d]!, dn = means[a]![1]![d]! - means[b]![1]![d]!;
+      h[d] = Math.hypot(de, dn);
+      if (threeD) t[d] = Math.hypot(de, dn, means[a]![2]![d]! - means[b]![2]![d]!);
     }
-  return { draws: D, requestedDraws: o.draws, seed: o.seed, occupationMinSec: o.occupationMinSec, occupations: occ, lengths, closed, closureGapM: gap, closureToleranceM: tol, areaM2, distances, vertexSpacingM: spacing, vertices: vx };
+    const pa = occ[a]!.posEnu, pb = occ[b]!.posEnu;
+    const eh = Math.hypot(pa[0] - pb[0], pa[1] - pb[1]), e3 = Math.hypot(pa[0] - pb[0], pa[1] - pb[1], pa[2] - pb[2]);
+    distances.push({ from: occ[a]!.id, to: occ[b]!.id, horizontalM: recentre(summarize(h), eh), threeDM: threeD ? recentre(summarize(t), e3) : null });
+  }
+  return distances;
 }
 
 /**
@@ -263,7 +188,7 @@ export function surveyProducts(r: SessionResult, post: TrackPosterior, o: Survey
  * corner uses it; per vertex the corner on the smoothed track, or null. Marks each rebuilt vertex's
  * `corner` with its two windows.
  */
-export function legCornersOf(r: SessionResult, vx: SurveyVertex[], tolM: number, spacingM: number): { windows: Array<[number, number] | null>; ref: Array<[number, number] | null>; used: Uint8Array; at: Array<{ e: number; n: number } | null> } {
+export function legCornersOf(r: SessionResult, vx: SurveyVertex[], tolM: number, spacingM: number): LegCorners {
   const nV = vx.length;
   const e = r.posEnu[0], n = r.posEnu[1];
   const windows: Array<[number, number] | null> = [];
