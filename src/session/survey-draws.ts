@@ -59,8 +59,8 @@ export function accumulateDraws(r: SessionResult, post: TrackPosterior, occ: Occ
   const vPos = [0, 1, 2].map(() => Array.from({ length: vx.length }, () => new Float64Array(D)));
   const occSum = occ.map(() => [new Float64Array(D), new Float64Array(D), new Float64Array(D)]);
   const area2 = new Float64Array(D);
-  const prev = [new Float64Array(D), new Float64Array(D)];
-  const last = [new Float64Array(D), new Float64Array(D)];
+  const prev: [Float64Array, Float64Array] = [new Float64Array(D), new Float64Array(D)];
+  const last: [Float64Array, Float64Array] = [new Float64Array(D), new Float64Array(D)];
   if (D > 0)
     sampleBackward(post, D, seed, (j, _seg, pos) => {
       const e = pos[0]!, n = pos[1]!;
@@ -70,7 +70,7 @@ export function accumulateDraws(r: SessionResult, post: TrackPosterior, occ: Occ
       } else
         for (let d = 0; d < D; d++) {
           // shoelace term of the edge j → j + 1 (across segment gaps too: the polygon is the whole track)
-          area2[d] += e[d]! * prev[1][d]! - prev[0][d]! * n[d]!;
+          area2[d] = area2[d]! + (e[d]! * prev[1][d]! - prev[0][d]! * n[d]!);
         }
       const ei = edgeAt[j]!;
       if (ei >= 0) {
@@ -78,11 +78,11 @@ export function accumulateDraws(r: SessionResult, post: TrackPosterior, occ: Occ
         const s0 = acc[0]!, s1 = acc[1]!, s2 = acc[2]!, s3 = acc[3]!, s4 = acc[4]!;
         for (let d = 0; d < D; d++) {
           const x = e[d]! - ce, y = n[d]! - cn;
-          s0[d] += x;
-          s1[d] += y;
-          s2[d] += x * x;
-          s3[d] += y * y;
-          s4[d] += x * y;
+          s0[d] = s0[d]! + x;
+          s1[d] = s1[d]! + y;
+          s2[d] = s2[d]! + x * x;
+          s3[d] = s3[d]! + y * y;
+          s4[d] = s4[d]! + x * y;
         }
       }
       const vi = vertexAt[j]!;
@@ -92,14 +92,14 @@ export function accumulateDraws(r: SessionResult, post: TrackPosterior, occ: Occ
         const sum = occSum[oi]!;
         for (let a = 0; a < post.nAx; a++) {
           const p = pos[a]!, t = sum[a]!;
-          for (let d = 0; d < D; d++) t[d] += p[d]!;
+          for (let d = 0; d < D; d++) t[d] = t[d]! + p[d]!;
         }
       }
       prev[0].set(e);
       prev[1].set(n);
     });
   // the closing edge last → first (prev holds epoch 0 now)
-  for (let d = 0; d < D; d++) area2[d] += last[0][d]! * prev[1][d]! - prev[0][d]! * last[1][d]!;
+  for (let d = 0; d < D; d++) area2[d] = area2[d]! + (last[0][d]! * prev[1][d]! - prev[0][d]! * last[1][d]!);
   return { legAcc, vPos, occSum, area2 };
 }
 
@@ -152,8 +152,8 @@ export function drawLengths(vx: SurveyVertex[], vPos: Float64Array[][], nSeg: nu
     for (let d = 0; d < D; d++) {
       const de = vPos[0]![i]![d]! - vPos[0]![i - 1]![d]!, dn = vPos[1]![i]![d]! - vPos[1]![i - 1]![d]!;
       const h2 = de * de + dn * dn;
-      lh[d] += Math.sqrt(h2);
-      if (threeD) l3[d] += Math.sqrt(h2 + (vPos[2]![i]![d]! - vPos[2]![i - 1]![d]!) ** 2);
+      lh[d] = lh[d]! + Math.sqrt(h2);
+      if (threeD) l3[d] = l3[d]! + Math.sqrt(h2 + (vPos[2]![i]![d]! - vPos[2]![i - 1]![d]!) ** 2);
     }
   }
   return { lenH, len3 };

@@ -100,7 +100,7 @@ function smoothedLengths(r: SessionResult, post: TrackPosterior, vx: SurveyVerte
   const sH = new Float64Array(nSeg), s3 = new Float64Array(nSeg);
   const sv = vx.map((v, i) => {
     const m = [0, 0, 0];
-    for (let j = v.first; j <= v.last; j++) for (let a = 0; a < post.nAx; a++) m[a] += r.posEnu[a]![j]! / (v.last - v.first + 1);
+    for (let j = v.first; j <= v.last; j++) for (let a = 0; a < post.nAx; a++) m[a] = m[a]! + r.posEnu[a]![j]! / (v.last - v.first + 1);
     const c = corners.at[i];
     if (c) {
       m[0] = c.e;
@@ -111,8 +111,9 @@ function smoothedLengths(r: SessionResult, post: TrackPosterior, vx: SurveyVerte
   for (let i = 1; i < vx.length; i++) {
     if (vx[i]!.segment !== vx[i - 1]!.segment) continue;
     const de = sv[i]![0]! - sv[i - 1]![0]!, dn = sv[i]![1]! - sv[i - 1]![1]!, du = sv[i]![2]! - sv[i - 1]![2]!;
-    sH[vx[i]!.segment] += Math.hypot(de, dn);
-    s3[vx[i]!.segment] += Math.hypot(de, dn, du);
+    const si = vx[i]!.segment;
+    sH[si] = sH[si]! + Math.hypot(de, dn);
+    s3[si] = s3[si]! + Math.hypot(de, dn, du);
   }
   return { sH, s3 };
 }
@@ -125,8 +126,8 @@ function lengthEntries(r: SessionResult, post: TrackPosterior, drawn: { lenH: Fl
   let rawTot = 0, excessTot = 0, sHTot = 0, s3Tot = 0;
   for (let si = 0; si < post.segments.length; si++) {
     for (let d = 0; d < D; d++) {
-      totH[d] += lenH[si]![d]!;
-      tot3[d] += len3[si]![d]!;
+      totH[d] = totH[d]! + lenH[si]![d]!;
+      tot3[d] = tot3[d]! + len3[si]![d]!;
     }
     sHTot += sH[si]!;
     s3Tot += s3[si]!;
