@@ -308,24 +308,11 @@ function horizontalExtentOf(ps: PreparedSession): number {
   return Math.max(ext(ps.e), ext(ps.n));
 }
 
-/**
- * Estimate the session's parameters. `start` (an earlier round's estimate) is where the search
- * begins; the prior stays centred on the profile. `useOverride` (per segment) holds outlier decisions
- * fixed (2 kept without gate, 0 rejected) instead of the gate.
- */
-export function calibrateSession(
-  ps: PreparedSession,
-  cfg: HindcastConfig,
-  prior: AxisParams,
-  opt: CalibrationOptions = DEFAULT_CALIBRATION,
-  start?: AxisParams,
-  useOverride?: Map<number, Uint8Array>,
-): { params: AxisParams; info: CalibrationInfo; warnings: string[] } {
-  const warnings: string[] = [];
-  const fallback = (reason: string): { params: AxisParams; info: CalibrationInfo; warnings: string[] } => {
-    warnings.push(`noise calibration skipped: ${reason}; the profile's values are used`);
-    return { params: prior, info: { method: 'profile values', status: 'fallback', reason, epochsUsed: 0, logLikelihood: NaN, evaluations: 0, estimates: {}, reportedSigmaScale: ps.factors.reported }, warnings };
-  };
+/** What calibrateSession returns: the parameters, how they were found, and the warnings. */
+type CalibrationResult = { params: AxisParams; info: CalibrationInfo; warnings: string[] };
+
+/** Why the log is too short to calibrate (too few usable fixes, or too short a span of them), or null when it is long enough. */
+function tooShortReason(ps: PreparedSession, opt: CalibrationOptions): string | null {
   let offered = 0;
   let t0 = Infinity, t1 = -Infinity;
   for (let i = 0; i < ps.series.n; i++)
@@ -334,28 +321,57 @@ export function calibrateSession(
       t0 = Math.min(t0, ps.series.tSec[i]!);
       t1 = Math.max(t1, ps.series.tSec[i]!);
     }
-  if (offered < opt.minFixes) return fallback(`only ${offered} usable fixes (needs ${opt.minFixes})`);
-  if (t1 - t0 < opt.minDurationSec) return fallback(`only ${Math.round(t1 - t0)} s of fixes (needs ${opt.minDurationSec} s)`);
+  if (offered < opt.minFixes) return `only ${offered} usable fixes (needs ${opt.minFixes})`;
+  if (t1 - t0 < opt.minDurationSec) return `only ${Math.round(t1 - t0)} s of fixes (needs ${opt.minDurationSec} s)`;
+  return null;
+}
 
+/** The parameters estimated for the session, in search order, and whether the vertical correlation time is one of them. */
+function calibratedNames(ps: PreparedSession, cfg: HindcastConfig): { names: ParamName[]; ownTauV: boolean } {
   const names: ParamName[] = ['sigmaHorizontalM', 'gmHorizontalSigmaM', 'gmTauSec'];
   // the vertical correlation time: its own parameter, or the horizontal one's value (noise.verticalCorrelationTime)
   const ownTauV = ps.hasHeight && cfg.noise.verticalCorrelationTime === 'own';
   if (ps.hasHeight) names.splice(1, 0, 'sigmaVerticalM'), names.push('gmVerticalSigmaM');
   if (ownTauV) names.push('gmVerticalTauSec');
-  // A static log is estimated like any other: its process noise goes to (near) its lower bound, and
-  // with the motion model still, the wander of the fixes is the correlated error, which is then well
-  // identified. Measured on 2-hour static logs (test/session/consistency.test.ts): holding q at the
-  // profile value instead (it lets the motion absorb the correlated error) gave a time constant of
-  // ~300 s for a true 45 s and 0.87–0.88 horizontal coverage; estimated, 36–50 s and 0.96–1.00.
-  const staticLog = horizontalExtentM(ps) < 6 * prior.sigmaHorizontalM;
-  if (staticLog) warnings.push('the log looks static (fixes spread less than a few sigmas): the motion model is estimated as (nearly) still');
+  // the process noise is estimated on a static log too (staticLogWarning)
   names.push('qHorizontal');
   if (ps.hasHeight) names.push('qVertical');
   // how far the quality columns predict the error: an exponent each, 0 (ignore) to 1 (proportional)
   const ex = ps.factors.exponents;
   if (ex.hdop) names.push('hdopExponent');
   if (ex.sats) names.push('satsExponent');
-  const withExponents = ex.hdop || ex.sats;
+  return { names, ownTauV };
+}
+
+/**
+ * The warning for a log that looks static, or null. A static log is estimated like any other: its
+ * process noise goes to (near) its lower bound, and with the motion model still, the wander of the
+ * fixes is the correlated error, which is then well identified. Measured on 2-hour static logs
+ * (test/session/consistency.test.ts): holding q at the profile value instead (it lets the motion
+ * absorb the correlated error) gave a time constant of ~300 s for a true 45 s and 0.87–0.88
+ * horizontal coverage; estimated, 36–50 s and 0.96–1.00.
+ */
+function staticLogWarning(ps: PreparedSession, prior: AxisParams): string | null {
+  const staticLog = horizontalExtentM(ps) < 6 * prior.sigmaHorizontalM;
+  return staticLog ? 'the log looks static (fixes spread less than a few sigmas): the motion model is estimated as (nearly) still' : null;
+}
+
+/** One item of the objective: its filter inputs, whether east and north have the same inputs, and each epoch's quality log terms (null where no exponent is estimated). */
+interface ObjectiveItem {
+  data: SegmentData;
+  sameInputs: boolean;
+  terms: Float64Array | null;
+}
+
+/** The calibration subset as the objective reads it: under held-fixed decisions when given, thinned by calibrationStride, each chunk from its first fix. */
+function objectiveSubset(
+  ps: PreparedSession,
+  cfg: HindcastConfig,
+  prior: AxisParams,
+  opt: CalibrationOptions,
+  withExponents: boolean,
+  useOverride?: Map<number, Uint8Array>,
+): ObjectiveItem[] {
   const chunks = calibrationSubset(ps, prior, cfg.segments.bridgeFactor, opt.maxEpochs);
   // held-fixed outlier decisions (2 kept without gate, 0 rejected) replace the gate when given
   if (useOverride)
@@ -366,7 +382,7 @@ export function calibrateSession(
   const stride = calibrationStride(ps, cfg.segments.bridgeFactor, opt.maxEpochs);
   // with whether east and north have the same inputs (a property of the data alone, so found once),
   // and, where the exponents are estimated, the log quality terms of each epoch's fix (qualityLogTerms)
-  const subset: Array<{ data: SegmentData; sameInputs: boolean; terms: Float64Array | null }> = [];
+  const subset: ObjectiveItem[] = [];
   const lt = new Float64Array(4);
   for (const item of chunks) {
     const thinned = thin(item.data, item.fix, stride);
@@ -385,45 +401,43 @@ export function calibrateSession(
     }
     subset.push({ data: d.data, sameInputs: sameHorizontalInputs(d.data), terms });
   }
-  const epochsUsed = subset.reduce((a, d) => a + d.data.N, 0);
-  const toX = (nm: ParamName, v: number) => {
-    const c = Math.min(Math.max(v, PARAM_BOUNDS[nm][0]), PARAM_BOUNDS[nm][1]);
-    return LINEAR.has(nm) ? c : Math.log(c);
-  };
-  const fromX = (nm: ParamName, x: number) => (LINEAR.has(nm) ? x : Math.exp(x));
-  // the prior is centred on the profile; the search starts from `start` (an earlier round) when given;
-  // the exponents start half-way (the profile states none) unless an earlier round estimated them
-  const startOf = (p: AxisParams, nm: ParamName): number => (LINEAR.has(nm) ? (p[nm] as number | undefined) ?? 0.5 : (p[nm] as number | undefined) ?? (nm === 'gmVerticalTauSec' ? p.gmTauSec : NaN));
-  const xPrior = names.map((nm) => toX(nm, startOf(prior, nm)));
-  const x0 = names.map((nm) => toX(nm, startOf(start ?? prior, nm)));
-  const base = start ?? prior;
+  return subset;
+}
+
+/** A parameter's search coordinate: its value clamped to its bounds, in log space (the exponents: their own scale). */
+function toX(nm: ParamName, v: number): number {
+  const c = Math.min(Math.max(v, PARAM_BOUNDS[nm][0]), PARAM_BOUNDS[nm][1]);
+  return LINEAR.has(nm) ? c : Math.log(c);
+}
+
+/** A parameter's value from its search coordinate. */
+function fromX(nm: ParamName, x: number): number {
+  return LINEAR.has(nm) ? x : Math.exp(x);
+}
+
+/** A parameter's starting value in p: the exponents half-way unless set, the vertical time constant the horizontal one's unless set. */
+function startOf(p: AxisParams, nm: ParamName): number {
+  return LINEAR.has(nm) ? (p[nm] as number | undefined) ?? 0.5 : (p[nm] as number | undefined) ?? (nm === 'gmVerticalTauSec' ? p.gmTauSec : NaN);
+}
+
+/** The parameters at search coordinates x: base with the searched names replaced (the vertical time constant the horizontal one's unless its own). */
+function paramsAt(x: number[], names: ParamName[], base: AxisParams, ownTauV: boolean): AxisParams {
+  const p = { ...base };
+  names.forEach((nm, i) => ((p as Record<ParamName, number>)[nm] = fromX(nm, x[i]!)));
+  if (!ownTauV) p.gmVerticalTauSec = p.gmTauSec;
+  return p;
+}
+
+/** The log-likelihood of the subset's innovations under parameters p (rewrites the subset's variances where the exponents change). */
+function makeLogLik(ps: PreparedSession, cfg: HindcastConfig, prior: AxisParams, subset: ObjectiveItem[], withExponents: boolean): (p: AxisParams) => number {
   const histories = new Map<SegmentData, FilterHistory>();
   const fopt = filterOptions(cfg, prior);
   // no re-acquisition here: its covariance inflation would explain manoeuvres for free
   const lopt = { ...fopt, reacquireAfter: Number.MAX_SAFE_INTEGER, likelihood: true };
   const llWork = makeLogLikWork(ps.hasHeight ? 3 : 2);
-
-  const toParams = (x: number[]): AxisParams => {
-    const p = { ...base };
-    names.forEach((nm, i) => ((p as Record<ParamName, number>)[nm] = fromX(nm, x[i]!)));
-    if (!ownTauV) p.gmVerticalTauSec = p.gmTauSec;
-    return p;
-  };
-  const iTauH = names.indexOf('gmTauSec'), iTauV = names.indexOf('gmVerticalTauSec');
-  // noise.correlatedSigmaPrior 'vertical': the horizontal correlated sigma's prior follows the vertical estimate, with a floor on qV
-  const fromVertical = cfg.noise.correlatedSigmaPrior === 'vertical';
-  const iGmH = names.indexOf('gmHorizontalSigmaM'), iGmV = fromVertical ? names.indexOf('gmVerticalSigmaM') : -1;
-  const iQH = names.indexOf('qHorizontal'), iQV = fromVertical ? names.indexOf('qVertical') : -1;
-  const logQFloor = Math.log(VERTICAL_Q_FLOOR_RATIO);
   // the exponents the subset's r holds (NaN: not yet written)
   let rExp = [NaN, NaN];
-  const negLogLik = (x: number[]): number => {
-    for (let i = 0; i < names.length; i++) {
-      const nm = names[i]!;
-      const [lo, hi] = PARAM_BOUNDS[nm];
-      if (x[i]! < toX(nm, lo) || x[i]! > toX(nm, hi)) return Infinity;
-    }
-    const p = toParams(x);
+  return (p) => {
     const models = buildAxisModels(p, ps.hasHeight);
     const rScale = [p.sigmaHorizontalM ** 2, p.sigmaHorizontalM ** 2, p.sigmaVerticalM ** 2];
     if (withExponents) {
@@ -452,6 +466,19 @@ export function calibrateSession(
       forwardFilter(models, d, { ...fopt, rScale, reacquireAfter: Number.MAX_SAFE_INTEGER, likelihood: true }, h);
       ll += totalLogLik(h);
     }
+    return ll;
+  };
+}
+
+/** The prior's penalty (−log density up to a constant) at search coordinates x, around the prior centres xPrior. */
+function makePriorPenalty(names: ParamName[], xPrior: number[], cfg: HindcastConfig): (x: number[]) => number {
+  const iTauH = names.indexOf('gmTauSec'), iTauV = names.indexOf('gmVerticalTauSec');
+  // noise.correlatedSigmaPrior 'vertical': the horizontal correlated sigma's prior follows the vertical estimate, with a floor on qV
+  const fromVertical = cfg.noise.correlatedSigmaPrior === 'vertical';
+  const iGmH = names.indexOf('gmHorizontalSigmaM'), iGmV = fromVertical ? names.indexOf('gmVerticalSigmaM') : -1;
+  const iQH = names.indexOf('qHorizontal'), iQV = fromVertical ? names.indexOf('qVertical') : -1;
+  const logQFloor = Math.log(VERTICAL_Q_FLOOR_RATIO);
+  return (x) => {
     // weak log-normal prior around the profile (none on the exponents: flat between their bounds)
     // (the vertical time constant's is centred on the horizontal one: it departs from it where the
     // vertical series says so, and follows it where that series says little; the horizontal
@@ -470,20 +497,29 @@ export function calibrateSession(
       const below = logQFloor + x[iQH]! - x[iQV]!;
       if (below > 0) pen += 0.5 * (below / VERTICAL_Q_FLOOR_LOG_SD) ** 2;
     }
-    return -ll + pen;
+    return pen;
   };
-  // quasi-Newton where the outlier decisions are held fixed (a smooth objective); under the gate
-  // (the first round) the objective jumps wherever a fix crosses the threshold, which stalls a
-  // difference gradient (measured on vehicle and drone logs: BFGS from the profile stopped 70–3,800
-  // below the simplex's log-likelihood, and 2–70 below when started from the simplex's first
-  // restart), so that round keeps the simplex
-  const quasiNewton = opt.optimizer !== 'nelder-mead' && useOverride !== undefined;
-  let res: { x: number[]; f: number };
-  let evaluations: number;
-  // projected BFGS inside the bounds; a difference step of 1e-5 (log space: 0.001 %) is far below
-  // the standard errors and far above the objective's rounding
-  const bfgs = (from: number[]) =>
-    boxBfgs(negLogLik, from, {
+}
+
+/** The objective: −log-likelihood plus the prior's penalty at search coordinates x, infinite outside the bounds. */
+function makeObjective(names: ParamName[], toParams: (x: number[]) => AxisParams, logLik: (p: AxisParams) => number, penalty: (x: number[]) => number): (x: number[]) => number {
+  return (x) => {
+    for (let i = 0; i < names.length; i++) {
+      const nm = names[i]!;
+      const [lo, hi] = PARAM_BOUNDS[nm];
+      if (x[i]! < toX(nm, lo) || x[i]! > toX(nm, hi)) return Infinity;
+    }
+    const ll = logLik(toParams(x));
+    return -ll + penalty(x);
+  };
+}
+
+/** Minimize the objective from x0: projected BFGS inside the bounds (quasiNewton) or the simplex in two restarts. */
+function minimize(negLogLik: (x: number[]) => number, names: ParamName[], x0: number[], opt: CalibrationOptions, quasiNewton: boolean): { x: number[]; f: number; evaluations: number } {
+  if (quasiNewton) {
+    // projected BFGS inside the bounds; a difference step of 1e-5 (log space: 0.001 %) is far below
+    // the standard errors and far above the objective's rounding
+    const q = boxBfgs(negLogLik, x0, {
       lo: names.map((nm) => toX(nm, PARAM_BOUNDS[nm][0])),
       hi: names.map((nm) => toX(nm, PARAM_BOUNDS[nm][1])),
       maxEvaluations: opt.maxEvaluations,
@@ -493,18 +529,40 @@ export function calibrateSession(
       // a diagonal start from second differences at 0.01 (1 % in log space): the search starts near the optimum
       curvatureStep: names.map(() => 0.01),
     });
-  if (quasiNewton) {
-    const q = bfgs(x0);
-    res = q;
-    evaluations = q.evaluations;
-  } else {
-    // two restarts: the second from the first optimum, which escapes early simplex collapse
-    const res1 = nelderMead(negLogLik, x0, { step: names.map((nm) => (LINEAR.has(nm) ? 0.3 : 0.7)), maxEvaluations: Math.floor(opt.maxEvaluations * 0.6), fTolerance: 1e-2, xTolerance: 1e-2 });
-    const res2 = nelderMead(negLogLik, res1.x, { step: names.map((nm) => (LINEAR.has(nm) ? 0.1 : 0.25)), maxEvaluations: Math.floor(opt.maxEvaluations * 0.4), fTolerance: 1e-3, xTolerance: 5e-3 });
-    evaluations = res1.evaluations + res2.evaluations;
-    res = res2.f <= res1.f ? res2 : res1;
+    return { x: q.x, f: q.f, evaluations: q.evaluations };
   }
-  const params = toParams(res.x);
+  // two restarts: the second from the first optimum, which escapes early simplex collapse
+  const res1 = nelderMead(negLogLik, x0, { step: names.map((nm) => (LINEAR.has(nm) ? 0.3 : 0.7)), maxEvaluations: Math.floor(opt.maxEvaluations * 0.6), fTolerance: 1e-2, xTolerance: 1e-2 });
+  const res2 = nelderMead(negLogLik, res1.x, { step: names.map((nm) => (LINEAR.has(nm) ? 0.1 : 0.25)), maxEvaluations: Math.floor(opt.maxEvaluations * 0.4), fTolerance: 1e-3, xTolerance: 5e-3 });
+  const res = res2.f <= res1.f ? res2 : res1;
+  return { x: res.x, f: res.f, evaluations: res1.evaluations + res2.evaluations };
+}
+
+/** Standard errors in search coordinates at the optimum x over the parameters `free` (NaN elsewhere, or where the information matrix is singular). */
+function searchStandardErrors(negLogLik: (x: number[]) => number, x: number[], free: number[]): number[] {
+  const seLog: number[] = x.map(() => NaN);
+  try {
+    const sub = (y: number[]) => {
+      const xs = x.slice();
+      free.forEach((i, j) => (xs[i] = y[j]!));
+      return negLogLik(xs);
+    };
+    const H = free.length ? numericalHessian(sub, free.map((i) => x[i]!), free.map(() => 0.02)) : [];
+    if (free.length && H.every((row) => row.every(Number.isFinite))) {
+      const C = inverse(new Matrix(H));
+      free.forEach((i, j) => {
+        const v = C.get(j, j);
+        seLog[i] = v > 0 ? Math.sqrt(v) : NaN;
+      });
+    }
+  } catch {
+    /* singular information matrix: standard errors stay NaN */
+  }
+  return seLog;
+}
+
+/** The estimates at the optimum x (parameters `params`), with standard errors when `standardErrors` and whether each sits at a bound. */
+function paramEstimates(negLogLik: (x: number[]) => number, names: ParamName[], x: number[], params: AxisParams, standardErrors: boolean): CalibrationInfo['estimates'] {
   // standard errors from the observed information (Hessian of −log L in log space), over the
   // parameters inside their bounds (a parameter at a bound is held there: the objective is infinite
   // beyond it, so its own curvature is undefined and would leave every standard error NaN)
@@ -516,31 +574,56 @@ export function calibrateSession(
     return LINEAR.has(nm) ? v <= lo + 0.02 || v >= hi - 0.02 : v <= lo * 1.05 || v >= hi / 1.05;
   });
   const free = names.map((_, i) => i).filter((i) => !atBound[i]);
-  const seLog: number[] = names.map(() => NaN);
-  if (opt.standardErrors !== false) {
-    try {
-      const sub = (y: number[]) => {
-        const x = res.x.slice();
-        free.forEach((i, j) => (x[i] = y[j]!));
-        return negLogLik(x);
-      };
-      const H = free.length ? numericalHessian(sub, free.map((i) => res.x[i]!), free.map(() => 0.02)) : [];
-      if (free.length && H.every((row) => row.every(Number.isFinite))) {
-        const C = inverse(new Matrix(H));
-        free.forEach((i, j) => {
-          const v = C.get(j, j);
-          seLog[i] = v > 0 ? Math.sqrt(v) : NaN;
-        });
-      }
-    } catch {
-      /* singular information matrix: standard errors stay NaN */
-    }
-  }
+  const seLog = standardErrors ? searchStandardErrors(negLogLik, x, free) : names.map(() => NaN);
   names.forEach((nm, i) => {
     const v = params[nm] as number;
     // delta method: se(θ) ≈ θ · se(log θ) (the exponents: their own scale)
     estimates[nm] = { value: v, se: LINEAR.has(nm) ? seLog[i]! : v * seLog[i]!, atBound: atBound[i]! };
   });
+  return estimates;
+}
+
+/**
+ * Estimate the session's parameters. `start` (an earlier round's estimate) is where the search
+ * begins; the prior stays centred on the profile. `useOverride` (per segment) holds outlier decisions
+ * fixed (2 kept without gate, 0 rejected) instead of the gate.
+ */
+export function calibrateSession(
+  ps: PreparedSession,
+  cfg: HindcastConfig,
+  prior: AxisParams,
+  opt: CalibrationOptions = DEFAULT_CALIBRATION,
+  start?: AxisParams,
+  useOverride?: Map<number, Uint8Array>,
+): CalibrationResult {
+  const warnings: string[] = [];
+  const short = tooShortReason(ps, opt);
+  if (short !== null) {
+    warnings.push(`noise calibration skipped: ${short}; the profile's values are used`);
+    return { params: prior, info: { method: 'profile values', status: 'fallback', reason: short, epochsUsed: 0, logLikelihood: NaN, evaluations: 0, estimates: {}, reportedSigmaScale: ps.factors.reported }, warnings };
+  }
+  const { names, ownTauV } = calibratedNames(ps, cfg);
+  const staticWarning = staticLogWarning(ps, prior);
+  if (staticWarning) warnings.push(staticWarning);
+  const withExponents = ps.factors.exponents.hdop || ps.factors.exponents.sats;
+  const subset = objectiveSubset(ps, cfg, prior, opt, withExponents, useOverride);
+  const epochsUsed = subset.reduce((a, d) => a + d.data.N, 0);
+  // the prior is centred on the profile; the search starts from `start` (an earlier round) when given;
+  // the exponents start half-way (the profile states none) unless an earlier round estimated them
+  const xPrior = names.map((nm) => toX(nm, startOf(prior, nm)));
+  const x0 = names.map((nm) => toX(nm, startOf(start ?? prior, nm)));
+  const base = start ?? prior;
+  const toParams = (x: number[]): AxisParams => paramsAt(x, names, base, ownTauV);
+  const negLogLik = makeObjective(names, toParams, makeLogLik(ps, cfg, prior, subset, withExponents), makePriorPenalty(names, xPrior, cfg));
+  // quasi-Newton where the outlier decisions are held fixed (a smooth objective); under the gate
+  // (the first round) the objective jumps wherever a fix crosses the threshold, which stalls a
+  // difference gradient (measured on vehicle and drone logs: BFGS from the profile stopped 70–3,800
+  // below the simplex's log-likelihood, and 2–70 below when started from the simplex's first
+  // restart), so that round keeps the simplex
+  const quasiNewton = opt.optimizer !== 'nelder-mead' && useOverride !== undefined;
+  const res = minimize(negLogLik, names, x0, opt, quasiNewton);
+  const params = toParams(res.x);
+  const estimates = paramEstimates(negLogLik, names, res.x, params, opt.standardErrors !== false);
   return {
     params,
     info: {
@@ -548,7 +631,7 @@ export function calibrateSession(
       status: 'estimated',
       epochsUsed,
       logLikelihood: -res.f,
-      evaluations,
+      evaluations: res.evaluations,
       estimates,
       reportedSigmaScale: ps.factors.reported,
     },
