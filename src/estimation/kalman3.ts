@@ -4,7 +4,7 @@
  * constant acceleration without it) on the same flat row-major arrays. Unrolled, with every
  * operand in a local, so the per-epoch cost is the arithmetic alone (no loops, no bounds checks,
  * no scratch traffic). Covariances are packed upper triangles; the generic kernels stay the
- * reference, through the full-matrix n = 3 kernels in test/helpers/kalman3-full.ts.
+ * reference (test/estimation/kalman3.test.ts checks these against them to rounding).
  * Sources: as kalman.ts (Kalman 1960; Bar-Shalom, Li, Kirubarajan 2001 §5.2; Grewal & Andrews 2015
  * §6) and rts.ts (Rauch, Tung, Striebel 1965; Särkkä 2013 Theorem 8.2); Cholesky: Golub & Van Loan
  * (2013) Algorithm 4.2.1.
@@ -13,9 +13,8 @@
 
 /*
  * A symmetric 3×3 covariance is stored as its upper triangle, [p00, p01, p02, p11, p12, p22]
- * (6 doubles instead of 9). Same arithmetic as the full-matrix kernels (test/helpers/kalman3-full.ts):
- * those read the lower triangle only where it mirrors the upper one, and write it mirrored, so on
- * symmetric input these give the same bits.
+ * (6 doubles instead of 9); element (i, j) is at covIndex(3, i, j) (track-filter.ts). Each kernel
+ * computes only the upper triangle, so its results are symmetric by construction.
  */
 export function predict3p(
   F: Float64Array,
@@ -133,7 +132,7 @@ export function rtsState3(F: Float64Array, gT: Float64Array, x: Float64Array, xk
  * fx, fP (at xk, Pk), the smoothed ones of k + 1 from x, P (at xk1, Pk1), and the smoothed epoch k
  * is written to x, P (at xk, Pk); every input is read before anything is written, so fx = x, fP = P
  * is the in-place step (rtsStep3p). Out of place it saves the windowed re-smoothing a copy of the
- * filtered epoch (the same bits as copying it first: test/estimation/kalman3-packed.test.ts).
+ * filtered epoch (the same bits as copying it first: test/estimation/kalman3.test.ts).
  */
 export function rtsStep3pFrom(F: Float64Array, Q: Float64Array, fx: Float64Array, fP: Float64Array, x: Float64Array, xk: number, xk1: number, P: Float64Array, Pk: number, Pk1: number, gOut?: Float64Array): boolean {
   const f00 = F[0]!, f01 = F[1]!, f02 = F[2]!, f10 = F[3]!, f11 = F[4]!, f12 = F[5]!, f20 = F[6]!, f21 = F[7]!, f22 = F[8]!;

@@ -533,7 +533,7 @@ class GeneralSteps implements EpochSteps {
  * q or r scale, no likelihood; 2 axes, or 3 with the vertical. The step matrices are looked up only
  * when Δt changes or at a step with re-acquisition noise (ensureStep would return at once otherwise),
  * and east's innovation (P hᵀ, S) serves north too (the same P and r, so the same numbers): the
- * general steps' result bit for bit (test/estimation/forward-filter-shared.test.ts).
+ * general steps' result bit for bit (test/estimation/forward-filter.test.ts).
  */
 class Shared3Steps implements EpochSteps {
   nis = 0;

@@ -1,8 +1,8 @@
 /**
  * forwardLogLik (the calibration's log-likelihood without a history, src/estimation/track-loglik.ts)
- * against totalLogLik of the forward filter with the likelihood on, in its current general loop and
- * in its previous form kept verbatim in test/helpers/reference-track-filter.ts, compared with
- * Object.is. Cases: gated subsets with outlier bursts (rejected fixes: capped terms), user-kept fixes,
+ * against totalLogLik of forwardFilter with the likelihood on (its general loop; the per-epoch terms
+ * are checked against the textbook filter in forward-filter.test.ts), compared with Object.is: the
+ * same kernels on the same numbers, without the history. Cases: gated subsets with outlier bursts (rejected fixes: capped terms), user-kept fixes,
  * a vertical axis with missing values, logs without height, a first epoch without a fix, slices as
  * the calibration takes them, r scales, and one work reused across model sets (its step cache must
  * not carry one model's F, Q into another's); besides the sum, the state the work holds after a call
@@ -16,7 +16,6 @@ import { makeAxisModel } from '../../src/models/axis-model.js';
 import { buildAxisModels } from '../../src/session/axis-params.js';
 import { sliceSegment } from '../../src/session/prepare.js';
 import type { ScenarioKind } from '../../src/simulate/truth.js';
-import { refForwardFilter } from '../helpers/reference-track-filter.js';
 import { segmentCase } from '../helpers/history-compare.js';
 
 /** Park–Miller minimal standard generator (seeded). */
@@ -25,7 +24,7 @@ function rng(seed: number): () => number {
   return () => (s = (s * 48271) % 2147483647) / 2147483647;
 }
 
-/** The work's state after a call (x east, north, up; P east, up) equals the last epoch of the reference history; north's P is east's. */
+/** The work's state after a call (x east, north, up; P east, up) equals the last epoch of the forward history; north's P is east's. */
 function expectFinalState(st: Float64Array, ref: FilterHistory, nAx: number): void {
   const k = ref.N - 1;
   const got: number[] = [], want: number[] = [];
@@ -72,9 +71,8 @@ describe('forwardLogLik: the calibration objective without a history', () => {
         expect(forwardLogLikApplies(models, d, lopt, rScale, same)).toBe(true);
         const fo = { ...lopt, rScale };
         const a = forwardLogLik(models, d, lopt, rScale, w);
-        const ref = refForwardFilter(models, d, fo);
+        const ref = forwardFilter(models, d, fo);
         expect(Object.is(a, totalLogLik(ref))).toBe(true);
-        expect(Object.is(a, totalLogLik(forwardFilter(models, d, fo)))).toBe(true);
         expectFinalState(w.st, ref, models.length);
         for (let k = 0; k < d.N; k++) if (d.use[k] === 1 && ref.accepted[k] === 0 && ref.dof[k] > 0) rejected++;
       }
@@ -86,7 +84,7 @@ describe('forwardLogLik: the calibration objective without a history', () => {
     const rScale = [1.7, 1.7, 5.2].slice(0, models.length);
     for (let n = 1; n <= Math.min(150, d.N); n++) {
       const dn = sliceSegment(d, 0, n);
-      const ref = refForwardFilter(models, dn, { ...lopt, rScale });
+      const ref = forwardFilter(models, dn, { ...lopt, rScale });
       expect(Object.is(forwardLogLik(models, dn, lopt, rScale, w), totalLogLik(ref))).toBe(true);
       expectFinalState(w.st, ref, models.length);
     }
@@ -108,7 +106,7 @@ describe('forwardLogLik: the calibration objective without a history', () => {
       const rScale = [f(), 0, f()];
       rScale[1] = rScale[0]!;
       for (const d of parts) {
-        const ref = refForwardFilter(m, d, { ...lopt, rScale });
+        const ref = forwardFilter(m, d, { ...lopt, rScale });
         expect(Object.is(forwardLogLik(m, d, lopt, rScale, w), totalLogLik(ref))).toBe(true);
         expectFinalState(w.st, ref, 3);
       }
