@@ -22,7 +22,7 @@
  * instead of a division (the same integers, hence the same text). A scaled value
  * n = |v|·10^d below 2^31 (metres at 3 decimals, degrees at 7) is written as n's digits with the
  * point inserted (`pointed`), the text of its integer part and fraction written apart
- * (test/output/byte-chunks-scaled-digits.test.ts against the former form).
+ * (test/output/byte-chunks-scaled-digits.test.ts checks both sides of 2^31 against the calls).
  */
 
 /** Bytes of a chunk before it is handed out (the buffer has room for a row beyond it). */

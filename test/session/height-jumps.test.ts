@@ -1,15 +1,41 @@
 /**
- * flagHeightJumps (the neighbours' range rules out a jump before any median is
- * taken) against its previous form, kept verbatim in test/helpers/reference-height-jumps.ts: the
- * validity flags and the reasons, element for element. Cases: seeded heights with single spikes,
- * bursts of bad heights, spikes right at the limit (slack plus climb rate over the span, in both
- * directions, ±1 cm), missing heights, invalid neighbours, irregular times and gaps, ±0 heights,
- * and the first and last fixes. Seeded.
+ * flagHeightJumps against its definition, written naively below: fixes are judged in order; a
+ * valid fix with a finite height is judged on its nearest valid neighbours with finite heights
+ * (at most ten, within fifteen positions, the earlier first at equal distance; at least four), and
+ * is an impossible jump when |h − median of their heights| (the upper median for an even count)
+ * exceeds the slack plus the fastest climb rate times the span to the farthest of them; a fix so
+ * flagged no longer counts as a neighbour of later ones. Flags and reasons element for element.
+ * Cases: seeded heights with single spikes, bursts of bad heights, spikes right at the limit
+ * (slack plus climb rate over the span, in both directions, ±1 cm), missing heights, invalid
+ * neighbours, irregular times and gaps, ±0 heights, and the first and last fixes; and worked
+ * values at the limit. Seeded.
  */
 import { describe, expect, it } from 'vitest';
 import type { FixSeries } from '../../src/input/fix-series.js';
 import { HEIGHT_JUMP_RATE_MPS, HEIGHT_JUMP_SLACK_M, flagHeightJumps } from '../../src/session/valid-fixes.js';
-import { refFlagHeightJumps } from '../helpers/reference-height-jumps.js';
+
+/** The definition, one fix at a time: sorts and filters, no shortcut. */
+function definitionFlags(s: FixSeries, valid: Uint8Array, why: string[]): void {
+  const h = s.heightM;
+  if (!h) return;
+  const usable = (j: number) => valid[j] === 1 && Number.isFinite(h[j]!);
+  for (let i = 0; i < s.n; i++) {
+    if (!usable(i)) continue;
+    const near: number[] = [];
+    for (let j = Math.max(0, i - 15); j <= Math.min(s.n - 1, i + 15); j++) if (j !== i && usable(j)) near.push(j);
+    near.sort((a, b) => Math.abs(a - i) - Math.abs(b - i) || a - b);
+    const nbs = near.slice(0, 10);
+    if (nbs.length < 4) continue;
+    const heights = nbs.map((j) => h[j]!).sort((a, b) => a - b);
+    const median = heights[Math.floor(heights.length / 2)]!;
+    const span = Math.max(...nbs.map((j) => Math.abs(s.tSec[j]! - s.tSec[i]!)));
+    const jump = Math.abs(h[i]! - median);
+    if (jump > HEIGHT_JUMP_SLACK_M + HEIGHT_JUMP_RATE_MPS * span) {
+      valid[i] = 0;
+      why[i] = `impossible height jump: ${jump.toFixed(0)} m from its neighbours within ${span.toFixed(1)} s`;
+    }
+  }
+}
 
 /** Park–Miller minimal standard generator (seeded). */
 function rng(seed: number): () => number {
@@ -26,7 +52,7 @@ function compare(s: FixSeries, valid0: Uint8Array): number {
   const va = valid0.slice(), vb = valid0.slice();
   const wa: string[] = new Array(s.n).fill(''), wb: string[] = new Array(s.n).fill('');
   flagHeightJumps(s, va, wa);
-  refFlagHeightJumps(s, vb, wb);
+  definitionFlags(s, vb, wb);
   expect(Array.from(va)).toEqual(Array.from(vb));
   expect(wa).toEqual(wb);
   let flagged = 0;
@@ -34,7 +60,25 @@ function compare(s: FixSeries, valid0: Uint8Array): number {
   return flagged;
 }
 
-describe('flagHeightJumps against its reference form', () => {
+describe('flagHeightJumps flags the fixes its definition flags', () => {
+  it('worked values: eleven level fixes a second apart, the middle one raised to the limit and 1 cm past it', () => {
+    const t = Float64Array.from({ length: 11 }, (_, i) => i);
+    // five neighbours each side, the farthest 5 s away: limit 150 m + 30 m/s · 5 s = 300 m
+    const at = (dh: number) => {
+      const h = new Float64Array(11).fill(100);
+      h[5] = 100 + dh;
+      const v = new Uint8Array(11).fill(1);
+      const why: string[] = new Array(11).fill('');
+      flagHeightJumps(series(t, h), v, why);
+      return { v: Array.from(v), why: why[5] };
+    };
+    expect(at(300).v).toEqual(new Array(11).fill(1));
+    expect(at(-300).v).toEqual(new Array(11).fill(1));
+    const past = at(300.01);
+    expect(past.v).toEqual([1, 1, 1, 1, 1, 0, 1, 1, 1, 1, 1]);
+    expect(past.why).toBe('impossible height jump: 300 m from its neighbours within 5.0 s');
+    expect(at(-300.01).v[5]).toBe(0);
+  });
   it.each([1, 2, 3, 4, 5, 6])('seeded log %i: the same flags and reasons', (seed) => {
     const r = rng(seed * 104729);
     const n = 20000;
