@@ -212,8 +212,7 @@ function sameAsSaved(models: AxisModel[], s: FilterHistory, k: number, sx: Float
  * epoch, instead of copying the filtered epoch into `s` and smoothing it in place, the RTS step
  * reads it from `f` (rtsStep3pFrom, rtsState3From: the same operations), and the old smoothed
  * values are kept in locals for the comparison. Bit for bit the general loop's result
- * (test/estimation/smoother-share.test.ts, against the previous form in
- * test/helpers/reference-track-smoother.ts).
+ * (test/estimation/smoother-share.test.ts and one-horizontal-cov.test.ts).
  */
 function resmoothShared3(
   models: AxisModel[],

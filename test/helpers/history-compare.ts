@@ -1,6 +1,6 @@
 /**
- * Shared by the bit-for-bit tests of the filter and smoother kernels against their previous forms
- * (test/estimation/forward-filter-shared.test.ts, smoother-share.test.ts, review-statistic.test.ts):
+ * Shared by the bit-for-bit tests of the filter and smoother's fast paths against their general
+ * paths (test/estimation/forward-filter.test.ts, smoother-share.test.ts, one-horizontal-cov.test.ts):
  * a segment of a seeded scenario, and a comparison of two histories with Object.is on every element.
  */
 import { expect } from 'vitest';
