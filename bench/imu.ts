@@ -27,7 +27,7 @@ import { loadConfig } from '../src/config/load.js';
 import { readFixCsv } from '../src/input/csv-fixes.js';
 import { streamImuCsv } from '../src/input/imu-csv.js';
 import { ImuReplayWriter } from '../src/input/imu-replay.js';
-import { newImuStageTimings, processImuSession } from '../src/session/imu-session.js';
+import { newImuStageTimings, processImuSession } from '../src/session/imu/imu-session.js';
 import { imuFileSource } from '../src/input/imu-source.js';
 import { defaultImuSpec, imuScenarioFixCsv, simulateImuScenario, writeImuCsv } from '../src/simulate/imu.js';
 import type { BenchPart } from './part.js';

@@ -6,7 +6,7 @@
  */
 import { parentPort, workerData } from 'node:worker_threads';
 import { loadConfig } from '../src/config/load.js';
-import { axisParamsFromConfig, buildAxisModels, filterOptions } from '../src/session/axis-params.js';
+import { axisParamsFromConfig, buildAxisModels, filterOptions } from '../src/session/prepare/axis-params.js';
 import { forwardFilter, type SegmentData } from '../src/estimation/track-filter.js';
 import { smoothInPlace } from '../src/estimation/track-smoother.js';
 

@@ -1,8 +1,8 @@
 /**
- * Benchmark of the survey products (session/survey.ts): the cost that the posterior draws add to a
+ * Benchmark of the survey products (session/survey/survey.ts): the cost that the posterior draws add to a
  * session. A one-hour 1 Hz walking log with stops (seeded simulator) is processed once; then, on
  * its held posterior, the survey products with 0 draws (occupied points only) and with 200 draws
- * (lengths, area, distances: the simulation smoother, session/posterior.ts), and sampleTracks of
+ * (lengths, area, distances: the simulation smoother, session/survey/posterior.ts), and sampleTracks of
  * 200 whole tracks for the library, each the minimum of 5 runs.
  * Target: 200 draws of a one-hour 1 Hz log add at most TARGET_MS (a few hundred milliseconds).
  * Results go to the `survey` section of bench/results.json.
@@ -12,9 +12,9 @@ import { pathToFileURL } from 'node:url';
 import { loadConfig } from '../src/config/load.js';
 import { readFixCsv } from '../src/input/csv-fixes.js';
 import { processSession } from '../src/session/process-session.js';
-import { posteriorOf } from '../src/session/posterior.js';
-import { surveyProducts } from '../src/session/survey.js';
-import { sampleTracks } from '../src/session/draws.js';
+import { posteriorOf } from '../src/session/survey/posterior.js';
+import { surveyProducts } from '../src/session/survey/survey.js';
+import { sampleTracks } from '../src/session/survey/draws.js';
 import { defaultSpec, scenarioCsv, simulate } from '../src/simulate/scenario.js';
 import type { BenchPart, BenchResult } from './part.js';
 import { mergeResults } from './results.js';

@@ -138,7 +138,7 @@ export const configSchema = z
         /**
          * Window (s) of the local noise scale: the fixes' variance is multiplied by a slowly varying
          * factor estimated from their scatter about the smoothed track within this window
-         * (session/local-noise-scale.ts); 0 turns it off.
+         * (session/classify/local-noise-scale.ts); 0 turns it off.
          */
         localScaleWindowSec: z.number().min(0).default(LOCAL_SCALE_WINDOW_SEC),
       })

@@ -5,7 +5,7 @@
  * the bbox (it precedes the features), a second writes them; a segment that crosses the antimeridian
  * (rare) is cut and stringified as an object.
  */
-import { STATUS_NAMES, type OutlierRecord, type SessionResult } from '../session/result.js';
+import { STATUS_NAMES, type OutlierRecord, type SessionResult } from '../session/result/result.js';
 import { ByteChunks, chunksToString, utf8 } from './byte-chunks.js';
 import { cutAtAntimeridian, longitudeExtent, mappable, METRE_DECIMALS, round, type Position } from './geojson-geometry.js';
 import { occupationFeatures } from './geojson-occupations.js';

@@ -4,13 +4,13 @@
  * (the smoothed track, a LineString per segment; MultiLineStrings throughout when a segment
  * crosses the antimeridian), `<stem>.flags.geojson` (the flagged fixes as Points, with their id and
  * deciding test), `<stem>.occupations.geojson` where the session has occupied points (Points with
- * `"kind": "occupation"`, session/occupations.ts) and, with output.points, `<stem>.epochs.geojson`
+ * `"kind": "occupation"`, session/survey/occupations.ts) and, with output.points, `<stem>.epochs.geojson`
  * (every epoch as a Point with its sd and 95% ellipse). `<stem>.geojson` keeps every feature in one collection. A further layer
  * (another kind of Point) is one more entry here, a flag in includedLayers (geojson-options.ts)
  * and its features in both writers (geojson.ts, geojson-chunks.ts).
  */
 import type { HindcastConfig } from '../config/schema.js';
-import type { SessionResult } from '../session/result.js';
+import type { SessionResult } from '../session/result/result.js';
 import { geoJsonOptions, sessionGeoJsonChunks, type GeoJsonLayer } from './geojson.js';
 
 export interface GeoJsonLayerFile {

@@ -1,11 +1,11 @@
 /**
- * The occupied points of a session (session/occupations.ts) as GeoJSON Point features with
+ * The occupied points of a session (session/survey/occupations.ts) as GeoJSON Point features with
  * `"kind": "occupation"` (RFC 7946 §3.2: any properties), for <stem>.geojson. Plain objects: both
  * GeoJSON writers (the object tree and the streamed chunks) add them the same way (JSON.stringify of
  * each), so the two stay byte for byte the same. An occupied point is an average of track epochs, so
  * it lies inside the track's bounding box.
  */
-import type { SessionResult } from '../session/result.js';
+import type { SessionResult } from '../session/result/result.js';
 import { formatIsoUtc } from '../time/parse-time.js';
 
 const METRE_DECIMALS = 3;

@@ -2,7 +2,7 @@
  * The track segments of a session as both GeoJSON writers see them: the rows of each segment and
  * the statistics of its feature's properties (epochs, bridged and flagged epochs, length, mean sd).
  */
-import { STATUS, type SessionResult } from '../session/result.js';
+import { STATUS, type SessionResult } from '../session/result/result.js';
 
 /** Segments of the track (segment numbers run 0 … count − 1 in row order). */
 export function segmentCount(r: SessionResult): number {

@@ -11,7 +11,7 @@
  * the same bytes without building it (geojson-chunks.ts).
  */
 import { formatIsoUtc } from '../time/parse-time.js';
-import { STATUS_NAMES, type OutlierRecord, type SessionResult } from '../session/result.js';
+import { STATUS_NAMES, type OutlierRecord, type SessionResult } from '../session/result/result.js';
 import { cutAtAntimeridian, longitudeExtent, mappable, METRE_DECIMALS, round, val, type Position } from './geojson-geometry.js';
 import { occupationFeatures } from './geojson-occupations.js';
 import { includedLayers, type GeoJsonOptions } from './geojson-options.js';

@@ -8,7 +8,7 @@
  */
 import { CAUTION } from './caution.js';
 import { formatIsoUtc } from '../time/parse-time.js';
-import { STATUS, STATUS_NAMES, type SessionResult } from '../session/result.js';
+import { STATUS, STATUS_NAMES, type SessionResult } from '../session/result/result.js';
 import { longitudeExtent } from './geojson.js';
 import { ByteChunks, chunksToString, utf8 } from './byte-chunks.js';
 

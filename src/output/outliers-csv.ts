@@ -5,7 +5,7 @@
  * and the re-admission threshold, its offset from the smoothed track, the user's note, and the
  * decision in words, for the user to review. Columns: docs/report-and-layers.md.
  */
-import type { SessionResult } from '../session/result.js';
+import type { SessionResult } from '../session/result/result.js';
 import { ByteChunks, chunksToString } from './byte-chunks.js';
 import { textCell } from './csv-format.js';
 

@@ -1,9 +1,9 @@
 /**
- * <stem>.points.csv: the occupied points of a session (session/occupations.ts), one row each, with
+ * <stem>.points.csv: the occupied points of a session (session/survey/occupations.ts), one row each, with
  * the position's uncertainty from the joint smoothing posterior (the correlated fix error counted:
  * see effective_fixes). Columns are documented in docs/survey.md.
  */
-import type { SessionResult } from '../session/result.js';
+import type { SessionResult } from '../session/result/result.js';
 import { ByteChunks, chunksToString } from './byte-chunks.js';
 
 export const POINT_COLUMNS = [

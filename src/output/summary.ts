@@ -6,7 +6,7 @@
  * the configuration and the tool version.
  */
 import type { InputWarning } from '../errors.js';
-import type { SessionResult } from '../session/result.js';
+import type { SessionResult } from '../session/result/result.js';
 import { CAUTION } from './caution.js';
 import { surveySummary } from './survey-summary.js';
 

@@ -3,8 +3,8 @@
  * lengths, the enclosed area and distances between points, each quantity as estimate, sd and 95%
  * interval (docs/survey.md). The measured polyline's vertex list stays in the SessionResult.
  */
-import type { SurveyProducts } from '../session/survey.js';
-import type { Quantity } from '../session/draws.js';
+import type { SurveyProducts } from '../session/survey/survey.js';
+import type { Quantity } from '../session/survey/draws.js';
 
 function r3(v: number): number | null {
   return Number.isFinite(v) ? Math.round(v * 1000) / 1000 : null;

@@ -2,7 +2,7 @@
  * <stem>.track.csv: one row per epoch (fix epochs and bridged epochs) of the smoothed track.
  * Columns and units are listed in docs/formats.md ("Outputs").
  */
-import { STATUS_NAMES, type SessionResult } from '../session/result.js';
+import { STATUS_NAMES, type SessionResult } from '../session/result/result.js';
 import { ByteChunks, chunksToString, utf8 } from './byte-chunks.js';
 
 export const TRACK_COLUMNS = [

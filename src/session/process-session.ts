@@ -7,17 +7,17 @@
  */
 import type { HindcastConfig } from '../config/schema.js';
 import type { FixSeries } from '../input/fix-series.js';
-import type { SessionResult } from './result.js';
-import type { StageTimings } from './timings.js';
-import { axisParamsFromConfig, reviewOptions } from './axis-params.js';
-import { prepareSession } from './prepare.js';
-import { calibrationRounds } from './calibration-rounds.js';
-import { classify } from './classify.js';
-import { runPrepared } from './final-run.js';
-import { applyAdequacyCheck } from './adequacy.js';
-import { sessionVerdict, widenToResidualScatter } from './verdict.js';
-import { posteriorOf } from './posterior.js';
-import { surveyProducts } from './survey.js';
+import type { SessionResult } from './result/result.js';
+import type { StageTimings } from './result/timings.js';
+import { axisParamsFromConfig, reviewOptions } from './prepare/axis-params.js';
+import { prepareSession } from './prepare/prepare.js';
+import { calibrationRounds } from './calibrate/calibration-rounds.js';
+import { classify } from './classify/classify.js';
+import { runPrepared } from './products/final-run.js';
+import { applyAdequacyCheck } from './check/adequacy.js';
+import { sessionVerdict, widenToResidualScatter } from './check/verdict.js';
+import { posteriorOf } from './survey/posterior.js';
+import { surveyProducts } from './survey/survey.js';
 
 /**
  * Run the whole pipeline on one FixSeries:
@@ -42,10 +42,10 @@ export function processSession(series: FixSeries, cfg: HindcastConfig, name: str
   // stage 4 (stage 2 of a log the calibration fell back on): classify under the final model
   const plans = classify(ps, cfg, params, ro, tm);
   let r = runPrepared(ps, cfg, params, name, plans, tm);
-  // model adequacy (session/adequacy.ts): a motion model too stiff for the log is re-modelled
+  // model adequacy (session/check/adequacy.ts): a motion model too stiff for the log is re-modelled
   const adequacy = cfg.model.adequacyCheck ? applyAdequacyCheck(ps, cfg, params, prior, r, (q) => runPrepared(ps, cfg, q, name, classify(ps, cfg, q, ro, tm), tm)) : { r, params, check: undefined };
   r = adequacy.r;
-  // the session's quality verdict (session/verdict.ts); a degraded log's uncertainty is widened
+  // the session's quality verdict (session/check/verdict.ts); a degraded log's uncertainty is widened
   const verdict = sessionVerdict(r, adequacy.params, prior, cfg.noise.horizontalSigmaM);
   if (verdict.verdict === 'degraded') {
     verdict.widened = widenToResidualScatter(r);

@@ -17,7 +17,7 @@
 import { describe, expect, it } from 'vitest';
 import { chiSquareQuantile } from '../../src/estimation/chi-square.js';
 import { forwardFilter, type FilterOptions, type SegmentData } from '../../src/estimation/track-filter.js';
-import { reversed } from '../../src/session/review.js';
+import { reversed } from '../../src/session/classify/review.js';
 import type { ScenarioKind } from '../../src/simulate/truth.js';
 import { expectSameHistory, segmentCase } from '../helpers/history-compare.js';
 import { expectNearTrack, textbookFilter } from '../helpers/textbook-track.js';

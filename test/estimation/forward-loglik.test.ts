@@ -13,8 +13,8 @@ import { describe, expect, it } from 'vitest';
 import { forwardFilter, sameHorizontalInputs, totalLogLik, type FilterHistory, type FilterOptions, type SegmentData } from '../../src/estimation/track-filter.js';
 import { forwardLogLik, forwardLogLikApplies, makeLogLikWork } from '../../src/estimation/track-loglik.js';
 import { makeAxisModel } from '../../src/models/axis-model.js';
-import { buildAxisModels } from '../../src/session/axis-params.js';
-import { sliceSegment } from '../../src/session/prepare.js';
+import { buildAxisModels } from '../../src/session/prepare/axis-params.js';
+import { sliceSegment } from '../../src/session/prepare/prepare.js';
 import type { ScenarioKind } from '../../src/simulate/truth.js';
 import { segmentCase } from '../helpers/history-compare.js';
 

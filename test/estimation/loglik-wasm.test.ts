@@ -12,7 +12,7 @@ import type { FilterOptions, SegmentData } from '../../src/estimation/track-filt
 import { sameHorizontalInputs } from '../../src/estimation/track-filter.js';
 import { forwardLogLik, forwardLogLikApplies, makeLogLikWork } from '../../src/estimation/track-loglik.js';
 import { LOGLIK_KERNEL, kernelLog, kernelLog2Pi, makeLogLikKernel } from '../../src/estimation/loglik-wasm.js';
-import { buildAxisModels, type AxisParams } from '../../src/session/axis-params.js';
+import { buildAxisModels, type AxisParams } from '../../src/session/prepare/axis-params.js';
 import { segmentCase } from '../helpers/history-compare.js';
 
 /** Park–Miller minimal standard generator (seeded). */

@@ -14,7 +14,7 @@ import { makeAxisModel, type AxisModel } from '../../src/models/axis-model.js';
 import { covIndex, covStride, forwardFilter } from '../../src/estimation/track-filter.js';
 import { smoothInPlace } from '../../src/estimation/track-smoother.js';
 import { MIN_RESIDUAL_SHARE, reviewStatistic, reviewStatisticsRange } from '../../src/estimation/review.js';
-import { reviewThresholds } from '../../src/session/review-decisions.js';
+import { reviewThresholds } from '../../src/session/classify/review-decisions.js';
 import { segmentCase } from '../helpers/history-compare.js';
 
 /** Tolerance of the statistic against its formula, relative. */

@@ -11,7 +11,7 @@ import { describe, expect, it } from 'vitest';
 import { allocateHistory, covStride, forwardFilter, historyOf, type FilterHistory, type SegmentData } from '../../src/estimation/track-filter.js';
 import { smoothInto } from '../../src/estimation/track-smoother.js';
 import { makeWindowTrialWork, windowTrial } from '../../src/estimation/window-trial.js';
-import { buildAxisModels } from '../../src/session/axis-params.js';
+import { buildAxisModels } from '../../src/session/prepare/axis-params.js';
 import { segmentCase } from '../helpers/history-compare.js';
 
 /** Ungated decisions: every fix used (2) except where `drop` says. */

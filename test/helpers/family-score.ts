@@ -16,7 +16,7 @@
 import { loadConfig } from '../../src/config/load.js';
 import { readFixCsv } from '../../src/input/csv-fixes.js';
 import { processSession } from '../../src/session/process-session.js';
-import { STATUS, type SessionResult } from '../../src/session/result.js';
+import { STATUS, type SessionResult } from '../../src/session/result/result.js';
 import { K2_95 } from '../../src/estimation/error-ellipse.js';
 import { okEntry, type SessionSummary } from '../../src/output/summary.js';
 import type { FamilyLog } from '../../src/simulate/family.js';

@@ -6,8 +6,8 @@
 import { expect } from 'vitest';
 import { loadConfig } from '../../src/config/load.js';
 import { readFixCsv } from '../../src/input/csv-fixes.js';
-import { axisParamsFromConfig, buildAxisModels, filterOptions } from '../../src/session/axis-params.js';
-import { prepareSession, segmentData } from '../../src/session/prepare.js';
+import { axisParamsFromConfig, buildAxisModels, filterOptions } from '../../src/session/prepare/axis-params.js';
+import { prepareSession, segmentData } from '../../src/session/prepare/prepare.js';
 import type { FilterHistory } from '../../src/estimation/track-filter.js';
 import { defaultSpec, scenarioCsv, simulate } from '../../src/simulate/scenario.js';
 import type { ScenarioKind } from '../../src/simulate/truth.js';

@@ -6,10 +6,10 @@
  */
 import { beforeAll, describe, expect, it } from 'vitest';
 import { processSession } from '../../src/session/process-session.js';
-import { processImuSession } from '../../src/session/imu-session.js';
+import { processImuSession } from '../../src/session/imu/imu-session.js';
 import { imuFileSource } from '../../src/input/imu-source.js';
 import { trackCsv } from '../../src/output/track-csv.js';
-import type { SessionResult } from '../../src/session/result.js';
+import type { SessionResult } from '../../src/session/result/result.js';
 import { BRIDGED, KEPT, makeImuCase, score, type ImuCase } from './helpers.js';
 
 const D = Math.PI / 180;

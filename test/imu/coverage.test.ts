@@ -13,7 +13,7 @@
 import { rmSync } from 'node:fs';
 import { dirname } from 'node:path';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
-import { processImuSession } from '../../src/session/imu-session.js';
+import { processImuSession } from '../../src/session/imu/imu-session.js';
 import { imuFileSource } from '../../src/input/imu-source.js';
 import { BRIDGED, KEPT, makeImuCase, score } from './helpers.js';
 

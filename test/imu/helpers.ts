@@ -6,7 +6,7 @@ import { loadConfig } from '../../src/config/load.js';
 import type { HindcastConfig } from '../../src/config/schema.js';
 import { readFixCsv } from '../../src/input/csv-fixes.js';
 import type { FixSeries } from '../../src/input/fix-series.js';
-import { STATUS, type SessionResult } from '../../src/session/result.js';
+import { STATUS, type SessionResult } from '../../src/session/result/result.js';
 import { defaultImuSpec, imuScenarioFixCsv, simulateImuScenario, writeImuCsv, type ImuScenario, type ImuScenarioSpec } from '../../src/simulate/imu.js';
 
 export interface ImuCase {

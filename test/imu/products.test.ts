@@ -1,14 +1,14 @@
 /**
- * The shared products (src/session/products.ts) and the calibrated fixes-only baseline
- * (src/session/calibrated-params.ts) reproduce processSession exactly on a simulated IMU drive's fixes.
+ * The shared products (src/session/products/products.ts) and the calibrated fixes-only baseline
+ * (src/session/calibrate/calibrated-params.ts) reproduce processSession exactly on a simulated IMU drive's fixes.
  */
 import { expect, it } from 'vitest';
-import { prepareSession } from '../../src/session/prepare.js';
+import { prepareSession } from '../../src/session/prepare/prepare.js';
 import { processSession } from '../../src/session/process-session.js';
-import { calibratedFixesOnly } from '../../src/session/calibrated-params.js';
-import { buildOutliersAndMetrics } from '../../src/session/products.js';
-import { reviewThresholds } from '../../src/session/review-decisions.js';
-import type { DecisionLog } from '../../src/session/decision-log.js';
+import { calibratedFixesOnly } from '../../src/session/calibrate/calibrated-params.js';
+import { buildOutliersAndMetrics } from '../../src/session/products/products.js';
+import { reviewThresholds } from '../../src/session/classify/review-decisions.js';
+import type { DecisionLog } from '../../src/session/result/decision-log.js';
 import { makeImuCase } from './helpers.js';
 
 it('calibratedFixesOnly equals processSession, and buildOutliersAndMetrics rebuilds its outliers and metrics', () => {

@@ -1,5 +1,5 @@
 /**
- * The error model's discretization and covariance products as first written (dense loops that skip
+ * The error model's discretization and covariance products in their plain dense form (loops that skip
  * zeros element by element): the reference of the nonzero-list kernels in
  * src/estimation/ins/error-model.ts, which must equal them bit for bit.
  */

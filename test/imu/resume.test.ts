@@ -1,5 +1,5 @@
 /**
- * Resumed passes of the IMU review loop (src/session/imu-session.ts, IMU_REVIEW_RESUME;
+ * Resumed passes of the IMU review loop (src/session/imu/imu-session.ts, IMU_REVIEW_RESUME;
  * src/estimation/ins/snapshot.ts, InsSnapshot): a pass starts from the previous pass's snapshot
  * before the first changed decision (after the gated first pass: before its first refused fix or
  * the first fix the review rejects). On a 15-minute drive at 10 Hz fixes (two passes, the second
@@ -12,9 +12,9 @@
 import { rmSync } from 'node:fs';
 import { dirname } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { IMU_REVIEW_RESUME, newImuStageTimings, processImuSession } from '../../src/session/imu-session.js';
+import { IMU_REVIEW_RESUME, newImuStageTimings, processImuSession } from '../../src/session/imu/imu-session.js';
 import { imuFileSource } from '../../src/input/imu-source.js';
-import type { SessionResult } from '../../src/session/result.js';
+import type { SessionResult } from '../../src/session/result/result.js';
 import { makeImuCase, type ImuCase } from './helpers.js';
 
 function expectSameResult(a: SessionResult, b: SessionResult): number {

@@ -1,5 +1,5 @@
 /**
- * The two-sided review in the IMU-aided path (src/session/imu-session.ts, src/estimation/ins/review.ts):
+ * The two-sided review in the IMU-aided path (src/session/imu/imu-session.ts, src/estimation/ins/review.ts):
  * the statistic against direct matrix algebra, a fix that the forward gate lets through after an
  * outage but that the smoothed track contradicts is rejected (reason `review`), and consistent fixes
  * that an overconfident forward filter rejects after an outage come back.
@@ -7,9 +7,9 @@
 import { describe, expect, it } from 'vitest';
 import { gnssReviewStatistic, jacobiEigenSym, makeGnssReviewScratch } from '../../src/estimation/ins/review.js';
 import { MIN_RESIDUAL_SHARE } from '../../src/estimation/review.js';
-import { processImuSession } from '../../src/session/imu-session.js';
+import { processImuSession } from '../../src/session/imu/imu-session.js';
 import { imuFileSource } from '../../src/input/imu-source.js';
-import { STATUS } from '../../src/session/result.js';
+import { STATUS } from '../../src/session/result/result.js';
 import { DEFAULT_ERRORS } from '../../src/simulate/scenario.js';
 import { makeImuCase } from './helpers.js';
 

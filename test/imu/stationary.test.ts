@@ -15,10 +15,10 @@
  */
 import { beforeAll, describe, expect, it, test } from 'vitest';
 import { processSession } from '../../src/session/process-session.js';
-import { prepareSession } from '../../src/session/prepare.js';
-import { axisParamsFromConfig } from '../../src/session/axis-params.js';
-import { calibratedFixesOnly } from '../../src/session/calibrated-params.js';
-import { imuGnssParams, initFromTrack, insEpochs, insOptions, processImuSession } from '../../src/session/imu-session.js';
+import { prepareSession } from '../../src/session/prepare/prepare.js';
+import { axisParamsFromConfig } from '../../src/session/prepare/axis-params.js';
+import { calibratedFixesOnly } from '../../src/session/calibrate/calibrated-params.js';
+import { imuGnssParams, initFromTrack, insEpochs, insOptions, processImuSession } from '../../src/session/imu/imu-session.js';
 import { imuFileSource } from '../../src/input/imu-source.js';
 import { InsSmoother } from '../../src/estimation/ins/ins-filter.js';
 import { Rng } from '../../src/simulate/rng.js';

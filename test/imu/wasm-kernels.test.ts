@@ -16,7 +16,7 @@ import { NE } from '../../src/estimation/ins/error-model.js';
 import { E_A, E_BA, E_GM, E_P, E_V, fillErrorF, NE_PACKED, packPhi, packSym, PHI_COMPACT, type ErrorModelParams } from '../../src/estimation/ins/error-model.js';
 import { insKernelKind, makeInsKernels, makeInsRtsKernel, preferInsKernels, type InsFilterKernel, type InsRtsKernel } from '../../src/estimation/ins/kernels.js';
 import { quatFromEuler, quatRotateBody, quatToDcm } from '../../src/models/ins/attitude.js';
-import { processImuSession } from '../../src/session/imu-session.js';
+import { processImuSession } from '../../src/session/imu/imu-session.js';
 import { imuFileSource } from '../../src/input/imu-source.js';
 import { Rng } from '../../src/simulate/rng.js';
 import { phiOf, spd } from './matrices.js';

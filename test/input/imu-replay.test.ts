@@ -15,7 +15,7 @@ import { describe, expect, it } from 'vitest';
 import { loadConfig } from '../../src/config/load.js';
 import { streamImuCsv } from '../../src/input/imu-csv.js';
 import { ImuReplayWriter } from '../../src/input/imu-replay.js';
-import { newImuStageTimings, processImuSession } from '../../src/session/imu-session.js';
+import { newImuStageTimings, processImuSession } from '../../src/session/imu/imu-session.js';
 import { imuFileSource } from '../../src/input/imu-source.js';
 import { Rng } from '../../src/simulate/rng.js';
 import { makeImuCase } from '../imu/helpers.js';

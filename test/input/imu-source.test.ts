@@ -8,7 +8,7 @@ import { dirname } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { streamImuCsv } from '../../src/input/imu-csv.js';
 import { IMU_SAMPLE_STRIDE, imuArraySource, imuFileSource } from '../../src/input/imu-source.js';
-import { newImuStageTimings, processImuSession } from '../../src/session/imu-session.js';
+import { newImuStageTimings, processImuSession } from '../../src/session/imu/imu-session.js';
 import { InputError } from '../../src/errors.js';
 import { makeImuCase } from '../imu/helpers.js';
 

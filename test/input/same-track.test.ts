@@ -16,7 +16,7 @@ import { describe, expect, test } from 'vitest';
 import { configSchema } from '../../src/config/schema.js';
 import { readFixBytes } from '../../src/input/read-log.js';
 import { processSession } from '../../src/session/process-session.js';
-import type { SessionResult } from '../../src/session/result.js';
+import type { SessionResult } from '../../src/session/result/result.js';
 import { defaultSpec, scenarioCsv, simulate, type Scenario } from '../../src/simulate/scenario.js';
 import { scenarioNmea } from '../../src/simulate/nmea-writer.js';
 import { scenarioGpx } from '../../src/simulate/gpx-writer.js';

@@ -6,12 +6,12 @@
 import { describe, expect, test } from 'vitest';
 import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { parseDecisionNotes } from '../../src/input/decision-notes.js';
-import { attachDecisionNotes } from '../../src/session/products.js';
+import { attachDecisionNotes } from '../../src/session/products/products.js';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { readDecisions } from '../../src/input/decisions-csv.js';
 import { processSession } from '../../src/session/process-session.js';
-import { STATUS, type SessionResult } from '../../src/session/result.js';
+import { STATUS, type SessionResult } from '../../src/session/result/result.js';
 import { trackCsv } from '../../src/output/track-csv.js';
 import { outliersCsv } from '../../src/output/outliers-csv.js';
 import { sessionGeoJson } from '../../src/output/geojson.js';

@@ -4,7 +4,7 @@ import type { HindcastConfig } from '../../src/config/schema.js';
 import { readFixCsv } from '../../src/input/csv-fixes.js';
 import type { FixSeries } from '../../src/input/fix-series.js';
 import { processSession } from '../../src/session/process-session.js';
-import type { SessionResult } from '../../src/session/result.js';
+import type { SessionResult } from '../../src/session/result/result.js';
 import { buildSummary, okEntry, type BatchSummary } from '../../src/output/summary.js';
 import { defaultSpec, scenarioCsv, simulate, type ScenarioSpec } from '../../src/simulate/scenario.js';
 import { overviewData, reportPayload, sessionPageName, type OverviewData, type ReportPayload } from '../../src/output/report/index.js';

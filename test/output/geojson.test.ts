@@ -7,7 +7,7 @@ import { cutAtAntimeridian, longitudeExtent, sessionGeoJson, sessionGeoJsonChunk
 import { chunksToString } from '../../src/output/byte-chunks.js';
 import { sessionGpx } from '../../src/output/gpx.js';
 import { loadConfig } from '../../src/config/load.js';
-import type { SessionResult } from '../../src/session/result.js';
+import type { SessionResult } from '../../src/session/result/result.js';
 import { session } from './fixtures.js';
 import { requireGdal, run, SKIP_SYSTEM_TOOLS } from './system-tools.js';
 

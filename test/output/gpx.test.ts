@@ -1,7 +1,7 @@
 import { describe, expect, test } from 'vitest';
 import { sessionGpx, xmlText, GPX_NAMESPACE } from '../../src/output/gpx.js';
 import { CAUTION } from '../../src/output/caution.js';
-import { STATUS } from '../../src/session/result.js';
+import { STATUS } from '../../src/session/result/result.js';
 import { formatIsoUtc } from '../../src/time/parse-time.js';
 import { session } from './fixtures.js';
 

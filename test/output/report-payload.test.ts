@@ -4,7 +4,7 @@ import { reportPayload } from '../../src/output/report/index.js';
 import { calibratedNoise, calibrationLine } from '../../src/output/report/payload.js';
 import { plotEpochs } from '../../src/output/report/decimate.js';
 import { collectExtensions, type ReportExtension } from '../../src/output/report/extensions.js';
-import { STATUS } from '../../src/session/result.js';
+import { STATUS } from '../../src/session/result/result.js';
 import { session, withImu } from './fixtures.js';
 
 const drone = () => session('drone', 5, { durationSec: 300 }).result;

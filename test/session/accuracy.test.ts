@@ -10,7 +10,7 @@ import { defaultSpec, simulate } from '../../src/simulate/scenario.js';
 import type { ScenarioKind } from '../../src/simulate/truth.js';
 import { runScenario, type Score } from '../helpers/score.js';
 import { chiSquareCdf } from '../../src/estimation/chi-square.js';
-import { reviewThresholds } from '../../src/session/review-decisions.js';
+import { reviewThresholds } from '../../src/session/classify/review-decisions.js';
 import { loadConfig } from '../../src/config/load.js';
 
 const PROBABILITY = loadConfig().gate.probability;
@@ -37,7 +37,7 @@ const GUARD_U = 0.7;
  * flip to a failure of the suite once fixed (then move them back to plain tests):
  * - vehicle seed 5: RMSE 0.877 × raw against the 0.85 limit (2.90 m for 3.30 m), recall 0.885,
  *   precision 0.958, coverage 0.916 / 0.986. Its second calibration round's decisions are classified
- *   under the robust process noise (session/classification-start.ts: 0.19 for the first round's
+ *   under the robust process noise (session/calibrate/classification-start.ts: 0.19 for the first round's
  *   4.4), which leaves the round at q 1.2 where the stop-and-go needs more; before that start it was
  *   0.846 × raw. Classifying once more under the second round's q (q 1.6) gives 0.797 × raw here and
  *   on every vehicle seed the same or better, but on the scenario family's walks it let the ramps
@@ -48,12 +48,12 @@ const GUARD_U = 0.7;
  *   hair since the second calibration round reaches the likelihood's maximum (BFGS).
  * (Vehicle seed 5 sat on the RMSE limit, 0.85012 × raw, under the fitted quality-column exponents
  * until the local noise scale and re-acquisition by duration: 0.846 × raw.)
- * (Drone seed 6 was one until the local noise scale (session/local-noise-scale.ts): precision 0.77,
+ * (Drone seed 6 was one until the local noise scale (session/classify/local-noise-scale.ts): precision 0.77,
  * 6 of ~2,900 clean fixes flagged with T 16.5–23 against 17.7 on straight lines, below the 0.8 guard.)
  * (Vehicle seed 5 was one until the review's swap test: a 4-fix, 24 m burst during hard braking got
  * past both one-sided gates and the review kept it, rejecting the good fixes beside it: RMSE
  * 0.99 × raw, recall 0.77; with the swap test 0.85 × raw, recall 0.92; pooled vehicle recall
- * 0.92 → 0.96. See src/session/review-swaps.ts.)
+ * 0.92 → 0.96. See src/session/classify/review-swaps.ts.)
  */
 const KNOWN_FAILING = new Set(['vehicle:5', 'vehicle:pooled-outliers', 'walk:pooled-coverage']);
 const caseTest = (id: string) => (KNOWN_FAILING.has(id) ? test.fails : test);

@@ -1,12 +1,12 @@
 /**
- * The model-adequacy check (src/session/adequacy.ts): the residual autocorrelation statistic on
+ * The model-adequacy check (src/session/check/adequacy.ts): the residual autocorrelation statistic on
  * series of known autocorrelation, the decision table, and the whole pipeline on walkers who circle
  * small plots (a motion a stiff constant-velocity fit turns into "correlated error" and cuts) and
  * on the ordinary scenarios, which must be left as they are.
  */
 import { describe, expect, test } from 'vitest';
-import { PERSISTENCE_EXCESS_STIFF, RHO_STIFF, SIGMA_RATIO_STIFF, modelIncrementCorrelation, residualAutocorrelation, residualIncrementCorrelation, tooStiff, type AdequacyCheck } from '../../src/session/adequacy.js';
-import { STATUS, type SessionResult } from '../../src/session/result.js';
+import { PERSISTENCE_EXCESS_STIFF, RHO_STIFF, SIGMA_RATIO_STIFF, modelIncrementCorrelation, residualAutocorrelation, residualIncrementCorrelation, tooStiff, type AdequacyCheck } from '../../src/session/check/adequacy.js';
+import { STATUS, type SessionResult } from '../../src/session/result/result.js';
 import { defaultSpec, simulate } from '../../src/simulate/scenario.js';
 import { Rng } from '../../src/simulate/rng.js';
 import { runScenario, type Score } from '../helpers/score.js';

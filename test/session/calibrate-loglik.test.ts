@@ -25,9 +25,9 @@ vi.mock('../../src/estimation/track-loglik.js', async (importOriginal) => {
 });
 import { loadConfig } from '../../src/config/load.js';
 import { readFixCsv } from '../../src/input/csv-fixes.js';
-import { DEFAULT_CALIBRATION, FIRST_ROUND, calibrateSession, calibrationStride, calibrationWindows } from '../../src/session/calibrate.js';
-import { axisParamsFromConfig } from '../../src/session/axis-params.js';
-import { prepareSession, segmentData } from '../../src/session/prepare.js';
+import { DEFAULT_CALIBRATION, FIRST_ROUND, calibrateSession, calibrationStride, calibrationWindows } from '../../src/session/calibrate/calibrate.js';
+import { axisParamsFromConfig } from '../../src/session/prepare/axis-params.js';
+import { prepareSession, segmentData } from '../../src/session/prepare/prepare.js';
 import { defaultSpec, scenarioCsv, simulate } from '../../src/simulate/scenario.js';
 
 /** calibrateSession with every objective evaluated by forwardFilter and totalLogLik. */

@@ -1,14 +1,14 @@
 /**
  * The calibration's handling of fast logs (thinning), of the quality columns' exponents and of
- * the vertical correlation time (src/session/calibrate.ts). Seeded simulator logs
+ * the vertical correlation time (src/session/calibrate/calibrate.ts). Seeded simulator logs
  * (src/simulate/scenario.ts); default configuration unless stated.
  */
 import { describe, expect, test } from 'vitest';
 import { loadConfig } from '../../src/config/load.js';
 import { readFixCsv } from '../../src/input/csv-fixes.js';
-import { FIRST_ROUND, calibrateSession, calibrationStride, calibrationWindows } from '../../src/session/calibrate.js';
-import { axisParamsFromConfig, buildAxisModels } from '../../src/session/axis-params.js';
-import { prepareSession } from '../../src/session/prepare.js';
+import { FIRST_ROUND, calibrateSession, calibrationStride, calibrationWindows } from '../../src/session/calibrate/calibrate.js';
+import { axisParamsFromConfig, buildAxisModels } from '../../src/session/prepare/axis-params.js';
+import { prepareSession } from '../../src/session/prepare/prepare.js';
 import { defaultSpec, scenarioCsv, simulate, type ScenarioSpec } from '../../src/simulate/scenario.js';
 import { runScenario } from '../helpers/score.js';
 

@@ -9,10 +9,10 @@ import { describe, expect, test } from 'vitest';
 import { loadConfig } from '../../src/config/load.js';
 import { chiSquareQuantile } from '../../src/estimation/chi-square.js';
 import { readFixCsv } from '../../src/input/csv-fixes.js';
-import { prepareSession } from '../../src/session/prepare.js';
+import { prepareSession } from '../../src/session/prepare/prepare.js';
 import { processSession } from '../../src/session/process-session.js';
-import { runPrepared } from '../../src/session/final-run.js';
-import { type AxisParams } from '../../src/session/axis-params.js';
+import { runPrepared } from '../../src/session/products/final-run.js';
+import { type AxisParams } from '../../src/session/prepare/axis-params.js';
 import { defaultSpec, scenarioCsv, simulate } from '../../src/simulate/scenario.js';
 
 const cfg = loadConfig();

@@ -9,12 +9,12 @@ import { describe, expect, test } from 'vitest';
 import { loadConfig } from '../../src/config/load.js';
 import { readFixCsv } from '../../src/input/csv-fixes.js';
 import { processSession } from '../../src/session/process-session.js';
-import { STATUS } from '../../src/session/result.js';
+import { STATUS } from '../../src/session/result/result.js';
 import { outliersCsv, OUTLIER_COLUMNS } from '../../src/output/outliers-csv.js';
 import { DEFAULT_ERRORS, defaultSpec, scenarioCsv, simulate, type ScenarioKind } from '../../src/simulate/scenario.js';
 import { parse } from 'csv-parse/sync';
-import { applyReviewDecisions, reviewThresholds } from '../../src/session/review-decisions.js';
-import type { DecisionLog } from '../../src/session/decision-log.js';
+import { applyReviewDecisions, reviewThresholds } from '../../src/session/classify/review-decisions.js';
+import type { DecisionLog } from '../../src/session/result/decision-log.js';
 
 const CASES: Array<[ScenarioKind, number]> = [
   ['walk', 1], ['walk', 2], ['vehicle', 3], ['vehicle', 5], ['drone', 4], ['drone', 6],

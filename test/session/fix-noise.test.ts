@@ -1,5 +1,5 @@
 /**
- * Per-fix white-noise factors under the quality columns' exponents (src/session/fix-noise.ts):
+ * Per-fix white-noise factors under the quality columns' exponents (src/session/prepare/fix-noise.ts):
  * factor = (hdop / median)^αₕ · (median sats / sats)^(αₛ/2) · fix-quality ratio. At αₕ = αₛ = 1 the
  * factors are the proportional rule's own arrays; at 0 the columns are ignored; between, the
  * closed form. Seeded rows.
@@ -7,7 +7,7 @@
 import { describe, expect, test } from 'vitest';
 import { loadConfig } from '../../src/config/load.js';
 import { readFixCsv } from '../../src/input/csv-fixes.js';
-import { factorsWithExponents, fixSigmaFactors } from '../../src/session/fix-noise.js';
+import { factorsWithExponents, fixSigmaFactors } from '../../src/session/prepare/fix-noise.js';
 
 /** Park–Miller minimal standard generator (seeded). */
 function rng(seed: number): () => number {

@@ -1,5 +1,5 @@
 /**
- * The local noise scale (src/session/local-noise-scale.ts) on seeded review statistics with a known
+ * The local noise scale (src/session/classify/local-noise-scale.ts) on seeded review statistics with a known
  * variance scale: T = s² χ²(3) per fix, s² = 1 for the first 600 s and 4 for the next 600 s at 1 Hz,
  * with a burst of 10 rejected fixes at T = 1e4. The estimate must follow the known scale away from
  * the change, stay bounded, ignore the burst, and be 1 everywhere with the window 0.
@@ -8,7 +8,7 @@
  * against a seeded Monte Carlo mean.
  */
 import { describe, expect, it } from 'vitest';
-import { localNoiseScale, localScaleOptions, MEAN_LOG_CHI2_PER_DOF } from '../../src/session/local-noise-scale.js';
+import { localNoiseScale, localScaleOptions, MEAN_LOG_CHI2_PER_DOF } from '../../src/session/classify/local-noise-scale.js';
 
 /** Park–Miller minimal standard generator (seeded). */
 function rng(seed: number): () => number {

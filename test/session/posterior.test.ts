@@ -1,6 +1,6 @@
 /**
- * The joint posterior of a processed session (session/posterior.ts) and the library's draws
- * (session/draws.ts) on a seeded walking log: the draws reproduce the smoother's per-epoch
+ * The joint posterior of a processed session (session/survey/posterior.ts) and the library's draws
+ * (session/survey/draws.ts) on a seeded walking log: the draws reproduce the smoother's per-epoch
  * variances and the exact variance of a time average (meanPositionVariance) within Monte-Carlo
  * error, a seed gives the same draws, and geodetic coordinates follow the local frame.
  */
@@ -8,8 +8,8 @@ import { describe, expect, it } from 'vitest';
 import { loadConfig } from '../../src/config/load.js';
 import { readFixCsv } from '../../src/input/csv-fixes.js';
 import { processSession } from '../../src/session/process-session.js';
-import { measure, sampleTracks, summarize } from '../../src/session/draws.js';
-import { meanPositionVariance, posteriorOf, releasePosterior } from '../../src/session/posterior.js';
+import { measure, sampleTracks, summarize } from '../../src/session/survey/draws.js';
+import { meanPositionVariance, posteriorOf, releasePosterior } from '../../src/session/survey/posterior.js';
 import { defaultSpec, scenarioCsv, simulate } from '../../src/simulate/scenario.js';
 
 const cfg = loadConfig();

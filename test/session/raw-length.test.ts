@@ -1,10 +1,10 @@
 /**
- * How noise lengthens a polyline of raw fixes (session/raw-length.ts): the Rice mean E|ν + δ|
+ * How noise lengthens a polyline of raw fixes (session/survey/raw-length.ts): the Rice mean E|ν + δ|
  * (Rice 1945) with its Bessel functions from Abramowitz & Stegun 9.8.1–9.8.4, checked against its
  * closed-form limits and against simulated straight walks with white and correlated noise.
  */
 import { describe, expect, it } from 'vitest';
-import { besselI0e, besselI1e, expectedStepLength, stepErrorVariance } from '../../src/session/raw-length.js';
+import { besselI0e, besselI1e, expectedStepLength, stepErrorVariance } from '../../src/session/survey/raw-length.js';
 import { Rng } from '../../src/simulate/rng.js';
 
 describe('Bessel functions (Abramowitz & Stegun 1964, Table 9.8: e^{-x} I0(x), e^{-x} I1(x))', () => {

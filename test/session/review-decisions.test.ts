@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { applyReviewDecisions, reviewThresholds } from '../../src/session/review-decisions.js';
+import { applyReviewDecisions, reviewThresholds } from '../../src/session/classify/review-decisions.js';
 import { Rng } from '../../src/simulate/rng.js';
 
 /** The original decision pass (each candidate tested against every fix taken so far), as reference. */

@@ -9,8 +9,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import { loadConfig } from '../../src/config/load.js';
-import { reviewOptions } from '../../src/session/axis-params.js';
-import { reviewSegment, type ReviewOptions, type ReviewOutcome } from '../../src/session/review.js';
+import { reviewOptions } from '../../src/session/prepare/axis-params.js';
+import { reviewSegment, type ReviewOptions, type ReviewOutcome } from '../../src/session/classify/review.js';
 import { expectSameHistory, firstDiff, segmentCase } from '../helpers/history-compare.js';
 import type { AxisModel } from '../../src/models/axis-model.js';
 import type { ScenarioKind } from '../../src/simulate/truth.js';

@@ -1,5 +1,5 @@
 /**
- * The swap test's trial (src/session/review-swaps.ts, trialCost and trySwap) against its
+ * The swap test's trial (src/session/classify/review-swaps.ts, trialCost and trySwap) against its
  * definition: the robust cost of a sandwich's neighbourhood after the swap, from a re-run of the
  * forward filter and the RTS smoother over the whole segment with that swap alone. Every sandwich
  * of converged reviews (seeded simulated logs with bursts) is tried both ways; costs agree to
@@ -9,11 +9,11 @@ import { describe, expect, it } from 'vitest';
 import { reviewStatisticsRange } from '../../src/estimation/review.js';
 import { allocateHistory, forwardFilter, historyOf, type SegmentData } from '../../src/estimation/track-filter.js';
 import { smoothInto } from '../../src/estimation/track-smoother.js';
-import { reviewSegment } from '../../src/session/review.js';
-import { reviewThresholds } from '../../src/session/review-decisions.js';
-import { applySwap, findSwaps, makeSwapTrial, swapCost, trialCost, trySwap } from '../../src/session/review-swaps.js';
+import { reviewSegment } from '../../src/session/classify/review.js';
+import { reviewThresholds } from '../../src/session/classify/review-decisions.js';
+import { applySwap, findSwaps, makeSwapTrial, swapCost, trialCost, trySwap } from '../../src/session/classify/review-swaps.js';
 import { segmentCase } from '../helpers/history-compare.js';
-import type { DecisionLog } from '../../src/session/decision-log.js';
+import type { DecisionLog } from '../../src/session/result/decision-log.js';
 
 function rng(seed: number): () => number {
   let s = seed;

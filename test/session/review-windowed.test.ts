@@ -7,9 +7,9 @@
 import { describe, expect, it } from 'vitest';
 import { loadConfig } from '../../src/config/load.js';
 import { readFixCsv } from '../../src/input/csv-fixes.js';
-import { axisParamsFromConfig, buildAxisModels, filterOptions, reviewOptions } from '../../src/session/axis-params.js';
-import { prepareSession, segmentData } from '../../src/session/prepare.js';
-import { RERUN_TOL, reviewSegment, type ReviewOutcome } from '../../src/session/review.js';
+import { axisParamsFromConfig, buildAxisModels, filterOptions, reviewOptions } from '../../src/session/prepare/axis-params.js';
+import { prepareSession, segmentData } from '../../src/session/prepare/prepare.js';
+import { RERUN_TOL, reviewSegment, type ReviewOutcome } from '../../src/session/classify/review.js';
 import { defaultSpec, scenarioCsv, simulate, type ScenarioKind } from '../../src/simulate/scenario.js';
 
 /** Largest |a − b| over the elements (NaN must match NaN; a NaN against a number counts as Infinity). */

@@ -1,5 +1,5 @@
 /**
- * The robust process-noise estimate (src/session/robust-motion.ts) on simulated constant-velocity
+ * The robust process-noise estimate (src/session/calibrate/robust-motion.ts) on simulated constant-velocity
  * motion with known white-acceleration density q: the second difference of position at lag L has
  * variance (2/3) q L³ plus 6σ² of white fix noise (derivation in the file header; the CV model's
  * discretization is Bar-Shalom, Li, Kirubarajan, "Estimation with Applications to Tracking and
@@ -7,8 +7,8 @@
  * differences, measured over seeds (about ±15 % at one sd), with margin.
  */
 import { describe, expect, test } from 'vitest';
-import { robustProcessNoise } from '../../src/session/robust-motion.js';
-import type { PreparedSession } from '../../src/session/prepare.js';
+import { robustProcessNoise } from '../../src/session/calibrate/robust-motion.js';
+import type { PreparedSession } from '../../src/session/prepare/prepare.js';
 import { Rng } from '../../src/simulate/rng.js';
 
 interface Track {

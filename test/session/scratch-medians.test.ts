@@ -12,7 +12,7 @@
  */
 import { describe, expect, test } from 'vitest';
 import { sessionCentre } from '../../src/geodesy/local-frame.js';
-import { FIX_QUALITY_FACTOR, fixSigmaFactors } from '../../src/session/fix-noise.js';
+import { FIX_QUALITY_FACTOR, fixSigmaFactors } from '../../src/session/prepare/fix-noise.js';
 import type { FixSeries, QualityColumn } from '../../src/input/fix-series.js';
 import { Rng } from '../../src/simulate/rng.js';
 

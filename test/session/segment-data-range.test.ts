@@ -7,9 +7,9 @@
 import { describe, expect, it } from 'vitest';
 import { loadConfig } from '../../src/config/load.js';
 import { readFixCsv } from '../../src/input/csv-fixes.js';
-import { sliceSegment } from '../../src/session/prepare.js';
-import { axisParamsFromConfig } from '../../src/session/axis-params.js';
-import { prepareSession, segmentData, segmentDataRange } from '../../src/session/prepare.js';
+import { sliceSegment } from '../../src/session/prepare/prepare.js';
+import { axisParamsFromConfig } from '../../src/session/prepare/axis-params.js';
+import { prepareSession, segmentData, segmentDataRange } from '../../src/session/prepare/prepare.js';
 import { defaultSpec, scenarioCsv, simulate } from '../../src/simulate/scenario.js';
 import type { SegmentData } from '../../src/estimation/track-filter.js';
 

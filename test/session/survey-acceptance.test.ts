@@ -24,9 +24,9 @@ import { processSession } from '../../src/session/process-session.js';
 import { K2_95 } from '../../src/estimation/error-ellipse.js';
 import { defaultSpec, scenarioCsv, simulate, type Scenario } from '../../src/simulate/scenario.js';
 import { truthAt, type TruthTrack } from '../../src/simulate/truth.js';
-import type { SessionResult } from '../../src/session/result.js';
-import type { SurveyVertex } from '../../src/session/survey.js';
-import { intersectLines, legSums, lineOfSums, type Line } from '../../src/session/leg-corners.js';
+import type { SessionResult } from '../../src/session/result/result.js';
+import type { SurveyVertex } from '../../src/session/survey/survey.js';
+import { intersectLines, legSums, lineOfSums, type Line } from '../../src/session/survey/leg-corners.js';
 
 const cfg = loadConfig();
 
@@ -173,7 +173,7 @@ describe('survey products on the walking survey with stops (pooled over seeds)',
     expect(p.nLen).toBeGreaterThanOrEqual(20);
     expect(Math.abs(p.lenErr / p.nLen)).toBeLessThanOrEqual(p.lenSd / p.nLen);
   });
-  // with corners rebuilt from their legs (session/leg-corners.ts): 22/24, mean error −0.1 m against
+  // with corners rebuilt from their legs (session/survey/leg-corners.ts): 22/24, mean error −0.1 m against
   // a mean sd of 3.7 m (before: 21/24, −2.2 m, the smoothed track cutting the turns)
   it('length 95% intervals hold the truth 0.90–0.99 pooled', () => {
     const c = p.inLen / p.nLen;
@@ -370,7 +370,7 @@ describe('vehicle and drone logs: stops found, none while moving', () => {
     expect(dr.movingOcc).toBe(0);
   });
   // 19 of 22 found (0.86): a stop starts where the smoothed track's mean speed over 8 s and 4 s
-  // centred on an epoch is below the still speed (session/occupations.ts CENTRED_WINDOW_SEC);
+  // centred on an epoch is below the still speed (session/survey/occupations.ts CENTRED_WINDOW_SEC);
   // 17 of 22 with the smoothed velocity alone. The 0.8 is this project's floor for vehicles, whose
   // smoothed velocity at a stop wanders with their large process noise.
   it('finds most vehicle stops of 20 s or more (at least 0.8 of them with the centred and displacement windows)', () => {

@@ -1,10 +1,10 @@
 /**
- * Pieces of the survey products (session/survey.ts) on constructed input: the draw budget and the
+ * Pieces of the survey products (session/survey/survey.ts) on constructed input: the draw budget and the
  * Douglas–Peucker simplification of the length vertices (Douglas & Peucker 1973).
  */
 import { describe, expect, it } from 'vitest';
-import { drawsFor, simplifyVertices, DRAW_EPOCH_BUDGET, type SurveyVertex } from '../../src/session/survey.js';
-import type { SessionResult } from '../../src/session/result.js';
+import { drawsFor, simplifyVertices, DRAW_EPOCH_BUDGET, type SurveyVertex } from '../../src/session/survey/survey.js';
+import type { SessionResult } from '../../src/session/result/result.js';
 
 describe('drawsFor (the draw budget)', () => {
   it.each([

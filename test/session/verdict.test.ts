@@ -1,13 +1,13 @@
 /**
- * The session quality verdict (src/session/verdict.ts): deep-urban single-point logs (errors of tens
+ * The session quality verdict (src/session/check/verdict.ts): deep-urban single-point logs (errors of tens
  * of metres with slowly varying biases and steps, src/simulate/degraded-errors.ts) are named
  * "degraded" with reasons and get their uncertainty widened; ordinary logs stay "good" and untouched.
  */
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, test } from 'vitest';
-import { sessionVerdict, widenToResidualScatter, errorRatio, type SessionVerdict } from '../../src/session/verdict.js';
-import { STATUS, type SessionResult } from '../../src/session/result.js';
+import { sessionVerdict, widenToResidualScatter, errorRatio, type SessionVerdict } from '../../src/session/check/verdict.js';
+import { STATUS, type SessionResult } from '../../src/session/result/result.js';
 import { okEntry } from '../../src/output/summary.js';
 import { defaultSpec, simulate } from '../../src/simulate/scenario.js';
 import { drawDegradedErrors, simulateDegraded } from '../../src/simulate/degraded-errors.js';
@@ -15,7 +15,7 @@ import { makeTruth } from '../../src/simulate/truth.js';
 import { parsePoint3Truth } from '../../src/simulate/recorded-truth.js';
 import { Rng } from '../../src/simulate/rng.js';
 import { runScenario } from '../helpers/score.js';
-import type { AxisParams } from '../../src/session/axis-params.js';
+import type { AxisParams } from '../../src/session/prepare/axis-params.js';
 
 const PROFILE: AxisParams = { motion: 'cv', qHorizontal: 0.5, qVertical: 0.1, sigmaHorizontalM: 2, sigmaVerticalM: 4, gmHorizontalSigmaM: 1.5, gmVerticalSigmaM: 3, gmTauSec: 60 };
 

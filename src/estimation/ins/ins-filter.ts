@@ -37,7 +37,7 @@ import { makeInsScratch, makeInsState, type InsScratch, type InsState } from './
 import { pushDetector, sizeDetector } from './stationary-detector.js';
 import { copyInsStats, newInsStats, type InsStats, type InsTimings } from './stats.js';
 
-// the types of the driver's interface (src/session/imu-session.ts imports them from here)
+// the types of the driver's interface (src/session/imu/imu-session.ts imports them from here)
 export type { InsEpochs, InsInit, InsOptions } from './inputs.js';
 export type { InsStats, InsTimings } from './stats.js';
 export type { InsHistory } from './history.js';

@@ -3,7 +3,7 @@
  * user decisions and bridged spans apart by shape and dash as well as by colour (so they read in
  * grey print and for colour-blind readers).
  */
-import { STATUS } from '../../session/result.js';
+import { STATUS } from '../../session/result/result.js';
 import type { PlotSeries } from './types.js';
 
 export const CHART_WIDTH = 620;

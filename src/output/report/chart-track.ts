@@ -6,7 +6,7 @@
  * that the page links it to its table row.
  */
 import type { TopLevelSpec } from 'vega-lite';
-import { STATUS } from '../../session/result.js';
+import { STATUS } from '../../session/result/result.js';
 import { CHART_WIDTH, FLAG_MARKS, flagEncoding, flagLabel, flagMark, flagSymbolPath, flagSymbolsSvg, r4 } from './chart-common.js';
 import type { EllipseMark, PlotSeries } from './types.js';
 import { CLOSEUP_JOIN_EPOCHS, isKeptFix } from './closeup-data.js';

@@ -5,7 +5,7 @@
  * and flagged, in the local frame (m). Bursts are chosen "review first" (the smallest margin of
  * their fixes first) up to CLOSEUPS_MAX a session, then listed in time order.
  */
-import { STATUS, type OutlierRecord, type SessionResult } from '../../session/result.js';
+import { STATUS, type OutlierRecord, type SessionResult } from '../../session/result/result.js';
 
 /** Close-ups drawn per session (the rest of the flagged fixes are in the table and the track plot). */
 export const CLOSEUPS_MAX = 24;

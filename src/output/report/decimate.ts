@@ -6,7 +6,7 @@
  * user decision, bridged-span ends) and the first and last epoch of every segment are always kept,
  * so no flagged fix is ever hidden by thinning.
  */
-import { STATUS, type SessionResult } from '../../session/result.js';
+import { STATUS, type SessionResult } from '../../session/result/result.js';
 
 /** Sorted, distinct epoch indices to draw. */
 export function plotEpochs(r: SessionResult, maxPoints: number): Int32Array {

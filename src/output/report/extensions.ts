@@ -11,7 +11,7 @@
  * reportPayload) and in the thread that writes the report (which runs `charts`), so it is never
  * changed at run time.
  */
-import type { SessionResult } from '../../session/result.js';
+import type { SessionResult } from '../../session/result/result.js';
 import { IMU_EXTENSION } from './imu-extension.js';
 import type { ExtensionData, ReportExtension } from './types.js';
 

@@ -3,7 +3,7 @@
  * biasEstimates): roll and pitch, heading, their 1-sigma, and the smoothed accelerometer and
  * gyroscope biases over time. Sessions without these fields get no extra plots.
  */
-import type { SessionResult } from '../../session/result.js';
+import type { SessionResult } from '../../session/result/result.js';
 import { seriesChart } from './chart-time.js';
 import type { ExtensionChart, ExtensionData, PlotSeries, ReportExtension } from './types.js';
 

@@ -4,8 +4,8 @@
  * structured-clone-safe: plain objects, arrays, strings, numbers and typed arrays only.
  */
 import type { InputWarning } from '../../errors.js';
-import { STATUS, STATUS_NAMES, type OutlierReason, type SessionMetrics, type SessionResult, type StatusName } from '../../session/result.js';
-import type { DecidingTest } from '../../session/decision-log.js';
+import { STATUS, STATUS_NAMES, type OutlierReason, type SessionMetrics, type SessionResult, type StatusName } from '../../session/result/result.js';
+import type { DecidingTest } from '../../session/result/decision-log.js';
 import { closeups, type Closeup } from './closeup-data.js';
 import { everyNth, plotEpochs } from './decimate.js';
 import { collectExtensions } from './extensions.js';

@@ -1,7 +1,7 @@
 /**
  * The plain-words quality line of a session's report section: the verdict ("good" / "degraded")
  * with its reasons and what was done about the uncertainty, and the outcome of the motion-model
- * check (session/verdict.ts, session/adequacy.ts; both recorded in summary.json).
+ * check (session/check/verdict.ts, session/check/adequacy.ts; both recorded in summary.json).
  */
 import type { SessionSummary } from '../summary.js';
 import { esc, num } from './html-text.js';

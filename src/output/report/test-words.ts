@@ -1,5 +1,5 @@
-/** The deciding tests (session/decision-log.ts) in words, for the report. */
-import type { DecidingTest } from '../../session/decision-log.js';
+/** The deciding tests (session/result/decision-log.ts) in words, for the report. */
+import type { DecidingTest } from '../../session/result/decision-log.js';
 
 const WORDS: Record<DecidingTest, string> = {
   'forward-gate': 'forward gate',

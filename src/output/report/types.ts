@@ -4,7 +4,7 @@
  * registers them). Types only, so every report module can import them without a cycle.
  */
 import type { TopLevelSpec } from 'vega-lite';
-import type { SessionResult } from '../../session/result.js';
+import type { SessionResult } from '../../session/result/result.js';
 
 /** Per plotted epoch (decimated), times in UTC Unix seconds, lengths in metres of the local frame. */
 export interface PlotSeries {
