@@ -78,7 +78,7 @@ export interface CalibrationOptions {
   /**
    * The maximizer: 'quasi-newton' (default; projected BFGS with a difference gradient,
    * estimation/bfgs-box.ts) or 'nelder-mead' (the simplex in two restarts; about 3–5× the evaluations
-   * for the same maximum, test/session/calibrate-optimizer.test.ts).
+   * for the same maximum, test/session/calibrate/calibrate-optimizer.test.ts).
    */
   optimizer?: 'quasi-newton' | 'nelder-mead';
 }

@@ -54,7 +54,7 @@ export const SIGMA_RATIO_STIFF = 2;
  * Upper limit of the correlated sigma in the refit, as a multiple of the profile's (about 1.5 prior
  * standard deviations). On a circling log the likelihood pushes the correlated error to whatever
  * limit it is given (the stiff explanation fits as well), so the limit sets the split. Measured on
- * circling walkers 1–8 (test/session/adequacy.test.ts; four re-modelled): held at the profile (1.0),
+ * circling walkers 1–8 (test/session/check/adequacy.test.ts; four re-modelled): held at the profile (1.0),
  * smoothed/raw pooled 0.82 but horizontal coverage 0.68 on the log whose true error was 1.4 × the
  * profile's; 2.0 (the conflict limit) 0.85 and coverage 0.92–1.00; 1.5: 0.83 and 0.92–1.00.
  */

@@ -18,7 +18,7 @@
  * with the flagged ones 25–28 m, coverage 0.21–0.48). The model's own sd on such a log describes
  * the scatter it was calibrated to; the floor is the error the fixes themselves show. A slow bias
  * that the track follows together with the fixes does not show in them, so the widened regions can
- * still be too small (test/session/verdict.test.ts prints the coverage). Pure; no file system.
+ * still be too small (test/session/check/verdict.test.ts prints the coverage). Pure; no file system.
  */
 import { errorEllipse } from '../../estimation/error-ellipse.js';
 import { STATUS, type SessionResult } from '../result/result.js';

@@ -23,7 +23,7 @@ import type { DecisionLog } from '../result/decision-log.js';
  * element is within it of the previous pass's value. With 0 (bit for bit) a change reaches ~16,000
  * epochs at 10 Hz (the slow Gauss–Markov mode must decay below one ulp), so windows merge into full
  * passes on long logs; at 1e-6 a change reaches ~900 epochs, and states differ from full passes by
- * micrometres (test/session/review-windowed.test.ts). Measured on a 100k-fix 10 Hz vehicle log.
+ * micrometres (test/session/classify/review-windowed.test.ts). Measured on a 100k-fix 10 Hz vehicle log.
  */
 export const RERUN_TOL = 1e-6;
 

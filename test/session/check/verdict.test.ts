@@ -6,16 +6,16 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, test } from 'vitest';
-import { sessionVerdict, widenToResidualScatter, errorRatio, type SessionVerdict } from '../../src/session/check/verdict.js';
-import { STATUS, type SessionResult } from '../../src/session/result/result.js';
-import { okEntry } from '../../src/output/summary.js';
-import { defaultSpec, simulate } from '../../src/simulate/scenario.js';
-import { drawDegradedErrors, simulateDegraded } from '../../src/simulate/degraded-errors.js';
-import { makeTruth } from '../../src/simulate/truth.js';
-import { parsePoint3Truth } from '../../src/simulate/recorded-truth.js';
-import { Rng } from '../../src/simulate/rng.js';
-import { runScenario } from '../helpers/score.js';
-import type { AxisParams } from '../../src/session/prepare/axis-params.js';
+import { sessionVerdict, widenToResidualScatter, errorRatio, type SessionVerdict } from '../../../src/session/check/verdict.js';
+import { STATUS, type SessionResult } from '../../../src/session/result/result.js';
+import { okEntry } from '../../../src/output/summary.js';
+import { defaultSpec, simulate } from '../../../src/simulate/scenario.js';
+import { drawDegradedErrors, simulateDegraded } from '../../../src/simulate/degraded-errors.js';
+import { makeTruth } from '../../../src/simulate/truth.js';
+import { parsePoint3Truth } from '../../../src/simulate/recorded-truth.js';
+import { Rng } from '../../../src/simulate/rng.js';
+import { runScenario } from '../../helpers/score.js';
+import type { AxisParams } from '../../../src/session/prepare/axis-params.js';
 
 const PROFILE: AxisParams = { motion: 'cv', qHorizontal: 0.5, qVertical: 0.1, sigmaHorizontalM: 2, sigmaVerticalM: 4, gmHorizontalSigmaM: 1.5, gmVerticalSigmaM: 3, gmTauSec: 60 };
 
@@ -134,7 +134,7 @@ describe('ordinary logs stay good and their uncertainty untouched', () => {
   });
 
   test('a real drive (smartLoc Berlin_Gendarmenmarkt, CC BY-SA 4.0) with simulated fix errors: good', () => {
-    const { truth, origin } = parsePoint3Truth(readFileSync(join(import.meta.dirname, '..', 'fixtures', 'smartloc', 'Berlin_Gendarmenmarkt_GT.txt'), 'utf8'));
+    const { truth, origin } = parsePoint3Truth(readFileSync(join(import.meta.dirname, '..', '..', 'fixtures', 'smartloc', 'Berlin_Gendarmenmarkt_GT.txt'), 'utf8'));
     const sc = simulate(defaultSpec('vehicle', 501, { durationSec: truth.durationSec, origin }), truth);
     const { r } = runScenario(sc);
     expect((r.info.verdict as SessionVerdict).verdict).toBe('good');

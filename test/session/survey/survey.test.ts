@@ -3,8 +3,8 @@
  * Douglas–Peucker simplification of the length vertices (Douglas & Peucker 1973).
  */
 import { describe, expect, it } from 'vitest';
-import { drawsFor, simplifyVertices, DRAW_EPOCH_BUDGET, type SurveyVertex } from '../../src/session/survey/survey.js';
-import type { SessionResult } from '../../src/session/result/result.js';
+import { drawsFor, simplifyVertices, DRAW_EPOCH_BUDGET, type SurveyVertex } from '../../../src/session/survey/survey.js';
+import type { SessionResult } from '../../../src/session/result/result.js';
 
 describe('drawsFor (the draw budget)', () => {
   it.each([

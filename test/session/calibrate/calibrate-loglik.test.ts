@@ -12,8 +12,8 @@ import { describe, expect, it, vi } from 'vitest';
 
 /** While true, forwardLogLikApplies answers false: the calibration evaluates every objective by forwardFilter. */
 const general = vi.hoisted(() => ({ on: false, calls: 0 }));
-vi.mock('../../src/estimation/track-loglik.js', async (importOriginal) => {
-  const m = await importOriginal<typeof import('../../src/estimation/track-loglik.js')>();
+vi.mock('../../../src/estimation/track-loglik.js', async (importOriginal) => {
+  const m = await importOriginal<typeof import('../../../src/estimation/track-loglik.js')>();
   return {
     ...m,
     forwardLogLikApplies: (...a: Parameters<typeof m.forwardLogLikApplies>) => {
@@ -23,12 +23,12 @@ vi.mock('../../src/estimation/track-loglik.js', async (importOriginal) => {
     },
   };
 });
-import { loadConfig } from '../../src/config/load.js';
-import { readFixCsv } from '../../src/input/csv-fixes.js';
-import { DEFAULT_CALIBRATION, FIRST_ROUND, calibrateSession, calibrationStride, calibrationWindows } from '../../src/session/calibrate/calibrate.js';
-import { axisParamsFromConfig } from '../../src/session/prepare/axis-params.js';
-import { prepareSession, segmentData } from '../../src/session/prepare/prepare.js';
-import { defaultSpec, scenarioCsv, simulate } from '../../src/simulate/scenario.js';
+import { loadConfig } from '../../../src/config/load.js';
+import { readFixCsv } from '../../../src/input/csv-fixes.js';
+import { DEFAULT_CALIBRATION, FIRST_ROUND, calibrateSession, calibrationStride, calibrationWindows } from '../../../src/session/calibrate/calibrate.js';
+import { axisParamsFromConfig } from '../../../src/session/prepare/axis-params.js';
+import { prepareSession, segmentData } from '../../../src/session/prepare/prepare.js';
+import { defaultSpec, scenarioCsv, simulate } from '../../../src/simulate/scenario.js';
 
 /** calibrateSession with every objective evaluated by forwardFilter and totalLogLik. */
 function generalCalibrate(...a: Parameters<typeof calibrateSession>): ReturnType<typeof calibrateSession> {

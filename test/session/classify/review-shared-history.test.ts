@@ -8,13 +8,13 @@
  * without windowed re-runs, the swap test, a pass limit, and given starting decisions.
  */
 import { describe, expect, it } from 'vitest';
-import { loadConfig } from '../../src/config/load.js';
-import { reviewOptions } from '../../src/session/prepare/axis-params.js';
-import { reviewSegment, type ReviewOptions, type ReviewOutcome } from '../../src/session/classify/review.js';
-import { expectSameHistory, firstDiff, segmentCase } from '../helpers/history-compare.js';
-import type { AxisModel } from '../../src/models/axis-model.js';
-import type { ScenarioKind } from '../../src/simulate/truth.js';
-import type { SegmentData } from '../../src/estimation/track-filter.js';
+import { loadConfig } from '../../../src/config/load.js';
+import { reviewOptions } from '../../../src/session/prepare/axis-params.js';
+import { reviewSegment, type ReviewOptions, type ReviewOutcome } from '../../../src/session/classify/review.js';
+import { expectSameHistory, firstDiff, segmentCase } from '../../helpers/history-compare.js';
+import type { AxisModel } from '../../../src/models/axis-model.js';
+import type { ScenarioKind } from '../../../src/simulate/truth.js';
+import type { SegmentData } from '../../../src/estimation/track-filter.js';
 
 function expectSameOutcome(a: ReviewOutcome, b: ReviewOutcome): void {
   expect(a.passes).toBe(b.passes);

@@ -4,8 +4,8 @@
  * closed-form limits and against simulated straight walks with white and correlated noise.
  */
 import { describe, expect, it } from 'vitest';
-import { besselI0e, besselI1e, expectedStepLength, stepErrorVariance } from '../../src/session/survey/raw-length.js';
-import { Rng } from '../../src/simulate/rng.js';
+import { besselI0e, besselI1e, expectedStepLength, stepErrorVariance } from '../../../src/session/survey/raw-length.js';
+import { Rng } from '../../../src/simulate/rng.js';
 
 describe('Bessel functions (Abramowitz & Stegun 1964, Table 9.8: e^{-x} I0(x), e^{-x} I1(x))', () => {
   // table values, from memory of A&S Table 9.8 / the series Σ (x/2)^{2k}/(k!)²; tol 3e-7

@@ -11,8 +11,8 @@
  * values at the limit. Seeded.
  */
 import { describe, expect, it } from 'vitest';
-import type { FixSeries } from '../../src/input/fix-series.js';
-import { HEIGHT_JUMP_RATE_MPS, HEIGHT_JUMP_SLACK_M, flagHeightJumps } from '../../src/session/prepare/valid-fixes.js';
+import type { FixSeries } from '../../../src/input/fix-series.js';
+import { HEIGHT_JUMP_RATE_MPS, HEIGHT_JUMP_SLACK_M, flagHeightJumps } from '../../../src/session/prepare/valid-fixes.js';
 
 /** The definition, one fix at a time: sorts and filters, no shortcut. */
 function definitionFlags(s: FixSeries, valid: Uint8Array, why: string[]): void {

@@ -7,9 +7,9 @@
  * differences, measured over seeds (about ±15 % at one sd), with margin.
  */
 import { describe, expect, test } from 'vitest';
-import { robustProcessNoise } from '../../src/session/calibrate/robust-motion.js';
-import type { PreparedSession } from '../../src/session/prepare/prepare.js';
-import { Rng } from '../../src/simulate/rng.js';
+import { robustProcessNoise } from '../../../src/session/calibrate/robust-motion.js';
+import type { PreparedSession } from '../../../src/session/prepare/prepare.js';
+import { Rng } from '../../../src/simulate/rng.js';
 
 interface Track {
   q: number;

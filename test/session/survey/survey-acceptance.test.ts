@@ -18,15 +18,15 @@
  * The criteria are the product's own (uncertainty is a product: common practice for coverage checks).
  */
 import { describe, expect, it } from 'vitest';
-import { loadConfig } from '../../src/config/load.js';
-import { readFixCsv } from '../../src/input/csv-fixes.js';
-import { processSession } from '../../src/session/process-session.js';
-import { K2_95 } from '../../src/estimation/error-ellipse.js';
-import { defaultSpec, scenarioCsv, simulate, type Scenario } from '../../src/simulate/scenario.js';
-import { truthAt, type TruthTrack } from '../../src/simulate/truth.js';
-import type { SessionResult } from '../../src/session/result/result.js';
-import type { SurveyVertex } from '../../src/session/survey/survey.js';
-import { intersectLines, legSums, lineOfSums, type Line } from '../../src/session/survey/leg-corners.js';
+import { loadConfig } from '../../../src/config/load.js';
+import { readFixCsv } from '../../../src/input/csv-fixes.js';
+import { processSession } from '../../../src/session/process-session.js';
+import { K2_95 } from '../../../src/estimation/error-ellipse.js';
+import { defaultSpec, scenarioCsv, simulate, type Scenario } from '../../../src/simulate/scenario.js';
+import { truthAt, type TruthTrack } from '../../../src/simulate/truth.js';
+import type { SessionResult } from '../../../src/session/result/result.js';
+import type { SurveyVertex } from '../../../src/session/survey/survey.js';
+import { intersectLines, legSums, lineOfSums, type Line } from '../../../src/session/survey/leg-corners.js';
 
 const cfg = loadConfig();
 

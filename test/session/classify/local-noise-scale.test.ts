@@ -8,7 +8,7 @@
  * against a seeded Monte Carlo mean.
  */
 import { describe, expect, it } from 'vitest';
-import { localNoiseScale, localScaleOptions, MEAN_LOG_CHI2_PER_DOF } from '../../src/session/classify/local-noise-scale.js';
+import { localNoiseScale, localScaleOptions, MEAN_LOG_CHI2_PER_DOF } from '../../../src/session/classify/local-noise-scale.js';
 
 /** Park–Miller minimal standard generator (seeded). */
 function rng(seed: number): () => number {

@@ -11,10 +11,10 @@
  * invalid fixes.
  */
 import { describe, expect, test } from 'vitest';
-import { sessionCentre } from '../../src/geodesy/local-frame.js';
-import { FIX_QUALITY_FACTOR, fixSigmaFactors } from '../../src/session/prepare/fix-noise.js';
-import type { FixSeries, QualityColumn } from '../../src/input/fix-series.js';
-import { Rng } from '../../src/simulate/rng.js';
+import { sessionCentre } from '../../../src/geodesy/local-frame.js';
+import { FIX_QUALITY_FACTOR, fixSigmaFactors } from '../../../src/session/prepare/fix-noise.js';
+import type { FixSeries, QualityColumn } from '../../../src/input/fix-series.js';
+import { Rng } from '../../../src/simulate/rng.js';
 
 /** Upper median of the finite positive values, by sorting; NaN when there are none. */
 function sortedMedian(a: Float64Array | undefined): number {

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { applyReviewDecisions, reviewThresholds } from '../../src/session/classify/review-decisions.js';
-import { Rng } from '../../src/simulate/rng.js';
+import { applyReviewDecisions, reviewThresholds } from '../../../src/session/classify/review-decisions.js';
+import { Rng } from '../../../src/simulate/rng.js';
 
 /** The original decision pass (each candidate tested against every fix taken so far), as reference. */
 function reference(N: number, offered: Uint8Array, kept: Uint8Array, T: Float64Array, dof: Uint8Array, threshold: Float64Array, tSec: Float64Array, th: ReturnType<typeof reviewThresholds>, guardSec: number): boolean {

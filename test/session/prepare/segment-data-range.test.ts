@@ -5,13 +5,13 @@
  * invalid fixes, user decisions and without height. Seeded.
  */
 import { describe, expect, it } from 'vitest';
-import { loadConfig } from '../../src/config/load.js';
-import { readFixCsv } from '../../src/input/csv-fixes.js';
-import { sliceSegment } from '../../src/session/prepare/prepare.js';
-import { axisParamsFromConfig } from '../../src/session/prepare/axis-params.js';
-import { prepareSession, segmentData, segmentDataRange } from '../../src/session/prepare/prepare.js';
-import { defaultSpec, scenarioCsv, simulate } from '../../src/simulate/scenario.js';
-import type { SegmentData } from '../../src/estimation/track-filter.js';
+import { loadConfig } from '../../../src/config/load.js';
+import { readFixCsv } from '../../../src/input/csv-fixes.js';
+import { sliceSegment } from '../../../src/session/prepare/prepare.js';
+import { axisParamsFromConfig } from '../../../src/session/prepare/axis-params.js';
+import { prepareSession, segmentData, segmentDataRange } from '../../../src/session/prepare/prepare.js';
+import { defaultSpec, scenarioCsv, simulate } from '../../../src/simulate/scenario.js';
+import type { SegmentData } from '../../../src/estimation/track-filter.js';
 
 function same(a: ArrayLike<number>, b: ArrayLike<number>): boolean {
   if (a.length !== b.length) return false;

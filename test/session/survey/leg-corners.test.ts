@@ -4,7 +4,7 @@
  * geometry (common practice: a corner of two straight legs is their lines' intersection).
  */
 import { describe, expect, it } from 'vitest';
-import { cornerOf, intersectLines, legSums, legWindow, lineOfSums } from '../../src/session/survey/leg-corners.js';
+import { cornerOf, intersectLines, legSums, legWindow, lineOfSums } from '../../../src/session/survey/leg-corners.js';
 
 /** East along x then north: an L with its corner at (50, 0), rounded over the `round` points before and after it. */
 function lPath(round = 0): { e: number[]; n: number[] } {

@@ -5,12 +5,12 @@
  * error, a seed gives the same draws, and geodetic coordinates follow the local frame.
  */
 import { describe, expect, it } from 'vitest';
-import { loadConfig } from '../../src/config/load.js';
-import { readFixCsv } from '../../src/input/csv-fixes.js';
-import { processSession } from '../../src/session/process-session.js';
-import { measure, sampleTracks, summarize } from '../../src/session/survey/draws.js';
-import { meanPositionVariance, posteriorOf, releasePosterior } from '../../src/session/survey/posterior.js';
-import { defaultSpec, scenarioCsv, simulate } from '../../src/simulate/scenario.js';
+import { loadConfig } from '../../../src/config/load.js';
+import { readFixCsv } from '../../../src/input/csv-fixes.js';
+import { processSession } from '../../../src/session/process-session.js';
+import { measure, sampleTracks, summarize } from '../../../src/session/survey/draws.js';
+import { meanPositionVariance, posteriorOf, releasePosterior } from '../../../src/session/survey/posterior.js';
+import { defaultSpec, scenarioCsv, simulate } from '../../../src/simulate/scenario.js';
 
 const cfg = loadConfig();
 const sc = simulate(defaultSpec('walk', 3, { durationSec: 400 }));

@@ -5,12 +5,12 @@
  * on the ordinary scenarios, which must be left as they are.
  */
 import { describe, expect, test } from 'vitest';
-import { PERSISTENCE_EXCESS_STIFF, RHO_STIFF, SIGMA_RATIO_STIFF, modelIncrementCorrelation, residualAutocorrelation, residualIncrementCorrelation, tooStiff, type AdequacyCheck } from '../../src/session/check/adequacy.js';
-import { STATUS, type SessionResult } from '../../src/session/result/result.js';
-import { defaultSpec, simulate } from '../../src/simulate/scenario.js';
-import { Rng } from '../../src/simulate/rng.js';
-import { runScenario, type Score } from '../helpers/score.js';
-import { circlingScenario } from '../helpers/circling.js';
+import { PERSISTENCE_EXCESS_STIFF, RHO_STIFF, SIGMA_RATIO_STIFF, modelIncrementCorrelation, residualAutocorrelation, residualIncrementCorrelation, tooStiff, type AdequacyCheck } from '../../../src/session/check/adequacy.js';
+import { STATUS, type SessionResult } from '../../../src/session/result/result.js';
+import { defaultSpec, simulate } from '../../../src/simulate/scenario.js';
+import { Rng } from '../../../src/simulate/rng.js';
+import { runScenario, type Score } from '../../helpers/score.js';
+import { circlingScenario } from '../../helpers/circling.js';
 
 /** A result holding only what the statistic reads: residual series e, n about a zero track. */
 function fakeResult(e: Float64Array, n: Float64Array, segmentOf: (j: number) => number = () => 0): SessionResult {

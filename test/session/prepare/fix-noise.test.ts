@@ -5,9 +5,9 @@
  * closed form. Seeded rows.
  */
 import { describe, expect, test } from 'vitest';
-import { loadConfig } from '../../src/config/load.js';
-import { readFixCsv } from '../../src/input/csv-fixes.js';
-import { factorsWithExponents, fixSigmaFactors } from '../../src/session/prepare/fix-noise.js';
+import { loadConfig } from '../../../src/config/load.js';
+import { readFixCsv } from '../../../src/input/csv-fixes.js';
+import { factorsWithExponents, fixSigmaFactors } from '../../../src/session/prepare/fix-noise.js';
 
 /** Park–Miller minimal standard generator (seeded). */
 function rng(seed: number): () => number {

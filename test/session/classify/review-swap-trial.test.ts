@@ -6,14 +6,14 @@
  * rounding and every keep/undo decision is the same.
  */
 import { describe, expect, it } from 'vitest';
-import { reviewStatisticsRange } from '../../src/estimation/review.js';
-import { allocateHistory, forwardFilter, historyOf, type SegmentData } from '../../src/estimation/track-filter.js';
-import { smoothInto } from '../../src/estimation/track-smoother.js';
-import { reviewSegment } from '../../src/session/classify/review.js';
-import { reviewThresholds } from '../../src/session/classify/review-decisions.js';
-import { applySwap, findSwaps, makeSwapTrial, swapCost, trialCost, trySwap } from '../../src/session/classify/review-swaps.js';
-import { segmentCase } from '../helpers/history-compare.js';
-import type { DecisionLog } from '../../src/session/result/decision-log.js';
+import { reviewStatisticsRange } from '../../../src/estimation/review.js';
+import { allocateHistory, forwardFilter, historyOf, type SegmentData } from '../../../src/estimation/track-filter.js';
+import { smoothInto } from '../../../src/estimation/track-smoother.js';
+import { reviewSegment } from '../../../src/session/classify/review.js';
+import { reviewThresholds } from '../../../src/session/classify/review-decisions.js';
+import { applySwap, findSwaps, makeSwapTrial, swapCost, trialCost, trySwap } from '../../../src/session/classify/review-swaps.js';
+import { segmentCase } from '../../helpers/history-compare.js';
+import type { DecisionLog } from '../../../src/session/result/decision-log.js';
 
 function rng(seed: number): () => number {
   let s = seed;

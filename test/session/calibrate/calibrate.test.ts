@@ -4,13 +4,13 @@
  * (src/simulate/scenario.ts); default configuration unless stated.
  */
 import { describe, expect, test } from 'vitest';
-import { loadConfig } from '../../src/config/load.js';
-import { readFixCsv } from '../../src/input/csv-fixes.js';
-import { FIRST_ROUND, calibrateSession, calibrationStride, calibrationWindows } from '../../src/session/calibrate/calibrate.js';
-import { axisParamsFromConfig, buildAxisModels } from '../../src/session/prepare/axis-params.js';
-import { prepareSession } from '../../src/session/prepare/prepare.js';
-import { defaultSpec, scenarioCsv, simulate, type ScenarioSpec } from '../../src/simulate/scenario.js';
-import { runScenario } from '../helpers/score.js';
+import { loadConfig } from '../../../src/config/load.js';
+import { readFixCsv } from '../../../src/input/csv-fixes.js';
+import { FIRST_ROUND, calibrateSession, calibrationStride, calibrationWindows } from '../../../src/session/calibrate/calibrate.js';
+import { axisParamsFromConfig, buildAxisModels } from '../../../src/session/prepare/axis-params.js';
+import { prepareSession } from '../../../src/session/prepare/prepare.js';
+import { defaultSpec, scenarioCsv, simulate, type ScenarioSpec } from '../../../src/simulate/scenario.js';
+import { runScenario } from '../../helpers/score.js';
 
 const cfg = loadConfig();
 

@@ -5,12 +5,12 @@
  * of the tolerance (each pass can add up to RERUN_TOL where its windows end).
  */
 import { describe, expect, it } from 'vitest';
-import { loadConfig } from '../../src/config/load.js';
-import { readFixCsv } from '../../src/input/csv-fixes.js';
-import { axisParamsFromConfig, buildAxisModels, filterOptions, reviewOptions } from '../../src/session/prepare/axis-params.js';
-import { prepareSession, segmentData } from '../../src/session/prepare/prepare.js';
-import { RERUN_TOL, reviewSegment, type ReviewOutcome } from '../../src/session/classify/review.js';
-import { defaultSpec, scenarioCsv, simulate, type ScenarioKind } from '../../src/simulate/scenario.js';
+import { loadConfig } from '../../../src/config/load.js';
+import { readFixCsv } from '../../../src/input/csv-fixes.js';
+import { axisParamsFromConfig, buildAxisModels, filterOptions, reviewOptions } from '../../../src/session/prepare/axis-params.js';
+import { prepareSession, segmentData } from '../../../src/session/prepare/prepare.js';
+import { RERUN_TOL, reviewSegment, type ReviewOutcome } from '../../../src/session/classify/review.js';
+import { defaultSpec, scenarioCsv, simulate, type ScenarioKind } from '../../../src/simulate/scenario.js';
 
 /** Largest |a − b| over the elements (NaN must match NaN; a NaN against a number counts as Infinity). */
 function maxDiff(a: Float64Array, b: Float64Array): number {

@@ -9,17 +9,17 @@
  * practice for Nelder–Mead, which can stall before the optimum). Seeded.
  */
 import { describe, expect, it } from 'vitest';
-import { loadConfig } from '../../src/config/load.js';
-import type { HindcastConfig } from '../../src/config/schema.js';
-import { readFixCsv } from '../../src/input/csv-fixes.js';
-import { DEFAULT_CALIBRATION, FIRST_ROUND, calibrateSession, type CalibrationOptions } from '../../src/session/calibrate/calibrate.js';
-import { axisParamsFromConfig, buildAxisModels, filterOptions, reviewOptions } from '../../src/session/prepare/axis-params.js';
-import { prepareSession, segmentData } from '../../src/session/prepare/prepare.js';
-import { reviewSegment } from '../../src/session/classify/review.js';
-import { defaultSpec, scenarioCsv, simulate } from '../../src/simulate/scenario.js';
-import { generateFamilyLog } from '../../src/simulate/family.js';
-import { FAMILY_KINDS, familySpecs } from '../../src/simulate/family-spec.js';
-import { smartlocReader } from '../helpers/family-run.js';
+import { loadConfig } from '../../../src/config/load.js';
+import type { HindcastConfig } from '../../../src/config/schema.js';
+import { readFixCsv } from '../../../src/input/csv-fixes.js';
+import { DEFAULT_CALIBRATION, FIRST_ROUND, calibrateSession, type CalibrationOptions } from '../../../src/session/calibrate/calibrate.js';
+import { axisParamsFromConfig, buildAxisModels, filterOptions, reviewOptions } from '../../../src/session/prepare/axis-params.js';
+import { prepareSession, segmentData } from '../../../src/session/prepare/prepare.js';
+import { reviewSegment } from '../../../src/session/classify/review.js';
+import { defaultSpec, scenarioCsv, simulate } from '../../../src/simulate/scenario.js';
+import { generateFamilyLog } from '../../../src/simulate/family.js';
+import { FAMILY_KINDS, familySpecs } from '../../../src/simulate/family-spec.js';
+import { smartlocReader } from '../../helpers/family-run.js';
 
 const NM: CalibrationOptions = { ...DEFAULT_CALIBRATION, optimizer: 'nelder-mead', maxEvaluations: 4000 };
 /** Evaluation counts of the second round per log: [quasi-Newton, Nelder–Mead at the default budget]. */
@@ -74,7 +74,7 @@ describe('calibration: the quasi-Newton maximizer reaches the simplex maximum', 
       check(`${kind}-${seed}`, scenarioCsv(simulate(defaultSpec(kind, seed))), `${kind}-${seed}.csv`, loadConfig());
     }, 120000);
 
-  const read = smartlocReader(new URL('../..', import.meta.url).pathname);
+  const read = smartlocReader(new URL('../../..', import.meta.url).pathname);
   const family = familySpecs(1, Object.fromEntries(FAMILY_KINDS.map((k) => [k, 1])));
   it.each(family.map((s) => [s.id, s] as const))('family log %s', (_id, spec) => {
     const log = generateFamilyLog(spec, read);

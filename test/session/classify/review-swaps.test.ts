@@ -3,7 +3,7 @@
  * its effect on a burst during braking is in test/session/accuracy.test.ts (vehicle seed 5).
  */
 import { describe, expect, it } from 'vitest';
-import { applySwap, findSwaps, swapCost } from '../../src/session/classify/review-swaps.js';
+import { applySwap, findSwaps, swapCost } from '../../../src/session/classify/review-swaps.js';
 
 /** 1 Hz epochs, every one a gated fix; `row` gives kept (K) and rejected (r) per epoch. */
 function setup(row: string) {
