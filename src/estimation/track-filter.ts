@@ -11,21 +11,12 @@
  */
 import type { AxisModel } from '../models/axis-model.js';
 import { chiSquareQuantile } from './chi-square.js';
+import { checkHistory, checkSegment, covIndex, covStride, type FilterHistory, type SegmentData } from './segment.js';
 import { innovation, makeScratch, predict, updateJoseph, type KalmanScratch } from './kalman.js';
 import { innovation3p, predict3p, predictState3, updateJoseph3p, updateState3 } from './kalman3.js';
 
-/** Epoch-wise inputs of one segment, per axis arrays indexed by epoch. */
-export interface SegmentData {
-  /** Number of epochs. */
-  N: number;
-  tSec: Float64Array;
-  /** Measured coordinate per axis (m, local frame); NaN where the axis is not measured. */
-  z: Float64Array[];
-  /** Measurement variance per axis (m²). */
-  r: Float64Array[];
-  /** 0 no measurement (bridged epoch, invalid or user-rejected fix), 1 gated fix, 2 fix accepted without gating (user-kept). */
-  use: Uint8Array;
-}
+export { covIndex, covStride, type FilterHistory, type SegmentData };
+
 
 export interface FilterOptions {
   /** Probability of the chi-square gate (e.g. 0.999). */
@@ -50,46 +41,10 @@ export interface FilterOptions {
   likelihood?: boolean;
 }
 
-/** Forward history of one segment; x/P hold filtered values (later overwritten by the smoother). */
-export interface FilterHistory {
-  N: number;
-  /** Per axis: N×n states. */
-  x: Float64Array[];
-  /** Per axis: N covariances of covStride(n) doubles each (n = 3: the upper triangle, see covIndex; otherwise n×n row-major). */
-  P: Float64Array[];
-  /** NIS of each offered fix against the prediction (NaN where none). */
-  nis: Float64Array;
-  /** Degrees of freedom of that NIS. */
-  dof: Uint8Array;
-  /** Gate threshold used at that epoch. */
-  threshold: Float64Array;
-  /** 1 where the fix was used in the update. */
-  accepted: Uint8Array;
-  /** Extra process-noise diagonal added to the step ending at an epoch (re-acquisition), per axis. */
-  extraQ: Map<number, Float64Array[]>;
-  /** Gaussian log-likelihood contribution of each epoch (capped at the gate for rejected fixes); filled with FilterOptions.likelihood, else 0. */
-  logLik: Float64Array;
-  /** Epochs where re-acquisition happened. */
-  reacquired: number[];
-}
 
 const LOG_2PI = Math.log(2 * Math.PI);
 
-/**
- * Doubles per epoch of an axis covariance in a history: for n = 3 the upper triangle
- * [p00, p01, p02, p11, p12, p22] (the covariances are symmetric bit for bit: every kernel writes them
- * mirrored), otherwise the full n×n matrix.
- */
-export function covStride(n: number): number {
-  return n === 3 ? 6 : n * n;
-}
 
-/** Index of element (i, j) within one epoch's covariance of an axis with state dimension n (see covStride). */
-export function covIndex(n: number, i: number, j: number): number {
-  if (n !== 3) return i * n + j;
-  const r = i < j ? i : j, c = i < j ? j : i;
-  return r * 3 - (r * (r - 1)) / 2 + (c - r);
-}
 
 /**
  * Whether the north axis (1) can take the east axis's (0) covariances instead of computing them:
@@ -394,8 +349,8 @@ function recordReacquisition(models: AxisModel[], data: SegmentData, h: FilterHi
 export function forwardFilter(models: AxisModel[], data: SegmentData, opt: FilterOptions, history?: FilterHistory, resume?: FilterResume): FilterHistory {
   const h = history ?? allocateHistory(data.N, models);
   if (resume && !history) throw new Error('forwardFilter: resume needs the previous history');
-  if (h.N !== data.N) throw new Error(`forwardFilter: the history holds ${h.N} epochs, the segment ${data.N}`);
-  if (h.x.length !== models.length || h.P.length !== models.length) throw new Error(`forwardFilter: the history has ${h.x.length} axes, the models ${models.length}`);
+  checkSegment('forwardFilter', models, data);
+  checkHistory('forwardFilter', models, h, data.N);
   const thresholds = [0, 0, 0, 0].map((_, d) => (d === 0 ? Infinity : chiSquareQuantile(opt.gateProbability, d)));
   // north takes east's covariances (predict and update its state only)
   const share = horizontalShare(models, data, opt.rScale, opt.qScale);

@@ -11,6 +11,7 @@
  * Sources as track-filter.ts: gate Bar-Shalom, Li, Kirubarajan (2001) §5.4; Kalman (1960); Joseph
  * form Grewal & Andrews (2015) §6.
  */
+import { checkSegment } from './segment.js';
 import type { AxisModel } from '../models/axis-model.js';
 import { chiSquareQuantile } from './chi-square.js';
 import { allocateHistory, forwardFilter, totalLogLik, writePrior, type FilterHistory, type FilterOptions, type SegmentData } from './track-filter.js';
@@ -58,6 +59,8 @@ export function forwardLogLikApplies(models: AxisModel[], data: SegmentData, opt
  * forwardLogLikApplies (checked by the caller). `rScale` multiplies the measurement variances per axis.
  */
 export function forwardLogLik(models: AxisModel[], data: SegmentData, opt: FilterOptions, rScale: number[], w: LogLikWork): number {
+  checkSegment('forwardLogLik', models, data);
+  if (rScale.length < models.length) throw new RangeError(`forwardLogLik: rScale has ${rScale.length} elements, expected one per model (${models.length})`);
   const N = data.N;
   if (N === 0) return 0;
   const up = models.length === 3;

@@ -4,6 +4,7 @@
  * pass, including the extra noise recorded at re-acquisitions.
  * Source: Rauch, Tung, Striebel (1965); Särkkä (2013) Theorem 8.2.
  */
+import { checkHistory, checkSegment } from './segment.js';
 import type { AxisModel } from '../models/axis-model.js';
 import { NumericalError } from '../errors.js';
 import { makeScratch } from './kalman.js';
@@ -51,6 +52,8 @@ function rtsEpoch(models: AxisModel[], F: Float64Array[], Q: Float64Array[], h: 
 }
 
 export function smoothInPlace(models: AxisModel[], data: SegmentData, h: FilterHistory, qScale?: Float64Array[] | null): void {
+  checkSegment('smoothInPlace', models, data);
+  checkHistory('smoothInPlace', models, h, data.N);
   const F = models.map((m) => new Float64Array(m.n * m.n));
   const Q = models.map((m) => new Float64Array(m.n * m.n));
   const rs = models.map((m) => makeRtsScratch(m.n, makeScratch(m.n)));
@@ -76,6 +79,9 @@ export function smoothInPlace(models: AxisModel[], data: SegmentData, h: FilterH
  * for a later re-run with resmoothWindows). Same arithmetic as smoothInPlace on a copy.
  */
 export function smoothInto(models: AxisModel[], data: SegmentData, f: FilterHistory, s: FilterHistory, qScale?: Float64Array[] | null): void {
+  checkSegment('smoothInto', models, data);
+  checkHistory('smoothInto', models, f, data.N);
+  checkHistory('smoothInto', models, s, data.N);
   const nAx = models.length;
   if (smootherCanShare(models, qScale) && (nAx === 2 || (nAx === 3 && models[2]!.n === 3)) && f.N > 0) return smoothIntoShared3(models, data, f, s, qScale);
   for (let a = 0; a < models.length; a++) {
@@ -105,6 +111,9 @@ export function resmoothWindows(
   tol: number,
   changedOut: number[],
 ): number {
+  checkSegment('resmoothWindows', models, data);
+  checkHistory('resmoothWindows', models, f, data.N);
+  checkHistory('resmoothWindows', models, s, data.N);
   const N = f.N;
   const nAx = models.length;
   const F = models.map((m) => new Float64Array(m.n * m.n));
