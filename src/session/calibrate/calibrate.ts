@@ -23,6 +23,7 @@ import { buildAxisModels, filterOptions, type AxisParams } from '../prepare/axis
 import { segmentData, segmentDataRange, segmentGrid, sliceSegment, type PreparedSession } from '../prepare/prepare.js';
 import { selectKth } from '../../estimation/select.js';
 import { qualityLogTerms } from '../prepare/fix-noise.js';
+import { applyQualityTable, qualityTable, type QualityTable } from './quality-variances.js';
 
 type ParamName = 'sigmaHorizontalM' | 'sigmaVerticalM' | 'gmHorizontalSigmaM' | 'gmVerticalSigmaM' | 'gmTauSec' | 'gmVerticalTauSec' | 'qHorizontal' | 'qVertical' | 'hdopExponent' | 'satsExponent';
 
@@ -143,27 +144,6 @@ export const GM_VERTICAL_EVIDENCE_WEIGHT = 0.5;
  */
 export const VERTICAL_Q_FLOOR_RATIO = 0.05;
 export const VERTICAL_Q_FLOOR_LOG_SD = 0.01;
-
-/**
- * The measurement variances of a calibration item at unit white sigma for quality-column exponents
- * αₕ, αₛ, in place: r = factor², factor = exp(αₕ·log DOP ratio + αₛ·½ log sats ratio + log fix-quality
- * ratio), from the per-epoch log terms of qualityLogTerms (4 a epoch: DOP horizontal, DOP vertical,
- * sats, fix quality).
- */
-export function qualityVariances(d: SegmentData, terms: Float64Array, aH: number, aS: number): void {
-  const rE = d.r[0]!, rN = d.r[1]!, rU = d.r[2];
-  for (let k = 0; k < d.N; k++) {
-    if (!Number.isFinite(rE[k]!)) continue;
-    const o = 4 * k;
-    const fh = Math.exp(aH * terms[o]! + aS * terms[o + 2]! + terms[o + 3]!);
-    rE[k] = fh * fh;
-    rN[k] = fh * fh;
-    if (rU && Number.isFinite(rU[k]!)) {
-      const fv = Math.exp(aH * terms[o + 1]! + aS * terms[o + 2]! + terms[o + 3]!);
-      rU[k] = fv * fv;
-    }
-  }
-}
 
 /** Number of contiguous chunks the calibration subset of a long log is made of. */
 export const CALIBRATION_CHUNKS = 4;
@@ -361,6 +341,8 @@ interface ObjectiveItem {
   data: SegmentData;
   sameInputs: boolean;
   terms: Float64Array | null;
+  /** The distinct combinations of those terms (qualityTable), where they are given. */
+  quality: QualityTable | null;
 }
 
 /** The calibration subset as the objective reads it: under held-fixed decisions when given, thinned by calibrationStride, each chunk from its first fix. */
@@ -399,7 +381,7 @@ function objectiveSubset(
         terms.set(lt, 4 * k);
       }
     }
-    subset.push({ data: d.data, sameInputs: sameHorizontalInputs(d.data), terms });
+    subset.push({ data: d.data, sameInputs: sameHorizontalInputs(d.data), terms, quality: terms ? qualityTable(terms, d.data.N) : null });
   }
   return subset;
 }
@@ -443,7 +425,7 @@ function makeLogLik(ps: PreparedSession, cfg: HindcastConfig, prior: AxisParams,
     if (withExponents) {
       const aH = p.hdopExponent ?? 1, aS = p.satsExponent ?? 1;
       if (aH !== rExp[0] || aS !== rExp[1]) {
-        for (const { data: d, terms } of subset) qualityVariances(d, terms!, aH, aS);
+        for (const { data: d, quality } of subset) applyQualityTable(d, quality!, aH, aS);
         rExp = [aH, aS];
       }
     }
