@@ -6,28 +6,10 @@
  * time. DOP is logged to a tenth and the satellite count is an integer, so a log holds few distinct
  * term combinations (tens to a few hundred in thousands of epochs): qualityTable finds them once,
  * and applyQualityTable computes each combination's factor once an evaluation, with the same
- * expression on the same numbers as qualityVariances, so the same bits (test/session/calibrate/quality-variances.test.ts).
+ * expression on the same numbers as the per-epoch form, so the same bits
+ * (test/session/calibrate/quality-variances.test.ts holds the per-epoch form).
  */
 import type { SegmentData } from '../../estimation/track-filter.js';
-
-/**
- * qualityVariances in its plain form: every epoch's factors computed, in place (epochs whose east
- * variance is not finite, i.e. without a fix, are left as they are; up likewise).
- */
-export function qualityVariances(d: SegmentData, terms: Float64Array, aH: number, aS: number): void {
-  const rE = d.r[0]!, rN = d.r[1]!, rU = d.r[2];
-  for (let k = 0; k < d.N; k++) {
-    if (!Number.isFinite(rE[k]!)) continue;
-    const o = 4 * k;
-    const fh = Math.exp(aH * terms[o]! + aS * terms[o + 2]! + terms[o + 3]!);
-    rE[k] = fh * fh;
-    rN[k] = fh * fh;
-    if (rU && Number.isFinite(rU[k]!)) {
-      const fv = Math.exp(aH * terms[o + 1]! + aS * terms[o + 2]! + terms[o + 3]!);
-      rU[k] = fv * fv;
-    }
-  }
-}
 
 /** The distinct (DOP, sats, fix quality) log-term combinations of a calibration item, horizontal and vertical. */
 export interface QualityTable {
@@ -42,7 +24,7 @@ export interface QualityTable {
   varV: Float64Array;
 }
 
-/** The distinct combinations of `terms` (4 an epoch, as qualityVariances reads them) over N epochs. */
+/** The distinct combinations of `terms` (4 an epoch, as qualityLogTerms writes them) over N epochs. */
 export function qualityTable(terms: Float64Array, N: number): QualityTable {
   const idxH = new Uint32Array(N), idxV = new Uint32Array(N);
   const keysH = new Map<string, number>(), keysV = new Map<string, number>();
@@ -69,12 +51,12 @@ export function qualityTable(terms: Float64Array, N: number): QualityTable {
   };
 }
 
-/** qualityVariances through the table: the same variances, one exp a combination instead of one an epoch. */
+/** The variances through the table: the per-epoch form's, one exp a combination instead of one an epoch. Epochs without a fix (east variance not finite) are left as they are; up likewise. */
 export function applyQualityTable(d: SegmentData, t: QualityTable, aH: number, aS: number): void {
   const { combH, combV, varH, varV, idxH, idxV } = t;
   for (let u = 0; u < varH.length; u++) {
     const c = 3 * u;
-    // the expression of qualityVariances, operand for operand
+    // the per-epoch form's expression, operand for operand
     const fh = Math.exp(aH * combH[c]! + aS * combH[c + 1]! + combH[c + 2]!);
     varH[u] = fh * fh;
   }

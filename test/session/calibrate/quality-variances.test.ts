@@ -6,8 +6,27 @@
  * combinations where the columns are quantized as receivers log them.
  */
 import { describe, expect, it } from 'vitest';
-import { applyQualityTable, qualityTable, qualityVariances } from '../../../src/session/calibrate/quality-variances.js';
+import { applyQualityTable, qualityTable } from '../../../src/session/calibrate/quality-variances.js';
 import type { SegmentData } from '../../../src/estimation/track-filter.js';
+
+/**
+ * The variances in their plain form (r = factor², factor = exp(αₕ·DOP term + αₛ·sats term + fix-quality term)): every epoch's factors computed, in place (epochs whose east
+ * variance is not finite, i.e. without a fix, are left as they are; up likewise).
+ */
+function qualityVariances(d: SegmentData, terms: Float64Array, aH: number, aS: number): void {
+  const rE = d.r[0]!, rN = d.r[1]!, rU = d.r[2];
+  for (let k = 0; k < d.N; k++) {
+    if (!Number.isFinite(rE[k]!)) continue;
+    const o = 4 * k;
+    const fh = Math.exp(aH * terms[o]! + aS * terms[o + 2]! + terms[o + 3]!);
+    rE[k] = fh * fh;
+    rN[k] = fh * fh;
+    if (rU && Number.isFinite(rU[k]!)) {
+      const fv = Math.exp(aH * terms[o + 1]! + aS * terms[o + 2]! + terms[o + 3]!);
+      rU[k] = fv * fv;
+    }
+  }
+}
 
 /** Park–Miller minimal standard generator (seeded). */
 function rng(seed: number): () => number {
