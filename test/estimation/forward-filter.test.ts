@@ -19,18 +19,13 @@ import { chiSquareQuantile } from '../../src/estimation/chi-square.js';
 import { forwardFilter, type FilterOptions, type SegmentData } from '../../src/estimation/track-filter.js';
 import { reversed } from '../../src/session/classify/review.js';
 import type { ScenarioKind } from '../../src/simulate/truth.js';
-import { expectSameHistory, segmentCase } from '../helpers/history-compare.js';
+import { expectSameHistory, segmentCase, withBurst } from '../helpers/history-compare.js';
 import { expectNearTrack, textbookFilter } from '../helpers/textbook-track.js';
+import { rng } from '../helpers/park-miller.js';
 
 /** Tolerance against the textbook filter, relative. */
 const REL_TOL = 1e-12;
 const PRIOR: [number, number, number] = [100, 25, 1];
-
-/** Park–Miller minimal standard generator (seeded). */
-function rng(seed: number): () => number {
-  let s = seed;
-  return () => (s = (s * 48271) % 2147483647) / 2147483647;
-}
 
 const CASES: Array<[ScenarioKind, number, number, boolean]> = [
   ['vehicle', 5, 1, false],
@@ -39,20 +34,6 @@ const CASES: Array<[ScenarioKind, number, number, boolean]> = [
   ['drone', 7, 5, false],
   ['walk', 3, 1, false],
 ];
-
-/** A step of at least 40 fixes and 8 s displaced by 60 m horizontally from a third of the way in (the gate rejects them and re-acquires). */
-function withBurst(d: SegmentData): SegmentData {
-  const z = d.z.map((a) => a.slice());
-  let k = Math.floor(d.N / 3);
-  const t0 = d.tSec[k]!;
-  for (let n = 0; (n < 40 || d.tSec[k]! - t0 < 8) && k < d.N; k++) {
-    if (!Number.isFinite(z[0]![k]!)) continue;
-    z[0]![k] += 60;
-    z[1]![k] -= 45;
-    n++;
-  }
-  return { ...d, z };
-}
 
 /** The segment as simulated, with a burst, with some user-kept fixes, and (with height) some heights missing. */
 function variants(data: SegmentData, seed: number, rateHz: number): SegmentData[] {

@@ -17,12 +17,7 @@ import { buildAxisModels } from '../../src/session/prepare/axis-params.js';
 import { sliceSegment } from '../../src/session/prepare/prepare.js';
 import type { ScenarioKind } from '../../src/simulate/truth.js';
 import { segmentCase } from '../helpers/history-compare.js';
-
-/** Park–Miller minimal standard generator (seeded). */
-function rng(seed: number): () => number {
-  let s = seed;
-  return () => (s = (s * 48271) % 2147483647) / 2147483647;
-}
+import { rng } from '../helpers/park-miller.js';
 
 /** The work's state after a call (x east, north, up; P east, up) equals the last epoch of the forward history; north's P is east's. */
 function expectFinalState(st: Float64Array, ref: FilterHistory, nAx: number): void {

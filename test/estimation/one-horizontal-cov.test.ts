@@ -10,28 +10,9 @@
 import { describe, expect, it } from 'vitest';
 import { allocateHistory, forwardFilter, historyOf, type FilterHistory, type SegmentData } from '../../src/estimation/track-filter.js';
 import { resmoothWindows, smoothInto } from '../../src/estimation/track-smoother.js';
-import { expectSameHistory, segmentCase } from '../helpers/history-compare.js';
+import { expectSameHistory, segmentCase, withBurst } from '../helpers/history-compare.js';
 import type { ScenarioKind } from '../../src/simulate/truth.js';
-
-function rng(seed: number): () => number {
-  let s = seed;
-  return () => (s = (s * 48271) % 2147483647) / 2147483647;
-}
-
-/** A step of at least 40 fixes and 8 s displaced by 60 m horizontally from a third of the way in (the gate rejects them and re-acquires). */
-function withBurst(d: SegmentData): SegmentData {
-  const z = d.z.map((a) => a.slice());
-  let k = Math.floor(d.N / 3);
-  const t0 = d.tSec[k]!;
-  // at least 40 fixes and 8 s, longer than the default re-acquisition duration (5.5 s), so the filter re-acquires at every rate
-  for (let n = 0; (n < 40 || d.tSec[k]! - t0 < 8) && k < d.N; k++) {
-    if (!Number.isFinite(z[0]![k]!)) continue;
-    z[0]![k] += 60;
-    z[1]![k] -= 45;
-    n++;
-  }
-  return { ...d, z };
-}
+import { rng } from '../helpers/park-miller.js';
 
 const CASES: Array<[ScenarioKind, number, number, boolean]> = [
   ['vehicle', 5, 1, false],

@@ -12,11 +12,7 @@ import { makeAxisModel } from '../../src/models/axis-model.js';
 import { allocateHistory, forwardFilter, historyOf, type FilterHistory, type SegmentData } from '../../src/estimation/track-filter.js';
 import { resmoothWindows, smoothInPlace, smoothInto } from '../../src/estimation/track-smoother.js';
 import { expectSameHistory, segmentCase } from '../helpers/history-compare.js';
-
-function rng(seed: number): () => number {
-  let s = seed;
-  return () => (s = (s * 48271) % 2147483647) / 2147483647;
-}
+import { rng } from '../helpers/park-miller.js';
 
 function clone(h: FilterHistory): FilterHistory {
   const c = historyOf(h, h.x.map((a) => a.slice()), h.P.map((a) => a.slice()));

@@ -8,7 +8,7 @@ import { loadConfig } from '../../src/config/load.js';
 import { readFixCsv } from '../../src/input/csv-fixes.js';
 import { axisParamsFromConfig, buildAxisModels, filterOptions } from '../../src/session/prepare/axis-params.js';
 import { prepareSession, segmentData } from '../../src/session/prepare/prepare.js';
-import type { FilterHistory } from '../../src/estimation/track-filter.js';
+import type { FilterHistory, SegmentData } from '../../src/estimation/track-filter.js';
 import { defaultSpec, scenarioCsv, simulate } from '../../src/simulate/scenario.js';
 import type { ScenarioKind } from '../../src/simulate/truth.js';
 
@@ -52,4 +52,19 @@ export function segmentCase(kind: ScenarioKind, seed: number, rateHz: number, no
   for (const s of ps.segments) if (s[1] - s[0] > best[1] - best[0]) best = s;
   const { data } = segmentData(ps, best, p, cfg.segments.bridgeFactor);
   return { models, data, opt: filterOptions(cfg, p) };
+}
+
+/** A step of at least 40 fixes and 8 s displaced by 60 m horizontally from a third of the way in (the gate rejects them and re-acquires). */
+export function withBurst(d: SegmentData): SegmentData {
+  const z = d.z.map((a) => a.slice());
+  let k = Math.floor(d.N / 3);
+  const t0 = d.tSec[k]!;
+  // at least 40 fixes and 8 s, longer than the default re-acquisition duration (5.5 s), so the filter re-acquires at every rate
+  for (let n = 0; (n < 40 || d.tSec[k]! - t0 < 8) && k < d.N; k++) {
+    if (!Number.isFinite(z[0]![k]!)) continue;
+    z[0]![k] += 60;
+    z[1]![k] -= 45;
+    n++;
+  }
+  return { ...d, z };
 }

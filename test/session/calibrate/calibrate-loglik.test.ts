@@ -29,6 +29,7 @@ import { DEFAULT_CALIBRATION, FIRST_ROUND, calibrateSession, calibrationStride, 
 import { axisParamsFromConfig } from '../../../src/session/prepare/axis-params.js';
 import { prepareSession, segmentData } from '../../../src/session/prepare/prepare.js';
 import { defaultSpec, scenarioCsv, simulate } from '../../../src/simulate/scenario.js';
+import { rng } from '../../helpers/park-miller.js';
 
 /** calibrateSession with every objective evaluated by forwardFilter and totalLogLik. */
 function generalCalibrate(...a: Parameters<typeof calibrateSession>): ReturnType<typeof calibrateSession> {
@@ -38,12 +39,6 @@ function generalCalibrate(...a: Parameters<typeof calibrateSession>): ReturnType
   } finally {
     general.on = false;
   }
-}
-
-/** Park–Miller minimal standard generator (seeded). */
-function rng(seed: number): () => number {
-  let s = seed;
-  return () => (s = (s * 48271) % 2147483647) / 2147483647;
 }
 
 /** Every number of two results the same (Object.is), NaN and −0 included. */

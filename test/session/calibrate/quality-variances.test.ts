@@ -8,6 +8,7 @@
 import { describe, expect, it } from 'vitest';
 import { applyQualityTable, qualityTable } from '../../../src/session/calibrate/quality-variances.js';
 import type { SegmentData } from '../../../src/estimation/track-filter.js';
+import { rng } from '../../helpers/park-miller.js';
 
 /**
  * The variances in their plain form (r = factor², factor = exp(αₕ·DOP term + αₛ·sats term + fix-quality term)): every epoch's factors computed, in place (epochs whose east
@@ -26,12 +27,6 @@ function qualityVariances(d: SegmentData, terms: Float64Array, aH: number, aS: n
       rU[k] = fv * fv;
     }
   }
-}
-
-/** Park–Miller minimal standard generator (seeded). */
-function rng(seed: number): () => number {
-  let s = seed;
-  return () => (s = (s * 48271) % 2147483647) / 2147483647;
 }
 
 /** Terms as qualityLogTerms writes them, from quantized columns; a tenth of the epochs without a fix. */
