@@ -11,6 +11,9 @@ export const REACQUIRE_AFTER_SEC = 5.5;
 /** Default of noise.localScaleWindowSec (s). */
 export const LOCAL_SCALE_WINDOW_SEC = 60;
 
+/** Default of noise.correlatedFloorRatio (session/check/correlated-floor.ts; measured in docs/noise-model.md). */
+export const CORRELATED_FLOOR_RATIO = { horizontal: 1.75, vertical: 1.25 } as const;
+
 const positive = z.number().positive();
 
 export const columnsSchema = z
@@ -141,6 +144,15 @@ export const configSchema = z
          * (session/classify/local-noise-scale.ts); 0 turns it off.
          */
         localScaleWindowSec: z.number().min(0).default(LOCAL_SCALE_WINDOW_SEC),
+        /**
+         * The reported uncertainty assumes a correlated fix error of at least this many times the
+         * calibrated white sigma, horizontal and vertical (session/check/correlated-floor.ts); 0 turns
+         * the floor off on that axis group.
+         */
+        correlatedFloorRatio: z
+          .object({ horizontal: z.number().min(0).default(CORRELATED_FLOOR_RATIO.horizontal), vertical: z.number().min(0).default(CORRELATED_FLOOR_RATIO.vertical) })
+          .strict()
+          .default({ ...CORRELATED_FLOOR_RATIO }),
       })
       .strict()
       .default({
@@ -153,6 +165,7 @@ export const configSchema = z
         correlatedSigmaPrior: 'profile',
         reportedSigmaScale: 1,
         localScaleWindowSec: LOCAL_SCALE_WINDOW_SEC,
+        correlatedFloorRatio: { ...CORRELATED_FLOOR_RATIO },
       }),
     gate: z
       .object({

@@ -16,6 +16,7 @@ import { classify } from './classify/classify.js';
 import { runPrepared } from './products/final-run.js';
 import { applyAdequacyCheck } from './check/adequacy.js';
 import { sessionVerdict, widenToResidualScatter } from './check/verdict.js';
+import { applyCorrelatedFloor, correlatedFloor, whiteSigmaM } from './check/correlated-floor.js';
 import { posteriorOf } from './survey/posterior.js';
 import { surveyProducts } from './survey/survey.js';
 
@@ -51,6 +52,10 @@ export function processSession(series: FixSeries, cfg: HindcastConfig, name: str
     verdict.widened = widenToResidualScatter(r);
     r.warnings.push({ file: series.file, code: 'quality', message: `degraded session: ${verdict.reasons.join('; ')}; uncertainty widened to the fixes' scatter about the track` });
   }
+  // the correlated error the log cannot rule out, added to the reported uncertainty (session/check/correlated-floor.ts)
+  const floor = correlatedFloor(adequacy.params, cfg.noise.correlatedFloorRatio, whiteSigmaM(adequacy.params, ps.factors));
+  applyCorrelatedFloor(r, floor);
+  r.info.correlatedFloor = floor;
   for (const w of warnings) r.warnings.push({ file: series.file, code: 'calibration', message: w });
   r.info.calibration = info;
   if (adequacy.check) r.info.adequacy = adequacy.check;
@@ -58,7 +63,12 @@ export function processSession(series: FixSeries, cfg: HindcastConfig, name: str
   const post = posteriorOf(r);
   if (post) {
     if (tm) t0 = performance.now();
-    r.survey = surveyProducts(r, post, { draws: cfg.output.surveyDraws, seed: cfg.output.surveySeed, occupationMinSec: cfg.output.occupationMinSec });
+    r.survey = surveyProducts(r, post, {
+      draws: cfg.output.surveyDraws,
+      seed: cfg.output.surveySeed,
+      occupationMinSec: cfg.output.occupationMinSec,
+      addedVarEnu: [floor.addedSdM.horizontal ** 2, floor.addedSdM.horizontal ** 2, floor.addedSdM.vertical ** 2],
+    });
     if (tm) tm.products += performance.now() - t0;
   }
   return r;

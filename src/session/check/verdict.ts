@@ -20,7 +20,7 @@
  * that the track follows together with the fixes does not show in them, so the widened regions can
  * still be too small (test/session/check/verdict.test.ts prints the coverage). Pure; no file system.
  */
-import { errorEllipse } from '../../estimation/error-ellipse.js';
+import { refreshUncertaintyMetrics } from './correlated-floor.js';
 import { STATUS, type SessionResult } from '../result/result.js';
 import type { AxisParams } from '../prepare/axis-params.js';
 import { noiseScaleOf } from '../classify/local-noise-scale.js';
@@ -117,20 +117,10 @@ export function widenToResidualScatter(r: SessionResult): NonNullable<SessionVer
   const floorH = nH ? Math.sqrt(sH / nH) : 0;
   const floorU = nU ? Math.sqrt(sU / nU) : 0;
   const before = r.metrics.medianSdHorizontalM;
-  const sdH = new Float64Array(r.N);
   for (let j = 0; j < r.N; j++) {
     for (let a = 0; a < 2; a++) r.sdEnu[a]![j] = Math.max(r.sdEnu[a]![j]!, floorH);
     if (r.hasHeight) r.sdEnu[2][j] = Math.max(r.sdEnu[2][j]!, floorU);
-    const el = errorEllipse(r.sdEnu[0][j]! ** 2, r.sdEnu[1][j]! ** 2, r.covEN[j]!);
-    r.ell95MajorM[j] = el.majorM;
-    r.ell95MinorM[j] = el.minorM;
-    r.ell95AzimuthDeg[j] = el.azimuthDeg;
-    sdH[j] = Math.hypot(r.sdEnu[0][j]!, r.sdEnu[1][j]!);
   }
-  // the metrics as products.ts defines them (median: the element at index ⌊N/2⌋ of the sorted values)
-  const med = (v: Float64Array) => (v.length ? v.sort()[v.length >> 1]! : NaN);
-  r.metrics.medianSdHorizontalM = med(sdH);
-  r.metrics.worstEll95MajorM = r.N ? r.ell95MajorM.reduce((m, v) => (v > m ? v : m), -Infinity) : NaN;
-  r.metrics.medianEll95MajorM = med(r.ell95MajorM.slice());
+  refreshUncertaintyMetrics(r);
   return { horizontalSdFloorM: floorH, verticalSdFloorM: floorU, medianSdHorizontalM: [before, r.metrics.medianSdHorizontalM] };
 }

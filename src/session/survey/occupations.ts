@@ -121,8 +121,11 @@ export function stillRuns(r: SessionResult, o: StillOptions): Array<[number, num
   return runs;
 }
 
-/** Occupations with their positions and exact posterior uncertainty. */
-export function detectOccupations(r: SessionResult, post: TrackPosterior, opts: StillOptions): Occupation[] {
+/**
+ * Occupations with their positions and exact posterior uncertainty, plus `addedVarEnu` (m² east,
+ * north, up: an offset shared by the whole occupation, which its average keeps in full).
+ */
+export function detectOccupations(r: SessionResult, post: TrackPosterior, opts: StillOptions, addedVarEnu: [number, number, number] = [0, 0, 0]): Occupation[] {
   const out: Occupation[] = [];
   const ll = [0, 0];
   for (const [first, last] of stillRuns(r, opts)) {
@@ -138,12 +141,13 @@ export function detectOccupations(r: SessionResult, post: TrackPosterior, opts: 
     }
     if (post.nAx < 3) mean[2] = NaN;
     const v = meanPositionVariance(sp, k0, k1);
+    for (let a = 0; a < 3; a++) v[a] = v[a]! + addedVarEnu[a]!;
     const sd: [number, number, number] = [Math.sqrt(v[0]!), Math.sqrt(v[1]!), post.nAx > 2 ? Math.sqrt(v[2]!) : NaN];
     const el = errorEllipse(v[0]!, v[1]!, 0);
     // one fix's horizontal error variance: white (the fix's own r) plus the correlated part's σ²
     let rSum = 0, nFix = 0;
     const gm = sp.models[0]!.params.gm;
-    const gmVar = gm && gm.sigmaM > 0 && gm.tauSec > 0 ? gm.sigmaM ** 2 : 0;
+    const gmVar = (gm && gm.sigmaM > 0 && gm.tauSec > 0 ? gm.sigmaM ** 2 : 0) + (addedVarEnu[0]! + addedVarEnu[1]!) / 2;
     for (let k = k0; k <= k1; k++) {
       if (sp.data.use[k] === 0) continue;
       rSum += (sp.data.r[0]![k]! + sp.data.r[1]![k]!) / 2;

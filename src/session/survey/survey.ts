@@ -31,6 +31,8 @@ export interface SurveyOptions {
   stillWindowSec?: number;
   /** Vertex spacing factor; default VERTEX_SD_FACTOR. */
   vertexSdFactor?: number;
+  /** Variance (m²) added to each occupied point's east, north and up (the correlated-error floor; session/check/correlated-floor.ts). */
+  addedVarEnu?: [number, number, number];
 }
 
 /**
@@ -75,7 +77,7 @@ export function drawsFor(N: number, requested: number): number {
 }
 
 export function surveyProducts(r: SessionResult, post: TrackPosterior, o: SurveyOptions): SurveyProducts {
-  const occ = detectOccupations(r, post, { minSec: o.occupationMinSec, speedMps: o.stillSpeedMps, windowSec: o.stillWindowSec });
+  const occ = detectOccupations(r, post, { minSec: o.occupationMinSec, speedMps: o.stillSpeedMps, windowSec: o.stillWindowSec }, o.addedVarEnu);
   const nSeg = post.segments.length;
   const D = drawsFor(r.N, o.draws);
   const threeD = post.nAx === 3;
