@@ -12,7 +12,7 @@ export const REACQUIRE_AFTER_SEC = 5.5;
 export const LOCAL_SCALE_WINDOW_SEC = 60;
 
 /** Default of noise.correlatedFloorRatio (session/check/correlated-floor.ts; measured in docs/noise-model.md). */
-export const CORRELATED_FLOOR_RATIO = { horizontal: 1.75, vertical: 1.25 } as const;
+export const CORRELATED_FLOOR_RATIO = { horizontal: 1.25, vertical: 1.25 } as const;
 
 const positive = z.number().positive();
 

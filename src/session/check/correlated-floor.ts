@@ -22,25 +22,21 @@
  * the motion is an offset shared by neighbouring epochs, and an offset shared by a whole stretch of
  * track adds its full variance to every epoch's error (and to an occupied point's average, which
  * averages white noise away but not an offset). The track itself is the calibrated model's (the
- * smoothed positions do not change). ρ = 1.75 horizontally and 1.25 vertically (the vertical
- * correlated sigma is identified better: a platform that hardly climbs shows it), measured on the
- * scenario family (docs/noise-model.md "The correlated-error floor"); `noise.correlatedFloorRatio`
+ * smoothed positions do not change). ρ = 1.25 on both axis groups: on the scenario family it lifts
+ * the pooled coverage of phone-grade kinds most of the way that larger ratios do, and on the real
+ * receiver fixes of the smartLoc drives, where the calibration alone already gives 0.92–0.93, it
+ * keeps the regions at 0.98 (1.5 gave 0.99–1.00, too wide); docs/noise-model.md "The
+ * correlated-error floor" has the figures. `noise.correlatedFloorRatio`
  * sets them, 0 turns the floor off. Pure; no file system.
  */
 import { errorEllipse } from '../../estimation/error-ellipse.js';
 import type { SessionResult } from '../result/result.js';
 import type { AxisParams } from '../prepare/axis-params.js';
+import type { CorrelatedFloor } from '../result/correlated-floor-info.js';
 import type { FixSigmaFactors } from '../prepare/fix-noise.js';
 import { selectKth } from '../../estimation/select.js';
 
-export interface CorrelatedFloor {
-  /** The ratios ρ (horizontal, vertical) to the white sigma. */
-  ratio: { horizontal: number; vertical: number };
-  /** The correlated sigma the regions assume (m): max(ρ σ_w, σ_b). */
-  assumedSigmaM: { horizontal: number; vertical: number };
-  /** The sd added in quadrature to every epoch (m): √Δ. */
-  addedSdM: { horizontal: number; vertical: number };
-}
+export type { CorrelatedFloor };
 
 /**
  * The white fix sigma of p in metres at the session's median quality (horizontal per axis,

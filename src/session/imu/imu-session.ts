@@ -17,6 +17,7 @@
  * from the grid north of the session's transverse Mercator frame (within a few tenths of a degree of
  * true north inside a session).
  */
+import { applyCorrelatedFloor, correlatedFloor, whiteSigmaM } from '../check/correlated-floor.js';
 import type { HindcastConfig } from '../../config/schema.js';
 import type { FixSeries } from '../../input/fix-series.js';
 import type { ImuSampleSource } from '../../input/imu-source.js';
@@ -240,6 +241,10 @@ export async function processImuSession(series: FixSeries, imu: ImuSampleSource,
     const { engine, review } = await reviewLoop(ep, reviewOptions(cfg, ps.intervalSec), passes, lap, tm);
     if (tm) tm.reviewMs += lap();
     const res = assembleImuResult(base, ps, engine, passes.warnings(), review, gp);
+    // the correlated error the log cannot rule out, as for the fixes-only session (session/check/correlated-floor.ts)
+    const floor = correlatedFloor(gp, cfg.noise.correlatedFloorRatio, whiteSigmaM(gp, ps.factors));
+    applyCorrelatedFloor(res, floor);
+    res.info.correlatedFloor = floor;
     if (tm) tm.productsMs += lap();
     return res;
   } finally {

@@ -8,6 +8,8 @@ import { NumericalError } from '../../errors.js';
 import type { SessionResult } from '../result/result.js';
 import { posteriorOf, sampleBackward, type TrackPosterior } from './posterior.js';
 import type { Quantity } from '../result/survey-types.js';
+import type { CorrelatedFloor } from '../result/correlated-floor-info.js';
+import { GaussianSource } from '../../estimation/gaussian-rng.js';
 
 export type { Quantity } from '../result/survey-types.js';
 
@@ -36,6 +38,29 @@ function requirePosterior(r: SessionResult): TrackPosterior {
   return p;
 }
 
+/**
+ * The correlated-error floor (session/check/correlated-floor.ts) as the draws carry it: one offset
+ * per draw, segment and axis, N(0, Δ), shared by every epoch of the segment. Each epoch's variance
+ * over the draws is then the reported one (smoothed + Δ), and lengths, areas and distances within
+ * a segment, which a common offset does not move, keep the smoother's. Seeded from the draws' seed.
+ */
+function addFloorOffsets(result: SessionResult, post: TrackPosterior, draws: DrawnTrack[], seed: number): void {
+  const f = result.info.correlatedFloor as CorrelatedFloor | undefined;
+  if (!f) return;
+  const sd = [f.addedSdM.horizontal, f.addedSdM.horizontal, f.addedSdM.vertical];
+  if (!sd.some((s) => s > 0)) return;
+  const g = new GaussianSource((seed * 2654435761 + 0x5bd1e995) >>> 0);
+  for (const t of draws)
+    for (const sp of post.segments) {
+      const j0 = sp.epoch0, j1 = sp.epoch0 + sp.data.N;
+      for (let a = 0; a < post.nAx; a++) {
+        const off = sd[a]! * g.normal();
+        const p = t.posEnu[a]!;
+        for (let j = j0; j < j1; j++) p[j] = p[j]! + off;
+      }
+    }
+}
+
 /** `n` whole tracks drawn from the smoothing posterior of `result`, seeded. */
 export function sampleTracks(result: SessionResult, n: number, seed = 1): TrackDraws {
   const post = requirePosterior(result);
@@ -51,6 +76,7 @@ export function sampleTracks(result: SessionResult, n: number, seed = 1): TrackD
       for (let d = 0; d < n; d++) draws[d]!.posEnu[a]![j] = p[d]!;
     }
   });
+  addFloorOffsets(result, post, draws, seed);
   const ll = [0, 0];
   for (const t of draws)
     for (let j = 0; j < N; j++) {

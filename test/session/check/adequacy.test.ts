@@ -182,14 +182,15 @@ describe('circling walkers', () => {
 });
 
 /**
- * Known shortfall, kept as a test that must fail (vitest test.fails): the correlated error's time
- * constant is shared by the horizontal and vertical axes, and on circling seed 3 the stiff first fit
- * drags it to 23 s (true 71 s); the re-modelling keeps it (it changes the horizontal sigmas and
- * process noise only), so the vertical coverage stays at 0.49. A vertical time constant of its own
- * would lift it; then this becomes a plain test.
+ * The correlated error's time constant is shared by the horizontal and vertical axes, and on
+ * circling seed 3 the stiff first fit drags it to 23 s (true 71 s); the re-modelling keeps it (it
+ * changes the horizontal sigmas and process noise only), so the smoother's own vertical regions hold
+ * the truth 0.49 of the time. The correlated-error floor (session/check/correlated-floor.ts) adds
+ * the vertical offset the log cannot rule out and lifts it above 0.80.
  */
-test.fails('circling seed 3: vertical coverage ≥ 0.80 (shared correlated time constant)', () => {
+test('circling seed 3: vertical coverage ≥ 0.80 (shared correlated time constant, with the correlated-error floor)', () => {
   const { s } = runScenario(circlingScenario(3));
+  console.log(`circling seed 3: vertical coverage ${s.coverU95.toFixed(3)}`);
   expect(s.coverU95).toBeGreaterThanOrEqual(0.8);
 });
 

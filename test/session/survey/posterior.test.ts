@@ -12,7 +12,10 @@ import { measure, sampleTracks, summarize } from '../../../src/session/survey/dr
 import { meanPositionVariance, posteriorOf, releasePosterior } from '../../../src/session/survey/posterior.js';
 import { defaultSpec, scenarioCsv, simulate } from '../../../src/simulate/scenario.js';
 
-const cfg = loadConfig();
+// the simulation smoother against the smoother itself: without the correlated-error floor, which the
+// draws add as an offset of their own (session/check/correlated-floor.ts; its test checks that part)
+const NO_FLOOR = { noise: { correlatedFloorRatio: { horizontal: 0, vertical: 0 } } };
+const cfg = loadConfig({ overrides: NO_FLOOR });
 const sc = simulate(defaultSpec('walk', 3, { durationSec: 400 }));
 const r = processSession(readFixCsv(scenarioCsv(sc), 'walk-3.csv', cfg), cfg, 'walk-3');
 const M = 1000;
@@ -87,7 +90,7 @@ describe('draws from the joint smoothing posterior of a walking log', () => {
 });
 
 describe('draws under the constant-acceleration model (4 states per axis: the general backward step)', () => {
-  const cfgCa = loadConfig({ overrides: { model: { motion: 'ca' } } });
+  const cfgCa = loadConfig({ overrides: { ...NO_FLOOR, model: { motion: 'ca' } } });
   const scD = simulate(defaultSpec('drone', 4, { durationSec: 120 }));
   const rc = processSession(readFixCsv(scenarioCsv(scD), 'drone-4.csv', cfgCa), cfgCa, 'drone-4');
   const Mc = 600;
