@@ -12,7 +12,9 @@ import type { DecisionLog } from '../../src/session/result/decision-log.js';
 import { makeImuCase } from './helpers.js';
 
 it('calibratedFixesOnly equals processSession, and buildOutliersAndMetrics rebuilds its outliers and metrics', () => {
-  const c = makeImuCase(11, {}, {}, 'vehicle');
+  const c0 = makeImuCase(11, {}, {}, 'vehicle');
+  // without the correlated-error floor, which processSession adds to the reported sd after the run
+  const c = { ...c0, cfg: { ...c0.cfg, noise: { ...c0.cfg.noise, correlatedFloorRatio: { horizontal: 0, vertical: 0 } } } };
   const ref = processSession(c.series, c.cfg, 'drive');
   const ps = prepareSession(c.series, c.cfg);
   const { result } = calibratedFixesOnly(ps, c.cfg, 'drive');
