@@ -32,6 +32,14 @@ describe('quality line', () => {
     expect(html).toContain('Motion model: too stiff: …');
   });
 
+  test('the correlated-error floor: the sigma assumed and the sd added, only where it widened the regions', () => {
+    const floor = (h: number, v: number) => ({ ratio: { horizontal: 1.25, vertical: 1.25 }, assumedSigmaM: { horizontal: 2.5, vertical: 4 }, addedSdM: { horizontal: h, vertical: v } });
+    const html = qualityNote(entry({ verdict: { verdict: 'good', reasons: [] }, correlatedFloor: floor(2, 0) }));
+    expect(html).toContain('slowly varying fix error of 2.50 m horizontally and 4.00 m vertically');
+    expect(html).toContain('2.00 / 0.00 m sd added to every epoch');
+    expect(qualityNote(entry({ verdict: { verdict: 'good', reasons: [] }, correlatedFloor: floor(0, 0) }))).not.toContain('slowly varying');
+  });
+
   test('text is escaped', () => {
     const html = qualityNote(entry({ verdict: { verdict: 'degraded', reasons: ['the <b>x</b>'] } }));
     expect(html).toContain('The &lt;b&gt;x&lt;/b&gt;');
