@@ -306,10 +306,10 @@ describe('survey products on closed loops (a rectangle walked round, pooled over
   });
   /**
    * Known shortfall, kept as a test that must fail (vitest test.fails): the regions are cautious.
-   * This simulated receiver's white noise (1.5 m) is as large as its correlated error, and the
-   * correlated-error floor (session/check/correlated-floor.ts) assumes a correlated error of at
-   * least 1.25 × the white sigma, so each occupied point's average carries about 1 m of offset
-   * it does not have: every ellipse holds its corner (1.00; 0.90–0.99 without the floor).
+   * This simulated receiver's white noise (2 m) is larger than its correlated error (1.5 m), and
+   * the correlated-error floor (session/check/correlated-floor.ts) assumes a correlated error of
+   * at least 1.25 × the white sigma, so each occupied point's average carries an offset of about
+   * 2 m sd it does not have: every ellipse holds its corner (1.00; 0.966 without the floor).
    */
   it.fails('the corner stops’ 95% ellipses hold the true corner at most 99% of the time pooled', () => {
     expect(p.inEll / p.occupations).toBeLessThanOrEqual(0.99);
