@@ -10,7 +10,7 @@ import type { FixSeries } from '../input/fix-series.js';
 import type { SessionResult } from './result/result.js';
 import type { StageTimings } from './result/timings.js';
 import { axisParamsFromConfig, reviewOptions } from './prepare/axis-params.js';
-import { prepareSession } from './prepare/prepare.js';
+import { jumpWarnings, prepareSession } from './prepare/prepare.js';
 import { calibrationRounds } from './calibrate/calibration-rounds.js';
 import { classify } from './classify/classify.js';
 import { runPrepared } from './products/final-run.js';
@@ -57,6 +57,7 @@ export function processSession(series: FixSeries, cfg: HindcastConfig, name: str
   applyCorrelatedFloor(r, floor);
   r.info.correlatedFloor = floor;
   for (const w of warnings) r.warnings.push({ file: series.file, code: 'calibration', message: w });
+  r.warnings.push(...jumpWarnings(ps));
   r.info.calibration = info;
   if (adequacy.check) r.info.adequacy = adequacy.check;
   r.info.verdict = verdict;

@@ -28,7 +28,7 @@ import { InsSmoother, newInsTimings, type InsResume, type InsEpochs, type InsIni
 import { gnssReviewStatistic, makeGnssReviewScratch } from '../../estimation/ins/review.js';
 import { errorEllipse } from '../../estimation/error-ellipse.js';
 import { axisParamsFromConfig, reviewOptions, type AxisParams } from '../prepare/axis-params.js';
-import { prepareSession, segmentData, type PreparedSession } from '../prepare/prepare.js';
+import { jumpWarnings, prepareSession, segmentData, type PreparedSession } from '../prepare/prepare.js';
 import { calibratedFixesOnly } from '../calibrate/calibrated-params.js';
 import { applyReviewDecisions, reviewThresholds } from '../classify/review-decisions.js';
 import { settleDecisions, type ReviewOptions } from '../classify/review.js';
@@ -242,6 +242,7 @@ export async function processImuSession(series: FixSeries, imu: ImuSampleSource,
     const floor = correlatedFloor(gp, cfg.noise.correlatedFloorRatio, whiteSigmaM(gp, ps.factors));
     applyCorrelatedFloor(res, floor);
     res.info.correlatedFloor = floor;
+    res.warnings.push(...jumpWarnings(ps));
     if (tm) tm.productsMs += lap();
     return res;
   } finally {

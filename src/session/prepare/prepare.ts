@@ -3,12 +3,13 @@
  * decisions, the local frame and height reference, projected positions, per-fix noise factors,
  * segments at gaps, and each segment's epoch grid and filter inputs under a set of axis parameters.
  */
+import type { InputWarning } from '../../errors.js';
 import type { HindcastConfig } from '../../config/schema.js';
 import type { FixSeries } from '../../input/fix-series.js';
 import { makeLocalFrame, sessionCentre } from '../../geodesy/local-frame.js';
 import type { SegmentData } from '../../estimation/track-filter.js';
 import { selectKth } from '../../estimation/select.js';
-import { epochGrid, nominalIntervalSec, splitSegments } from './segments.js';
+import { epochGrid, nominalIntervalSec, splitAtJumps, splitSegments, type JumpSplit } from './segments.js';
 import { factorsWithExponents, fixSigmaFactors } from './fix-noise.js';
 import { validFixes } from './valid-fixes.js';
 import type { AxisParams } from './axis-params.js';
@@ -33,6 +34,8 @@ export interface PreparedSession {
   factors: ReturnType<typeof fixSigmaFactors>;
   intervalSec: number;
   segments: Array<[number, number]>;
+  /** Splits at impossible jumps that persist (segments.ts splitAtJumps), in fix order. */
+  jumps: JumpSplit[];
   /** Epoch grid of each segment (filled on first use: the grid depends on the session and the bridge factor only). */
   grids: Map<string, { tSec: Float64Array; fix: Int32Array }>;
 }
@@ -75,8 +78,8 @@ export function prepareSession(s: FixSeries, cfg: HindcastConfig, userDecisions?
     if (hasHeight && s.heightM) u[i] = s.heightM[i]! - heightRefM;
   }
   const intervalSec = nominalIntervalSec(s.tSec, offered);
-  const segments = splitSegments(s.tSec, offered, cfg.segments.maxGapSec);
-  return { series: s, valid, invalidWhy: why, offered, forced, userRejected, frame, heightRefM, hasHeight, e, n, u, factors: fixSigmaFactors(s), intervalSec, segments, grids: new Map() };
+  const { segments, jumps } = splitAtJumps(splitSegments(s.tSec, offered, cfg.segments.maxGapSec), s.tSec, e, n, offered);
+  return { series: s, valid, invalidWhy: why, offered, forced, userRejected, frame, heightRefM, hasHeight, e, n, u, factors: fixSigmaFactors(s), intervalSec, segments, jumps, grids: new Map() };
 }
 
 /** The epoch grid of a segment (computed once per session and bridge factor). */
@@ -137,4 +140,14 @@ function fillSegment(ps: PreparedSession, fix: Int32Array, p: AxisParams, from: 
 /** The epochs from..to−1 of a segment's filter inputs (views, no copy). */
 export function sliceSegment(d: SegmentData, from: number, to: number): SegmentData {
   return { N: to - from, tSec: d.tSec.subarray(from, to), z: d.z.map((a) => a.subarray(from, to)), r: d.r.map((a) => a.subarray(from, to)), use: d.use.subarray(from, to) };
+}
+
+/** One warning per split at a jump (segments.ts splitAtJumps), naming the line of the first fix after it. */
+export function jumpWarnings(ps: PreparedSession): InputWarning[] {
+  return ps.jumps.map((j) => ({
+    file: ps.series.file,
+    line: ps.series.line[j.fix],
+    code: 'jump',
+    message: `the fixes jump ${(j.distanceM / 1000).toFixed(1)} km in ${j.dtSec.toFixed(1)} s and stay there (faster than any platform moves): a new segment starts here (a log joined from two places, or a receiver that re-acquired far off)`,
+  }));
 }
