@@ -68,8 +68,13 @@ export const configSchema = z
         timeUnit: z.enum(['s', 'ms', 'auto']).default('auto'),
         /** CSV delimiter; detected from the header line when absent. */
         delimiter: z.string().length(1).optional(),
-        /** Unit of CSV latitude/longitude columns: decimal degrees or radians (NMEA and GPX are always degrees). */
-        angleUnit: z.enum(['deg', 'rad']).default('deg'),
+        /**
+         * Unit of CSV latitude/longitude columns: decimal degrees, radians, or degrees and decimal
+         * minutes as NMEA writes them ('dm': DDMM.mmmm, DDDMM.mmmm; read so on their own where
+         * hemisphere columns stand beside angles beyond ±90 / ±180). NMEA and GPX are always read
+         * as their standards say.
+         */
+        angleUnit: z.enum(['deg', 'rad', 'dm']).default('deg'),
         /**
          * UTC date ("YYYY-MM-DD") of the first fix of NMEA logs that carry no date (GGA without RMC);
          * later fixes roll over at UTC midnight. Ignored when the log has RMC dates.

@@ -79,10 +79,15 @@ export function readFixCsv(text: string, file: string, cfg: HindcastConfig, opt:
   if (dateCol >= 0) b.meta.dateColumn = header[dateCol]!;
   const times = new CsvTimeReader(b, w, cfg.input, { index, hasWeekTow: h.hasWeekTow, dateCol, order, decimalComma });
   const plain =
-    opt.plainRows !== false && delimiter === ',' && timeFormat === undefined && dateCol < 0 && order === null && index.latHemisphere < 0 && index.lonHemisphere < 0
+    opt.plainRows !== false && delimiter === ',' && timeFormat === undefined && dateCol < 0 && order === null && index.latHemisphere < 0 && index.lonHemisphere < 0 && cfg.input.angleUnit !== 'dm'
       ? plainRowReader(b, header.length, index, qualityPresent, { rad: cfg.input.angleUnit === 'rad', unitMs: cfg.input.timeUnit === 'ms' })
       : null;
-  const fields = new CsvFixFields(b, w, index, qualityPresent, decimalComma, cfg.input.angleUnit === 'rad');
+  const angleUnit = cfg.input.angleUnit === 'deg' && looksLikeDegreesMinutes(lines, li + 1, delimiter, index, decimalComma) ? 'dm' : cfg.input.angleUnit;
+  if (angleUnit !== cfg.input.angleUnit) {
+    b.meta.angleUnit = angleUnit;
+    b.warn('angle-unit', 'latitude/longitude read as degrees and decimal minutes (DDMM.mmmm, as NMEA writes them): the hemisphere columns stand beside angles beyond ±90° / ±180°; set input.angleUnit to say otherwise');
+  }
+  const fields = new CsvFixFields(b, w, index, qualityPresent, decimalComma, angleUnit);
   const need = Math.max(index.time, index.lat, index.lon, h.hasWeekTow ? Math.max(index.gpsWeek, index.tow) : -1) + 1;
   let rows = 0;
   for (let j = li + 1; j < lines.length; j++) {
@@ -178,19 +183,22 @@ class CsvFixFields {
     private readonly index: Record<ColumnRole, number>,
     private readonly quality: readonly QualityColumn[],
     private readonly decimalComma: boolean,
-    private readonly rad: boolean,
+    private readonly unit: 'deg' | 'rad' | 'dm',
   ) {
     this.qv = new Float64Array(quality.length);
   }
 
   /** Add the fix of fields `rec` at time t, or skip the row with a warning. */
   add(t: number, rec: string[], line: number): void {
-    const { index, decimalComma, rad, w, qv } = this;
+    const { index, decimalComma, unit, w, qv } = this;
     let lat = parseCsvNumber(rec[index.lat], decimalComma);
     let lon = parseCsvNumber(rec[index.lon], decimalComma);
-    if (rad) {
+    if (unit === 'rad') {
       lat *= DEG_PER_RAD;
       lon *= DEG_PER_RAD;
+    } else if (unit === 'dm') {
+      lat = degreesFromDm(lat);
+      lon = degreesFromDm(lon);
     }
     // hemisphere letters beside unsigned angles (S and W are negative)
     if (index.latHemisphere >= 0 && /^\s*s/i.test(rec[index.latHemisphere] ?? '')) lat = -Math.abs(lat);
@@ -198,7 +206,7 @@ class CsvFixFields {
     if (!Number.isFinite(lat) || !Number.isFinite(lon) || Math.abs(lat) > 90 || Math.abs(lon) > 180) {
       w.add(
         'row-skipped',
-        `position "${(rec[index.lat] ?? '').slice(0, 20)}", "${(rec[index.lon] ?? '').slice(0, 20)}" is not a latitude/longitude in ${rad ? 'radians' : 'decimal degrees'}`,
+        `position "${(rec[index.lat] ?? '').slice(0, 20)}", "${(rec[index.lon] ?? '').slice(0, 20)}" is not a latitude/longitude in ${unit === 'rad' ? 'radians' : unit === 'dm' ? 'degrees and decimal minutes (DDMM.mmmm)' : 'decimal degrees'}`,
         line,
       );
       return;
@@ -214,4 +222,29 @@ class CsvFixFields {
     }
     this.b.add(t, lat, lon, h, line, qv);
   }
+}
+
+/** Degrees from degrees and decimal minutes written together (DDMM.mmmm: 4807.038 → 48° 7.038′); NaN where the minutes reach 60. */
+export function degreesFromDm(v: number): number {
+  const a = Math.abs(v);
+  const d = Math.floor(a / 100);
+  const m = a - 100 * d;
+  if (!(m < 60)) return NaN;
+  return Math.sign(v) * (d + m / 60);
+}
+
+/**
+ * Whether a CSV with hemisphere columns writes its angles as NMEA does (DDMM.mmmm): among its first
+ * 50 data rows one has an angle beyond ±90° (latitude) or ±180° (longitude).
+ */
+function looksLikeDegreesMinutes(lines: Lines, first: number, delimiter: string, index: Record<ColumnRole, number>, decimalComma: boolean): boolean {
+  if (index.latHemisphere < 0 && index.lonHemisphere < 0) return false;
+  for (let j = first, seen = 0; j < lines.length && seen < 50; j++) {
+    const { fields } = splitCsvLine(lines.at(j), delimiter);
+    const lat = parseCsvNumber(fields[index.lat], decimalComma), lon = parseCsvNumber(fields[index.lon], decimalComma);
+    if (!Number.isFinite(lat) || !Number.isFinite(lon)) continue;
+    seen++;
+    if (Math.abs(lat) > 90 || Math.abs(lon) > 180) return true;
+  }
+  return false;
 }

@@ -67,6 +67,13 @@ const CASES: Case[] = [
   ['slashed-either-way.csv', 'slashed dates no field of which exceeds 12: refused, naming input.timeFormat', {}, { error: /either way.*input\.timeFormat/, line: 2 }],
   ['slashed-either-way.csv', 'the same with input.timeFormat and input.timeZone', { timeFormat: 'MM/dd/yyyy HH:mm:ss', timeZone: 'UTC' }, { n: 3, check: (s) => expect(s.tSec[0]).toBe(Date.UTC(2024, 4, 12, 8, 0, 0) / 1000) }],
   ['hemisphere-letters.csv', 'unsigned angles with N/S and E/W letter columns: S and W negative', {}, { n: 3, check: (s) => (expect(s.latDeg[0]).toBe(-48.1173), expect(s.lonDeg[0]).toBe(-11.5167)) }],
+  [
+    'degrees-minutes.csv',
+    'degrees and decimal minutes (DDMM.mmmm) beside hemisphere columns: read so, with a note',
+    {},
+    // 48° 07.038′ = 48.1173°, 11° 31.000′ = 11.516667° (the NMEA 0183 GGA example's position; ±1e-9°)
+    { n: 3, warn: [['angle-unit']], check: (s) => (expect(Math.abs(s.latDeg[0]! - (48 + 7.038 / 60))).toBeLessThan(1e-9), expect(Math.abs(s.lonDeg[0]! - (11 + 31 / 60))).toBeLessThan(1e-9)) },
+  ],
   ['tabs.tsv', 'a .tsv file with a unix_ms column', {}, { n: 3, format: 'csv', warn: [['time-unit']], check: (s) => expect(s.tSec[0]).toBe(t0) }],
   ['local-time.csv', 'times without an offset read in input.timeZone (CEST = UTC+2 on 12 May 2024)', { timeZone: 'Europe/Berlin' }, { n: 3, check: (s) => expect(s.tSec[0]).toBe(t0) }],
   ['radians.csv', 'radians without input.angleUnit are in range as degrees: read as degrees (the option is needed)', {}, { n: 3, check: (s) => expect(s.latDeg[0]).toBeCloseTo(0.839808, 5) }],

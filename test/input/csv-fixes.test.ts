@@ -6,7 +6,7 @@
 import { describe, expect, test } from 'vitest';
 import { configSchema, type HindcastConfig } from '../../src/config/schema.js';
 import { InputError } from '../../src/errors.js';
-import { detectDelimiter, parseCsvNumber, readFixCsv, splitCsvLine } from '../../src/input/csv-fixes.js';
+import { degreesFromDm, detectDelimiter, parseCsvNumber, readFixCsv, splitCsvLine } from '../../src/input/csv-fixes.js';
 
 const cfg = (input: Record<string, unknown> = {}): HindcastConfig => configSchema.parse({ input });
 
@@ -120,5 +120,31 @@ describe('readFixCsv rules', () => {
       expect(e).toBeInstanceOf(InputError);
       expect((e as Error).message).toMatch(/^x\.csv:1: no time \(or gps_week \+ tow\), lat, lon column/);
     }
+  });
+});
+
+describe('degrees and decimal minutes (DDMM.mmmm, as NMEA 0183 writes angles; common practice)', () => {
+  // [written, degrees, tolerance]
+  test.each([
+    [4807.038, 48 + 7.038 / 60, 1e-12],
+    [1131.0, 11 + 31 / 60, 1e-12],
+    [-3352.1287, -(33 + 52.1287 / 60), 1e-12],
+    [15112.561, 151 + 12.561 / 60, 1e-12],
+    [30.5, 0 + 30.5 / 60, 1e-12],
+  ])('%d → %d (± %d)', (v, deg, tol) => {
+    expect(Math.abs(degreesFromDm(v) - deg)).toBeLessThan(tol);
+  });
+  test('minutes of 60 or more are no angle', () => {
+    expect(degreesFromDm(4860.5)).toBeNaN();
+  });
+  test('input.angleUnit "dm" reads signed angles without hemisphere columns (not through the plain-row path)', () => {
+    const s = readFixCsv('time,lat,lon\n2024-05-12T08:00:00Z,4807.038,-01131.000\n2024-05-12T08:00:01Z,4807.039,-01131.001\n', 'dm.csv', cfg({ angleUnit: 'dm' }));
+    expect(Math.abs(s.latDeg[0]! - (48 + 7.038 / 60))).toBeLessThan(1e-9);
+    expect(Math.abs(s.lonDeg[0]! + (11 + 31 / 60))).toBeLessThan(1e-9);
+  });
+  test('hemisphere columns beside angles within ±90° / ±180° stay decimal degrees (no note)', () => {
+    const s = readFixCsv('time,lat,ns,lon,ew\n2024-05-12T08:00:00Z,48.1173,N,11.5167,E\n2024-05-12T08:00:01Z,48.1174,N,11.5168,E\n', 'deg.csv', cfg());
+    expect(s.latDeg[0]).toBe(48.1173);
+    expect(s.warnings.some((w) => w.code === 'angle-unit')).toBe(false);
   });
 });
