@@ -76,8 +76,10 @@ export const configSchema = z
          */
         angleUnit: z.enum(['deg', 'rad', 'dm']).default('deg'),
         /**
-         * UTC date ("YYYY-MM-DD") of the first fix of NMEA logs that carry no date (GGA without RMC);
-         * later fixes roll over at UTC midnight. Ignored when the log has RMC dates.
+         * Date ("YYYY-MM-DD") of the first fix of logs that carry no date: NMEA without RMC (a UTC
+         * date; later fixes roll over at UTC midnight; ignored when the log has RMC dates), and CSV
+         * times of day written alone (the date in the times' own zone; a day later each time the
+         * clock goes back past midnight).
          */
         date: z
           .string()

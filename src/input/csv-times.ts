@@ -68,6 +68,10 @@ export class CsvTimeReader {
     if (dateCol >= 0 && TIME_OF_DAY.test(rawT.trim())) {
       const d = (rec[dateCol] ?? '').trim();
       rawT = `${(order ? separatedToIso(d, order) : null) ?? d}T${rawT.trim().replace(/^(\d):/, '0$1:')}`;
+    } else if (timeFormat === undefined && TIME_OF_DAY.test(rawT.trim())) {
+      const d = this.dayOfTimeOnly(rawT.trim(), line);
+      if (d === null) return null;
+      rawT = `${d}T${rawT.trim().replace(/^(\d):/, '0$1:')}`;
     } else if (order) rawT = separatedToIso(rawT, order) ?? rawT;
     const v = timeFormat !== undefined ? NaN : parseCsvNumber(rawT, false);
     // ISO 8601 allows "," before the fraction; spreadsheets write a space for the "T"
@@ -76,6 +80,27 @@ export class CsvTimeReader {
     if (Number.isFinite(v)) return this.numericTime(v);
     return this.isoTime(rawT, iso, line);
   }
+
+  /**
+   * The date of a time of day written alone: input.date for the first row, a day later each time the
+   * clock goes back by more than 12 h (past midnight); without input.date the row is refused (a
+   * date is not guessed).
+   */
+  private dayOfTimeOnly(raw: string, line: number): string | null {
+    const date = this.input.date;
+    if (date === undefined) {
+      this.w.add('row-skipped', `time "${raw.slice(0, 40)}" is a time of day without a date: set input.date ("YYYY-MM-DD", the date of the first fix) in a --config file`, line);
+      return null;
+    }
+    const [hh, mm, ss] = raw.split(/[:Z+-]/).map(Number);
+    const sod = (hh ?? 0) * 3600 + (mm ?? 0) * 60 + (Number.isFinite(ss) ? ss! : 0);
+    if (this.lastSecondOfDay >= 0 && sod < this.lastSecondOfDay - 43200) this.dayOffset++;
+    this.lastSecondOfDay = sod;
+    const [y, mo, d] = date.split('-').map(Number);
+    return new Date(Date.UTC(y!, mo! - 1, d! + this.dayOffset)).toISOString().slice(0, 10);
+  }
+  private lastSecondOfDay = -1;
+  private dayOffset = 0;
 
   /** A local time (zone with clock changes, or input.timeFormat); a repeated or skipped one is provisional. */
   private localTime(local: LocalTimeReader, rawT: string, iso: string, line: number): number | null {

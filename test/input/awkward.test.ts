@@ -74,6 +74,13 @@ const CASES: Case[] = [
     // 48° 07.038′ = 48.1173°, 11° 31.000′ = 11.516667° (the NMEA 0183 GGA example's position; ±1e-9°)
     { n: 3, warn: [['angle-unit']], check: (s) => (expect(Math.abs(s.latDeg[0]! - (48 + 7.038 / 60))).toBeLessThan(1e-9), expect(Math.abs(s.lonDeg[0]! - (11 + 31 / 60))).toBeLessThan(1e-9)) },
   ],
+  ['time-of-day.csv', 'times of day without a date and no input.date: refused, naming input.date (a date is not guessed)', {}, { error: /time of day without a date.*input\.date/, line: 2 }],
+  [
+    'time-of-day.csv',
+    'the same with input.date: on that date, a day later past midnight',
+    { date: '2024-05-11' },
+    { n: 3, check: (s) => (expect(s.tSec[0]).toBe(Date.UTC(2024, 4, 11, 23, 59, 59) / 1000), expect(s.tSec[2]).toBe(Date.UTC(2024, 4, 12, 0, 0, 1) / 1000)) },
+  ],
   ['tabs.tsv', 'a .tsv file with a unix_ms column', {}, { n: 3, format: 'csv', warn: [['time-unit']], check: (s) => expect(s.tSec[0]).toBe(t0) }],
   ['local-time.csv', 'times without an offset read in input.timeZone (CEST = UTC+2 on 12 May 2024)', { timeZone: 'Europe/Berlin' }, { n: 3, check: (s) => expect(s.tSec[0]).toBe(t0) }],
   ['radians.csv', 'radians without input.angleUnit are in range as degrees: read as degrees (the option is needed)', {}, { n: 3, check: (s) => expect(s.latDeg[0]).toBeCloseTo(0.839808, 5) }],
