@@ -25,10 +25,10 @@ import { selectKth } from '../../estimation/select.js';
 import { qualityLogTerms } from '../prepare/fix-noise.js';
 import { applyQualityTable, qualityTable, type QualityTable } from './quality-variances.js';
 
-type ParamName = 'sigmaHorizontalM' | 'sigmaVerticalM' | 'gmHorizontalSigmaM' | 'gmVerticalSigmaM' | 'gmTauSec' | 'gmVerticalTauSec' | 'qHorizontal' | 'qVertical' | 'hdopExponent' | 'satsExponent';
+type ParamName = 'sigmaHorizontalM' | 'sigmaVerticalM' | 'gmHorizontalSigmaM' | 'gmVerticalSigmaM' | 'gmTauSec' | 'gmVerticalTauSec' | 'qHorizontal' | 'qVertical' | 'hdopExponent' | 'satsExponent' | 'fixQualityExponent';
 
 /** Parameters searched on their own scale (the exponents of the quality columns, 0 to 1); the others in log space. */
-const LINEAR: ReadonlySet<ParamName> = new Set(['hdopExponent', 'satsExponent']);
+const LINEAR: ReadonlySet<ParamName> = new Set(['hdopExponent', 'satsExponent', 'fixQualityExponent']);
 
 /** Physical bounds of each parameter. */
 export const PARAM_BOUNDS: Record<ParamName, [number, number]> = {
@@ -42,6 +42,7 @@ export const PARAM_BOUNDS: Record<ParamName, [number, number]> = {
   qVertical: [1e-7, 1e3],
   hdopExponent: [0, 1],
   satsExponent: [0, 1],
+  fixQualityExponent: [0, 1],
 };
 
 export interface ParamEstimate {
@@ -117,6 +118,7 @@ const PRIOR_LOG_SD: Record<ParamName, number> = {
   // no prior: flat between "ignore" (0) and "proportional" (1)
   hdopExponent: Infinity,
   satsExponent: Infinity,
+  fixQualityExponent: Infinity,
 };
 
 /**
@@ -223,7 +225,7 @@ interface SubsetItem {
 /** Segment data of the calibration subset (calibrationWindows) at the log's own rate, with each item's segment, first epoch and fixes. */
 function calibrationSubset(ps: PreparedSession, base: AxisParams, bridgeFactor: number, maxEpochs: number): SubsetItem[] {
   // unit white sigma and the proportional factors: the objective scales the variances per evaluation
-  const unit = { ...base, sigmaHorizontalM: 1, sigmaVerticalM: 1, hdopExponent: 1, satsExponent: 1 };
+  const unit = { ...base, sigmaHorizontalM: 1, sigmaVerticalM: 1, hdopExponent: 1, satsExponent: 1, fixQualityExponent: 1 };
   const windows = calibrationWindows(ps, bridgeFactor, maxEpochs);
   const out: SubsetItem[] = [];
   if (!windows) {
@@ -320,6 +322,7 @@ function calibratedNames(ps: PreparedSession, cfg: HindcastConfig): { names: Par
   const ex = ps.factors.exponents;
   if (ex.hdop) names.push('hdopExponent');
   if (ex.sats) names.push('satsExponent');
+  if (ex.fixQuality) names.push('fixQualityExponent');
   return { names, ownTauV };
 }
 
@@ -418,15 +421,15 @@ function makeLogLik(ps: PreparedSession, cfg: HindcastConfig, prior: AxisParams,
   const lopt = { ...fopt, reacquireAfter: Number.MAX_SAFE_INTEGER, likelihood: true };
   const llWork = makeLogLikWork(ps.hasHeight ? 3 : 2);
   // the exponents the subset's r holds (NaN: not yet written)
-  let rExp = [NaN, NaN];
+  let rExp = [NaN, NaN, NaN];
   return (p) => {
     const models = buildAxisModels(p, ps.hasHeight);
     const rScale = [p.sigmaHorizontalM ** 2, p.sigmaHorizontalM ** 2, p.sigmaVerticalM ** 2];
     if (withExponents) {
-      const aH = p.hdopExponent ?? 1, aS = p.satsExponent ?? 1;
-      if (aH !== rExp[0] || aS !== rExp[1]) {
-        for (const { data: d, quality } of subset) applyQualityTable(d, quality!, aH, aS);
-        rExp = [aH, aS];
+      const aH = p.hdopExponent ?? 1, aS = p.satsExponent ?? 1, aQ = p.fixQualityExponent ?? 1;
+      if (aH !== rExp[0] || aS !== rExp[1] || aQ !== rExp[2]) {
+        for (const { data: d, quality } of subset) applyQualityTable(d, quality!, aH, aS, aQ);
+        rExp = [aH, aS, aQ];
       }
     }
     let ll = 0;
@@ -587,7 +590,7 @@ export function calibrateSession(
   const { names, ownTauV } = calibratedNames(ps, cfg);
   const staticWarning = staticLogWarning(ps, prior);
   if (staticWarning) warnings.push(staticWarning);
-  const withExponents = ps.factors.exponents.hdop || ps.factors.exponents.sats;
+  const withExponents = ps.factors.exponents.hdop || ps.factors.exponents.sats || ps.factors.exponents.fixQuality;
   const subset = objectiveSubset(ps, cfg, prior, opt, withExponents, useOverride);
   const epochsUsed = subset.reduce((a, d) => a + d.data.N, 0);
   // the prior is centred on the profile; the search starts from `start` (an earlier round) when given;

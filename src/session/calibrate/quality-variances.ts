@@ -1,6 +1,6 @@
 /**
- * The calibration's measurement variances under quality-column exponents αₕ, αₛ: r = factor²,
- * factor = exp(αₕ·log DOP ratio + αₛ·½ log sats ratio + log fix-quality ratio), from the per-epoch
+ * The calibration's measurement variances under quality-column exponents αₕ, αₛ, α_q: r = factor²,
+ * factor = exp(αₕ·log DOP ratio + αₛ·½ log sats ratio + α_q·log fix-quality ratio), from the per-epoch
  * log terms of qualityLogTerms (4 an epoch: DOP horizontal, DOP vertical, sats, fix quality). The
  * optimizer changes the exponents at nearly every evaluation, so the variances are rewritten each
  * time. DOP is logged to a tenth and the satellite count is an integer, so a log holds few distinct
@@ -52,19 +52,19 @@ export function qualityTable(terms: Float64Array, N: number): QualityTable {
 }
 
 /** The variances through the table: the per-epoch form's, one exp a combination instead of one an epoch. Epochs without a fix (east variance not finite) are left as they are; up likewise. */
-export function applyQualityTable(d: SegmentData, t: QualityTable, aH: number, aS: number): void {
+export function applyQualityTable(d: SegmentData, t: QualityTable, aH: number, aS: number, aQ = 1): void {
   const { combH, combV, varH, varV, idxH, idxV } = t;
   for (let u = 0; u < varH.length; u++) {
     const c = 3 * u;
     // the per-epoch form's expression, operand for operand
-    const fh = Math.exp(aH * combH[c]! + aS * combH[c + 1]! + combH[c + 2]!);
+    const fh = Math.exp(aH * combH[c]! + aS * combH[c + 1]! + aQ * combH[c + 2]!);
     varH[u] = fh * fh;
   }
   const rE = d.r[0]!, rN = d.r[1]!, rU = d.r[2];
   if (rU)
     for (let u = 0; u < varV.length; u++) {
       const c = 3 * u;
-      const fv = Math.exp(aH * combV[c]! + aS * combV[c + 1]! + combV[c + 2]!);
+      const fv = Math.exp(aH * combV[c]! + aS * combV[c + 1]! + aQ * combV[c + 2]!);
       varV[u] = fv * fv;
     }
   for (let k = 0; k < d.N; k++) {

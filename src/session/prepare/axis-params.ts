@@ -21,6 +21,8 @@ export interface AxisParams {
   /** Exponents of the quality columns in the per-fix white sigma (fix-noise.ts); 1 (proportional) when absent. */
   hdopExponent?: number;
   satsExponent?: number;
+  /** Exponent of the fix-quality factor (fix-noise.ts FIX_QUALITY_FACTOR); 1 when absent. */
+  fixQualityExponent?: number;
 }
 
 /** Model parameters from the configuration; with reported per-fix sigmas the white "sigma" is their scale. */

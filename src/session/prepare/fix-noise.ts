@@ -53,8 +53,8 @@ export interface FixSigmaFactors {
   reported: boolean;
   /** Which columns were used. */
   used: string[];
-  /** The quality columns the exponents apply to (none with reported sigmas). */
-  exponents: { hdop: boolean; sats: boolean };
+  /** The quality columns the exponents apply to (none with reported sigmas; fix quality only where it varies). */
+  exponents: { hdop: boolean; sats: boolean; fixQuality: boolean };
   /** The session medians the relative factors are taken against (NaN where a column is absent). */
   medians: { hdop: number; vdop: number; sats: number; fixQualityMode: number };
 }
@@ -63,7 +63,7 @@ export interface FixSigmaFactors {
  * The logarithms of the relative quality terms of fix i, as written into `out`: [log of the
  * horizontal DOP ratio, log of the vertical one (hdop's where there is no vdop), ½ log(median sats /
  * sats), log of the fix quality factor ratio]; 0 for a term whose column is absent or empty.
- * The factor of axis a under exponents (αₕ, αₛ) is exp(αₕ·out[a<2 ? 0 : 1] + αₛ·out[2] + out[3]).
+ * The factor of axis a under exponents (αₕ, αₛ, α_q) is exp(αₕ·out[a<2 ? 0 : 1] + αₛ·out[2] + α_q·out[3]).
  */
 export function qualityLogTerms(s: FixSeries, f: FixSigmaFactors, i: number, out: Float64Array): void {
   const q = s.quality;
@@ -82,27 +82,31 @@ export function qualityLogTerms(s: FixSeries, f: FixSigmaFactors, i: number, out
 }
 
 /** The last exponents' factors of each FixSigmaFactors (the final run and the review build them once). */
-const withExponents = new WeakMap<FixSigmaFactors, { aH: number; aS: number; perAxis: [Float64Array, Float64Array, Float64Array] }>();
+const withExponents = new WeakMap<FixSigmaFactors, { aH: number; aS: number; aQ: number; perAxis: [Float64Array, Float64Array, Float64Array] }>();
 
 /**
- * Per-fix factors (east, north, up) under exponents αₕ (DOP) and αₛ (satellite count): perAxis itself
- * at 1 and 1 (or where the exponents do not apply), otherwise exp(αₕ·log DOP ratio + αₛ·½ log sats
- * ratio + log fix quality ratio) per fix (qualityLogTerms). The last result is kept.
+ * Per-fix factors (east, north, up) under exponents αₕ (DOP), αₛ (satellite count) and α_q (fix
+ * quality): perAxis itself at 1, 1, 1 (or where the exponents do not apply), otherwise
+ * exp(αₕ·log DOP ratio + αₛ·½ log sats ratio + α_q·log fix quality ratio) per fix (qualityLogTerms).
+ * The last result is kept.
  */
-export function factorsWithExponents(s: FixSeries, f: FixSigmaFactors, aH = 1, aS = 1): [Float64Array, Float64Array, Float64Array] {
-  if ((aH === 1 || !f.exponents.hdop) && (aS === 1 || !f.exponents.sats)) return f.perAxis;
+export function factorsWithExponents(s: FixSeries, f: FixSigmaFactors, aH = 1, aS = 1, aQ = 1): [Float64Array, Float64Array, Float64Array] {
+  if (!f.exponents.hdop) aH = 1;
+  if (!f.exponents.sats) aS = 1;
+  if (!f.exponents.fixQuality) aQ = 1;
+  if (aH === 1 && aS === 1 && aQ === 1) return f.perAxis;
   const c = withExponents.get(f);
-  if (c && c.aH === aH && c.aS === aS) return c.perAxis;
+  if (c && c.aH === aH && c.aS === aS && c.aQ === aQ) return c.perAxis;
   const n = s.n;
   const fh = new Float64Array(n), fv = new Float64Array(n);
   const t = new Float64Array(4);
   for (let i = 0; i < n; i++) {
     qualityLogTerms(s, f, i, t);
-    fh[i] = Math.exp(aH * t[0]! + aS * t[2]! + t[3]!);
-    fv[i] = Math.exp(aH * t[1]! + aS * t[2]! + t[3]!);
+    fh[i] = Math.exp(aH * t[0]! + aS * t[2]! + aQ * t[3]!);
+    fv[i] = Math.exp(aH * t[1]! + aS * t[2]! + aQ * t[3]!);
   }
   const perAxis: [Float64Array, Float64Array, Float64Array] = [fh, fh, fv];
-  withExponents.set(f, { aH, aS, perAxis });
+  withExponents.set(f, { aH, aS, aQ, perAxis });
   return perAxis;
 }
 
@@ -156,8 +160,26 @@ export function fixSigmaFactors(s: FixSeries): FixSigmaFactors {
       }
       return f;
     }) as [Float64Array, Float64Array, Float64Array];
-    return { perAxis: out, reported: true, used, exponents: { hdop: false, sats: false }, medians };
+    return { perAxis: out, reported: true, used, exponents: { hdop: false, sats: false, fixQuality: false }, medians };
   }
-  const exponents = { hdop: used.includes('hdop') || used.includes('vdop'), sats: used.includes('sats') };
+  const exponents = { hdop: used.includes('hdop') || used.includes('vdop'), sats: used.includes('sats'), fixQuality: used.includes('fix_quality') && fixQualityVaries(fq!) };
   return { perAxis: [fh, fh, fv], reported: false, used, exponents, medians };
+}
+
+/** Least share of the fixes a second fix-quality factor must hold for its exponent to be estimated. */
+const FIX_QUALITY_MIN_SHARE = 0.01;
+
+/** Whether the fix-quality column takes at least two factors (FIX_QUALITY_FACTOR), the rarer on at least 1 % of the fixes with one. */
+function fixQualityVaries(fq: Float64Array): boolean {
+  const counts = new Map<number, number>();
+  let n = 0;
+  for (let i = 0; i < fq.length; i++) {
+    if (!Number.isFinite(fq[i]!)) continue;
+    const f = FIX_QUALITY_FACTOR[fq[i]!] ?? 1;
+    counts.set(f, (counts.get(f) ?? 0) + 1);
+    n++;
+  }
+  if (counts.size < 2) return false;
+  const sorted = [...counts.values()].sort((a, b) => b - a);
+  return sorted[1]! >= FIX_QUALITY_MIN_SHARE * n;
 }
