@@ -49,8 +49,8 @@ export function makeImuLineParser(file: string, cfg: HindcastConfig, sink: ImuSa
 /** Lines in, samples out: the header first, then one sample a line (text, or bytes by the fast path). */
 class ImuLineParser {
   private readonly stats: ImuReadStats = { samples: 0, skipped: 0, warnings: [] };
-  private readonly accelScale: number;
-  private readonly gyroScale: number;
+  private accelScale: number;
+  private gyroScale: number;
   /** Sensor → body rotation; `identity`: none. */
   private readonly Cbs: Float64Array;
   private readonly identity: boolean;
@@ -86,6 +86,23 @@ class ImuLineParser {
     if (this.stats.warnings.length < LISTED_SKIPS) this.stats.warnings.push({ file: this.file, line: this.lineNo, code: 'row-skipped', message: why });
   }
 
+  /**
+   * Units the header states (e.g. "ax [g]", "gyro_x (deg/s)") win over imu.accelUnit / imu.gyroUnit,
+   * with a note where they differ: the file says what it holds.
+   */
+  private headerUnits(layout: ImuCsvLayout): void {
+    const { accel, gyro } = layout.units;
+    const imu = this.cfg.imu;
+    if (accel && accel !== imu.accelUnit) {
+      this.accelScale = accel === 'g' ? STANDARD_GRAVITY_MPS2 : 1;
+      this.stats.warnings.push({ file: this.file, line: 1, code: 'imu-unit', message: `accelerometer read in ${accel === 'g' ? 'g' : 'm/s²'} as the header states (imu.accelUnit is "${imu.accelUnit}")` });
+    }
+    if (gyro && gyro !== imu.gyroUnit) {
+      this.gyroScale = gyro === 'degps' ? Math.PI / 180 : 1;
+      this.stats.warnings.push({ file: this.file, line: 1, code: 'imu-unit', message: `gyro read in ${gyro === 'degps' ? 'deg/s' : 'rad/s'} as the header states (imu.gyroUnit is "${imu.gyroUnit}")` });
+    }
+  }
+
   /** The general parser: one line of text (the header, or a sample). */
   line(raw: string): void {
     this.lineNo++;
@@ -93,6 +110,7 @@ class ImuLineParser {
     const layout = this.layout;
     if (!layout) {
       this.layout = readImuHeader(text, this.file, this.cfg, this.lineNo);
+      this.headerUnits(this.layout);
       return;
     }
     if (text.trim() === '') return;

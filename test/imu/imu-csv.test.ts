@@ -39,6 +39,20 @@ describe('imu-csv', () => {
     expect(st.warnings.map((w) => w.line)).toEqual([3, 4]);
     expect(() => parseImuCsvText('time,ax,ay\n1,2,3\n', 'd.imu.csv', cfg, () => {})).toThrow(InputError);
   });
+  it.each([
+    ['time,acc_x,acc_y,acc_z,gyro_x,gyro_y,gyro_z', [0.1, 0.2, 9.8, 0.01, 0.02, 0.03], undefined],
+    ['Timestamp,AccX,AccY,AccZ,GyroX,GyroY,GyroZ', [0.1, 0.2, 9.8, 0.01, 0.02, 0.03], undefined],
+    ['t,accel_x [m/s^2],accel_y [m/s^2],accel_z [m/s^2],wx (rad/s),wy (rad/s),wz (rad/s)', [0.1, 0.2, 9.8, 0.01, 0.02, 0.03], undefined],
+    // units stated in the header win over the configuration's m/s² and rad/s, with a note
+    ['time,ax [g],ay [g],az [g],gx (deg/s),gy (deg/s),gz (deg/s)', [0.1 * STANDARD_GRAVITY_MPS2, 0.2 * STANDARD_GRAVITY_MPS2, 9.8 * STANDARD_GRAVITY_MPS2, (0.01 * Math.PI) / 180, (0.02 * Math.PI) / 180, (0.03 * Math.PI) / 180], 'imu-unit'],
+    ['time,ax_g,ay_g,az_g,gx_dps,gy_dps,gz_dps', [0.1 * STANDARD_GRAVITY_MPS2, 0.2 * STANDARD_GRAVITY_MPS2, 9.8 * STANDARD_GRAVITY_MPS2, (0.01 * Math.PI) / 180, (0.02 * Math.PI) / 180, (0.03 * Math.PI) / 180], 'imu-unit'],
+  ] as const)('header "%s": the six axes found, values in SI units (1e-12 relative)', (header, want, note) => {
+    const rows: Row[] = [];
+    const st = parseImuCsvText(`${header}\n100,0.1,0.2,9.8,0.01,0.02,0.03\n`, 'h.imu.csv', loadConfig({}), collect(rows));
+    expect(st.samples).toBe(1);
+    rows[0]!.slice(1).forEach((v, j) => expect(Math.abs(v - want[j]!)).toBeLessThanOrEqual(1e-12 * Math.abs(want[j]!)));
+    expect(st.warnings.some((w) => w.code === 'imu-unit')).toBe(note !== undefined);
+  });
   it('streams a file line by line', async () => {
     const dir = mkdtempSync(join(tmpdir(), 'hindcast-imucsv-'));
     const p = join(dir, 's.imu.csv');
