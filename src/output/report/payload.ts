@@ -173,7 +173,7 @@ export function calibrationLine(info: Record<string, unknown> | undefined): stri
   const q = pair('qHorizontal', 'qVertical');
   if (q) parts.push(`process noise ${q} m²/s³`);
   // how far the white sigma follows the quality columns (0: not at all, 1: proportionally)
-  const ex = [['DOP', withSe(e.hdopExponent)], ['satellite count', withSe(e.satsExponent)], ['fix quality', withSe(e.fixQualityExponent)]].filter(([, v]) => v !== undefined).map(([k, v]) => `${k} ${v}`);
+  const ex = [['DOP', withSe(e.hdopExponent)], ['satellite count', withSe(e.satsExponent)], ['fix quality', withSe(e.fixQualityExponent)], ['reported sigmas', withSe(e.reportedExponent)]].filter(([, v]) => v !== undefined).map(([k, v]) => `${k} ${v}`);
   const exponents = ex.length ? `; quality-column exponents ${ex.join(', ')} (0 ignored, 1 proportional)` : '';
   if (parts.length === 0) return null;
   const epochs = num(cal.epochsUsed);

@@ -25,10 +25,10 @@ import { selectKth } from '../../estimation/select.js';
 import { qualityLogTerms } from '../prepare/fix-noise.js';
 import { applyQualityTable, qualityTable, type QualityTable } from './quality-variances.js';
 
-type ParamName = 'sigmaHorizontalM' | 'sigmaVerticalM' | 'gmHorizontalSigmaM' | 'gmVerticalSigmaM' | 'gmTauSec' | 'gmVerticalTauSec' | 'qHorizontal' | 'qVertical' | 'hdopExponent' | 'satsExponent' | 'fixQualityExponent';
+type ParamName = 'sigmaHorizontalM' | 'sigmaVerticalM' | 'gmHorizontalSigmaM' | 'gmVerticalSigmaM' | 'gmTauSec' | 'gmVerticalTauSec' | 'qHorizontal' | 'qVertical' | 'hdopExponent' | 'satsExponent' | 'fixQualityExponent' | 'reportedExponent';
 
 /** Parameters searched on their own scale (the exponents of the quality columns, 0 to 1); the others in log space. */
-const LINEAR: ReadonlySet<ParamName> = new Set(['hdopExponent', 'satsExponent', 'fixQualityExponent']);
+const LINEAR: ReadonlySet<ParamName> = new Set(['hdopExponent', 'satsExponent', 'fixQualityExponent', 'reportedExponent']);
 
 /** Physical bounds of each parameter. */
 export const PARAM_BOUNDS: Record<ParamName, [number, number]> = {
@@ -43,6 +43,7 @@ export const PARAM_BOUNDS: Record<ParamName, [number, number]> = {
   hdopExponent: [0, 1],
   satsExponent: [0, 1],
   fixQualityExponent: [0, 1],
+  reportedExponent: [0, 1],
 };
 
 export interface ParamEstimate {
@@ -119,6 +120,7 @@ const PRIOR_LOG_SD: Record<ParamName, number> = {
   hdopExponent: Infinity,
   satsExponent: Infinity,
   fixQualityExponent: Infinity,
+  reportedExponent: Infinity,
 };
 
 /**
@@ -225,7 +227,7 @@ interface SubsetItem {
 /** Segment data of the calibration subset (calibrationWindows) at the log's own rate, with each item's segment, first epoch and fixes. */
 function calibrationSubset(ps: PreparedSession, base: AxisParams, bridgeFactor: number, maxEpochs: number): SubsetItem[] {
   // unit white sigma and the proportional factors: the objective scales the variances per evaluation
-  const unit = { ...base, sigmaHorizontalM: 1, sigmaVerticalM: 1, hdopExponent: 1, satsExponent: 1, fixQualityExponent: 1 };
+  const unit = { ...base, sigmaHorizontalM: 1, sigmaVerticalM: 1, hdopExponent: 1, satsExponent: 1, fixQualityExponent: 1, reportedExponent: 1 };
   const windows = calibrationWindows(ps, bridgeFactor, maxEpochs);
   const out: SubsetItem[] = [];
   if (!windows) {
@@ -323,6 +325,7 @@ function calibratedNames(ps: PreparedSession, cfg: HindcastConfig): { names: Par
   if (ex.hdop) names.push('hdopExponent');
   if (ex.sats) names.push('satsExponent');
   if (ex.fixQuality) names.push('fixQualityExponent');
+  if (ex.reported) names.push('reportedExponent');
   return { names, ownTauV };
 }
 
@@ -344,6 +347,8 @@ interface ObjectiveItem {
   data: SegmentData;
   sameInputs: boolean;
   terms: Float64Array | null;
+  /** With reported sigmas and their exponent: per axis, log(s / median) of each epoch's fix (0 without one). */
+  reportedTerms: Float64Array[] | null;
   /** The distinct combinations of those terms (qualityTable), where they are given. */
   quality: QualityTable | null;
 }
@@ -375,7 +380,15 @@ function objectiveSubset(
     const d = item.start > 0 ? startOnFix(thinned.data, thinned.fix) : thinned;
     if (!d) continue;
     let terms: Float64Array | null = null;
-    if (withExponents) {
+    let reportedTerms: Float64Array[] | null = null;
+    if (withExponents && ps.factors.reported) {
+      const med = ps.factors.reportedMedians!;
+      reportedTerms = ps.factors.perAxis.slice(0, d.data.r.length).map((s, a) => {
+        const t = new Float64Array(d.data.N);
+        for (let k = 0; k < d.data.N; k++) if (d.fix[k]! >= 0) t[k] = Math.log(s[d.fix[k]!]! / med[a]!);
+        return t;
+      });
+    } else if (withExponents) {
       terms = new Float64Array(4 * d.data.N);
       for (let k = 0; k < d.data.N; k++) {
         const i = d.fix[k]!;
@@ -384,7 +397,7 @@ function objectiveSubset(
         terms.set(lt, 4 * k);
       }
     }
-    subset.push({ data: d.data, sameInputs: sameHorizontalInputs(d.data), terms, quality: terms ? qualityTable(terms, d.data.N) : null });
+    subset.push({ data: d.data, sameInputs: sameHorizontalInputs(d.data), terms, reportedTerms, quality: terms ? qualityTable(terms, d.data.N) : null });
   }
   return subset;
 }
@@ -426,8 +439,13 @@ function makeLogLik(ps: PreparedSession, cfg: HindcastConfig, prior: AxisParams,
     const models = buildAxisModels(p, ps.hasHeight);
     const rScale = [p.sigmaHorizontalM ** 2, p.sigmaHorizontalM ** 2, p.sigmaVerticalM ** 2];
     if (withExponents) {
-      const aH = p.hdopExponent ?? 1, aS = p.satsExponent ?? 1, aQ = p.fixQualityExponent ?? 1;
-      if (aH !== rExp[0] || aS !== rExp[1] || aQ !== rExp[2]) {
+      const aH = p.hdopExponent ?? 1, aS = p.satsExponent ?? 1, aQ = p.fixQualityExponent ?? 1, aR = p.reportedExponent ?? 1;
+      if (ps.factors.reported) {
+        if (aR !== rExp[0]) {
+          for (const { data: d, reportedTerms } of subset) applyReportedExponent(d, reportedTerms!, ps.factors.reportedMedians!, aR);
+          rExp = [aR, NaN, NaN];
+        }
+      } else if (aH !== rExp[0] || aS !== rExp[1] || aQ !== rExp[2]) {
         for (const { data: d, quality } of subset) applyQualityTable(d, quality!, aH, aS, aQ);
         rExp = [aH, aS, aQ];
       }
@@ -590,7 +608,8 @@ export function calibrateSession(
   const { names, ownTauV } = calibratedNames(ps, cfg);
   const staticWarning = staticLogWarning(ps, prior);
   if (staticWarning) warnings.push(staticWarning);
-  const withExponents = ps.factors.exponents.hdop || ps.factors.exponents.sats || ps.factors.exponents.fixQuality;
+  const ex = ps.factors.exponents;
+  const withExponents = ex.hdop || ex.sats || ex.fixQuality || ex.reported;
   const subset = objectiveSubset(ps, cfg, prior, opt, withExponents, useOverride);
   const epochsUsed = subset.reduce((a, d) => a + d.data.N, 0);
   // the prior is centred on the profile; the search starts from `start` (an earlier round) when given;
@@ -622,4 +641,19 @@ export function calibrateSession(
     },
     warnings,
   };
+}
+
+/**
+ * The variances of reported sigmas under exponent α_r (fix-noise.ts reportedWithExponent), at unit
+ * scale: r = (med · exp(α_r · log(s / med)))² per axis; epochs without a fix are left as they are.
+ */
+function applyReportedExponent(d: SegmentData, terms: Float64Array[], med: [number, number, number], aR: number): void {
+  for (let a = 0; a < d.r.length; a++) {
+    const r = d.r[a]!, t = terms[a]!, m = med[a]!;
+    for (let k = 0; k < d.N; k++) {
+      if (!Number.isFinite(r[k]!)) continue;
+      const s = m * Math.exp(aR * t[k]!);
+      r[k] = s * s;
+    }
+  }
 }

@@ -23,6 +23,8 @@ export interface AxisParams {
   satsExponent?: number;
   /** Exponent of the fix-quality factor (fix-noise.ts FIX_QUALITY_FACTOR); 1 when absent. */
   fixQualityExponent?: number;
+  /** Exponent of reported per-fix sigmas about their median (fix-noise.ts); 1 when absent. */
+  reportedExponent?: number;
 }
 
 /** Model parameters from the configuration; with reported per-fix sigmas the white "sigma" is their scale. */

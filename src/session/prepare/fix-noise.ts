@@ -53,8 +53,13 @@ export interface FixSigmaFactors {
   reported: boolean;
   /** Which columns were used. */
   used: string[];
-  /** The quality columns the exponents apply to (none with reported sigmas; fix quality only where it varies). */
-  exponents: { hdop: boolean; sats: boolean; fixQuality: boolean };
+  /**
+   * The quality columns the exponents apply to (none with reported sigmas; fix quality only where it
+   * varies), and whether the reported sigmas get one (where they vary).
+   */
+  exponents: { hdop: boolean; sats: boolean; fixQuality: boolean; reported: boolean };
+  /** With reported sigmas: their medians per axis (east, north, up), which an exponent keeps fixed. */
+  reportedMedians?: [number, number, number];
   /** The session medians the relative factors are taken against (NaN where a column is absent). */
   medians: { hdop: number; vdop: number; sats: number; fixQualityMode: number };
 }
@@ -82,7 +87,7 @@ export function qualityLogTerms(s: FixSeries, f: FixSigmaFactors, i: number, out
 }
 
 /** The last exponents' factors of each FixSigmaFactors (the final run and the review build them once). */
-const withExponents = new WeakMap<FixSigmaFactors, { aH: number; aS: number; aQ: number; perAxis: [Float64Array, Float64Array, Float64Array] }>();
+const withExponents = new WeakMap<FixSigmaFactors, { aH: number; aS: number; aQ: number; aR: number; perAxis: [Float64Array, Float64Array, Float64Array] }>();
 
 /**
  * Per-fix factors (east, north, up) under exponents αₕ (DOP), αₛ (satellite count) and α_q (fix
@@ -90,7 +95,8 @@ const withExponents = new WeakMap<FixSigmaFactors, { aH: number; aS: number; aQ:
  * exp(αₕ·log DOP ratio + αₛ·½ log sats ratio + α_q·log fix quality ratio) per fix (qualityLogTerms).
  * The last result is kept.
  */
-export function factorsWithExponents(s: FixSeries, f: FixSigmaFactors, aH = 1, aS = 1, aQ = 1): [Float64Array, Float64Array, Float64Array] {
+export function factorsWithExponents(s: FixSeries, f: FixSigmaFactors, aH = 1, aS = 1, aQ = 1, aR = 1): [Float64Array, Float64Array, Float64Array] {
+  if (f.reported) return reportedWithExponent(f, f.exponents.reported ? aR : 1);
   if (!f.exponents.hdop) aH = 1;
   if (!f.exponents.sats) aS = 1;
   if (!f.exponents.fixQuality) aQ = 1;
@@ -106,7 +112,7 @@ export function factorsWithExponents(s: FixSeries, f: FixSigmaFactors, aH = 1, a
     fv[i] = Math.exp(aH * t[1]! + aS * t[2]! + aQ * t[3]!);
   }
   const perAxis: [Float64Array, Float64Array, Float64Array] = [fh, fh, fv];
-  withExponents.set(f, { aH, aS, aQ, perAxis });
+  withExponents.set(f, { aH, aS, aQ, aR: 1, perAxis });
   return perAxis;
 }
 
@@ -160,9 +166,10 @@ export function fixSigmaFactors(s: FixSeries): FixSigmaFactors {
       }
       return f;
     }) as [Float64Array, Float64Array, Float64Array];
-    return { perAxis: out, reported: true, used, exponents: { hdop: false, sats: false, fixQuality: false }, medians };
+    const reportedMedians = out.map((a) => median(a)) as [number, number, number];
+    return { perAxis: out, reported: true, used, exponents: { hdop: false, sats: false, fixQuality: false, reported: reportedVaries(out[0]!) }, medians, reportedMedians };
   }
-  const exponents = { hdop: used.includes('hdop') || used.includes('vdop'), sats: used.includes('sats'), fixQuality: used.includes('fix_quality') && fixQualityVaries(fq!) };
+  const exponents = { hdop: used.includes('hdop') || used.includes('vdop'), sats: used.includes('sats'), fixQuality: used.includes('fix_quality') && fixQualityVaries(fq!), reported: false };
   return { perAxis: [fh, fh, fv], reported: false, used, exponents, medians };
 }
 
@@ -182,4 +189,31 @@ function fixQualityVaries(fq: Float64Array): boolean {
   if (counts.size < 2) return false;
   const sorted = [...counts.values()].sort((a, b) => b - a);
   return sorted[1]! >= FIX_QUALITY_MIN_SHARE * n;
+}
+
+/**
+ * Reported sigmas under exponent α_r: med_a · (s_i / med_a)^α_r per axis (the medians kept, so the
+ * calibrated scale keeps its meaning): the reported sigmas themselves at 1, one sigma a log at 0. A
+ * receiver's reported sigmas come from its own error model, which may follow the actual error
+ * closely or hardly at all, so how far they are followed is estimated like the quality columns'.
+ */
+function reportedWithExponent(f: FixSigmaFactors, aR: number): [Float64Array, Float64Array, Float64Array] {
+  if (aR === 1 || !f.reportedMedians) return f.perAxis;
+  const c = withExponents.get(f);
+  if (c && c.aR === aR) return c.perAxis;
+  const perAxis = f.perAxis.map((a, ax) => {
+    const m = f.reportedMedians![ax]!;
+    const out = new Float64Array(a.length);
+    for (let i = 0; i < a.length; i++) out[i] = m * Math.exp(aR * Math.log(a[i]! / m));
+    return out;
+  }) as [Float64Array, Float64Array, Float64Array];
+  withExponents.set(f, { aH: 1, aS: 1, aQ: 1, aR, perAxis });
+  return perAxis;
+}
+
+/** Whether reported sigmas vary enough for an exponent to be estimated: their 90th percentile at least 1.2 × their 10th. */
+function reportedVaries(a: Float64Array): boolean {
+  const v = Float64Array.from(a).filter((x) => Number.isFinite(x) && x > 0).sort();
+  if (v.length < 10) return false;
+  return v[Math.floor(0.9 * (v.length - 1))]! >= 1.2 * v[Math.floor(0.1 * (v.length - 1))]!;
 }

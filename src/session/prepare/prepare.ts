@@ -120,7 +120,7 @@ function fillSegment(ps: PreparedSession, fix: Int32Array, p: AxisParams, from: 
   const r = Array.from({ length: nAx }, () => new Float64Array(N).fill(NaN));
   const use = new Uint8Array(N);
   // the per-fix factors under the parameters' quality-column exponents (perAxis itself at 1, 1)
-  const perAxis = factorsWithExponents(ps.series, ps.factors, p.hdopExponent, p.satsExponent, p.fixQualityExponent);
+  const perAxis = factorsWithExponents(ps.series, ps.factors, p.hdopExponent, p.satsExponent, p.fixQualityExponent, p.reportedExponent);
   for (let k = 0; k < N; k++) {
     const i = fix[from + k]!;
     if (i < 0 || !ps.offered[i]) continue;
