@@ -32,7 +32,7 @@ describe('factorsWithExponents', () => {
   test('at exponents 1 and 1: the proportional rule’s arrays themselves', () => {
     const s = series(true);
     const f = fixSigmaFactors(s);
-    expect(f.exponents).toEqual({ hdop: true, sats: true, fixQuality: false });
+    expect(f.exponents).toEqual({ hdop: true, sats: true, fixQuality: false, reported: false });
     expect(factorsWithExponents(s, f, 1, 1)).toBe(f.perAxis);
   });
 
