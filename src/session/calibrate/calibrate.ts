@@ -23,7 +23,7 @@ import { buildAxisModels, filterOptions, type AxisParams } from '../prepare/axis
 import { segmentData, segmentDataRange, segmentGrid, sliceSegment, type PreparedSession } from '../prepare/prepare.js';
 import { selectKth } from '../../estimation/select.js';
 import { qualityLogTerms } from '../prepare/fix-noise.js';
-import { applyQualityTable, qualityTable, type QualityTable } from './quality-variances.js';
+import { applyQualityTable, applyReportedExponent, qualityTable, type QualityTable } from './quality-variances.js';
 
 type ParamName = 'sigmaHorizontalM' | 'sigmaVerticalM' | 'gmHorizontalSigmaM' | 'gmVerticalSigmaM' | 'gmTauSec' | 'gmVerticalTauSec' | 'qHorizontal' | 'qVertical' | 'hdopExponent' | 'satsExponent' | 'fixQualityExponent' | 'reportedExponent';
 
@@ -643,17 +643,3 @@ export function calibrateSession(
   };
 }
 
-/**
- * The variances of reported sigmas under exponent α_r (fix-noise.ts reportedWithExponent), at unit
- * scale: r = (med · exp(α_r · log(s / med)))² per axis; epochs without a fix are left as they are.
- */
-function applyReportedExponent(d: SegmentData, terms: Float64Array[], med: [number, number, number], aR: number): void {
-  for (let a = 0; a < d.r.length; a++) {
-    const r = d.r[a]!, t = terms[a]!, m = med[a]!;
-    for (let k = 0; k < d.N; k++) {
-      if (!Number.isFinite(r[k]!)) continue;
-      const s = m * Math.exp(aR * t[k]!);
-      r[k] = s * s;
-    }
-  }
-}

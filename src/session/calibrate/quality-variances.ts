@@ -75,3 +75,18 @@ export function applyQualityTable(d: SegmentData, t: QualityTable, aH: number, a
     if (rU && Number.isFinite(rU[k]!)) rU[k] = varV[idxV[k]!]!;
   }
 }
+
+/**
+ * The variances of reported sigmas under exponent α_r (fix-noise.ts reportedWithExponent), at unit
+ * scale: r = (med · exp(α_r · log(s / med)))² per axis; epochs without a fix are left as they are.
+ */
+export function applyReportedExponent(d: SegmentData, terms: Float64Array[], med: [number, number, number], aR: number): void {
+  for (let a = 0; a < d.r.length; a++) {
+    const r = d.r[a]!, t = terms[a]!, m = med[a]!;
+    for (let k = 0; k < d.N; k++) {
+      if (!Number.isFinite(r[k]!)) continue;
+      const s = m * Math.exp(aR * t[k]!);
+      r[k] = s * s;
+    }
+  }
+}
