@@ -36,6 +36,8 @@ export const columnsSchema = z
     sdEast: z.string(),
     sdNorth: z.string(),
     sdUp: z.string(),
+    /** A horizontal accuracy column (m, the 68% radius as phones write it), read as reported sigmas where there are no sd columns. */
+    hAccuracy: z.string(),
   })
   .partial()
   .strict();

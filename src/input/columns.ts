@@ -24,6 +24,7 @@ export const COLUMN_ALIASES: Record<ColumnRole, string[]> = {
   sdEast: ['sd_east', 'sde', 'std_east', 'sigma_e', 'sigma_east', 'sd_e', 'std_e'],
   sdNorth: ['sd_north', 'sdn', 'std_north', 'sigma_n', 'sigma_north', 'sd_n', 'std_n'],
   sdUp: ['sd_up', 'sdu', 'std_up', 'sigma_u', 'sigma_up', 'sd_u', 'std_u', 'sd_height'],
+  hAccuracy: ['accuracy', 'horizontal_accuracy', 'hacc', 'h_acc', 'hor_acc', 'horizontal_accuracy_m', 'accuracy_m', 'acc_h', 'h_accuracy'],
 };
 
 /** Height aliases that usually mean height above mean sea level rather than the ellipsoid. */

@@ -33,7 +33,7 @@ export { detectDelimiter, parseCsvNumber, splitCsvLine, type CsvRow } from './cs
 export { Lines } from './csv-lines.js';
 export { plainRowReader } from './csv-plain-rows.js';
 
-const QUALITY_ROLES: QualityColumn[] = ['hdop', 'vdop', 'sats', 'fixQuality', 'sdEast', 'sdNorth', 'sdUp'];
+const QUALITY_ROLES: QualityColumn[] = ['hdop', 'vdop', 'sats', 'fixQuality', 'sdEast', 'sdNorth', 'sdUp', 'hAccuracy'];
 const DEG_PER_RAD = 180 / Math.PI;
 
 export interface CsvReadOptions {
@@ -120,9 +120,31 @@ export function readFixCsv(text: string, file: string, cfg: HindcastConfig, opt:
     if (rows === 0) throw new InputError({ file, line: h.headerLineNo }, 'header only: the file has no fix rows');
     throw new InputError({ file, line: h.headerLineNo + 1 }, `no readable fix rows (${w.total} skipped; first: ${w.first})`);
   }
-  const s = b.finish();
+  const s = accuracyAsSigmas(b.finish());
   if (s.n < 2) throw new InputError({ file, line: s.line[0] }, `only ${s.n} fix: a session needs at least two fixes at distinct times`);
   return s;
+}
+
+/** The 68 % radius of a circular Gaussian in units of its per-axis sigma: √(−2 ln 0.32). */
+export const R68_PER_SIGMA = Math.sqrt(-2 * Math.log(0.32));
+
+/**
+ * A horizontal accuracy column (phones write the 68 % radius, in metres) where the log has no sd
+ * columns: read as reported sigmas, sd_east = sd_north = accuracy / R68_PER_SIGMA. The calibration
+ * fits their scale and how far they are followed (fix-noise.ts), so a device whose accuracy says
+ * little about its error is not held to it.
+ */
+function accuracyAsSigmas(s: FixSeries): FixSeries {
+  const acc = s.quality.hAccuracy;
+  if (!acc) return s;
+  const quality = { ...s.quality };
+  delete quality.hAccuracy;
+  if (quality.sdEast || quality.sdNorth) return { ...s, quality };
+  const sd = acc.map((v) => (v > 0 ? v / R68_PER_SIGMA : NaN));
+  quality.sdEast = sd;
+  quality.sdNorth = sd;
+  const warnings = [...s.warnings, { file: s.file, code: 'accuracy-column', message: 'the accuracy column is read as the 68% horizontal radius (sd per axis = accuracy / 1.51); the calibration finds how far it predicts the error' }];
+  return { ...s, quality, warnings };
 }
 
 /** Find the header row (after blank and comment lines and an Excel "sep=X" line), its delimiter and columns. */

@@ -5,7 +5,7 @@
 import type { InputWarning } from '../errors.js';
 
 /** Optional per-fix quality columns; NaN where a row has no value. */
-export const QUALITY_COLUMNS = ['hdop', 'vdop', 'sats', 'fixQuality', 'sdEast', 'sdNorth', 'sdUp'] as const;
+export const QUALITY_COLUMNS = ['hdop', 'vdop', 'sats', 'fixQuality', 'sdEast', 'sdNorth', 'sdUp', 'hAccuracy'] as const;
 export type QualityColumn = (typeof QUALITY_COLUMNS)[number];
 
 export interface FixSeries {

@@ -11,7 +11,7 @@ export const LISTED_PER_CODE = 20;
  * Warning codes that describe how a file was interpreted rather than a problem with its data;
  * `input.strict` does not turn these into failures.
  */
-export const NOTE_CODES: ReadonlySet<string> = new Set(['height-reference', 'time-unit', 'format', 'date-from-config', 'time-zone-assumed']);
+export const NOTE_CODES: ReadonlySet<string> = new Set(['height-reference', 'time-unit', 'format', 'date-from-config', 'time-zone-assumed', 'angle-unit', 'accuracy-column', 'imu-unit']);
 
 export class RowWarnings {
   private readonly counts = new Map<string, number>();

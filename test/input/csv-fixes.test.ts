@@ -148,3 +148,19 @@ describe('degrees and decimal minutes (DDMM.mmmm, as NMEA 0183 writes angles; co
     expect(s.warnings.some((w) => w.code === 'angle-unit')).toBe(false);
   });
 });
+
+describe('a horizontal accuracy column (phones: the 68% radius, m)', () => {
+  test('read as reported sigmas where there are no sd columns: sd per axis = accuracy / √(−2 ln 0.32) (1e-12), with a note', () => {
+    const s = readFixCsv('time,lat,lon,accuracy\n2024-05-12T08:00:00Z,48.1,11.5,3.0\n2024-05-12T08:00:01Z,48.1,11.5,6.0\n', 'acc.csv', cfg());
+    // √(−2 ln 0.32) = 1.50959…: the radius holding 68% of a circular Gaussian (common practice)
+    expect(Math.abs(s.quality.sdEast![0]! - 3.0 / Math.sqrt(-2 * Math.log(0.32)))).toBeLessThan(1e-12);
+    expect(s.quality.sdNorth![1]).toBe(s.quality.sdEast![1]);
+    expect(s.quality.hAccuracy).toBeUndefined();
+    expect(s.warnings.some((w) => w.code === 'accuracy-column')).toBe(true);
+  });
+  test('sd columns win over it', () => {
+    const s = readFixCsv('time,lat,lon,sd_east,sd_north,accuracy\n2024-05-12T08:00:00Z,48.1,11.5,0.5,0.6,3.0\n2024-05-12T08:00:01Z,48.1,11.5,0.5,0.6,6.0\n', 'acc.csv', cfg());
+    expect(s.quality.sdEast![0]).toBe(0.5);
+    expect(s.warnings.some((w) => w.code === 'accuracy-column')).toBe(false);
+  });
+});
