@@ -10,7 +10,7 @@ import { loadConfig } from '../../../src/config/load.js';
 import { readFixCsv } from '../../../src/input/csv-fixes.js';
 import { processSession } from '../../../src/session/process-session.js';
 import { FIX_QUALITY_FACTOR } from '../../../src/session/prepare/fix-noise.js';
-import { rng } from '../../helpers/park-miller.js';
+import { gaussian } from '../../helpers/park-miller.js';
 
 /**
  * A 1 Hz walk east at 1.2 m/s, 1800 fixes, the fix quality `qMain` with blocks of 60 fixes at `qOther`
@@ -18,8 +18,7 @@ import { rng } from '../../helpers/park-miller.js';
  * `truthExponent` (1: the column is right, 0: it says nothing).
  */
 function csv(qMain: number, qOther: number, sigmaM: number, truthExponent: number, seed: number): string {
-  const r = rng(seed);
-  const gauss = () => Math.sqrt(-2 * Math.log(r() || 1e-12)) * Math.cos(2 * Math.PI * r());
+  const gauss = gaussian(seed);
   const rows = ['time,lat,lon,fix_quality'];
   for (let i = 0; i < 1800; i++) {
     const q = Math.floor(i / 60) % 3 === 2 ? qOther : qMain;

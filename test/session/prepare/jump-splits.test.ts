@@ -8,12 +8,11 @@ import { JUMP_MIN_M, JUMP_SPEED_MPS, splitAtJumps } from '../../../src/session/p
 import { loadConfig } from '../../../src/config/load.js';
 import { readFixCsv } from '../../../src/input/csv-fixes.js';
 import { processSession } from '../../../src/session/process-session.js';
-import { rng } from '../../helpers/park-miller.js';
+import { gaussian, rng } from '../../helpers/park-miller.js';
 
 /** Positions east (m) of n fixes at 1 s: offset(i) added to a 2 m s⁻¹ walk with 2 m noise (seeded). */
 function series(n: number, offset: (i: number) => number, dtSec = 1) {
-  const r = rng(7);
-  const gauss = () => Math.sqrt(-2 * Math.log(r() || 1e-12)) * Math.cos(2 * Math.PI * r());
+  const gauss = gaussian(7);
   const t = Float64Array.from({ length: n }, (_, i) => i * dtSec);
   const e = Float64Array.from({ length: n }, (_, i) => 2 * i * dtSec + offset(i) + 2 * gauss());
   const nn = Float64Array.from({ length: n }, () => 2 * gauss());

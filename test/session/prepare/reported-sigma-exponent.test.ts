@@ -9,15 +9,14 @@ import { describe, expect, test } from 'vitest';
 import { loadConfig } from '../../../src/config/load.js';
 import { readFixCsv } from '../../../src/input/csv-fixes.js';
 import { processSession } from '../../../src/session/process-session.js';
-import { rng } from '../../helpers/park-miller.js';
+import { gaussian } from '../../helpers/park-miller.js';
 
 /**
  * A 1 Hz walk east at 1.2 m/s, 1800 fixes, reported sd 0.5 m with blocks of 60 fixes at 2 m every
  * third block; the white noise per axis `sigmaM` times (reported / 0.5)^truthExponent.
  */
 function csv(sigmaM: number, truthExponent: number, seed: number): string {
-  const r = rng(seed);
-  const gauss = () => Math.sqrt(-2 * Math.log(r() || 1e-12)) * Math.cos(2 * Math.PI * r());
+  const gauss = gaussian(seed);
   const rows = ['time,lat,lon,sd_east,sd_north'];
   for (let i = 0; i < 1800; i++) {
     const sd = Math.floor(i / 60) % 3 === 2 ? 2 : 0.5;
