@@ -10,10 +10,10 @@
  * 4 m, and the 95 % regions hold the truth half the time. What the log does identify is the white
  * fix noise σ_w, and the white noise says what grade of receiver it is: in code-based single-point
  * fixes the slowly varying errors (satellite orbit and clock, ionosphere and troposphere residuals,
- * multipath) are at least as large as the receiver's white noise (common practice: the user
- * equivalent range error budgets of single-frequency positioning, e.g. Misra & Enge, "Global
- * Positioning System", 2nd ed. 2006, ch. 7, put receiver noise well below the sum of the
- * correlated terms; common practice, from memory). So the reported regions assume a correlated sigma of at least ρ·σ_w per axis:
+ * multipath) are at least as large as the receiver's white noise (common practice; from memory,
+ * the user equivalent range error budgets of single-frequency positioning, e.g. Misra & Enge,
+ * "Global Positioning System", 2nd ed. 2006, ch. 7, put receiver noise well below the sum of the
+ * correlated terms). So the reported regions assume a correlated sigma of at least ρ·σ_w per axis:
  *
  *   Δ = max(0, (ρ σ_w)² − σ_b²)        (σ_b the calibrated correlated sigma)
  *   P_reported = P_smoothed + Δ        (east and north alike, up with its own ρ and σ's)
@@ -34,22 +34,18 @@ import type { SessionResult } from '../result/result.js';
 import type { AxisParams } from '../prepare/axis-params.js';
 import type { CorrelatedFloor } from '../result/correlated-floor-info.js';
 import type { FixSigmaFactors } from '../prepare/fix-noise.js';
-import { selectKth } from '../../estimation/select.js';
 
 export type { CorrelatedFloor };
 
 /**
  * The white fix sigma of p in metres at the session's median quality (horizontal per axis,
  * vertical): p's own, or with reported per-fix sigmas (where p holds their scale) the scale times
- * their median.
+ * their median (fix-noise.ts reportedMedians).
  */
 export function whiteSigmaM(p: AxisParams, factors: FixSigmaFactors): { horizontal: number; vertical: number } {
-  if (!factors.reported) return { horizontal: p.sigmaHorizontalM, vertical: p.sigmaVerticalM };
-  const med = (a: Float64Array) => {
-    const c = Float64Array.from(a).filter(Number.isFinite);
-    return c.length ? selectKth(c, c.length >> 1) : NaN;
-  };
-  return { horizontal: p.sigmaHorizontalM * med(factors.perAxis[0]), vertical: p.sigmaVerticalM * med(factors.perAxis[2]) };
+  if (!factors.reported || !factors.reportedMedians) return { horizontal: p.sigmaHorizontalM, vertical: p.sigmaVerticalM };
+  const [mE, , mU] = factors.reportedMedians;
+  return { horizontal: p.sigmaHorizontalM * mE, vertical: p.sigmaVerticalM * mU };
 }
 
 /** The floor for parameters p whose white sigma is whiteM (m; whiteSigmaM). */

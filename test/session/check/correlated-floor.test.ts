@@ -13,7 +13,7 @@ import type { CorrelatedFloor } from '../../../src/session/result/correlated-flo
 import { sampleTracks } from '../../../src/session/survey/draws.js';
 import { defaultSpec, scenarioCsv, simulate } from '../../../src/simulate/scenario.js';
 import type { AxisParams } from '../../../src/session/prepare/axis-params.js';
-import type { FixSigmaFactors } from '../../../src/session/prepare/fix-noise.js';
+import { fixSigmaFactors, type FixSigmaFactors } from '../../../src/session/prepare/fix-noise.js';
 
 const P: AxisParams = { motion: 'cv', qHorizontal: 0.5, qVertical: 0.1, sigmaHorizontalM: 2, sigmaVerticalM: 4, gmHorizontalSigmaM: 1.5, gmVerticalSigmaM: 3, gmTauSec: 60 };
 const RATIO = { horizontal: 1.25, vertical: 1.25 };
@@ -31,8 +31,10 @@ describe('the floor’s arithmetic: Δ = max(0, (ρ σ_w)² − σ_b²)', () => 
     expect(Math.abs(f.assumedSigmaM.horizontal - assumed)).toBeLessThan(1e-12);
   });
   test('with reported per-fix sigmas the white sigma is their scale times their median', () => {
-    const factors = { perAxis: [Float64Array.of(1, 2, 3, NaN, 5), Float64Array.of(1, 2, 3, 4, 5), Float64Array.of(2, 4, 6, 8, 10)], reported: true } as unknown as FixSigmaFactors;
-    // median of the finite east values {1, 2, 3, 5}: element ⌊4/2⌋ of the sorted ones = 3
+    // sd_east 1, 2, 3, (empty), 5; sd_up 2, 4, 6, 8, 10: the reader's factors as a session gets them
+    const rows = ['time,lat,lon,height,sd_east,sd_north,sd_up', ...[1, 2, 3, NaN, 5].map((e, i) => `2026-05-03T09:00:0${i}Z,47.0,8.0,400,${Number.isNaN(e) ? '' : e},${i + 1},${2 * (i + 1)}`)];
+    const factors: FixSigmaFactors = fixSigmaFactors(readFixCsv(rows.join('\n') + '\n', 'sd.csv', loadConfig()));
+    // median of the finite east values {1, 2, 3, 5}: element ⌊4/2⌋ of the sorted ones = 3 (the empty cell takes it too)
     expect(whiteSigmaM({ ...P, sigmaHorizontalM: 1.5, sigmaVerticalM: 0.5 }, factors)).toEqual({ horizontal: 4.5, vertical: 3 });
     expect(whiteSigmaM(P, { ...factors, reported: false })).toEqual({ horizontal: 2, vertical: 4 });
   });
