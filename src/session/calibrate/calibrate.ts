@@ -22,6 +22,8 @@ import { forwardLogLik, forwardLogLikApplies, makeLogLikWork } from '../../estim
 import { buildAxisModels, filterOptions, type AxisParams } from '../prepare/axis-params.js';
 import { segmentData, segmentDataRange, segmentGrid, sliceSegment, type PreparedSession } from '../prepare/prepare.js';
 import { selectKth } from '../../estimation/select.js';
+import { makeScoreWork, trackScore, trackScoreApplies } from '../../estimation/track-score.js';
+import type { AxisModel } from '../../models/axis-model.js';
 import { qualityLogTerms } from '../prepare/fix-noise.js';
 import { applyQualityTable, applyReportedExponent, qualityTable, type QualityTable } from './quality-variances.js';
 
@@ -61,6 +63,8 @@ export interface CalibrationInfo {
   epochsUsed: number;
   logLikelihood: number;
   evaluations: number;
+  /** Exact-gradient passes (each one forward filter and one smoother pass), with those of the standard errors. */
+  gradientEvaluations?: number;
   estimates: Partial<Record<ParamName, ParamEstimate>>;
   /** Whether the white sigmas are a scale of the log's reported sigmas. */
   reportedSigmaScale: boolean;
@@ -84,6 +88,12 @@ export interface CalibrationOptions {
    * for the same maximum, test/session/calibrate/calibrate-optimizer.test.ts).
    */
   optimizer?: 'quasi-newton' | 'nelder-mead';
+  /**
+   * The quasi-Newton gradient: 'exact' (default; estimation/track-score.ts where it applies, else
+   * differences) or 'difference' (forward and central differences of the objective: the reference
+   * the exact one is tested against).
+   */
+  gradient?: 'exact' | 'difference';
 }
 
 export const DEFAULT_CALIBRATION: CalibrationOptions = { maxEpochs: 4000, minFixes: 120, minDurationSec: 180, maxEvaluations: 1200 };
@@ -95,7 +105,7 @@ export const DEFAULT_CALIBRATION: CalibrationOptions = { maxEpochs: 4000, minFix
  * to the third digit, the scenario family's pooled figures the same or better, ~15% less time a
  * one-hour 1 Hz log).
  */
-export const FIRST_ROUND: CalibrationOptions = { ...DEFAULT_CALIBRATION, maxEvaluations: 600, standardErrors: false };
+export const FIRST_ROUND: CalibrationOptions = { ...DEFAULT_CALIBRATION, maxEpochs: Number(process.env.HC_R1 ?? 4000), maxEvaluations: Number(process.env.HC_R1E ?? 600), standardErrors: false };
 
 /**
  * Prior spread (log space) per parameter. White noise and process noise are well identified by the
@@ -426,13 +436,8 @@ function paramsAt(x: number[], names: ParamName[], base: AxisParams, ownTauV: bo
   return p;
 }
 
-/** The log-likelihood of the subset's innovations under parameters p (rewrites the subset's variances where the exponents change). */
-function makeLogLik(ps: PreparedSession, cfg: HindcastConfig, prior: AxisParams, subset: ObjectiveItem[], withExponents: boolean): (p: AxisParams) => number {
-  const histories = new Map<SegmentData, FilterHistory>();
-  const fopt = filterOptions(cfg, prior);
-  // no re-acquisition here: its covariance inflation would explain manoeuvres for free
-  const lopt = { ...fopt, reacquireAfter: Number.MAX_SAFE_INTEGER, likelihood: true };
-  const llWork = makeLogLikWork(ps.hasHeight ? 3 : 2);
+/** The subset's variances rewritten for the exponents of p (where they are estimated); the axis models and r scales of p. */
+function makeApply(ps: PreparedSession, subset: ObjectiveItem[], withExponents: boolean): (p: AxisParams) => { models: AxisModel[]; rScale: number[] } {
   // the exponents the subset's r holds (NaN: not yet written)
   let rExp = [NaN, NaN, NaN];
   return (p) => {
@@ -450,6 +455,19 @@ function makeLogLik(ps: PreparedSession, cfg: HindcastConfig, prior: AxisParams,
         rExp = [aH, aS, aQ];
       }
     }
+    return { models, rScale };
+  };
+}
+
+/** The log-likelihood of the subset's innovations under parameters p (rewrites the subset's variances where the exponents change). */
+function makeLogLik(cfg: HindcastConfig, prior: AxisParams, subset: ObjectiveItem[], apply: ReturnType<typeof makeApply>, nAxes: number): (p: AxisParams) => number {
+  const histories = new Map<SegmentData, FilterHistory>();
+  const fopt = filterOptions(cfg, prior);
+  // no re-acquisition here: its covariance inflation would explain manoeuvres for free
+  const lopt = { ...fopt, reacquireAfter: Number.MAX_SAFE_INTEGER, likelihood: true };
+  const llWork = makeLogLikWork(nAxes);
+  return (p) => {
+    const { models, rScale } = apply(p);
     let ll = 0;
     for (const { data: d, sameInputs } of subset) {
       // the common case (n = 3, east and north shared) without a history: the same value as
@@ -470,6 +488,71 @@ function makeLogLik(ps: PreparedSession, cfg: HindcastConfig, prior: AxisParams,
       ll += totalLogLik(h);
     }
     return ll;
+  };
+}
+
+/**
+ * The exact gradient of the log-likelihood in search coordinates (estimation/track-score.ts, Fisher's
+ * identity), or null where it does not apply (another motion model, fixes under the gate): then the
+ * optimizer takes differences. The per-axis derivatives are mapped to the searched parameters by the
+ * chain rule: the white sigma scales every R of its axes (∂ log R/∂ log σ = 2), an exponent moves
+ * log R by twice its log term, the horizontal noise parameters are shared by east and north, and the
+ * vertical time constant is the horizontal one's unless it is searched on its own.
+ */
+function makeLogLikGradient(
+  ps: PreparedSession,
+  cfg: HindcastConfig,
+  prior: AxisParams,
+  subset: ObjectiveItem[],
+  apply: ReturnType<typeof makeApply>,
+  names: ParamName[],
+  toParams: (x: number[]) => AxisParams,
+  ownTauV: boolean,
+): ((x: number[]) => number[]) | null {
+  const fopt = { ...filterOptions(cfg, prior), reacquireAfter: Number.MAX_SAFE_INTEGER };
+  const probe = apply(toParams(names.map((nm) => toX(nm, startOf(prior, nm)))));
+  if (!subset.every(({ data }) => trackScoreApplies(probe.models, data, fopt))) return null;
+  const works = subset.map(({ data }) => makeScoreWork(probe.models, data.N));
+  const idx = (nm: ParamName) => names.indexOf(nm);
+  const iSH = idx('sigmaHorizontalM'), iSV = idx('sigmaVerticalM'), iBH = idx('gmHorizontalSigmaM'), iBV = idx('gmVerticalSigmaM');
+  const iTH = idx('gmTauSec'), iTV = idx('gmVerticalTauSec'), iQH = idx('qHorizontal'), iQV = idx('qVertical');
+  const iEH = idx('hdopExponent'), iES = idx('satsExponent'), iEQ = idx('fixQualityExponent'), iER = idx('reportedExponent');
+  return (x) => {
+    const { models, rScale } = apply(toParams(x));
+    const g = new Array<number>(names.length).fill(0);
+    const add = (i: number, v: number) => {
+      if (i >= 0) g[i] = g[i]! + v;
+    };
+    subset.forEach(({ data, quality, reportedTerms }, s) => {
+      const sc = trackScore(models, data, fopt, rScale, works[s]!);
+      sc.axes.forEach((ax, a) => {
+        const vertical = a === 2;
+        add(vertical ? iQV : iQH, ax.dLogQ);
+        add(vertical ? iBV : iBH, ax.dLogSigmaB);
+        add(vertical ? (ownTauV ? iTV : iTH) : iTH, ax.dLogTau);
+        const w = sc.dLogR[a]!;
+        let sumW = 0, sumH = 0, sumS = 0, sumQ = 0, sumR = 0;
+        for (let k = 0; k < data.N; k++) {
+          const wk = w[k]!;
+          if (wk === 0) continue;
+          sumW += wk;
+          if (quality) {
+            // log r = 2 (αₕ t_dop + αₛ t_sats + α_q t_quality) (quality-variances.ts)
+            const c = 3 * (vertical ? quality.idxV[k]! : quality.idxH[k]!);
+            const comb = vertical ? quality.combV : quality.combH;
+            sumH += wk * comb[c]!;
+            sumS += wk * comb[c + 1]!;
+            sumQ += wk * comb[c + 2]!;
+          } else if (reportedTerms) sumR += wk * reportedTerms[a]![k]!;
+        }
+        add(vertical ? iSV : iSH, 2 * sumW);
+        add(iEH, 2 * sumH);
+        add(iES, 2 * sumS);
+        add(iEQ, 2 * sumQ);
+        add(iER, 2 * sumR);
+      });
+    });
+    return g;
   };
 }
 
@@ -518,7 +601,14 @@ function makeObjective(names: ParamName[], toParams: (x: number[]) => AxisParams
 }
 
 /** Minimize the objective from x0: projected BFGS inside the bounds (quasiNewton) or the simplex in two restarts. */
-function minimize(negLogLik: (x: number[]) => number, names: ParamName[], x0: number[], opt: CalibrationOptions, quasiNewton: boolean): { x: number[]; f: number; evaluations: number } {
+function minimize(
+  negLogLik: (x: number[]) => number,
+  names: ParamName[],
+  x0: number[],
+  opt: CalibrationOptions,
+  quasiNewton: boolean,
+  gradient?: (x: number[]) => number[],
+): { x: number[]; f: number; evaluations: number; gradients: number } {
   if (quasiNewton) {
     // projected BFGS inside the bounds; a difference step of 1e-5 (log space: 0.001 %) is far below
     // the standard errors and far above the objective's rounding
@@ -531,18 +621,55 @@ function minimize(negLogLik: (x: number[]) => number, names: ParamName[], x0: nu
       fTolerance: 1e-6,
       // a diagonal start from second differences at 0.01 (1 % in log space): the search starts near the optimum
       curvatureStep: names.map(() => 0.01),
+      gradient,
     });
-    return { x: q.x, f: q.f, evaluations: q.evaluations };
+    return { x: q.x, f: q.f, evaluations: q.evaluations, gradients: q.gradients };
   }
   // two restarts: the second from the first optimum, which escapes early simplex collapse
   const res1 = nelderMead(negLogLik, x0, { step: names.map((nm) => (LINEAR.has(nm) ? 0.3 : 0.7)), maxEvaluations: Math.floor(opt.maxEvaluations * 0.6), fTolerance: 1e-2, xTolerance: 1e-2 });
   const res2 = nelderMead(negLogLik, res1.x, { step: names.map((nm) => (LINEAR.has(nm) ? 0.1 : 0.25)), maxEvaluations: Math.floor(opt.maxEvaluations * 0.4), fTolerance: 1e-3, xTolerance: 5e-3 });
   const res = res2.f <= res1.f ? res2 : res1;
-  return { x: res.x, f: res.f, evaluations: res1.evaluations + res2.evaluations };
+  return { x: res.x, f: res.f, evaluations: res1.evaluations + res2.evaluations, gradients: 0 };
+}
+
+/** The objective's gradient: −∇ log L (exact) plus the prior penalty's by central differences (a quadratic: exact to rounding). */
+function objectiveGradient(llGradient: (x: number[]) => number[], penalty: (x: number[]) => number): (x: number[]) => number[] {
+  const h = 1e-6;
+  return (x) => {
+    const g = llGradient(x).map((v) => -v);
+    const y = x.slice();
+    for (let i = 0; i < x.length; i++) {
+      y[i] = x[i]! + h;
+      const up = penalty(y);
+      y[i] = x[i]! - h;
+      const down = penalty(y);
+      y[i] = x[i]!;
+      g[i] = g[i]! + (up - down) / (2 * h);
+    }
+    return g;
+  };
+}
+
+/**
+ * The Hessian of the objective over the parameters `free` at x by central differences of the exact
+ * gradient (2 gradients a parameter instead of the 2n² values of second differences), symmetrized.
+ * Step 0.01 in search coordinates (1 % in log space): truncation error O(h²) far below the
+ * standard errors' own precision.
+ */
+function gradientHessian(gradient: (x: number[]) => number[], x: number[], free: number[]): number[][] {
+  const h = 0.01;
+  const cols = free.map((i) => {
+    const up = x.slice(), down = x.slice();
+    up[i] = x[i]! + h;
+    down[i] = x[i]! - h;
+    const gu = gradient(up), gd = gradient(down);
+    return free.map((r) => (gu[r]! - gd[r]!) / (2 * h));
+  });
+  return free.map((_, a) => free.map((_, b) => 0.5 * (cols[b]![a]! + cols[a]![b]!)));
 }
 
 /** Standard errors in search coordinates at the optimum x over the parameters `free` (NaN elsewhere, or where the information matrix is singular). */
-function searchStandardErrors(negLogLik: (x: number[]) => number, x: number[], free: number[]): number[] {
+function searchStandardErrors(negLogLik: (x: number[]) => number, x: number[], free: number[], gradient?: (x: number[]) => number[]): number[] {
   const seLog: number[] = x.map(() => NaN);
   try {
     const sub = (y: number[]) => {
@@ -550,7 +677,7 @@ function searchStandardErrors(negLogLik: (x: number[]) => number, x: number[], f
       free.forEach((i, j) => (xs[i] = y[j]!));
       return negLogLik(xs);
     };
-    const H = free.length ? numericalHessian(sub, free.map((i) => x[i]!), free.map(() => 0.02)) : [];
+    const H = !free.length ? [] : gradient ? gradientHessian(gradient, x, free) : numericalHessian(sub, free.map((i) => x[i]!), free.map(() => 0.02));
     if (free.length && H.every((row) => row.every(Number.isFinite))) {
       const C = inverse(new Matrix(H));
       free.forEach((i, j) => {
@@ -565,7 +692,14 @@ function searchStandardErrors(negLogLik: (x: number[]) => number, x: number[], f
 }
 
 /** The estimates at the optimum x (parameters `params`), with standard errors when `standardErrors` and whether each sits at a bound. */
-function paramEstimates(negLogLik: (x: number[]) => number, names: ParamName[], x: number[], params: AxisParams, standardErrors: boolean): CalibrationInfo['estimates'] {
+function paramEstimates(
+  negLogLik: (x: number[]) => number,
+  names: ParamName[],
+  x: number[],
+  params: AxisParams,
+  standardErrors: boolean,
+  gradient?: (x: number[]) => number[],
+): { estimates: CalibrationInfo['estimates']; gradients: number } {
   // standard errors from the observed information (Hessian of −log L in log space), over the
   // parameters inside their bounds (a parameter at a bound is held there: the objective is infinite
   // beyond it, so its own curvature is undefined and would leave every standard error NaN)
@@ -577,13 +711,13 @@ function paramEstimates(negLogLik: (x: number[]) => number, names: ParamName[], 
     return LINEAR.has(nm) ? v <= lo + 0.02 || v >= hi - 0.02 : v <= lo * 1.05 || v >= hi / 1.05;
   });
   const free = names.map((_, i) => i).filter((i) => !atBound[i]);
-  const seLog = standardErrors ? searchStandardErrors(negLogLik, x, free) : names.map(() => NaN);
+  const seLog = standardErrors ? searchStandardErrors(negLogLik, x, free, gradient) : names.map(() => NaN);
   names.forEach((nm, i) => {
     const v = params[nm] as number;
     // delta method: se(θ) ≈ θ · se(log θ) (the exponents: their own scale)
     estimates[nm] = { value: v, se: LINEAR.has(nm) ? seLog[i]! : v * seLog[i]!, atBound: atBound[i]! };
   });
-  return estimates;
+  return { estimates, gradients: standardErrors && gradient ? 2 * free.length : 0 };
 }
 
 /**
@@ -618,25 +752,31 @@ export function calibrateSession(
   const x0 = names.map((nm) => toX(nm, startOf(start ?? prior, nm)));
   const base = start ?? prior;
   const toParams = (x: number[]): AxisParams => paramsAt(x, names, base, ownTauV);
-  const negLogLik = makeObjective(names, toParams, makeLogLik(ps, cfg, prior, subset, withExponents), makePriorPenalty(names, xPrior, cfg));
+  const apply = makeApply(ps, subset, withExponents);
+  const penalty = makePriorPenalty(names, xPrior, cfg);
+  const negLogLik = makeObjective(names, toParams, makeLogLik(cfg, prior, subset, apply, ps.hasHeight ? 3 : 2), penalty);
+  // the exact gradient where the decisions are held fixed (a smooth objective) and the model is the common one
+  const llGradient = useOverride && opt.gradient !== 'difference' ? makeLogLikGradient(ps, cfg, prior, subset, apply, names, toParams, ownTauV) : null;
+  const gradient = llGradient ? objectiveGradient(llGradient, penalty) : undefined;
   // quasi-Newton where the outlier decisions are held fixed (a smooth objective); under the gate
   // (the first round) the objective jumps wherever a fix crosses the threshold, which stalls a
   // difference gradient (measured on vehicle and drone logs: BFGS from the profile stopped 70–3,800
   // below the simplex's log-likelihood, and 2–70 below when started from the simplex's first
   // restart), so that round keeps the simplex
   const quasiNewton = opt.optimizer !== 'nelder-mead' && useOverride !== undefined;
-  const res = minimize(negLogLik, names, x0, opt, quasiNewton);
+  const res = minimize(negLogLik, names, x0, opt, quasiNewton, gradient);
   const params = toParams(res.x);
-  const estimates = paramEstimates(negLogLik, names, res.x, params, opt.standardErrors !== false);
+  const estimates = paramEstimates(negLogLik, names, res.x, params, opt.standardErrors !== false, gradient);
   return {
     params,
     info: {
-      method: `maximum likelihood of the filter innovations (${quasiNewton ? 'quasi-Newton' : 'Nelder–Mead'}), capped outlier terms, weak prior`,
+      method: `maximum likelihood of the filter innovations (${quasiNewton ? (gradient ? 'quasi-Newton, exact gradient' : 'quasi-Newton') : 'Nelder–Mead'}), capped outlier terms, weak prior`,
       status: 'estimated',
       epochsUsed,
       logLikelihood: -res.f,
       evaluations: res.evaluations,
-      estimates,
+      gradientEvaluations: res.gradients + estimates.gradients,
+      estimates: estimates.estimates,
       reportedSigmaScale: ps.factors.reported,
     },
     warnings,
