@@ -72,8 +72,29 @@ export class GaussianSource {
       if (Math.abs(hz) < KN[iz]!) return hz * WN[iz]!;
     }
   }
-  /** Fill out[0..n) with standard normal variates. */
+  /**
+   * Fill out[0..n) with standard normal variates: normal() n times, with the fast path and the
+   * generator's state in locals (the same integers in the same order, so the same variates; the
+   * rare slow path goes through normal() with the state written back).
+   */
   fill(out: Float64Array, n: number): void {
-    for (let i = 0; i < n; i++) out[i] = this.normal();
+    let s = this.s;
+    for (let i = 0; i < n; i++) {
+      // mulberry32, as int32()
+      let t = (s = (s + 0x6d2b79f5) >>> 0);
+      t = Math.imul(t ^ (t >>> 15), t | 1);
+      t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+      const hz = (t ^ (t >>> 14)) | 0;
+      const iz = hz & 127;
+      if (Math.abs(hz) < KN[iz]!) {
+        out[i] = hz * WN[iz]!;
+        continue;
+      }
+      // outside the rectangle: undo this integer and let normal() draw it again on its slow path
+      this.s = (s - 0x6d2b79f5) >>> 0;
+      out[i] = this.normal();
+      s = this.s;
+    }
+    this.s = s;
   }
 }
