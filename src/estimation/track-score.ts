@@ -23,7 +23,6 @@
  */
 import type { AxisModel } from '../models/axis-model.js';
 import { sameHorizontalInputs, type FilterOptions, type SegmentData } from './track-filter.js';
-import { rtsState3From, rtsStep3pFrom } from './kalman3.js';
 import { NumericalError } from '../errors.js';
 
 /** The score of one axis: derivatives of the log-likelihood with respect to log q, log σ_b, log τ. */
@@ -51,14 +50,11 @@ export interface ScoreWork {
   Pp: Float64Array[];
   Ps: Float64Array[];
   dLogR: Float64Array[];
-  F: Float64Array;
-  Q: Float64Array;
-  gT: Float64Array;
 }
 
 export function makeScoreWork(models: AxisModel[], N: number): ScoreWork {
   const per = (n: number) => models.map(() => new Float64Array(n * N));
-  return { N, xf: per(3), xs: per(3), Pf: per(6), Pp: per(6), Ps: per(6), dLogR: per(1), F: new Float64Array(9), Q: new Float64Array(9), gT: new Float64Array(9) };
+  return { N, xf: per(3), xs: per(3), Pf: per(6), Pp: per(6), Ps: per(6), dLogR: per(1) };
 }
 
 /** Whether trackScore applies: every axis constant velocity with a Gauss–Markov error (n = 3), fixes used without gate or not at all, steps of positive length. */
@@ -148,11 +144,13 @@ function forwardGroup(m: AxisModel, data: SegmentData, group: number[], rScale: 
       const k0 = w0 / S, k1 = w1 / S, k2 = w2 / S;
       const nu = za - x0 - x2;
       x0 += k0 * nu; x1 += k1 * nu; x2 += k2 * nu;
-      ll -= 0.5 * (LOG_2PI + Math.log(S) + (nu * nu) / S);
+      // one logarithm for the group (its axes share S)
+      const logS = Math.log(S);
+      ll -= 0.5 * (LOG_2PI + logS + (nu * nu) / S);
       if (a1 >= 0) {
         const nv = z1[k]! - y0 - y2;
         y0 += k0 * nv; y1 += k1 * nv; y2 += k2 * nv;
-        ll -= 0.5 * (LOG_2PI + Math.log(S) + (nv * nv) / S);
+        ll -= 0.5 * (LOG_2PI + logS + (nv * nv) / S);
       }
       // Joseph form expanded (kalman3.ts updateJoseph3p): keeps P symmetric positive definite under rounding
       const c = hph + R;
@@ -171,104 +169,142 @@ function forwardGroup(m: AxisModel, data: SegmentData, group: number[], rScale: 
   return ll;
 }
 
-/** The RTS smoother of a group (rtsStep3pFrom, its gain reused by the group's second axis) with each step's and each fix's terms of the score. */
+/**
+ * The RTS smoother of a group with each step's and each fix's terms of the score, fused into one
+ * loop (the gain once for the group's axes, the predicted covariance the forward pass stored):
+ *   Gₖ = Pₖ Fᵀ (P⁻ₖ₊₁)⁻¹ by a Cholesky solve (half the rounding of an explicit inverse; fails loudly
+ *   when not positive definite), xˢₖ = xₖ + Gₖ (xˢₖ₊₁ − F xₖ), Pˢₖ = Pₖ + Gₖ (Pˢₖ₊₁ − P⁻ₖ₊₁) Gₖᵀ
+ * (kalman3.ts rtsStep3pFrom, with F's structure written out), then the step's expected score with
+ * C = Cov(xₖ₊₁, xₖ | y) = Pˢₖ₊₁ Gₖᵀ.
+ */
 function backwardGroup(m: AxisModel, data: SegmentData, group: number[], rScale: number, w: ScoreWork, axes: AxisScore[]): void {
-  const N = data.N, t = data.tSec;
+  const N = data.N, t = data.tSec, use = data.use;
   const a0 = group[0]!;
-  const Pf = w.Pf[a0]!, Ps = w.Ps[a0]!;
-  const { F, Q, gT } = w;
+  const Pf = w.Pf[a0]!, Pp = w.Pp[a0]!, Ps = w.Ps[a0]!;
   const q = m.params.q, s2 = m.params.gm!.sigmaM ** 2, tau = m.params.gm!.tauSec;
+  const nG = group.length;
+  const xfs = group.map((a) => w.xf[a]!), xss = group.map((a) => w.xs[a]!), zs = group.map((a) => data.z[a]!), outs = group.map((a) => w.dLogR[a]!);
+  const r = data.r[a0]!;
   // the last epoch: smoothed = filtered
   Ps.set(Pf.subarray(6 * (N - 1), 6 * N), 6 * (N - 1));
-  for (const a of group) {
-    w.xs[a]!.set(w.xf[a]!.subarray(3 * (N - 1), 3 * N), 3 * (N - 1));
-    w.dLogR[a]!.fill(0);
-    measurementTerm(data, a, N - 1, rScale, w.xs[a]!, Ps, w.dLogR[a]!);
+  for (let i = 0; i < nG; i++) {
+    xss[i]!.set(xfs[i]!.subarray(3 * (N - 1), 3 * N), 3 * (N - 1));
+    outs[i]!.fill(0);
+    measurementTerm(zs[i]!, r, use, N - 1, rScale, xss[i]!, Ps, outs[i]!);
   }
-  let lastDt = NaN;
-  F.fill(0);
-  Q.fill(0);
-  F[0] = 1; F[4] = 1;
+  const dq = new Float64Array(nG), dsb = new Float64Array(nG), dtau = new Float64Array(nG);
+  let lastDt = NaN, phi = 1, V = 1, dphi = 0, dV = 0;
   for (let k = N - 2; k >= 0; k--) {
-    const dt = t[k + 1]! - t[k]!;
+    const j = k + 1;
+    const dt = t[j]! - t[k]!;
     if (dt !== lastDt) {
       lastDt = dt;
-      F[1] = dt;
-      F[8] = Math.exp(-dt / tau);
-      Q[0] = (q * dt * dt * dt) / 3;
-      Q[1] = Q[3] = (q * dt * dt) / 2;
-      Q[4] = q * dt;
-      Q[8] = s2 * -Math.expm1((-2 * dt) / tau);
+      phi = Math.exp(-dt / tau);
+      V = s2 * -Math.expm1((-2 * dt) / tau);
+      // ∂φ/∂log τ = φ Δt/τ, ∂V/∂log τ = −2 σ_b² φ ∂φ/∂log τ
+      dphi = (phi * dt) / tau;
+      dV = -2 * s2 * phi * dphi;
     }
-    // the gain by a Cholesky solve of P⁻ₖ₊₁ (rtsStep3pFrom), Gᵀ kept for the group's second axis
-    if (!rtsStep3pFrom(F, Q, w.xf[a0]!, Pf, w.xs[a0]!, 3 * k, 3 * (k + 1), Ps, 6 * k, 6 * (k + 1), gT)) throw new NumericalError(`score: predicted covariance not positive definite at epoch ${k + 1}`);
-    for (let i = 1; i < group.length; i++) rtsState3From(F, gT, w.xf[group[i]!]!, w.xs[group[i]!]!, 3 * k, 3 * (k + 1));
-    for (const a of group) {
-      stepTerms(m, F, Q, dt, w.xs[a]!, Ps, k, gT, axes[a]!);
-      measurementTerm(data, a, k, rScale, w.xs[a]!, Ps, w.dLogR[a]!);
+    const ok = 6 * k, oj = 6 * j;
+    const p00 = Pf[ok]!, p01 = Pf[ok + 1]!, p02 = Pf[ok + 2]!, p11 = Pf[ok + 3]!, p12 = Pf[ok + 4]!, p22 = Pf[ok + 5]!;
+    const m00 = Pp[oj]!, m01 = Pp[oj + 1]!, m02 = Pp[oj + 2]!, m11 = Pp[oj + 3]!, m12 = Pp[oj + 4]!, m22 = Pp[oj + 5]!;
+    const s00 = Ps[oj]!, s01 = Ps[oj + 1]!, s02 = Ps[oj + 2]!, s11 = Ps[oj + 3]!, s12 = Ps[oj + 4]!, s22 = Ps[oj + 5]!;
+    // A = F Pₖ with F = [[1, Δt, 0], [0, 1, 0], [0, 0, φ]]
+    const a00 = p00 + dt * p01, a01 = p01 + dt * p11, a02 = p02 + dt * p12;
+    const a10 = p01, a11 = p11, a12 = p12;
+    const a20 = phi * p02, a21 = phi * p12, a22 = phi * p22;
+    // Cholesky P⁻ = L Lᵀ
+    if (!(m00 > 0)) throw new NumericalError(`score: predicted covariance not positive definite at epoch ${j}`);
+    const l00 = Math.sqrt(m00);
+    const l10 = m01 / l00, l20 = m02 / l00;
+    const e1 = m11 - l10 * l10;
+    if (!(e1 > 0)) throw new NumericalError(`score: predicted covariance not positive definite at epoch ${j}`);
+    const l11 = Math.sqrt(e1);
+    const l21 = (m12 - l20 * l10) / l11;
+    const e2 = m22 - l20 * l20 - l21 * l21;
+    if (!(e2 > 0)) throw new NumericalError(`score: predicted covariance not positive definite at epoch ${j}`);
+    const l22 = Math.sqrt(e2);
+    // Gᵀ = (P⁻)⁻¹ A column by column (t_il = Gᵀ[i][l] = G[l][i])
+    let y0 = a00 / l00, y1 = (a10 - l10 * y0) / l11, y2 = (a20 - l20 * y0 - l21 * y1) / l22;
+    const t20 = y2 / l22, t10 = (y1 - l21 * t20) / l11, t00 = (y0 - l10 * t10 - l20 * t20) / l00;
+    y0 = a01 / l00; y1 = (a11 - l10 * y0) / l11; y2 = (a21 - l20 * y0 - l21 * y1) / l22;
+    const t21 = y2 / l22, t11 = (y1 - l21 * t21) / l11, t01 = (y0 - l10 * t11 - l20 * t21) / l00;
+    y0 = a02 / l00; y1 = (a12 - l10 * y0) / l11; y2 = (a22 - l20 * y0 - l21 * y1) / l22;
+    const t22 = y2 / l22, t12 = (y1 - l21 * t22) / l11, t02 = (y0 - l10 * t12 - l20 * t22) / l00;
+    // Pˢₖ = Pₖ + G (Pˢₖ₊₁ − P⁻ₖ₊₁) Gᵀ
+    const d00 = s00 - m00, d01 = s01 - m01, d02 = s02 - m02, d11 = s11 - m11, d12 = s12 - m12, d22 = s22 - m22;
+    const f00 = t00 * d00 + t10 * d01 + t20 * d02, f01 = t00 * d01 + t10 * d11 + t20 * d12, f02 = t00 * d02 + t10 * d12 + t20 * d22;
+    const f10 = t01 * d00 + t11 * d01 + t21 * d02, f11 = t01 * d01 + t11 * d11 + t21 * d12, f12 = t01 * d02 + t11 * d12 + t21 * d22;
+    const f20 = t02 * d00 + t12 * d01 + t22 * d02, f21 = t02 * d01 + t12 * d11 + t22 * d12, f22 = t02 * d02 + t12 * d12 + t22 * d22;
+    const q00 = p00 + (f00 * t00 + f01 * t10 + f02 * t20);
+    const q01 = p01 + (f00 * t01 + f01 * t11 + f02 * t21);
+    const q02 = p02 + (f00 * t02 + f01 * t12 + f02 * t22);
+    const q11 = p11 + (f10 * t01 + f11 * t11 + f12 * t21);
+    const q12 = p12 + (f10 * t02 + f11 * t12 + f12 * t22);
+    const q22 = p22 + (f20 * t02 + f21 * t12 + f22 * t22);
+    Ps[ok] = q00; Ps[ok + 1] = q01; Ps[ok + 2] = q02; Ps[ok + 3] = q11; Ps[ok + 4] = q12; Ps[ok + 5] = q22;
+    // C = Pˢₖ₊₁ Gᵀ (the elements the score reads)
+    const c00 = s00 * t00 + s01 * t10 + s02 * t20;
+    const c01 = s00 * t01 + s01 * t11 + s02 * t21;
+    const c10 = s01 * t00 + s11 * t10 + s12 * t20;
+    const c11 = s01 * t01 + s11 * t11 + s12 * t21;
+    const c22 = s02 * t02 + s12 * t12 + s22 * t22;
+    // kinematic block of Pˢⱼ − C Fᵀ − F Cᵀ + F Pˢₖ Fᵀ (shared by the group's axes)
+    const D00 = s00 - 2 * (c00 + dt * c01) + (q00 + 2 * dt * q01 + dt * dt * q11);
+    const D01 = s01 - c01 - (c10 + dt * c11) + (q01 + dt * q11);
+    const D11 = s11 - 2 * c11 + q11;
+    // Var(p + b) at k, for the fix's term
+    const varPB = q00 + 2 * q02 + q22;
+    const hasFix = use[k] !== 0;
+    for (let i = 0; i < nG; i++) {
+      const xf = xfs[i]!, xs = xss[i]!;
+      const x0 = xf[3 * k]!, x1 = xf[3 * k + 1]!, x2 = xf[3 * k + 2]!;
+      const mj0 = xs[3 * j]!, mj1 = xs[3 * j + 1]!, mj2 = xs[3 * j + 2]!;
+      // dx = xˢⱼ − F xₖ, xˢₖ = xₖ + G dx
+      const dx0 = mj0 - (x0 + dt * x1), dx1 = mj1 - x1, dx2 = mj2 - phi * x2;
+      const mk0 = x0 + (t00 * dx0 + t10 * dx1 + t20 * dx2);
+      const mk1 = x1 + (t01 * dx0 + t11 * dx1 + t21 * dx2);
+      const mk2 = x2 + (t02 * dx0 + t12 * dx1 + t22 * dx2);
+      xs[3 * k] = mk0; xs[3 * k + 1] = mk1; xs[3 * k + 2] = mk2;
+      // kinematic: M = D + e eᵀ with e = xˢⱼ − F xˢₖ; Q_kin = q·Q̃, Q̃⁻¹ = [[12/Δt³, −6/Δt²], [−6/Δt², 4/Δt]]
+      const ep = mj0 - (mk0 + dt * mk1), ev = mj1 - mk1;
+      const M00 = D00 + ep * ep, M01 = D01 + ep * ev, M11 = D11 + ev * ev;
+      const trQinvM = ((12 * M00) / (dt * dt * dt) - (12 * M01) / (dt * dt) + (4 * M11) / dt) / q;
+      // ∂/∂log q [−½ log|q Q̃| − ½ tr((q Q̃)⁻¹ M)] = −1 + ½ tr(Q⁻¹ M)
+      dq[i] = dq[i]! - 1 + 0.5 * trQinvM;
+      // Gauss–Markov: E2 = E[(bⱼ − φ bₖ)²] from A = E[bⱼ²], B = E[bⱼ bₖ], Cc = E[bₖ²]
+      const A = s22 + mj2 * mj2, B = c22 + mj2 * mk2, Cc = q22 + mk2 * mk2;
+      const E2 = A - 2 * phi * B + phi * phi * Cc;
+      // ∂/∂log σ_b: V ∝ σ_b², so −1 + E2/V
+      dsb[i] = dsb[i]! - 1 + E2 / V;
+      // ∂/∂log τ [−½ log V − ½ E2/V] = ½ (V'/V)(E2/V − 1) − ½ E2'/V, E2' = −2 φ' B + 2 φ φ' Cc
+      const dE2 = -2 * dphi * B + 2 * phi * dphi * Cc;
+      dtau[i] = dtau[i]! + 0.5 * (dV / V) * (E2 / V - 1) - (0.5 * dE2) / V;
+      // the fix at k: ∂ℓ/∂log Rₖ = −½ + ½ Eₖ/Rₖ, Eₖ = (z − p − b)² + Var(p + b)
+      const z = zs[i]![k]!;
+      if (hasFix && Number.isFinite(z)) {
+        const res = z - mk0 - mk2;
+        outs[i]![k] = -0.5 + (0.5 * (res * res + varPB)) / (r[k]! * rScale);
+      }
     }
   }
-  // the prior of the Gauss–Markov state at the first epoch: b₀ ~ N(0, σ_b²)
-  for (const a of group) {
-    const Eb0 = Ps[5]! + w.xs[a]![2]! ** 2;
-    // ∂/∂log σ_b [−½ log σ_b² − ½ E[b₀²]/σ_b²] = −1 + E[b₀²]/σ_b²
-    axes[a]!.dLogSigmaB += -1 + Eb0 / s2;
+  for (let i = 0; i < nG; i++) {
+    const ax = axes[group[i]!]!;
+    // the prior of the Gauss–Markov state at the first epoch, b₀ ~ N(0, σ_b²): −1 + E[b₀²]/σ_b²
+    const Eb0 = Ps[5]! + xss[i]![2]! ** 2;
+    ax.dLogQ += dq[i]!;
+    ax.dLogSigmaB += dsb[i]! - 1 + Eb0 / s2;
+    ax.dLogTau += dtau[i]!;
   }
 }
 
-/** ∂ℓ/∂log Rₖ of axis a at epoch k: −½ + ½ Eₖ/Rₖ, Eₖ = (z − p − b)² + Var(p + b) under the smoother. */
-function measurementTerm(data: SegmentData, a: number, k: number, rScale: number, x: Float64Array, P: Float64Array, out: Float64Array): void {
-  const z = data.z[a]![k]!;
-  if (data.use[k] === 0 || !Number.isFinite(z)) return;
-  const res = z - x[3 * k]! - x[3 * k + 2]!;
+/** ∂ℓ/∂log Rₖ of one axis at epoch k: −½ + ½ Eₖ/Rₖ, Eₖ = (z − p − b)² + Var(p + b) under the smoother. */
+function measurementTerm(z: Float64Array, r: Float64Array, use: Uint8Array, k: number, rScale: number, x: Float64Array, P: Float64Array, out: Float64Array): void {
+  const zk = z[k]!;
+  if (use[k] === 0 || !Number.isFinite(zk)) return;
+  const res = zk - x[3 * k]! - x[3 * k + 2]!;
   const o = 6 * k;
   // Var(p + b) = P_pp + 2 P_pb + P_bb
   const E = res * res + P[o]! + 2 * P[o + 2]! + P[o + 5]!;
-  const R = data.r[a]![k]! * rScale;
-  out[k] = -0.5 + (0.5 * E) / R;
-}
-
-/**
- * The step k → k+1 of one axis: the expected complete-data score of the transition density, from
- * the smoothed moments of both epochs and their cross-covariance C = Pˢₖ₊₁ Gₖᵀ (gT: Gₖᵀ row-major).
- */
-function stepTerms(m: AxisModel, F: Float64Array, Q: Float64Array, dt: number, xs: Float64Array, Ps: Float64Array, k: number, gT: Float64Array, out: AxisScore): void {
-  const j = k + 1;
-  const oj = 6 * j, ok = 6 * k;
-  const pj00 = Ps[oj]!, pj01 = Ps[oj + 1]!, pj02 = Ps[oj + 2]!, pj11 = Ps[oj + 3]!, pj12 = Ps[oj + 4]!, pj22 = Ps[oj + 5]!;
-  const pk00 = Ps[ok]!, pk01 = Ps[ok + 1]!, pk11 = Ps[ok + 3]!, pk22 = Ps[ok + 5]!;
-  // C = Pˢⱼ Gᵀ: C[i][l] = Σₘ Pˢⱼ[i][m] Gᵀ[m][l]
-  const c00 = pj00 * gT[0]! + pj01 * gT[3]! + pj02 * gT[6]!;
-  const c01 = pj00 * gT[1]! + pj01 * gT[4]! + pj02 * gT[7]!;
-  const c10 = pj01 * gT[0]! + pj11 * gT[3]! + pj12 * gT[6]!;
-  const c11 = pj01 * gT[1]! + pj11 * gT[4]! + pj12 * gT[7]!;
-  const c22 = pj02 * gT[2]! + pj12 * gT[5]! + pj22 * gT[8]!;
-  // kinematic block of D = Pˢⱼ − C Fᵀ − F Cᵀ + F Pˢₖ Fᵀ with F_kin = [[1, Δt], [0, 1]]
-  const d00 = pj00 - 2 * (c00 + dt * c01) + (pk00 + 2 * dt * pk01 + dt * dt * pk11);
-  const d01 = pj01 - c01 - (c10 + dt * c11) + (pk01 + dt * pk11);
-  const d11 = pj11 - 2 * c11 + pk11;
-  // e = mⱼ − F mₖ (kinematic part)
-  const mk0 = xs[3 * k]!, mk1 = xs[3 * k + 1]!, mk2 = xs[3 * k + 2]!;
-  const mj0 = xs[3 * j]!, mj1 = xs[3 * j + 1]!, mj2 = xs[3 * j + 2]!;
-  const e0 = mj0 - (mk0 + dt * mk1), e1 = mj1 - mk1;
-  // M = D + e eᵀ; Q_kin = q·Q̃, Q̃⁻¹ = [[12/Δt³, −6/Δt²], [−6/Δt², 4/Δt]] (Bar-Shalom et al. 2001 §6.2 inverted)
-  const M00 = d00 + e0 * e0, M01 = d01 + e0 * e1, M11 = d11 + e1 * e1;
-  const q = m.params.q;
-  const trQinvM = ((12 * M00) / (dt * dt * dt) - (12 * M01) / (dt * dt) + (4 * M11) / dt) / q;
-  // ∂/∂log q [−½ log|q Q̃| − ½ tr((q Q̃)⁻¹ M)] = −1 + ½ tr(Q⁻¹ M)
-  out.dLogQ += -1 + 0.5 * trQinvM;
-  // Gauss–Markov block: bⱼ = φ bₖ + w, Var w = V = σ_b²(1 − φ²)
-  const phi = F[8]!, V = Q[8]!;
-  const A = pj22 + mj2 * mj2, B = c22 + mj2 * mk2, Cc = pk22 + mk2 * mk2;
-  // E2 = E[(bⱼ − φ bₖ)²]
-  const E2 = A - 2 * phi * B + phi * phi * Cc;
-  // ∂/∂log σ_b: V ∝ σ_b², so −1 + E2/V
-  out.dLogSigmaB += -1 + E2 / V;
-  // ∂/∂log τ: φ' = φ Δt/τ, V' = −2 σ_b² φ φ', E2' = −2 φ' B + 2 φ φ' Cc
-  const tau = m.params.gm!.tauSec, s2 = m.params.gm!.sigmaM ** 2;
-  const dphi = (phi * dt) / tau;
-  const dV = -2 * s2 * phi * dphi;
-  const dE2 = -2 * dphi * B + 2 * phi * dphi * Cc;
-  // ∂/∂log τ [−½ log V − ½ E2/V] = ½ (V'/V)(E2/V − 1) − ½ E2'/V
-  out.dLogTau += 0.5 * (dV / V) * (E2 / V - 1) - (0.5 * dE2) / V;
+  out[k] = -0.5 + (0.5 * E) / (r[k]! * rScale);
 }
