@@ -170,18 +170,17 @@ function forwardGroup(m: AxisModel, data: SegmentData, group: number[], rScale: 
 }
 
 /**
- * The RTS smoother of a group with each step's and each fix's terms of the score, fused into one
- * loop (the gain once for the group's axes, the predicted covariance the forward pass stored):
- *   Gₖ = Pₖ Fᵀ (P⁻ₖ₊₁)⁻¹ by a Cholesky solve (half the rounding of an explicit inverse; fails loudly
- *   when not positive definite), xˢₖ = xₖ + Gₖ (xˢₖ₊₁ − F xₖ), Pˢₖ = Pₖ + Gₖ (Pˢₖ₊₁ − P⁻ₖ₊₁) Gₖᵀ
+ * The RTS smoother of a group with each step's and each fix's terms of the score (the gain once for
+ * the group's axes, the predicted covariance the forward pass stored):
+ *   xˢₖ = xₖ + Gₖ (xˢₖ₊₁ − F xₖ), Pˢₖ = Pₖ + Gₖ (Pˢₖ₊₁ − P⁻ₖ₊₁) Gₖᵀ
  * (kalman3.ts rtsStep3pFrom, with F's structure written out), then the step's expected score with
- * C = Cov(xₖ₊₁, xₖ | y) = Pˢₖ₊₁ Gₖᵀ.
+ * C = Cov(xₖ₊₁, xₖ | y) = Pˢₖ₊₁ Gₖᵀ (gainStep, axisStep).
  */
 function backwardGroup(m: AxisModel, data: SegmentData, group: number[], rScale: number, w: ScoreWork, axes: AxisScore[]): void {
   const N = data.N, t = data.tSec, use = data.use;
   const a0 = group[0]!;
   const Pf = w.Pf[a0]!, Pp = w.Pp[a0]!, Ps = w.Ps[a0]!;
-  const q = m.params.q, s2 = m.params.gm!.sigmaM ** 2, tau = m.params.gm!.tauSec;
+  const s2 = m.params.gm!.sigmaM ** 2, tau = m.params.gm!.tauSec;
   const nG = group.length;
   const xfs = group.map((a) => w.xf[a]!), xss = group.map((a) => w.xs[a]!), zs = group.map((a) => data.z[a]!), outs = group.map((a) => w.dLogR[a]!);
   const r = data.r[a0]!;
@@ -192,109 +191,134 @@ function backwardGroup(m: AxisModel, data: SegmentData, group: number[], rScale:
     outs[i]!.fill(0);
     measurementTerm(zs[i]!, r, use, N - 1, rScale, xss[i]!, Ps, outs[i]!);
   }
-  const dq = new Float64Array(nG), dsb = new Float64Array(nG), dtau = new Float64Array(nG);
-  let lastDt = NaN, phi = 1, V = 1, dphi = 0, dV = 0;
+  // per axis: Σ ∂/∂log q, ∂/∂log σ_b, ∂/∂log τ
+  const acc = new Float64Array(3 * nG);
+  const g = new Float64Array(GAIN_STEP);
+  const st: StepConsts = { dt: NaN, phi: 1, V: 1, dphi: 0, dV: 0, q: m.params.q, rScale };
   for (let k = N - 2; k >= 0; k--) {
-    const j = k + 1;
-    const dt = t[j]! - t[k]!;
-    if (dt !== lastDt) {
-      lastDt = dt;
-      phi = Math.exp(-dt / tau);
-      V = s2 * -Math.expm1((-2 * dt) / tau);
+    const dt = t[k + 1]! - t[k]!;
+    if (dt !== st.dt) {
+      st.dt = dt;
+      st.phi = Math.exp(-dt / tau);
+      st.V = s2 * -Math.expm1((-2 * dt) / tau);
       // ∂φ/∂log τ = φ Δt/τ, ∂V/∂log τ = −2 σ_b² φ ∂φ/∂log τ
-      dphi = (phi * dt) / tau;
-      dV = -2 * s2 * phi * dphi;
+      st.dphi = (st.phi * dt) / tau;
+      st.dV = -2 * s2 * st.phi * st.dphi;
     }
-    const ok = 6 * k, oj = 6 * j;
-    const p00 = Pf[ok]!, p01 = Pf[ok + 1]!, p02 = Pf[ok + 2]!, p11 = Pf[ok + 3]!, p12 = Pf[ok + 4]!, p22 = Pf[ok + 5]!;
-    const m00 = Pp[oj]!, m01 = Pp[oj + 1]!, m02 = Pp[oj + 2]!, m11 = Pp[oj + 3]!, m12 = Pp[oj + 4]!, m22 = Pp[oj + 5]!;
-    const s00 = Ps[oj]!, s01 = Ps[oj + 1]!, s02 = Ps[oj + 2]!, s11 = Ps[oj + 3]!, s12 = Ps[oj + 4]!, s22 = Ps[oj + 5]!;
-    // A = F Pₖ with F = [[1, Δt, 0], [0, 1, 0], [0, 0, φ]]
-    const a00 = p00 + dt * p01, a01 = p01 + dt * p11, a02 = p02 + dt * p12;
-    const a10 = p01, a11 = p11, a12 = p12;
-    const a20 = phi * p02, a21 = phi * p12, a22 = phi * p22;
-    // Cholesky P⁻ = L Lᵀ
-    if (!(m00 > 0)) throw new NumericalError(`score: predicted covariance not positive definite at epoch ${j}`);
-    const l00 = Math.sqrt(m00);
-    const l10 = m01 / l00, l20 = m02 / l00;
-    const e1 = m11 - l10 * l10;
-    if (!(e1 > 0)) throw new NumericalError(`score: predicted covariance not positive definite at epoch ${j}`);
-    const l11 = Math.sqrt(e1);
-    const l21 = (m12 - l20 * l10) / l11;
-    const e2 = m22 - l20 * l20 - l21 * l21;
-    if (!(e2 > 0)) throw new NumericalError(`score: predicted covariance not positive definite at epoch ${j}`);
-    const l22 = Math.sqrt(e2);
-    // Gᵀ = (P⁻)⁻¹ A column by column (t_il = Gᵀ[i][l] = G[l][i])
-    let y0 = a00 / l00, y1 = (a10 - l10 * y0) / l11, y2 = (a20 - l20 * y0 - l21 * y1) / l22;
-    const t20 = y2 / l22, t10 = (y1 - l21 * t20) / l11, t00 = (y0 - l10 * t10 - l20 * t20) / l00;
-    y0 = a01 / l00; y1 = (a11 - l10 * y0) / l11; y2 = (a21 - l20 * y0 - l21 * y1) / l22;
-    const t21 = y2 / l22, t11 = (y1 - l21 * t21) / l11, t01 = (y0 - l10 * t11 - l20 * t21) / l00;
-    y0 = a02 / l00; y1 = (a12 - l10 * y0) / l11; y2 = (a22 - l20 * y0 - l21 * y1) / l22;
-    const t22 = y2 / l22, t12 = (y1 - l21 * t22) / l11, t02 = (y0 - l10 * t12 - l20 * t22) / l00;
-    // Pˢₖ = Pₖ + G (Pˢₖ₊₁ − P⁻ₖ₊₁) Gᵀ
-    const d00 = s00 - m00, d01 = s01 - m01, d02 = s02 - m02, d11 = s11 - m11, d12 = s12 - m12, d22 = s22 - m22;
-    const f00 = t00 * d00 + t10 * d01 + t20 * d02, f01 = t00 * d01 + t10 * d11 + t20 * d12, f02 = t00 * d02 + t10 * d12 + t20 * d22;
-    const f10 = t01 * d00 + t11 * d01 + t21 * d02, f11 = t01 * d01 + t11 * d11 + t21 * d12, f12 = t01 * d02 + t11 * d12 + t21 * d22;
-    const f20 = t02 * d00 + t12 * d01 + t22 * d02, f21 = t02 * d01 + t12 * d11 + t22 * d12, f22 = t02 * d02 + t12 * d12 + t22 * d22;
-    const q00 = p00 + (f00 * t00 + f01 * t10 + f02 * t20);
-    const q01 = p01 + (f00 * t01 + f01 * t11 + f02 * t21);
-    const q02 = p02 + (f00 * t02 + f01 * t12 + f02 * t22);
-    const q11 = p11 + (f10 * t01 + f11 * t11 + f12 * t21);
-    const q12 = p12 + (f10 * t02 + f11 * t12 + f12 * t22);
-    const q22 = p22 + (f20 * t02 + f21 * t12 + f22 * t22);
-    Ps[ok] = q00; Ps[ok + 1] = q01; Ps[ok + 2] = q02; Ps[ok + 3] = q11; Ps[ok + 4] = q12; Ps[ok + 5] = q22;
-    // C = Pˢₖ₊₁ Gᵀ (the elements the score reads)
-    const c00 = s00 * t00 + s01 * t10 + s02 * t20;
-    const c01 = s00 * t01 + s01 * t11 + s02 * t21;
-    const c10 = s01 * t00 + s11 * t10 + s12 * t20;
-    const c11 = s01 * t01 + s11 * t11 + s12 * t21;
-    const c22 = s02 * t02 + s12 * t12 + s22 * t22;
-    // kinematic block of Pˢⱼ − C Fᵀ − F Cᵀ + F Pˢₖ Fᵀ (shared by the group's axes)
-    const D00 = s00 - 2 * (c00 + dt * c01) + (q00 + 2 * dt * q01 + dt * dt * q11);
-    const D01 = s01 - c01 - (c10 + dt * c11) + (q01 + dt * q11);
-    const D11 = s11 - 2 * c11 + q11;
-    // Var(p + b) at k, for the fix's term
-    const varPB = q00 + 2 * q02 + q22;
-    const hasFix = use[k] !== 0;
-    for (let i = 0; i < nG; i++) {
-      const xf = xfs[i]!, xs = xss[i]!;
-      const x0 = xf[3 * k]!, x1 = xf[3 * k + 1]!, x2 = xf[3 * k + 2]!;
-      const mj0 = xs[3 * j]!, mj1 = xs[3 * j + 1]!, mj2 = xs[3 * j + 2]!;
-      // dx = xˢⱼ − F xₖ, xˢₖ = xₖ + G dx
-      const dx0 = mj0 - (x0 + dt * x1), dx1 = mj1 - x1, dx2 = mj2 - phi * x2;
-      const mk0 = x0 + (t00 * dx0 + t10 * dx1 + t20 * dx2);
-      const mk1 = x1 + (t01 * dx0 + t11 * dx1 + t21 * dx2);
-      const mk2 = x2 + (t02 * dx0 + t12 * dx1 + t22 * dx2);
-      xs[3 * k] = mk0; xs[3 * k + 1] = mk1; xs[3 * k + 2] = mk2;
-      // kinematic: M = D + e eᵀ with e = xˢⱼ − F xˢₖ; Q_kin = q·Q̃, Q̃⁻¹ = [[12/Δt³, −6/Δt²], [−6/Δt², 4/Δt]]
-      const ep = mj0 - (mk0 + dt * mk1), ev = mj1 - mk1;
-      const M00 = D00 + ep * ep, M01 = D01 + ep * ev, M11 = D11 + ev * ev;
-      const trQinvM = ((12 * M00) / (dt * dt * dt) - (12 * M01) / (dt * dt) + (4 * M11) / dt) / q;
-      // ∂/∂log q [−½ log|q Q̃| − ½ tr((q Q̃)⁻¹ M)] = −1 + ½ tr(Q⁻¹ M)
-      dq[i] = dq[i]! - 1 + 0.5 * trQinvM;
-      // Gauss–Markov: E2 = E[(bⱼ − φ bₖ)²] from A = E[bⱼ²], B = E[bⱼ bₖ], Cc = E[bₖ²]
-      const A = s22 + mj2 * mj2, B = c22 + mj2 * mk2, Cc = q22 + mk2 * mk2;
-      const E2 = A - 2 * phi * B + phi * phi * Cc;
-      // ∂/∂log σ_b: V ∝ σ_b², so −1 + E2/V
-      dsb[i] = dsb[i]! - 1 + E2 / V;
-      // ∂/∂log τ [−½ log V − ½ E2/V] = ½ (V'/V)(E2/V − 1) − ½ E2'/V, E2' = −2 φ' B + 2 φ φ' Cc
-      const dE2 = -2 * dphi * B + 2 * phi * dphi * Cc;
-      dtau[i] = dtau[i]! + 0.5 * (dV / V) * (E2 / V - 1) - (0.5 * dE2) / V;
-      // the fix at k: ∂ℓ/∂log Rₖ = −½ + ½ Eₖ/Rₖ, Eₖ = (z − p − b)² + Var(p + b)
-      const z = zs[i]![k]!;
-      if (hasFix && Number.isFinite(z)) {
-        const res = z - mk0 - mk2;
-        outs[i]![k] = -0.5 + (0.5 * (res * res + varPB)) / (r[k]! * rScale);
-      }
-    }
+    gainStep(Pf, Pp, Ps, k, dt, st.phi, g);
+    for (let i = 0; i < nG; i++) axisStep(xfs[i]!, xss[i]!, k, g, st, use[k] !== 0 ? zs[i]![k]! : NaN, r[k]!, outs[i]!, acc, 3 * i);
   }
   for (let i = 0; i < nG; i++) {
     const ax = axes[group[i]!]!;
     // the prior of the Gauss–Markov state at the first epoch, b₀ ~ N(0, σ_b²): −1 + E[b₀²]/σ_b²
     const Eb0 = Ps[5]! + xss[i]![2]! ** 2;
-    ax.dLogQ += dq[i]!;
-    ax.dLogSigmaB += dsb[i]! - 1 + Eb0 / s2;
-    ax.dLogTau += dtau[i]!;
+    ax.dLogQ += acc[3 * i]!;
+    ax.dLogSigmaB += acc[3 * i + 1]! - 1 + Eb0 / s2;
+    ax.dLogTau += acc[3 * i + 2]!;
+  }
+}
+
+/** The step's constants of the current Δt (φ, V and their log-τ derivatives), q and the r scale. */
+interface StepConsts {
+  dt: number;
+  phi: number;
+  V: number;
+  dphi: number;
+  dV: number;
+  q: number;
+  rScale: number;
+}
+
+/** gainStep's output: Gᵀ (9, t_il = Gᵀ[i][l]), then D00, D01, D11, C22, Pˢₖ₊₁ bb, Pˢₖ bb, Var(p + b) at k. */
+const GAIN_STEP = 16;
+
+/**
+ * The covariance half of one RTS step k → k + 1 shared by a group's axes: Gₖ by a Cholesky solve of
+ * P⁻ₖ₊₁ (half the rounding of an explicit inverse; fails loudly when not positive definite), Pˢₖ
+ * written, and what the score reads of the smoothed second moments: the kinematic block of
+ * D = Pˢₖ₊₁ − C Fᵀ − F Cᵀ + F Pˢₖ Fᵀ, C_bb, the two epochs' P_bb and Var(p + b) at k.
+ */
+function gainStep(Pf: Float64Array, Pp: Float64Array, Ps: Float64Array, k: number, dt: number, phi: number, g: Float64Array): void {
+  const ok = 6 * k, oj = ok + 6;
+  const p00 = Pf[ok]!, p01 = Pf[ok + 1]!, p02 = Pf[ok + 2]!, p11 = Pf[ok + 3]!, p12 = Pf[ok + 4]!, p22 = Pf[ok + 5]!;
+  const m00 = Pp[oj]!, m01 = Pp[oj + 1]!, m02 = Pp[oj + 2]!, m11 = Pp[oj + 3]!, m12 = Pp[oj + 4]!, m22 = Pp[oj + 5]!;
+  const s00 = Ps[oj]!, s01 = Ps[oj + 1]!, s02 = Ps[oj + 2]!, s11 = Ps[oj + 3]!, s12 = Ps[oj + 4]!, s22 = Ps[oj + 5]!;
+  // A = F Pₖ with F = [[1, Δt, 0], [0, 1, 0], [0, 0, φ]]
+  const a00 = p00 + dt * p01, a01 = p01 + dt * p11, a02 = p02 + dt * p12;
+  const a10 = p01, a11 = p11, a12 = p12;
+  const a20 = phi * p02, a21 = phi * p12, a22 = phi * p22;
+  // Cholesky P⁻ = L Lᵀ
+  const l00 = Math.sqrt(m00);
+  const l10 = m01 / l00, l20 = m02 / l00;
+  const l11 = Math.sqrt(m11 - l10 * l10);
+  const l21 = (m12 - l20 * l10) / l11;
+  const l22 = Math.sqrt(m22 - l20 * l20 - l21 * l21);
+  if (!(l00 > 0 && l11 > 0 && l22 > 0)) throw new NumericalError(`score: predicted covariance not positive definite at epoch ${k + 1}`);
+  // Gᵀ = (P⁻)⁻¹ A column by column
+  let y0 = a00 / l00, y1 = (a10 - l10 * y0) / l11, y2 = (a20 - l20 * y0 - l21 * y1) / l22;
+  const t20 = y2 / l22, t10 = (y1 - l21 * t20) / l11, t00 = (y0 - l10 * t10 - l20 * t20) / l00;
+  y0 = a01 / l00; y1 = (a11 - l10 * y0) / l11; y2 = (a21 - l20 * y0 - l21 * y1) / l22;
+  const t21 = y2 / l22, t11 = (y1 - l21 * t21) / l11, t01 = (y0 - l10 * t11 - l20 * t21) / l00;
+  y0 = a02 / l00; y1 = (a12 - l10 * y0) / l11; y2 = (a22 - l20 * y0 - l21 * y1) / l22;
+  const t22 = y2 / l22, t12 = (y1 - l21 * t22) / l11, t02 = (y0 - l10 * t12 - l20 * t22) / l00;
+  // Pˢₖ = Pₖ + G (Pˢₖ₊₁ − P⁻ₖ₊₁) Gᵀ
+  const d00 = s00 - m00, d01 = s01 - m01, d02 = s02 - m02, d11 = s11 - m11, d12 = s12 - m12, d22 = s22 - m22;
+  const f00 = t00 * d00 + t10 * d01 + t20 * d02, f01 = t00 * d01 + t10 * d11 + t20 * d12, f02 = t00 * d02 + t10 * d12 + t20 * d22;
+  const f10 = t01 * d00 + t11 * d01 + t21 * d02, f11 = t01 * d01 + t11 * d11 + t21 * d12, f12 = t01 * d02 + t11 * d12 + t21 * d22;
+  const f20 = t02 * d00 + t12 * d01 + t22 * d02, f21 = t02 * d01 + t12 * d11 + t22 * d12, f22 = t02 * d02 + t12 * d12 + t22 * d22;
+  const q00 = p00 + (f00 * t00 + f01 * t10 + f02 * t20);
+  const q01 = p01 + (f00 * t01 + f01 * t11 + f02 * t21);
+  const q02 = p02 + (f00 * t02 + f01 * t12 + f02 * t22);
+  const q11 = p11 + (f10 * t01 + f11 * t11 + f12 * t21);
+  const q12 = p12 + (f10 * t02 + f11 * t12 + f12 * t22);
+  const q22 = p22 + (f20 * t02 + f21 * t12 + f22 * t22);
+  Ps[ok] = q00; Ps[ok + 1] = q01; Ps[ok + 2] = q02; Ps[ok + 3] = q11; Ps[ok + 4] = q12; Ps[ok + 5] = q22;
+  // C = Pˢₖ₊₁ Gᵀ (the elements the score reads)
+  const c00 = s00 * t00 + s01 * t10 + s02 * t20, c01 = s00 * t01 + s01 * t11 + s02 * t21;
+  const c10 = s01 * t00 + s11 * t10 + s12 * t20, c11 = s01 * t01 + s11 * t11 + s12 * t21;
+  g[0] = t00; g[1] = t01; g[2] = t02; g[3] = t10; g[4] = t11; g[5] = t12; g[6] = t20; g[7] = t21; g[8] = t22;
+  g[9] = s00 - 2 * (c00 + dt * c01) + (q00 + 2 * dt * q01 + dt * dt * q11);
+  g[10] = s01 - c01 - (c10 + dt * c11) + (q01 + dt * q11);
+  g[11] = s11 - 2 * c11 + q11;
+  g[12] = s02 * t02 + s12 * t12 + s22 * t22;
+  g[13] = s22;
+  g[14] = q22;
+  g[15] = q00 + 2 * q02 + q22;
+}
+
+/**
+ * The state half of one RTS step for one axis (xˢₖ written) and its terms of the score: the
+ * transition's (into acc[o..o+2]: log q, log σ_b, log τ) and the fix's at k (z NaN: none).
+ */
+function axisStep(xf: Float64Array, xs: Float64Array, k: number, g: Float64Array, st: StepConsts, z: number, rk: number, out: Float64Array, acc: Float64Array, o: number): void {
+  const { dt, phi, V, dphi, dV, q } = st;
+  const j = k + 1;
+  const x0 = xf[3 * k]!, x1 = xf[3 * k + 1]!, x2 = xf[3 * k + 2]!;
+  const mj0 = xs[3 * j]!, mj1 = xs[3 * j + 1]!, mj2 = xs[3 * j + 2]!;
+  // dx = xˢⱼ − F xₖ, xˢₖ = xₖ + G dx
+  const dx0 = mj0 - (x0 + dt * x1), dx1 = mj1 - x1, dx2 = mj2 - phi * x2;
+  const mk0 = x0 + (g[0]! * dx0 + g[3]! * dx1 + g[6]! * dx2);
+  const mk1 = x1 + (g[1]! * dx0 + g[4]! * dx1 + g[7]! * dx2);
+  const mk2 = x2 + (g[2]! * dx0 + g[5]! * dx1 + g[8]! * dx2);
+  xs[3 * k] = mk0; xs[3 * k + 1] = mk1; xs[3 * k + 2] = mk2;
+  // kinematic: M = D + e eᵀ with e = xˢⱼ − F xˢₖ; Q_kin = q·Q̃, Q̃⁻¹ = [[12/Δt³, −6/Δt²], [−6/Δt², 4/Δt]]
+  const ep = mj0 - (mk0 + dt * mk1), ev = mj1 - mk1;
+  const M00 = g[9]! + ep * ep, M01 = g[10]! + ep * ev, M11 = g[11]! + ev * ev;
+  const trQinvM = ((12 * M00) / (dt * dt * dt) - (12 * M01) / (dt * dt) + (4 * M11) / dt) / q;
+  // ∂/∂log q [−½ log|q Q̃| − ½ tr((q Q̃)⁻¹ M)] = −1 + ½ tr(Q⁻¹ M)
+  acc[o] = acc[o]! - 1 + 0.5 * trQinvM;
+  // Gauss–Markov: E2 = E[(bⱼ − φ bₖ)²] from A = E[bⱼ²], B = E[bⱼ bₖ], Cc = E[bₖ²]
+  const A = g[13]! + mj2 * mj2, B = g[12]! + mj2 * mk2, Cc = g[14]! + mk2 * mk2;
+  const E2 = A - 2 * phi * B + phi * phi * Cc;
+  // ∂/∂log σ_b: V ∝ σ_b², so −1 + E2/V
+  acc[o + 1] = acc[o + 1]! - 1 + E2 / V;
+  // ∂/∂log τ [−½ log V − ½ E2/V] = ½ (V'/V)(E2/V − 1) − ½ E2'/V, E2' = −2 φ' B + 2 φ φ' Cc
+  const dE2 = -2 * dphi * B + 2 * phi * dphi * Cc;
+  acc[o + 2] = acc[o + 2]! + 0.5 * (dV / V) * (E2 / V - 1) - (0.5 * dE2) / V;
+  // the fix at k: ∂ℓ/∂log Rₖ = −½ + ½ Eₖ/Rₖ, Eₖ = (z − p − b)² + Var(p + b)
+  if (Number.isFinite(z)) {
+    const res = z - mk0 - mk2;
+    out[k] = -0.5 + (0.5 * (res * res + g[15]!)) / (rk * st.rScale);
   }
 }
 

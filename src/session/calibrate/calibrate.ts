@@ -100,12 +100,18 @@ export const DEFAULT_CALIBRATION: CalibrationOptions = { maxEpochs: 4000, minFix
 
 /**
  * The first of processSession's two rounds: its estimates start the second, which replaces them, so
- * no standard errors; and half the evaluations, since the second round's BFGS climbs to the maximum
+ * no standard errors; half the evaluations, since the second round's BFGS climbs to the maximum
  * from wherever the first stops (measured: the accuracy, consistency and real-drive figures the same
  * to the third digit, the scenario family's pooled figures the same or better, ~15% less time a
- * one-hour 1 Hz log).
+ * one-hour 1 Hz log); and at most FIRST_ROUND_MAX_EPOCHS epochs (a longer log: its four chunks, a
+ * faster one thinned further), since the simplex's ~600 passes over the whole log were most of a
+ * session's time. Measured (docs/noise-model.md "The maximizer"): one-hour 1 Hz logs drawn from the
+ * scenario family (26 a seed, seeds 1–3) pooled RMSE ratio and coverage within ±0.004 of the whole-
+ * log round; the family itself (seeds 1–5) within +0.007 RMSE ratio and −0.007 coverage; the first
+ * round of a one-hour 1 Hz log 240 → ~80 ms.
  */
-export const FIRST_ROUND: CalibrationOptions = { ...DEFAULT_CALIBRATION, maxEpochs: Number(process.env.HC_R1 ?? 4000), maxEvaluations: Number(process.env.HC_R1E ?? 600), standardErrors: false };
+export const FIRST_ROUND_MAX_EPOCHS = 1200;
+export const FIRST_ROUND: CalibrationOptions = { ...DEFAULT_CALIBRATION, maxEpochs: FIRST_ROUND_MAX_EPOCHS, maxEvaluations: 600, standardErrors: false };
 
 /**
  * Prior spread (log space) per parameter. White noise and process noise are well identified by the
