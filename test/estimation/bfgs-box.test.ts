@@ -86,4 +86,18 @@ describe('boxBfgs', () => {
     expect(res.evaluations).toBeLessThanOrEqual(20 + 2);
     expect(res.f).toBeLessThan(rosenbrock([-1.2, 1]));
   });
+  it('takes the exact gradient where given (Rosenbrock 1960 from (−1.2, 1)), and differences where it is not finite', () => {
+    const grad = (x: number[]) => [-400 * x[0]! * (x[1]! - x[0]! ** 2) - 2 * (1 - x[0]!), 200 * (x[1]! - x[0]! ** 2)];
+    const opt = { ...box(2, -5, 5), maxEvaluations: 4000, gradientStep: [1e-7, 1e-7], maxStep: 1, fTolerance: 1e-14 };
+    const exact = boxBfgs(rosenbrock, [-1.2, 1], { ...opt, gradient: grad });
+    expect(exact.converged).toBe(true);
+    expect(exact.gradients).toBeGreaterThan(0);
+    exact.x.forEach((v) => expect(Math.abs(v - 1)).toBeLessThan(1e-4));
+    // a gradient unavailable at every other call (NaN): those steps take differences, the same minimum
+    let calls = 0;
+    const flaky = boxBfgs(rosenbrock, [-1.2, 1], { ...opt, gradient: (x) => (calls++ % 2 ? [NaN, NaN] : grad(x)) });
+    expect(flaky.converged).toBe(true);
+    flaky.x.forEach((v) => expect(Math.abs(v - 1)).toBeLessThan(1e-4));
+    expect(flaky.evaluations).toBeGreaterThan(exact.evaluations);
+  });
 });

@@ -24,6 +24,7 @@ import { segmentData, segmentDataRange, segmentGrid, sliceSegment, type Prepared
 import { selectKth } from '../../estimation/select.js';
 import { makeScoreWork, trackScore, trackScoreApplies } from '../../estimation/track-score.js';
 import type { AxisModel } from '../../models/axis-model.js';
+import { NumericalError } from '../../errors.js';
 import { qualityLogTerms } from '../prepare/fix-noise.js';
 import { applyQualityTable, applyReportedExponent, qualityTable, type QualityTable } from './quality-variances.js';
 
@@ -529,8 +530,17 @@ function makeLogLikGradient(
     const add = (i: number, v: number) => {
       if (i >= 0) g[i] = g[i]! + v;
     };
-    subset.forEach(({ data, quality, reportedTerms }, s) => {
-      const sc = trackScore(models, data, fopt, rScale, works[s]!);
+    for (let s = 0; s < subset.length; s++) {
+      const { data, quality, reportedTerms } = subset[s]!;
+      let sc: ReturnType<typeof trackScore>;
+      try {
+        sc = trackScore(models, data, fopt, rScale, works[s]!);
+      } catch (e) {
+        // a predicted covariance that lost positive definiteness at extreme parameters: no exact
+        // gradient here (NaN), so the optimizer takes differences at this point
+        if (e instanceof NumericalError) return g.map(() => NaN);
+        throw e;
+      }
       sc.axes.forEach((ax, a) => {
         const vertical = a === 2;
         add(vertical ? iQV : iQH, ax.dLogQ);
@@ -557,7 +567,7 @@ function makeLogLikGradient(
         add(iEQ, 2 * sumQ);
         add(iER, 2 * sumR);
       });
-    });
+    }
     return g;
   };
 }
@@ -683,7 +693,10 @@ function searchStandardErrors(negLogLik: (x: number[]) => number, x: number[], f
       free.forEach((i, j) => (xs[i] = y[j]!));
       return negLogLik(xs);
     };
-    const H = !free.length ? [] : gradient ? gradientHessian(gradient, x, free) : numericalHessian(sub, free.map((i) => x[i]!), free.map(() => 0.02));
+    const finite = (M: number[][]) => M.every((row) => row.every(Number.isFinite));
+    let H = !free.length ? [] : gradient ? gradientHessian(gradient, x, free) : numericalHessian(sub, free.map((i) => x[i]!), free.map(() => 0.02));
+    // an exact gradient unavailable somewhere near x: the second differences of the objective
+    if (gradient && !finite(H)) H = numericalHessian(sub, free.map((i) => x[i]!), free.map(() => 0.02));
     if (free.length && H.every((row) => row.every(Number.isFinite))) {
       const C = inverse(new Matrix(H));
       free.forEach((i, j) => {
