@@ -237,6 +237,9 @@ const GAIN_STEP = 16;
  * P⁻ₖ₊₁ (half the rounding of an explicit inverse; fails loudly when not positive definite), Pˢₖ
  * written, and what the score reads of the smoothed second moments: the kinematic block of
  * D = Pˢₖ₊₁ − C Fᵀ − F Cᵀ + F Pˢₖ Fᵀ, C_bb, the two epochs' P_bb and Var(p + b) at k.
+ * The gain and Pˢₖ are kalman3.ts rtsStep3pFrom's arithmetic with F's zeros dropped, written out
+ * here rather than shared: that step is the smoother's per-epoch kernel (bench/pipeline.ts), kept
+ * free of a call and of a scratch array.
  */
 function gainStep(Pf: Float64Array, Pp: Float64Array, Ps: Float64Array, k: number, dt: number, phi: number, g: Float64Array): void {
   const ok = 6 * k, oj = ok + 6;

@@ -13,9 +13,9 @@ import { loadConfig } from '../../../src/config/load.js';
 import type { HindcastConfig } from '../../../src/config/schema.js';
 import { readFixCsv } from '../../../src/input/csv-fixes.js';
 import { DEFAULT_CALIBRATION, FIRST_ROUND, calibrateSession, type CalibrationOptions } from '../../../src/session/calibrate/calibrate.js';
-import { axisParamsFromConfig, buildAxisModels, filterOptions, reviewOptions } from '../../../src/session/prepare/axis-params.js';
-import { prepareSession, segmentData } from '../../../src/session/prepare/prepare.js';
-import { reviewSegment } from '../../../src/session/classify/review.js';
+import { axisParamsFromConfig } from '../../../src/session/prepare/axis-params.js';
+import { prepareSession } from '../../../src/session/prepare/prepare.js';
+import { heldFixedDecisions } from '../../helpers/held-decisions.js';
 import { defaultSpec, scenarioCsv, simulate } from '../../../src/simulate/scenario.js';
 import { generateFamilyLog } from '../../../src/simulate/family.js';
 import { FAMILY_KINDS, familySpecs } from '../../../src/simulate/family-spec.js';
@@ -32,17 +32,8 @@ function check(name: string, csv: string, file: string, cfg: HindcastConfig): vo
   const prior = axisParamsFromConfig(cfg, ps.factors.reported);
   const r1 = calibrateSession(ps, cfg, prior, FIRST_ROUND);
   expect(r1.info.status, name).toBe('estimated');
-  // the held-fixed decisions as processSession makes them (two-way gate and review under the first calibration)
-  const ro = reviewOptions(cfg, ps.intervalSec);
-  const fopt = filterOptions(cfg, r1.params);
-  const models = buildAxisModels(r1.params, ps.hasHeight);
-  const uses = new Map<number, Uint8Array>();
-  ps.segments.forEach((seg, si) => {
-    const { data } = segmentData(ps, seg, r1.params, cfg.segments.bridgeFactor);
-    const offered = data.use.slice();
-    const rev = reviewSegment(models, data, offered, fopt, ro);
-    uses.set(si, Uint8Array.from(offered, (u, k) => (u === 0 ? 0 : rev.kept[k] ? 2 : 0)));
-  });
+  // the held-fixed decisions as processSession makes them (the two-sided review under the first round)
+  const uses = heldFixedDecisions(ps, cfg, r1.params);
   const fast = calibrateSession(ps, cfg, prior, DEFAULT_CALIBRATION, r1.params, uses);
   let ref = calibrateSession(ps, cfg, prior, NM, r1.params, uses);
   const again = calibrateSession(ps, cfg, prior, NM, ref.params, uses);
