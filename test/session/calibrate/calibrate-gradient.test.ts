@@ -5,7 +5,8 @@
  * against the same round on difference gradients, from the same start with the same held-fixed
  * decisions: the same maximum (log-likelihood within 0.01; every estimate within a tenth of its
  * standard error, or within 1% / 0.01 at a bound: the acceptance bound of the fast calibration), on
- * logs whose columns take each branch of the chain rule. Seeded.
+ * logs whose columns take each branch of the chain rule, and on every log of the scenario family
+ * (familySpecs(1), the one the test suite judges). Seeded.
  */
 import { describe, expect, it } from 'vitest';
 import { loadConfig } from '../../../src/config/load.js';
@@ -18,6 +19,9 @@ import { heldFixedDecisions } from '../../helpers/held-decisions.js';
 import { FIX_QUALITY_FACTOR } from '../../../src/session/prepare/fix-noise.js';
 import { defaultSpec, scenarioCsv, simulate } from '../../../src/simulate/scenario.js';
 import { gaussian } from '../../helpers/park-miller.js';
+import { smartlocReader } from '../../helpers/family-run.js';
+import { generateFamilyLog } from '../../../src/simulate/family.js';
+import { familySpecs } from '../../../src/simulate/family-spec.js';
 
 /** A 1 Hz walk east with a gentle climb and a correlated error, 1500 fixes; the extra columns by `kind`, the white noise following them. */
 function walkCsv(kind: 'reported' | 'quality', seed: number): string {
@@ -82,5 +86,11 @@ describe('calibration: the exact gradient reaches the difference gradient’s ma
     const lines = text.trimEnd().split('\n');
     const iH = lines[0]!.split(',').indexOf('height');
     compare('vehicle-2d', lines.map((l) => l.split(',').filter((_, i) => i !== iH).join(',')).join('\n') + '\n', loadConfig());
+  }, 60000);
+
+  const read = smartlocReader(new URL('../../..', import.meta.url).pathname);
+  it.each(familySpecs(1).map((sp) => [sp.id, sp] as const))('family log %s', (_id, spec) => {
+    const log = generateFamilyLog(spec, read);
+    compare(spec.id, log.written.text, loadConfig({ overrides: log.written.config as Record<string, unknown> }));
   }, 60000);
 });
