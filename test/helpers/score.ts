@@ -105,3 +105,8 @@ export function runScenario(sc: Scenario, cfg: HindcastConfig = loadConfig()): {
   const r = processSession(series, cfg, `${sc.spec.kind}-${sc.spec.seed}`);
   return { r, s: scoreAgainstTruth(sc, r) };
 }
+
+/** The calibration's estimates of a session (value, standard error, at a bound), by parameter name. */
+export function calibrationEstimates(r: SessionResult): Record<string, { value: number; se: number; atBound: boolean }> {
+  return (r.info.calibration as { estimates: Record<string, { value: number; se: number; atBound: boolean }> }).estimates;
+}

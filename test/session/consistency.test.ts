@@ -14,6 +14,7 @@ import { processSession } from '../../src/session/process-session.js';
 import { runPrepared } from '../../src/session/products/final-run.js';
 import { type AxisParams } from '../../src/session/prepare/axis-params.js';
 import { defaultSpec, scenarioCsv, simulate } from '../../src/simulate/scenario.js';
+import { calibrationEstimates } from '../helpers/score.js';
 
 const cfg = loadConfig();
 const TRUE: AxisParams = {
@@ -68,7 +69,7 @@ describe('calibration recovers the simulator parameters on a long log (2 h at 1 
   test('white noise and process noise within 25%; the correlated error within its reported uncertainty', () => {
     const sc = simulate(defaultSpec('model', 4242, { durationSec: 7200 }));
     const r = processSession(readFixCsv(scenarioCsv(sc), 'long.csv', cfg), cfg, 'long');
-    const est = (r.info.calibration as { estimates: Record<string, { value: number; se: number }> }).estimates;
+    const est = calibrationEstimates(r);
     const line = Object.entries(est).map(([k, v]) => `${k}=${v.value.toPrecision(3)}±${v.se.toPrecision(2)}`).join(' ');
     console.log(`estimates: ${line}`);
     const within = (k: keyof AxisParams, tol: number) => expect(Math.abs(est[k]!.value / (TRUE[k] as number) - 1)).toBeLessThanOrEqual(tol);
@@ -96,7 +97,7 @@ describe('calibration recovers the correlated error where it is identifiable: st
     const still = new Float64Array(durationSec * 20 + 1);
     const sc = simulate(defaultSpec('model', seed, { durationSec }), { dtSec: 0.05, e: still, n: still, u: still, durationSec });
     const r = processSession(readFixCsv(scenarioCsv(sc), 'static.csv', cfg), cfg, 'static');
-    const est = (r.info.calibration as { estimates: Record<string, { value: number; se: number; atBound: boolean }> }).estimates;
+    const est = calibrationEstimates(r);
     console.log(`static seed ${seed}: ${Object.entries(est).map(([k, v]) => `${k}=${v.value.toPrecision(3)}±${v.se.toPrecision(2)}`).join(' ')}`);
     expect(r.warnings.some((w) => w.message.includes('looks static'))).toBe(true);
     for (const k of ['sigmaHorizontalM', 'sigmaVerticalM', 'gmHorizontalSigmaM', 'gmVerticalSigmaM', 'gmTauSec'] as const) {

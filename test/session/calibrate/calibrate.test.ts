@@ -10,7 +10,7 @@ import { FIRST_ROUND, calibrateSession, calibrationStride, calibrationWindows } 
 import { axisParamsFromConfig, buildAxisModels } from '../../../src/session/prepare/axis-params.js';
 import { prepareSession } from '../../../src/session/prepare/prepare.js';
 import { defaultSpec, scenarioCsv, simulate, type ScenarioSpec } from '../../../src/simulate/scenario.js';
-import { runScenario } from '../../helpers/score.js';
+import { runScenario, calibrationEstimates } from '../../helpers/score.js';
 
 const cfg = loadConfig();
 
@@ -52,7 +52,7 @@ describe('the quality columns’ exponents', () => {
     for (const seed of [1, 2, 3]) {
       const sc = simulate(van(seed, 0.3));
       const { r, s } = runScenario(sc);
-      const est = (r.info.calibration as { estimates: Record<string, { value: number }> }).estimates;
+      const est = calibrationEstimates(r);
       console.log(`van seed ${seed}: DOP exponent ${est.hdopExponent!.value.toFixed(3)}, satellite exponent ${est.satsExponent!.value.toFixed(3)}, clean fixes flagged ${s.fp}, precision ${s.precision.toFixed(3)}`);
       expect(est.hdopExponent!.value).toBeLessThanOrEqual(0.5);
       fp += s.fp;
@@ -68,7 +68,7 @@ describe('the quality columns’ exponents', () => {
   // the first round alone reads at most 1,200 epochs and only starts the second
   test.each([1, 2, 3])('proportional HDOP (drone, 5 Hz, seed %i): DOP exponent ≥ 0.7', (seed) => {
     const { r } = runScenario(simulate(defaultSpec('drone', seed)));
-    const est = (r.info.calibration as { estimates: Record<string, { value: number }> }).estimates;
+    const est = calibrationEstimates(r);
     expect(est.hdopExponent!.value).toBeGreaterThanOrEqual(0.7);
     expect(est.satsExponent!.value).toBeGreaterThanOrEqual(0);
     expect(est.satsExponent!.value).toBeLessThanOrEqual(1);

@@ -11,6 +11,7 @@ import { readFixCsv } from '../../../src/input/csv-fixes.js';
 import { processSession } from '../../../src/session/process-session.js';
 import { FIX_QUALITY_FACTOR } from '../../../src/session/prepare/fix-noise.js';
 import { gaussian } from '../../helpers/park-miller.js';
+import { calibrationEstimates } from '../../helpers/score.js';
 
 /**
  * A 1 Hz walk east at 1.2 m/s, 1800 fixes, the fix quality `qMain` with blocks of 60 fixes at `qOther`
@@ -33,7 +34,7 @@ function csv(qMain: number, qOther: number, sigmaM: number, truthExponent: numbe
 const run = (text: string) => {
   const cfg = loadConfig();
   const r = processSession(readFixCsv(text, 'q.csv', cfg), cfg, 'q');
-  const est = (r.info.calibration as { estimates: Record<string, { value: number }> }).estimates;
+  const est = calibrationEstimates(r);
   return { r, alpha: est.fixQualityExponent?.value };
 };
 

@@ -10,6 +10,7 @@ import { loadConfig } from '../../../src/config/load.js';
 import { readFixCsv } from '../../../src/input/csv-fixes.js';
 import { processSession } from '../../../src/session/process-session.js';
 import { gaussian } from '../../helpers/park-miller.js';
+import { calibrationEstimates } from '../../helpers/score.js';
 
 /**
  * A 1 Hz walk east at 1.2 m/s, 1800 fixes, reported sd 0.5 m with blocks of 60 fixes at 2 m every
@@ -31,7 +32,7 @@ function csv(sigmaM: number, truthExponent: number, seed: number): string {
 const run = (text: string) => {
   const cfg = loadConfig();
   const r = processSession(readFixCsv(text, 'sd.csv', cfg), cfg, 'sd');
-  const est = (r.info.calibration as { estimates: Record<string, { value: number }> }).estimates;
+  const est = calibrationEstimates(r);
   return { r, alpha: est.reportedExponent?.value };
 };
 
