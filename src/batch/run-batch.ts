@@ -27,7 +27,8 @@ import { checkFolders } from './folders.js';
 import { configHash, readOverviewData, removeEntry, removeOverviewData, writeEntry, writeOverviewData, MANIFEST_SCHEMA, STATE_DIR } from './manifest.js';
 import { planSessions, type Planned } from './plan.js';
 import { inProcessRunner, threadRunner, type SessionRunner } from './runner.js';
-import { existingSessionOutputs, failedEntry, outputNames, type SessionTask } from './session-task.js';
+import { existingSessionOutputs, failedEntry, outputNames, type SessionOutcome, type SessionTask } from './session-task.js';
+import { earlierPool, poolChanged, poolGroups } from './pools.js';
 import { inShard, shardOf, shardSummaryName, SHARD_SUMMARY_RE, type Shard } from './shard.js';
 
 export { outputPaths, writeSessionOutputs, failureReason } from './session-task.js';
@@ -108,6 +109,16 @@ export async function runBatch(opt: BatchOptions): Promise<BatchResult> {
   const report = opt.config.output.report;
 
   const planned = await planSessions(sessions, { out, config: opt.config, configHash: cfgHash, force: !!opt.force, inputFiles, inputRoot: inputIsFolder ? found.root : null });
+  // a pool is redone whole when any of its logs is: the noise estimate depends on all of them
+  const pools = poolGroups(planned, opt.config);
+  for (const members of pools.values()) {
+    const names = members.map((m) => m.si.name);
+    for (const m of members) if (m.stale === null && poolChanged(m, names)) m.stale = "the logs of its pool changed";
+    if (members.some((m) => m.stale !== null)) for (const m of members) if (m.stale === null) m.stale = 'pooled with a log that is redone';
+  }
+  // a log pooled before and alone now (its pool lost its other logs, or pooling is off)
+  const pooledNow = new Set([...pools.values()].flat());
+  for (const p of planned) if (!p.refused && p.stale === null && !pooledNow.has(p) && earlierPool(p)) p.stale = 'its pool changed';
   const todo = planned.filter((p) => !p.refused && p.stale !== null);
   const current = planned.filter((p) => !p.refused && p.stale === null);
   opt.onEvent?.({ type: 'plan', sessions: planned.length, toProcess: todo.length, upToDate: current.length, shard });
@@ -116,7 +127,7 @@ export async function runBatch(opt: BatchOptions): Promise<BatchResult> {
   const results = new Map<string, SessionSummary>();
   for (const p of planned) if (p.refused) results.set(p.si.relPath, failedEntry(p.si.name, p.si.relPath, p.refused));
   for (const p of current) results.set(p.si.relPath, p.entry!.summary);
-  await processSessions(todo, results, opt, out, cfgHash);
+  await processSessions(todo, pools, results, opt, out, cfgHash);
 
   const entries = planned.map((p) => results.get(p.si.relPath)!);
   const summary = buildSummary(VERSION, opt.input, opt.config.profile, entries, {
@@ -167,25 +178,41 @@ async function clearOutputFolder(out: string, mySummary: string, shard: Shard | 
   if (shard) await rm(join(out, 'summary.json'), { force: true });
 }
 
-/** Process the sessions to redo, `opt.jobs` at once, each one's summary into `results`. */
-async function processSessions(todo: Planned[], results: Map<string, SessionSummary>, opt: BatchOptions, out: string, cfgHash: string): Promise<void> {
+/** Process the sessions to redo, `opt.jobs` at once (a pool counts as one), each one's summary into `results`. */
+async function processSessions(todo: Planned[], pools: Map<string, Planned[]>, results: Map<string, SessionSummary>, opt: BatchOptions, out: string, cfgHash: string): Promise<void> {
   const jobs = Math.max(1, Math.floor(opt.jobs ?? 1));
+  // the units of work: each pool whole, every other session alone
+  const inPool = new Set<Planned>();
+  const units: Array<{ pool: string; members: Planned[] } | Planned> = [];
+  for (const [pool, members] of pools) {
+    const m = members.filter((p) => todo.includes(p));
+    if (m.length < 2) continue;
+    m.forEach((p) => inPool.add(p));
+    units.push({ pool, members: m });
+  }
+  for (const p of todo) if (!inPool.has(p)) units.push(p);
   let runner: SessionRunner | undefined;
   if (todo.length > 0) {
     const inProcess = opt.inProcess ?? jobs === 1;
-    runner = inProcess ? inProcessRunner() : threadRunner({ threads: Math.min(jobs, todo.length), workerFile: opt.workerFile, workerMemoryMb: opt.workerMemoryMb });
+    runner = inProcess ? inProcessRunner() : threadRunner({ threads: Math.min(jobs, units.length), workerFile: opt.workerFile, workerMemoryMb: opt.workerMemoryMb });
   }
   const limit = pLimit(jobs);
   let done = 0;
+  const finished = (p: Planned, summary: SessionSummary): void => {
+    results.set(p.si.relPath, summary);
+    done++;
+    opt.onEvent?.({ type: 'done', session: summary, done, total: todo.length });
+    opt.onSession?.(summary, done, todo.length);
+  };
   try {
     await Promise.all(
-      todo.map((p) =>
+      units.map((u) =>
         limit(async () => {
-          const summary = await processOne(p, runner!, opt, out, cfgHash);
-          results.set(p.si.relPath, summary);
-          done++;
-          opt.onEvent?.({ type: 'done', session: summary, done, total: todo.length });
-          opt.onSession?.(summary, done, todo.length);
+          if ('pool' in u) {
+            const tasks = await Promise.all(u.members.map((p) => beginOne(p, opt, out)));
+            const outcomes = await runner!.runPool({ pool: u.pool, tasks });
+            for (let i = 0; i < u.members.length; i++) finished(u.members[i]!, await endOne(u.members[i]!, outcomes[i]!, opt, out, cfgHash));
+          } else finished(u, await endOne(u, await runner!.run(await beginOne(u, opt, out)), opt, out, cfgHash));
         }),
       ),
     );
@@ -194,16 +221,15 @@ async function processSessions(todo: Planned[], results: Map<string, SessionSumm
   }
 }
 
-/** One session: its manifest entry and overview data removed, processed, then the overview data and the entry written. */
-async function processOne(p: Planned, runner: SessionRunner, opt: BatchOptions, out: string, cfgHash: string): Promise<SessionSummary> {
+/** Before a session runs: its manifest entry and overview data removed (so an entry exists only for complete outputs); its task. */
+async function beginOne(p: Planned, opt: BatchOptions, out: string): Promise<SessionTask> {
   const name = p.si.name;
-  const report = opt.config.output.report;
   await removeEntry(out, name);
   await removeOverviewData(out, name);
   opt.onEvent?.({ type: 'start', name, input: p.si.relPath });
   const decisions = p.si.companions.find((c) => c.suffix === '.decisions.csv');
   const imu = p.si.companions.find((c) => c.suffix === '.imu.csv');
-  const task: SessionTask = {
+  return {
     name,
     path: p.si.path,
     relPath: p.si.relPath,
@@ -211,9 +237,13 @@ async function processOne(p: Planned, runner: SessionRunner, opt: BatchOptions, 
     ...(imu ? { imuPath: imu.path } : {}),
     out,
     config: opt.config,
-    withPayload: report,
+    withPayload: opt.config.output.report,
   };
-  const r = await runner.run(task);
+}
+
+/** After a session ran: a failure keeps the earlier outputs (stale); then the overview data and the manifest entry are written. */
+async function endOne(p: Planned, r: SessionOutcome, opt: BatchOptions, out: string, cfgHash: string): Promise<SessionSummary> {
+  const name = p.si.name;
   if (r.summary.status === 'failed') {
     // never lose work: the outputs of an earlier run stay in place, marked stale
     const kept = await existingSessionOutputs(out, name);

@@ -7,11 +7,13 @@ import { existsSync, readFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { Piscina } from 'piscina';
-import { failedEntry, runSessionTask, type SessionOutcome, type SessionTask } from './session-task.js';
+import { failedEntry, runPoolTask, runSessionTask, type PoolTask, type SessionOutcome, type SessionTask } from './session-task.js';
 
 export interface SessionRunner {
   /** Never rejects: a crash comes back as a failed outcome. */
   run(task: SessionTask): Promise<SessionOutcome>;
+  /** A group calibrated together: one outcome a member, in order; never rejects either. */
+  runPool(task: PoolTask): Promise<SessionOutcome[]>;
   close(): Promise<void>;
   readonly kind: 'threads' | 'in-process';
 }
@@ -41,7 +43,23 @@ export function defaultWorkerFile(): string {
 }
 
 export function inProcessRunner(): SessionRunner {
-  return { kind: 'in-process', run: runSessionTask, close: async () => undefined };
+  return {
+    kind: 'in-process',
+    run: runSessionTask,
+    async runPool(task) {
+      try {
+        return await runPoolTask(task);
+      } catch (e) {
+        return poolFailed(task, `internal error: ${(e as Error)?.message ?? String(e)}`);
+      }
+    },
+    close: async () => undefined,
+  };
+}
+
+/** Every member of a pool failed for one reason (its worker stopped). */
+function poolFailed(task: PoolTask, reason: string): SessionOutcome[] {
+  return task.tasks.map((t) => ({ summary: failedEntry(t.name, t.relPath, reason), outputs: [], settled: false }));
 }
 
 export interface ThreadOptions {
@@ -71,6 +89,13 @@ export function threadRunner(o: ThreadOptions): SessionRunner {
       } catch (e) {
         const msg = (e as Error)?.message ?? String(e);
         return { summary: failedEntry(task.name, task.relPath, `worker stopped: ${msg}`), outputs: [], settled: false };
+      }
+    },
+    async runPool(task) {
+      try {
+        return (await pool.run(task)) as SessionOutcome[];
+      } catch (e) {
+        return poolFailed(task, `worker stopped: ${(e as Error)?.message ?? String(e)}`);
       }
     },
     close: () => pool.destroy(),

@@ -14,6 +14,8 @@ import type { InputWarning } from '../errors.js';
 import { readFixLog } from '../input/read-log.js';
 import { readDecisions } from '../input/decisions-csv.js';
 import { processSession } from '../session/process-session.js';
+import { processPooledSessions } from '../session/process-pooled.js';
+import type { FixSeries } from '../input/fix-series.js';
 import { processImuSession } from '../session/imu/imu-session.js';
 import { imuFileSource } from '../input/imu-source.js';
 import type { SessionResult } from '../session/result/result.js';
@@ -190,28 +192,96 @@ export async function runSessionTask(t: SessionTask): Promise<SessionOutcome> {
     const r = t.imuPath
       ? await processImuSession(series, imuFileSource(t.imuPath, t.config), t.config, t.name, decisions)
       : processSession(series, t.config, t.name, decisions);
-    if (t.decisionsPath && decisions) attachDecisionNotes(r, parseDecisionNotes(await readFile(t.decisionsPath, 'utf8'), series));
-    // the survey products are computed: the joint posterior's arrays can go before the writes
-    releasePosterior(r);
-    const payload = t.withPayload ? reportPayload(r, { maxPoints: t.config.output.reportMaxPoints }) : undefined;
-    let entry: SessionSummary | undefined;
-    const page = payload
-      ? async (names: string[]) => {
-          // the chart library is large: loaded only where a page is drawn
-          const { sessionPageHtml } = await import('../output/report/session-page.js');
-          entry = okEntry(r, t.relPath, names, 0);
-          return sessionPageHtml(entry, payload, { tool: 'hindcast', version: VERSION, profile: t.config.profile });
-        }
-      : undefined;
-    const outputs = await writeSessionOutputs(t.out, r, t.config, { page });
-    const elapsedSec = round3((performance.now() - t0) / 1000);
-    const summary = entry ? { ...entry, elapsedSec } : okEntry(r, t.relPath, outputs.map((o) => o.file), elapsedSec);
-    return { summary, outputs, ...(payload ? { overview: overviewData(payload) } : {}), settled: false };
+    return await completeTask(t, series, decisions, r, t0);
   } catch (e) {
-    // the outputs of an earlier run stay where they are (the batch marks them stale)
-    const warnings = (e as { warnings?: InputWarning[] }).warnings ?? [];
-    return { summary: failedEntry(t.name, t.relPath, failureReason(e), warnings), outputs: [], settled: e instanceof InputError || e instanceof ConfigError };
+    return failedOutcome(t, e);
   }
+}
+
+/** A group of sessions of one receiver, calibrated together (batch.pool; session/process-pooled.ts). */
+export interface PoolTask {
+  pool: string;
+  tasks: SessionTask[];
+}
+
+/**
+ * The sessions of a pool: each read (a file that cannot be read fails alone), processed together
+ * with one noise calibration, and each one's outputs written as runSessionTask writes them.
+ */
+export async function runPoolTask(p: PoolTask): Promise<SessionOutcome[]> {
+  const t0 = performance.now();
+  const cfg = p.tasks[0]!.config;
+  const read: Array<{ series: FixSeries; decisions?: Map<number, 'keep' | 'reject'> } | { error: unknown }> = [];
+  for (const t of p.tasks) {
+    try {
+      const series = await readFixLog(t.path, t.relPath, t.config);
+      const decisions = t.decisionsPath ? readDecisions(t.decisionsPath, series, t.config.input) : undefined;
+      read.push({ series, ...(decisions ? { decisions } : {}) });
+    } catch (error) {
+      read.push({ error });
+    }
+  }
+  const okIdx = read.flatMap((x, i) => ('error' in x ? [] : [i]));
+  const results = processPooledSessions(
+    okIdx.map((i) => {
+      const x = read[i] as { series: FixSeries; decisions?: Map<number, 'keep' | 'reject'> };
+      return { series: x.series, name: p.tasks[i]!.name, ...(x.decisions ? { userDecisions: x.decisions } : {}) };
+    }),
+    cfg,
+    p.pool,
+  );
+  // every ok member records the members that failed (so a rerun compares the same group)
+  const failed = p.tasks.filter((_, i) => 'error' in read[i]! || results[okIdx.indexOf(i)] instanceof Error).map((t) => t.name);
+  for (const r of results) {
+    const pool = r instanceof Error ? undefined : (r.info.calibration as { pool?: { failed?: string[] } } | undefined)?.pool;
+    if (pool && failed.length) pool.failed = failed;
+  }
+  const out: SessionOutcome[] = [];
+  for (let i = 0; i < p.tasks.length; i++) {
+    const t = p.tasks[i]!, x = read[i]!;
+    if ('error' in x) {
+      out.push(failedOutcome(t, x.error));
+      continue;
+    }
+    const r = results[okIdx.indexOf(i)]!;
+    if (r instanceof Error) {
+      out.push(failedOutcome(t, r));
+      continue;
+    }
+    try {
+      out.push(await completeTask(t, x.series, x.decisions, r, t0));
+    } catch (e) {
+      out.push(failedOutcome(t, e));
+    }
+  }
+  return out;
+}
+
+/** A processed session's notes attached, its posterior released, its page drawn and its outputs written. */
+async function completeTask(t: SessionTask, series: FixSeries, decisions: Map<number, 'keep' | 'reject'> | undefined, r: SessionResult, t0: number): Promise<SessionOutcome> {
+  if (t.decisionsPath && decisions) attachDecisionNotes(r, parseDecisionNotes(await readFile(t.decisionsPath, 'utf8'), series));
+  // the survey products are computed: the joint posterior's arrays can go before the writes
+  releasePosterior(r);
+  const payload = t.withPayload ? reportPayload(r, { maxPoints: t.config.output.reportMaxPoints }) : undefined;
+  let entry: SessionSummary | undefined;
+  const page = payload
+    ? async (names: string[]) => {
+        // the chart library is large: loaded only where a page is drawn
+        const { sessionPageHtml } = await import('../output/report/session-page.js');
+        entry = okEntry(r, t.relPath, names, 0);
+        return sessionPageHtml(entry, payload, { tool: 'hindcast', version: VERSION, profile: t.config.profile });
+      }
+    : undefined;
+  const outputs = await writeSessionOutputs(t.out, r, t.config, { page });
+  const elapsedSec = round3((performance.now() - t0) / 1000);
+  const summary = entry ? { ...entry, elapsedSec } : okEntry(r, t.relPath, outputs.map((o) => o.file), elapsedSec);
+  return { summary, outputs, ...(payload ? { overview: overviewData(payload) } : {}), settled: false };
+}
+
+/** A failed session's outcome: the outputs of an earlier run stay where they are (the batch marks them stale). */
+function failedOutcome(t: SessionTask, e: unknown): SessionOutcome {
+  const warnings = (e as { warnings?: InputWarning[] }).warnings ?? [];
+  return { summary: failedEntry(t.name, t.relPath, failureReason(e), warnings), outputs: [], settled: e instanceof InputError || e instanceof ConfigError };
 }
 
 function round3(v: number): number {

@@ -200,6 +200,30 @@ export const configSchema = z
       })
       .strict()
       .default({ maxGapSec: 60, bridgeFactor: 1.5 }),
+    batch: z
+      .object({
+        /**
+         * One noise calibration for each group of logs taken with the same receiver
+         * (session/calibrate/pooled.ts): 'none' (default, every log alone), 'folder' (the logs of
+         * one folder are one receiver's) or 'pattern' (logs whose relative path matches
+         * poolPattern alike: its first capture group, or the whole match, names the group). The
+         * fix noise is shared; each log keeps its own process noise.
+         */
+        pool: z.enum(['none', 'folder', 'pattern']).default('none'),
+        /** Regular expression (JavaScript syntax) over the log's "/"-separated path relative to the input folder, for pool 'pattern'. */
+        poolPattern: z.string().optional(),
+      })
+      .strict()
+      .superRefine((v, ctx) => {
+        if (v.pool === 'pattern' && v.poolPattern === undefined) ctx.addIssue({ code: 'custom', path: ['poolPattern'], message: 'batch.pool "pattern" needs batch.poolPattern (a regular expression over the log\'s relative path)' });
+        if (v.poolPattern !== undefined)
+          try {
+            new RegExp(v.poolPattern);
+          } catch (e) {
+            ctx.addIssue({ code: 'custom', path: ['poolPattern'], message: `not a regular expression: ${(e as Error).message}` });
+          }
+      })
+      .default({ pool: 'none' }),
     output: z
       .object({
         /** Decimal places of degrees in GeoJSON coordinates (RFC 7946 §11.2: 6 ≈ 0.1 m). */

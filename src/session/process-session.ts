@@ -9,6 +9,10 @@ import type { HindcastConfig } from '../config/schema.js';
 import type { FixSeries } from '../input/fix-series.js';
 import type { SessionResult } from './result/result.js';
 import type { StageTimings } from './result/timings.js';
+import type { AxisParams } from './prepare/axis-params.js';
+import type { PreparedSession } from './prepare/prepare.js';
+import type { ReviewOptions } from './classify/review.js';
+import type { CalibrationInfo } from './calibrate/calibrate.js';
 import { axisParamsFromConfig, reviewOptions } from './prepare/axis-params.js';
 import { jumpWarnings, prepareSession } from './prepare/prepare.js';
 import { calibrationRounds } from './calibrate/calibration-rounds.js';
@@ -32,14 +36,35 @@ import { surveyProducts } from './survey/survey.js';
  * re-acquisition in the forward pass; see docs/decisions/process-noise-adaptation.md for the measured choice.
  */
 export function processSession(series: FixSeries, cfg: HindcastConfig, name: string, userDecisions?: Map<number, 'keep' | 'reject'>, timings?: StageTimings): SessionResult {
-  const tm = timings;
-  let t0 = tm ? performance.now() : 0;
+  const b = beginSession(series, cfg, name, userDecisions, timings);
+  // stages 1–3: the noise calibration
+  return finishSession(b, calibrationRounds(b.ps, cfg, b.prior, b.ro, timings));
+}
+
+/** A session prepared for its calibration: the fixes projected and segmented, the profile's parameters and the review options. */
+export interface BegunSession {
+  series: FixSeries;
+  cfg: HindcastConfig;
+  name: string;
+  ps: PreparedSession;
+  prior: AxisParams;
+  ro: ReviewOptions;
+  tm?: StageTimings;
+}
+
+/** Validity, local frame, per-fix noise and segments of a session (before its calibration). */
+export function beginSession(series: FixSeries, cfg: HindcastConfig, name: string, userDecisions?: Map<number, 'keep' | 'reject'>, tm?: StageTimings): BegunSession {
+  const t0 = tm ? performance.now() : 0;
   const ps = prepareSession(series, cfg, userDecisions);
   if (tm) tm.project += performance.now() - t0;
-  const prior = axisParamsFromConfig(cfg, ps.factors.reported);
-  const ro = reviewOptions(cfg, ps.intervalSec);
-  // stages 1–3: the noise calibration
-  const { params, info, warnings } = calibrationRounds(ps, cfg, prior, ro, tm);
+  return { series, cfg, name, ps, prior: axisParamsFromConfig(cfg, ps.factors.reported), ro: reviewOptions(cfg, ps.intervalSec), ...(tm ? { tm } : {}) };
+}
+
+/** Everything after the calibration: classification, the final run, the checks and the survey products. */
+export function finishSession(b: BegunSession, cal: { params: AxisParams; info: CalibrationInfo; warnings: string[] }): SessionResult {
+  const { series, cfg, name, ps, prior, ro, tm } = b;
+  const { params, info, warnings } = cal;
+  let t0 = 0;
   // stage 4 (stage 2 of a log the calibration fell back on): classify under the final model
   const plans = classify(ps, cfg, params, ro, tm);
   let r = runPrepared(ps, cfg, params, name, plans, tm);

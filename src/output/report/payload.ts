@@ -177,7 +177,12 @@ export function calibrationLine(info: Record<string, unknown> | undefined): stri
   const exponents = ex.length ? `; quality-column exponents ${ex.join(', ')} (0 ignored, 1 proportional)` : '';
   if (parts.length === 0) return null;
   const epochs = num(cal.epochsUsed);
-  return `${parts.join('; ')} (horizontal / vertical; ± standard error${epochs !== undefined ? `; ${epochs} epochs` : ''})${exponents}`;
+  const pool = cal.pool as { group?: unknown; members?: unknown; given?: unknown; refused?: unknown } | undefined;
+  const n = pool && Array.isArray(pool.members) ? pool.members.length + (Array.isArray(pool.given) ? pool.given.length : 0) : 0;
+  const pooled = !pool ? ''
+    : typeof pool.refused === 'string' ? `; not pooled with the other logs of "${String(pool.group)}" (${pool.refused})`
+    : `; noise estimated jointly over the ${n} logs of "${String(pool.group)}" (each log its own process noise)`;
+  return `${parts.join('; ')} (horizontal / vertical; ± standard error${epochs !== undefined && epochs > 0 ? `; ${epochs} epochs` : ''})${exponents}${pooled}`;
 }
 
 /** The local frame in words, from its projection definition (centre latitude and longitude); null when it names none. */

@@ -28,10 +28,10 @@ import { NumericalError } from '../../errors.js';
 import { qualityLogTerms } from '../prepare/fix-noise.js';
 import { applyQualityTable, applyReportedExponent, qualityTable, type QualityTable } from './quality-variances.js';
 
-type ParamName = 'sigmaHorizontalM' | 'sigmaVerticalM' | 'gmHorizontalSigmaM' | 'gmVerticalSigmaM' | 'gmTauSec' | 'gmVerticalTauSec' | 'qHorizontal' | 'qVertical' | 'hdopExponent' | 'satsExponent' | 'fixQualityExponent' | 'reportedExponent';
+export type ParamName = 'sigmaHorizontalM' | 'sigmaVerticalM' | 'gmHorizontalSigmaM' | 'gmVerticalSigmaM' | 'gmTauSec' | 'gmVerticalTauSec' | 'qHorizontal' | 'qVertical' | 'hdopExponent' | 'satsExponent' | 'fixQualityExponent' | 'reportedExponent';
 
 /** Parameters searched on their own scale (the exponents of the quality columns, 0 to 1); the others in log space. */
-const LINEAR: ReadonlySet<ParamName> = new Set(['hdopExponent', 'satsExponent', 'fixQualityExponent', 'reportedExponent']);
+export const LINEAR: ReadonlySet<ParamName> = new Set(['hdopExponent', 'satsExponent', 'fixQualityExponent', 'reportedExponent']);
 
 /** Physical bounds of each parameter. */
 export const PARAM_BOUNDS: Record<ParamName, [number, number]> = {
@@ -71,6 +71,26 @@ export interface CalibrationInfo {
   reportedSigmaScale: boolean;
   /** The robust process-noise estimate and the q the second round's decisions were classified under (classification-start.ts). */
   classificationStart?: { robustQHorizontal: number; qHorizontal: number };
+  /** Set when the noise was estimated jointly with other logs of the same receiver (pooled.ts). */
+  pool?: PoolInfo;
+}
+
+/** A pooled calibration as each of its logs records it. */
+export interface PoolInfo {
+  /** The group's name (its folder, or what the name pattern matched). */
+  group: string;
+  /** The logs whose likelihoods were added (session names), and those of the group that were too short to take part (they take the shared estimates). */
+  members: string[];
+  given: string[];
+  /** The parameters shared by the group; each log keeps its own process noise. */
+  shared: string[];
+  epochsUsed: number;
+  /** The joint objective at the optimum (log-likelihood with the prior's penalty, as a single log's logLikelihood). */
+  logLikelihood: number;
+  /** The group's logs that failed (could not be read or processed): not part of the estimate. */
+  failed?: string[];
+  /** Set when the group could not be pooled: why (each log was then calibrated alone). */
+  refused?: string;
 }
 
 export interface CalibrationOptions {
@@ -310,7 +330,7 @@ function horizontalExtentOf(ps: PreparedSession): number {
 }
 
 /** What calibrateSession returns: the parameters, how they were found, and the warnings. */
-type CalibrationResult = { params: AxisParams; info: CalibrationInfo; warnings: string[] };
+export type CalibrationResult = { params: AxisParams; info: CalibrationInfo; warnings: string[] };
 
 /** Why the log is too short to calibrate (too few usable fixes, or too short a span of them), or null when it is long enough. */
 function tooShortReason(ps: PreparedSession, opt: CalibrationOptions): string | null {
@@ -420,13 +440,13 @@ function objectiveSubset(
 }
 
 /** A parameter's search coordinate: its value clamped to its bounds, in log space (the exponents: their own scale). */
-function toX(nm: ParamName, v: number): number {
+export function toX(nm: ParamName, v: number): number {
   const c = Math.min(Math.max(v, PARAM_BOUNDS[nm][0]), PARAM_BOUNDS[nm][1]);
   return LINEAR.has(nm) ? c : Math.log(c);
 }
 
 /** A parameter's value from its search coordinate. */
-function fromX(nm: ParamName, x: number): number {
+export function fromX(nm: ParamName, x: number): number {
   return LINEAR.has(nm) ? x : Math.exp(x);
 }
 
@@ -573,7 +593,7 @@ function makeLogLikGradient(
 }
 
 /** The prior's penalty (−log density up to a constant) at search coordinates x, around the prior centres xPrior. */
-function makePriorPenalty(names: ParamName[], xPrior: number[], cfg: HindcastConfig): (x: number[]) => number {
+export function makePriorPenalty(names: ParamName[], xPrior: number[], cfg: HindcastConfig): (x: number[]) => number {
   const iTauH = names.indexOf('gmTauSec'), iTauV = names.indexOf('gmVerticalTauSec');
   // noise.correlatedSigmaPrior 'vertical': the horizontal correlated sigma's prior follows the vertical estimate, with a floor on qV
   const fromVertical = cfg.noise.correlatedSigmaPrior === 'vertical';
@@ -604,7 +624,7 @@ function makePriorPenalty(names: ParamName[], xPrior: number[], cfg: HindcastCon
 }
 
 /** The objective: −log-likelihood plus the prior's penalty at search coordinates x, infinite outside the bounds. */
-function makeObjective(names: ParamName[], toParams: (x: number[]) => AxisParams, logLik: (p: AxisParams) => number, penalty: (x: number[]) => number): (x: number[]) => number {
+export function makeObjective(names: ParamName[], toParams: (x: number[]) => AxisParams, logLik: (p: AxisParams) => number, penalty: (x: number[]) => number): (x: number[]) => number {
   return (x) => {
     for (let i = 0; i < names.length; i++) {
       const nm = names[i]!;
@@ -617,7 +637,7 @@ function makeObjective(names: ParamName[], toParams: (x: number[]) => AxisParams
 }
 
 /** Minimize the objective from x0: projected BFGS inside the bounds (quasiNewton) or the simplex in two restarts. */
-function minimize(
+export function minimize(
   negLogLik: (x: number[]) => number,
   names: ParamName[],
   x0: number[],
@@ -649,7 +669,7 @@ function minimize(
 }
 
 /** The objective's gradient: −∇ log L (exact) plus the prior penalty's by central differences (a quadratic: exact to rounding). */
-function objectiveGradient(llGradient: (x: number[]) => number[], penalty: (x: number[]) => number): (x: number[]) => number[] {
+export function objectiveGradient(llGradient: (x: number[]) => number[], penalty: (x: number[]) => number): (x: number[]) => number[] {
   const h = 1e-6;
   return (x) => {
     const g = llGradient(x).map((v) => -v);
@@ -710,33 +730,118 @@ function searchStandardErrors(negLogLik: (x: number[]) => number, x: number[], f
   return seLog;
 }
 
-/** The estimates at the optimum x (parameters `params`), with standard errors when `standardErrors` and whether each sits at a bound. */
-function paramEstimates(
+/**
+ * The estimates at the optimum x, one per entry of `names` (a name may repeat: a pooled search has a
+ * process noise per log), with standard errors when `standardErrors` and whether each sits at a bound.
+ */
+export function estimatesAt(
   negLogLik: (x: number[]) => number,
   names: ParamName[],
   x: number[],
-  params: AxisParams,
   standardErrors: boolean,
   gradient?: (x: number[]) => number[],
-): { estimates: CalibrationInfo['estimates']; gradients: number } {
+): { list: ParamEstimate[]; gradients: number } {
   // standard errors from the observed information (Hessian of −log L in log space), over the
   // parameters inside their bounds (a parameter at a bound is held there: the objective is infinite
   // beyond it, so its own curvature is undefined and would leave every standard error NaN)
-  const estimates: CalibrationInfo['estimates'] = {};
-  const atBound = names.map((nm) => {
+  const values = names.map((nm, i) => fromX(nm, x[i]!));
+  const atBound = names.map((nm, i) => {
     const [lo, hi] = PARAM_BOUNDS[nm];
-    const v = params[nm] as number;
+    const v = values[i]!;
     // the exponents: within 0.02 of 0 or 1; the others within 5%
     return LINEAR.has(nm) ? v <= lo + 0.02 || v >= hi - 0.02 : v <= lo * 1.05 || v >= hi / 1.05;
   });
   const free = names.map((_, i) => i).filter((i) => !atBound[i]);
   const seLog = standardErrors ? searchStandardErrors(negLogLik, x, free, gradient) : names.map(() => NaN);
-  names.forEach((nm, i) => {
-    const v = params[nm] as number;
-    // delta method: se(θ) ≈ θ · se(log θ) (the exponents: their own scale)
-    estimates[nm] = { value: v, se: LINEAR.has(nm) ? seLog[i]! : v * seLog[i]!, atBound: atBound[i]! };
-  });
-  return { estimates, gradients: standardErrors && gradient ? 2 * free.length : 0 };
+  // delta method: se(θ) ≈ θ · se(log θ) (the exponents: their own scale)
+  const list = names.map((nm, i) => ({ value: values[i]!, se: LINEAR.has(nm) ? seLog[i]! : values[i]! * seLog[i]!, atBound: atBound[i]! }));
+  return { list, gradients: standardErrors && gradient ? 2 * free.length : 0 };
+}
+
+/** estimatesAt keyed by parameter name (names distinct). */
+function paramEstimates(
+  negLogLik: (x: number[]) => number,
+  names: ParamName[],
+  x: number[],
+  standardErrors: boolean,
+  gradient?: (x: number[]) => number[],
+): { estimates: CalibrationInfo['estimates']; gradients: number } {
+  const { list, gradients } = estimatesAt(negLogLik, names, x, standardErrors, gradient);
+  const estimates: CalibrationInfo['estimates'] = {};
+  names.forEach((nm, i) => (estimates[nm] = list[i]!));
+  return { estimates, gradients };
+}
+
+/**
+ * One log's calibration problem: what calibrateSession maximizes, in parts, so that a pooled
+ * calibration (pooled.ts) can add several logs' likelihoods over shared parameters.
+ */
+export interface CalibrationProblem {
+  ps: PreparedSession;
+  names: ParamName[];
+  ownTauV: boolean;
+  /** Search coordinates of the prior centres and of the start. */
+  xPrior: number[];
+  x0: number[];
+  toParams: (x: number[]) => AxisParams;
+  /** The innovations' log-likelihood under p (the subset's variances rewritten for its exponents). */
+  logLik: (p: AxisParams) => number;
+  /** Its exact gradient in search coordinates, or null (differences then). */
+  llGradient: ((x: number[]) => number[]) | null;
+  /** Whether quasi-Newton applies (decisions held fixed: a smooth objective). */
+  quasiNewton: boolean;
+  epochsUsed: number;
+  warnings: string[];
+}
+
+/**
+ * The calibration problem of a log (see calibrateSession for the arguments), or the reason the log
+ * is too short to calibrate.
+ */
+export function calibrationProblem(
+  ps: PreparedSession,
+  cfg: HindcastConfig,
+  prior: AxisParams,
+  opt: CalibrationOptions = DEFAULT_CALIBRATION,
+  start?: AxisParams,
+  useOverride?: Map<number, Uint8Array>,
+): CalibrationProblem | { short: string } {
+  const short = tooShortReason(ps, opt);
+  if (short !== null) return { short };
+  const warnings: string[] = [];
+  const { names, ownTauV } = calibratedNames(ps, cfg);
+  const staticWarning = staticLogWarning(ps, prior);
+  if (staticWarning) warnings.push(staticWarning);
+  const ex = ps.factors.exponents;
+  const withExponents = ex.hdop || ex.sats || ex.fixQuality || ex.reported;
+  const subset = objectiveSubset(ps, cfg, prior, opt, withExponents, useOverride);
+  const epochsUsed = subset.reduce((a, d) => a + d.data.N, 0);
+  // the prior is centred on the profile; the search starts from `start` (an earlier round) when given;
+  // the exponents start half-way (the profile states none) unless an earlier round estimated them
+  const xPrior = names.map((nm) => toX(nm, startOf(prior, nm)));
+  const x0 = names.map((nm) => toX(nm, startOf(start ?? prior, nm)));
+  const base = start ?? prior;
+  const toParams = (x: number[]): AxisParams => paramsAt(x, names, base, ownTauV);
+  const apply = makeApply(ps, subset, withExponents);
+  const logLik = makeLogLik(cfg, prior, subset, apply, ps.hasHeight ? 3 : 2);
+  // the exact gradient where the decisions are held fixed (a smooth objective) and the model is the common one
+  const llGradient = useOverride && opt.gradient !== 'difference' ? makeLogLikGradient(ps, cfg, prior, subset, apply, names, toParams, ownTauV) : null;
+  // quasi-Newton where the outlier decisions are held fixed (a smooth objective); under the gate
+  // (the first round) the objective jumps wherever a fix crosses the threshold, which stalls a
+  // difference gradient (measured on vehicle and drone logs: BFGS from the profile stopped 70–3,800
+  // below the simplex's log-likelihood, and 2–70 below when started from the simplex's first
+  // restart), so that round keeps the simplex
+  const quasiNewton = opt.optimizer !== 'nelder-mead' && useOverride !== undefined;
+  return { ps, names, ownTauV, xPrior, x0, toParams, logLik, llGradient, quasiNewton, epochsUsed, warnings };
+}
+
+/** The profile's values for a log too short to calibrate, with the warning that says so. */
+export function fallbackCalibration(ps: PreparedSession, prior: AxisParams, short: string): CalibrationResult {
+  return {
+    params: prior,
+    info: { method: 'profile values', status: 'fallback', reason: short, epochsUsed: 0, logLikelihood: NaN, evaluations: 0, estimates: {}, reportedSigmaScale: ps.factors.reported },
+    warnings: [`noise calibration skipped: ${short}; the profile's values are used`],
+  };
 }
 
 /**
@@ -752,53 +857,27 @@ export function calibrateSession(
   start?: AxisParams,
   useOverride?: Map<number, Uint8Array>,
 ): CalibrationResult {
-  const warnings: string[] = [];
-  const short = tooShortReason(ps, opt);
-  if (short !== null) {
-    warnings.push(`noise calibration skipped: ${short}; the profile's values are used`);
-    return { params: prior, info: { method: 'profile values', status: 'fallback', reason: short, epochsUsed: 0, logLikelihood: NaN, evaluations: 0, estimates: {}, reportedSigmaScale: ps.factors.reported }, warnings };
-  }
-  const { names, ownTauV } = calibratedNames(ps, cfg);
-  const staticWarning = staticLogWarning(ps, prior);
-  if (staticWarning) warnings.push(staticWarning);
-  const ex = ps.factors.exponents;
-  const withExponents = ex.hdop || ex.sats || ex.fixQuality || ex.reported;
-  const subset = objectiveSubset(ps, cfg, prior, opt, withExponents, useOverride);
-  const epochsUsed = subset.reduce((a, d) => a + d.data.N, 0);
-  // the prior is centred on the profile; the search starts from `start` (an earlier round) when given;
-  // the exponents start half-way (the profile states none) unless an earlier round estimated them
-  const xPrior = names.map((nm) => toX(nm, startOf(prior, nm)));
-  const x0 = names.map((nm) => toX(nm, startOf(start ?? prior, nm)));
-  const base = start ?? prior;
-  const toParams = (x: number[]): AxisParams => paramsAt(x, names, base, ownTauV);
-  const apply = makeApply(ps, subset, withExponents);
-  const penalty = makePriorPenalty(names, xPrior, cfg);
-  const negLogLik = makeObjective(names, toParams, makeLogLik(cfg, prior, subset, apply, ps.hasHeight ? 3 : 2), penalty);
-  // the exact gradient where the decisions are held fixed (a smooth objective) and the model is the common one
-  const llGradient = useOverride && opt.gradient !== 'difference' ? makeLogLikGradient(ps, cfg, prior, subset, apply, names, toParams, ownTauV) : null;
-  const gradient = llGradient ? objectiveGradient(llGradient, penalty) : undefined;
-  // quasi-Newton where the outlier decisions are held fixed (a smooth objective); under the gate
-  // (the first round) the objective jumps wherever a fix crosses the threshold, which stalls a
-  // difference gradient (measured on vehicle and drone logs: BFGS from the profile stopped 70–3,800
-  // below the simplex's log-likelihood, and 2–70 below when started from the simplex's first
-  // restart), so that round keeps the simplex
-  const quasiNewton = opt.optimizer !== 'nelder-mead' && useOverride !== undefined;
-  const res = minimize(negLogLik, names, x0, opt, quasiNewton, gradient);
+  const pb = calibrationProblem(ps, cfg, prior, opt, start, useOverride);
+  if ('short' in pb) return fallbackCalibration(ps, prior, pb.short);
+  const { names, toParams, quasiNewton } = pb;
+  const penalty = makePriorPenalty(names, pb.xPrior, cfg);
+  const negLogLik = makeObjective(names, toParams, pb.logLik, penalty);
+  const gradient = pb.llGradient ? objectiveGradient(pb.llGradient, penalty) : undefined;
+  const res = minimize(negLogLik, names, pb.x0, opt, quasiNewton, gradient);
   const params = toParams(res.x);
-  const estimates = paramEstimates(negLogLik, names, res.x, params, opt.standardErrors !== false, gradient);
+  const estimates = paramEstimates(negLogLik, names, res.x, opt.standardErrors !== false, gradient);
   return {
     params,
     info: {
       method: `maximum likelihood of the filter innovations (${quasiNewton ? (gradient ? 'quasi-Newton, exact gradient' : 'quasi-Newton') : 'Nelder–Mead'}), capped outlier terms, weak prior`,
       status: 'estimated',
-      epochsUsed,
+      epochsUsed: pb.epochsUsed,
       logLikelihood: -res.f,
       evaluations: res.evaluations,
       gradientEvaluations: res.gradients + estimates.gradients,
       estimates: estimates.estimates,
       reportedSigmaScale: ps.factors.reported,
     },
-    warnings,
+    warnings: pb.warnings,
   };
 }
-
