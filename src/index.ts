@@ -11,6 +11,7 @@ export { DECIDING_TESTS, type DecidingTest } from './session/result/decision-log
 export { readFixCsv } from './input/csv-fixes.js';
 export { FixSeriesBuilder, type FixSeries } from './input/fix-series.js';
 export { processSession } from './session/process-session.js';
+export { processPooledSessions, type PoolInput } from './session/process-pooled.js';
 export { processImuSession } from './session/imu/imu-session.js';
 export { imuFileSource, imuArraySource, IMU_SAMPLE_STRIDE, type ImuSampleSource, type ImuSampleTarget } from './input/imu-source.js';
 export type { SessionResult, OutlierRecord, SessionMetrics } from './session/result/result.js';
