@@ -14,6 +14,7 @@ import { dirname, join } from 'node:path';
 const KERNELS = [
   { src: 'src/estimation/ins/asm/ins-kernels.ts', flags: ['-O3', '--runtime', 'stub', '--enable', 'simd', '--initialMemory', '1', '--noAssert'] },
   { src: 'src/estimation/asm/loglik-kernel.ts', flags: ['-O3', '--runtime', 'stub', '--initialMemory', '1', '--noAssert'] },
+  { src: 'src/estimation/asm/draws-kernel.ts', flags: ['-O3', '--runtime', 'stub', '--initialMemory', '1', '--noAssert'] },
 ];
 const STAMP = 'dist/.wasm-build.json';
 

@@ -32,10 +32,18 @@ const FN = new Float64Array(128);
   }
 }
 
+/** The ziggurat's tables (read only: the WebAssembly draw kernel copies them, estimation/draws-wasm.ts). */
+export const ZIGGURAT_TABLES: { readonly KN: Int32Array; readonly WN: Float64Array; readonly FN: Float64Array } = { KN, WN, FN };
+
+/** The generator's state for a seed (0 would be a fixed point of nothing, but is mapped to a constant so every seed starts somewhere). */
+export function seedState(seed: number): number {
+  return seed >>> 0 || 0x9e3779b9;
+}
+
 export class GaussianSource {
   private s: number;
   constructor(seed: number) {
-    this.s = seed >>> 0 || 0x9e3779b9;
+    this.s = seedState(seed);
   }
   /** A signed 32-bit integer (mulberry32). */
   private int32(): number {

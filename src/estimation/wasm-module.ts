@@ -2,7 +2,8 @@
  * Loading the numerics' compiled WebAssembly modules (AssemblyScript sources in the asm/ folders,
  * built by `npm run build`): the module's bytes read and compiled once per thread, null where the
  * file is missing or this runtime cannot compile it (the callers then run their TypeScript kernels,
- * with the same results); and an instance with the one import the modules have (abort).
+ * with the same results); and an instance with the import every module has (abort) and those a
+ * module declares of its own.
  */
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
@@ -48,7 +49,7 @@ export function wasmModule(url: URL): WasmModule | null {
   return m;
 }
 
-/** A fresh instance of a module (its own memory); `name` goes into the abort message. */
-export function wasmInstance<E>(m: WasmModule, name: string): E {
-  return new WebAssembly.Instance(m, { env: { abort: () => { throw new Error(`${name}: abort`); } } }).exports as E;
+/** A fresh instance of a module (its own memory); `name` goes into the abort message; `env` adds imports (functions the module declares external). */
+export function wasmInstance<E>(m: WasmModule, name: string, env: Record<string, unknown> = {}): E {
+  return new WebAssembly.Instance(m, { env: { ...env, abort: () => { throw new Error(`${name}: abort`); } } }).exports as E;
 }

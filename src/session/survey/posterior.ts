@@ -14,7 +14,8 @@ import type { LocalFrame } from '../../geodesy/local-frame.js';
 import { covIndex, covStride, makeStepCache, stepMatrices, type FilterHistory, type SegmentData } from '../../estimation/track-filter.js';
 import { backwardDraw, backwardGain, backwardOffset, choleskyPsd, gaussianDraw, makeBackwardScratch } from '../../estimation/simulation-smoother.js';
 import { NumericalError } from '../../errors.js';
-import { GaussianSource } from '../../estimation/gaussian-rng.js';
+import { GaussianSource, seedState } from '../../estimation/gaussian-rng.js';
+import { drawBuffers, drawsKernel, type DrawsKernel } from '../../estimation/draws-wasm.js';
 import type { SessionResult } from '../result/result.js';
 
 export interface SegmentPosterior {
@@ -68,22 +69,26 @@ export function unpackCov(n: number, P: Float64Array, k: number, out: Float64Arr
  * state), so a seed and a number of draws give the same draws on every run.
  */
 export function sampleBackward(post: TrackPosterior, nDraws: number, seed: number, visit: (j: number, seg: number, pos: Float64Array[]) => void): void {
-  const rng = new GaussianSource(seed);
   const nAx = post.nAx;
-  const pos = Array.from({ length: nAx }, () => new Float64Array(nDraws));
+  // every axis with three states: the draw step in WebAssembly (estimation/draws-wasm.ts, the same draws)
+  const kern = nDraws > 0 && post.segments.every((sp) => sp.models.every((m) => m.n === 3)) ? drawsKernel() : null;
+  const kbuf = kern ? drawBuffers(kern, nAx, nDraws) : null;
+  if (kern) kern.ex.setState(seedState(seed));
+  const rng = new GaussianSource(seed);
+  const pos = kbuf ? kbuf.pos : Array.from({ length: nAx }, () => new Float64Array(nDraws));
   for (let si = post.segments.length - 1; si >= 0; si--) {
     const sp = post.segments[si]!;
     const { models, data, filtered: f } = sp;
     const N = f.N;
     const dims = models.map((m) => m.n);
-    const cur = dims.map((n) => new Float64Array(nDraws * n));
-    const nxt = dims.map((n) => new Float64Array(nDraws * n));
+    const cur = kbuf ? kbuf.cur.slice() : dims.map((n) => new Float64Array(nDraws * n));
+    const nxt = kbuf ? kbuf.nxt.slice() : dims.map((n) => new Float64Array(nDraws * n));
     const Pk = dims.map((n) => new Float64Array(n * n));
     const G = dims.map((n) => new Float64Array(n * n));
     const c = dims.map((n) => new Float64Array(n));
     const Lc = dims.map((n) => new Float64Array(n * n));
     const xi = new Float64Array(4);
-    const xiBuf = new Float64Array(nDraws * 4);
+    const xiBuf = new Float64Array(kern ? 0 : nDraws * 4);
     const sc = dims.map((n) => makeBackwardScratch(n));
     const F = dims.map((n) => new Float64Array(n * n));
     const Q = dims.map((n) => new Float64Array(n * n));
@@ -106,34 +111,8 @@ export function sampleBackward(post: TrackPosterior, nDraws: number, seed: numbe
         if (reuse && k < N - 1) backwardOffset(n, F[a]!, G[0]!, f.x[a]!, k * n, c[a]!, sc[a]!.Fx);
         const g = reuse ? G[0]! : G[a]!, cc = c[a]!, L = reuse ? Lc[0]! : Lc[a]!;
         const out = cur[a]!, prev = nxt[a]!, p = pos[a]!;
-        rng.fill(xiBuf, nDraws * n);
-        if (k === N - 1) {
-          // the last epoch: the filtered (= smoothed) marginal
-          for (let d = 0; d < nDraws; d++) {
-            for (let i = 0; i < n; i++) xi[i] = xiBuf[d * n + i]!;
-            gaussianDraw(n, f.x[a]!, k * n, L, xi, out, d * n);
-            p[d] = out[d * n]!;
-          }
-        } else if (n === 3) {
-          // backwardDraw written out for n = 3 (the common model: position, velocity, correlated error)
-          const g00 = g[0]!, g01 = g[1]!, g02 = g[2]!, g10 = g[3]!, g11 = g[4]!, g12 = g[5]!, g20 = g[6]!, g21 = g[7]!, g22 = g[8]!;
-          const c0 = cc[0]!, c1 = cc[1]!, c2 = cc[2]!;
-          const l00 = L[0]!, l10 = L[3]!, l11 = L[4]!, l20 = L[6]!, l21 = L[7]!, l22 = L[8]!;
-          for (let d = 0, o = 0; d < nDraws; d++, o += 3) {
-            const x0 = prev[o]!, x1 = prev[o + 1]!, x2 = prev[o + 2]!;
-            const e0 = xiBuf[o]!, e1 = xiBuf[o + 1]!, e2 = xiBuf[o + 2]!;
-            const y0 = c0 + g00 * x0 + g01 * x1 + g02 * x2 + l00 * e0;
-            out[o] = y0;
-            out[o + 1] = c1 + g10 * x0 + g11 * x1 + g12 * x2 + l10 * e0 + l11 * e1;
-            out[o + 2] = c2 + g20 * x0 + g21 * x1 + g22 * x2 + l20 * e0 + l21 * e1 + l22 * e2;
-            p[d] = y0;
-          }
-        } else
-          for (let d = 0; d < nDraws; d++) {
-            for (let i = 0; i < n; i++) xi[i] = xiBuf[d * n + i]!;
-            backwardDraw(n, g, cc, L, prev, d * n, xi, out, d * n);
-            p[d] = out[d * n]!;
-          }
+        if (kern) drawStepKernel(kern, nDraws, k === N - 1, f.x[a]!, k * n, g, cc, L, prev, out, p);
+        else drawStep(rng, nDraws, n, k === N - 1, f.x[a]!, k * n, g, cc, L, prev, out, p, xi, xiBuf);
       }
       visit(sp.epoch0 + k, si, pos);
       // the draws at k become the "next" ones of epoch k − 1
@@ -144,6 +123,47 @@ export function sampleBackward(post: TrackPosterior, nDraws: number, seed: numbe
       }
     }
   }
+}
+
+/**
+ * One axis's draws at one epoch (TypeScript): at a segment's last epoch from the filtered (= smoothed)
+ * marginal N(x, L Lᵀ), else backward from the next epoch's draws: out = c + G xNext + L ξ. The
+ * normals are taken draw by draw, state by state.
+ */
+function drawStep(rng: GaussianSource, D: number, n: number, last: boolean, x: Float64Array, xk: number, g: Float64Array, cc: Float64Array, L: Float64Array, prev: Float64Array, out: Float64Array, p: Float64Array, xi: Float64Array, xiBuf: Float64Array): void {
+  rng.fill(xiBuf, D * n);
+  if (last) {
+    for (let d = 0; d < D; d++) {
+      for (let i = 0; i < n; i++) xi[i] = xiBuf[d * n + i]!;
+      gaussianDraw(n, x, xk, L, xi, out, d * n);
+      p[d] = out[d * n]!;
+    }
+  } else if (n === 3) {
+    // backwardDraw written out for n = 3 (the common model: position, velocity, correlated error)
+    const g00 = g[0]!, g01 = g[1]!, g02 = g[2]!, g10 = g[3]!, g11 = g[4]!, g12 = g[5]!, g20 = g[6]!, g21 = g[7]!, g22 = g[8]!;
+    const c0 = cc[0]!, c1 = cc[1]!, c2 = cc[2]!;
+    const l00 = L[0]!, l10 = L[3]!, l11 = L[4]!, l20 = L[6]!, l21 = L[7]!, l22 = L[8]!;
+    for (let d = 0, o = 0; d < D; d++, o += 3) {
+      const x0 = prev[o]!, x1 = prev[o + 1]!, x2 = prev[o + 2]!;
+      const e0 = xiBuf[o]!, e1 = xiBuf[o + 1]!, e2 = xiBuf[o + 2]!;
+      const y0 = c0 + g00 * x0 + g01 * x1 + g02 * x2 + l00 * e0;
+      out[o] = y0;
+      out[o + 1] = c1 + g10 * x0 + g11 * x1 + g12 * x2 + l10 * e0 + l11 * e1;
+      out[o + 2] = c2 + g20 * x0 + g21 * x1 + g22 * x2 + l20 * e0 + l21 * e1 + l22 * e2;
+      p[d] = y0;
+    }
+  } else
+    for (let d = 0; d < D; d++) {
+      for (let i = 0; i < n; i++) xi[i] = xiBuf[d * n + i]!;
+      backwardDraw(n, g, cc, L, prev, d * n, xi, out, d * n);
+      p[d] = out[d * n]!;
+    }
+}
+
+/** drawStep for n = 3 in the WebAssembly module (the same normals and operations: the same draws); the buffers are views into its memory. */
+function drawStepKernel(k: DrawsKernel, D: number, last: boolean, x: Float64Array, xk: number, g: Float64Array, cc: Float64Array, L: Float64Array, prev: Float64Array, out: Float64Array, p: Float64Array): void {
+  if (last) k.ex.last3(D, out.byteOffset, p.byteOffset, x[xk]!, x[xk + 1]!, x[xk + 2]!, L[0]!, L[3]!, L[4]!, L[6]!, L[7]!, L[8]!);
+  else k.ex.step3(D, prev.byteOffset, out.byteOffset, p.byteOffset, g[0]!, g[1]!, g[2]!, g[3]!, g[4]!, g[5]!, g[6]!, g[7]!, g[8]!, cc[0]!, cc[1]!, cc[2]!, L[0]!, L[3]!, L[4]!, L[6]!, L[7]!, L[8]!);
 }
 
 function sameValues(a: Float64Array, b: Float64Array): boolean {

@@ -51,8 +51,8 @@ function epochIndices(N: number, occ: Occupation[], vx: SurveyVertex[], corners:
   return { occAt, vertexAt, edgeAt };
 }
 
-/** One backward pass of D draws (seeded) gathering the DrawSums of the polyline's vertices, occupations and legs. */
-export function accumulateDraws(r: SessionResult, post: TrackPosterior, occ: Occupation[], vx: SurveyVertex[], corners: LegCorners, D: number, seed: number): DrawSums {
+/** One backward pass of D draws (seeded) gathering the DrawSums of the polyline's vertices, occupations and legs (and the area's shoelace sums when `withArea`; zeros otherwise). */
+export function accumulateDraws(r: SessionResult, post: TrackPosterior, occ: Occupation[], vx: SurveyVertex[], corners: LegCorners, D: number, seed: number, withArea = true): DrawSums {
   const { occAt, vertexAt, edgeAt } = epochIndices(r.N, occ, vx, corners);
   // per used edge and draw: Σe, Σn, Σe², Σn², Σen about the edge's reference point
   const legAcc = Array.from({ length: corners.windows.length }, (_, i) => (corners.used[i] ? [0, 1, 2, 3, 4].map(() => new Float64Array(D)) : null));
@@ -64,10 +64,10 @@ export function accumulateDraws(r: SessionResult, post: TrackPosterior, occ: Occ
   if (D > 0)
     sampleBackward(post, D, seed, (j, _seg, pos) => {
       const e = pos[0]!, n = pos[1]!;
-      if (j === r.N - 1) {
+      if (withArea && j === r.N - 1) {
         last[0].set(e);
         last[1].set(n);
-      } else
+      } else if (withArea)
         for (let d = 0; d < D; d++) {
           // shoelace term of the edge j → j + 1 (across segment gaps too: the polygon is the whole track)
           area2[d] = area2[d]! + (e[d]! * prev[1][d]! - prev[0][d]! * n[d]!);
@@ -95,11 +95,13 @@ export function accumulateDraws(r: SessionResult, post: TrackPosterior, occ: Occ
           for (let d = 0; d < D; d++) t[d] = t[d]! + p[d]!;
         }
       }
-      prev[0].set(e);
-      prev[1].set(n);
+      if (withArea) {
+        prev[0].set(e);
+        prev[1].set(n);
+      }
     });
   // the closing edge last → first (prev holds epoch 0 now)
-  for (let d = 0; d < D; d++) area2[d] = area2[d]! + (last[0][d]! * prev[1][d]! - prev[0][d]! * last[1][d]!);
+  if (withArea) for (let d = 0; d < D; d++) area2[d] = area2[d]! + (last[0][d]! * prev[1][d]! - prev[0][d]! * last[1][d]!);
   return { legAcc, vPos, occSum, area2 };
 }
 

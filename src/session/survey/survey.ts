@@ -86,12 +86,14 @@ export function surveyProducts(r: SessionResult, post: TrackPosterior, o: Survey
   const vx = surveyVertices(r, occ, post, spacing);
   // turns without a stop: the corner rebuilt from the straight legs on either side (leg-corners.ts)
   const corners = legCornersOf(r, vx, SIMPLIFY_SD_FACTOR * (spacing / VERTEX_SD_FACTOR), spacing);
-  const sums = accumulateDraws(r, post, occ, vx, corners, D, o.seed);
+  // whether the track closes is a property of the smoothed track: the draws sum the area only then
+  const closure = closureOf(r);
+  const sums = accumulateDraws(r, post, occ, vx, corners, D, o.seed, closure.closed);
   const means = occupationMeans(occ, sums.occSum);
   placeVertexDraws(vx, corners, sums, means, post.nAx, D);
   const drawn = drawLengths(vx, sums.vPos, nSeg, D, threeD);
   const lengths = lengthEntries(r, post, drawn, smoothedLengths(r, post, vx, corners), D, threeD);
-  const c = closureOf(r, sums.area2, D);
+  const c = { ...closure, areaM2: closure.closed && D > 0 ? areaOf(r, sums.area2) : null };
   const distances = D > 0 ? occupationDistances(occ, means, D, threeD) : [];
   return { draws: D, requestedDraws: o.draws, seed: o.seed, occupationMinSec: o.occupationMinSec, occupations: occ, lengths, closed: c.closed, closureGapM: c.gapM, closureToleranceM: c.toleranceM, areaM2: c.areaM2, distances, vertexSpacingM: spacing, vertices: vx };
 }
@@ -142,8 +144,8 @@ function lengthEntries(r: SessionResult, post: TrackPosterior, drawn: { lenH: Fl
   return lengths;
 }
 
-/** Whether the smoothed track closes on itself (see CLOSURE_MIN_M), its end-to-start gap and tolerance, and the enclosed area from the draws' shoelace sums when it closes. */
-function closureOf(r: SessionResult, area2: Float64Array, D: number): { closed: boolean; gapM: number; toleranceM: number; areaM2: Quantity | null } {
+/** Whether the smoothed track closes on itself (see CLOSURE_MIN_M), with its end-to-start gap and tolerance. */
+function closureOf(r: SessionResult): { closed: boolean; gapM: number; toleranceM: number } {
   // closure on the smoothed track
   const gap = r.N > 1 ? Math.hypot(r.posEnu[0][r.N - 1]! - r.posEnu[0][0]!, r.posEnu[1][r.N - 1]! - r.posEnu[1][0]!) : NaN;
   let smoothLen = 0;
@@ -151,18 +153,18 @@ function closureOf(r: SessionResult, area2: Float64Array, D: number): { closed: 
   // the gap's own uncertainty: the two ends' horizontal variances (χ²₂ at 0.99 = 9.21)
   const vEnds = r.N > 1 ? (r.sdEnu[0][0]! ** 2 + r.sdEnu[1][0]! ** 2 + r.sdEnu[0][r.N - 1]! ** 2 + r.sdEnu[1][r.N - 1]! ** 2) / 2 : 0;
   const tol = Math.max(CLOSURE_MIN_M, CLOSURE_FRACTION * smoothLen, Math.sqrt(CLOSURE_CHI2 * vEnds));
-  const closed = r.N > 3 && gap <= tol && smoothLen > 4 * tol;
-  let areaM2: Quantity | null = null;
-  if (closed && D > 0) {
-    // the smoothed polygon's area (shoelace, closing edge last → first)
-    let a2 = 0;
-    for (let j = 0; j < r.N; j++) {
-      const k = j + 1 < r.N ? j + 1 : 0;
-      a2 += r.posEnu[0][j]! * r.posEnu[1][k]! - r.posEnu[0][k]! * r.posEnu[1][j]!;
-    }
-    areaM2 = recentre(summarize(area2.map((v) => Math.abs(v) / 2)), Math.abs(a2) / 2);
+  return { closed: r.N > 3 && gap <= tol && smoothLen > 4 * tol, gapM: gap, toleranceM: tol };
+}
+
+/** The enclosed area of a closed track: the draws' shoelace sums, centred on the smoothed polygon's area. */
+function areaOf(r: SessionResult, area2: Float64Array): Quantity {
+  // the smoothed polygon's area (shoelace, closing edge last → first)
+  let a2 = 0;
+  for (let j = 0; j < r.N; j++) {
+    const k = j + 1 < r.N ? j + 1 : 0;
+    a2 += r.posEnu[0][j]! * r.posEnu[1][k]! - r.posEnu[0][k]! * r.posEnu[1][j]!;
   }
-  return { closed, gapM: gap, toleranceM: tol, areaM2 };
+  return recentre(summarize(area2.map((v) => Math.abs(v) / 2)), Math.abs(a2) / 2);
 }
 
 /** The distances between occupied points (every pair up to ALL_PAIRS_MAX, else consecutive ones) from each draw's means, centred on the occupations' positions. */
