@@ -5,8 +5,8 @@
  * steps and floating-point operations in the same order (the slow path's exp and log are
  * JavaScript's own, imported), so the same draws bit for bit (test/estimation/draws-wasm.test.ts).
  * Where the module is missing the TypeScript loop runs, with the same results. Measured (four
- * one-hour 1 Hz vehicle logs, 200 draws, warm, in-process): the survey products 84 → see
- * docs/performance.md.
+ * one-hour 1 Hz vehicle logs, 200 draws, warm, in-process): the survey products 84 → 45 ms a log;
+ * the normals were half of the TypeScript loop's time.
  */
 import { wasmInstance, wasmModule, type WasmMemory } from './wasm-module.js';
 import { ZIGGURAT_TABLES } from './gaussian-rng.js';
