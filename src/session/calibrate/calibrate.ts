@@ -317,16 +317,17 @@ function horizontalExtentM(ps: PreparedSession): number {
 }
 
 function horizontalExtentOf(ps: PreparedSession): number {
-  const ext = (a: Float64Array) => {
-    // the 5% and 95% order statistics, selected without sorting (the values of the sorted array)
-    const all = new Float64Array(a.length);
-    let m = 0;
-    for (let i = 0; i < a.length; i++) if (ps.offered[i] !== 0 && Number.isFinite(a[i]!)) all[m++] = a[i]!;
-    if (m < 2) return 0;
-    const v = all.subarray(0, m);
-    return selectKth(v, Math.floor(0.95 * (m - 1))) - selectKth(v, Math.floor(0.05 * (m - 1)));
-  };
-  return Math.max(ext(ps.e), ext(ps.n));
+  return Math.max(range90(ps, ps.e), range90(ps, ps.n));
+}
+
+/** The 5–95 % range of a coordinate over the offered fixes (the 5% and 95% order statistics, selected without sorting). */
+function range90(ps: PreparedSession, a: Float64Array): number {
+  const all = new Float64Array(a.length);
+  let m = 0;
+  for (let i = 0; i < a.length; i++) if (ps.offered[i] !== 0 && Number.isFinite(a[i]!)) all[m++] = a[i]!;
+  if (m < 2) return 0;
+  const v = all.subarray(0, m);
+  return selectKth(v, Math.floor(0.95 * (m - 1))) - selectKth(v, Math.floor(0.05 * (m - 1)));
 }
 
 /** What calibrateSession returns: the parameters, how they were found, and the warnings. */
@@ -544,6 +545,7 @@ function makeLogLikGradient(
   const iSH = idx('sigmaHorizontalM'), iSV = idx('sigmaVerticalM'), iBH = idx('gmHorizontalSigmaM'), iBV = idx('gmVerticalSigmaM');
   const iTH = idx('gmTauSec'), iTV = idx('gmVerticalTauSec'), iQH = idx('qHorizontal'), iQV = idx('qVertical');
   const iEH = idx('hdopExponent'), iES = idx('satsExponent'), iEQ = idx('fixQualityExponent'), iER = idx('reportedExponent');
+  const sums = new Float64Array(5);
   return (x) => {
     const { models, rScale } = apply(toParams(x));
     const g = new Array<number>(names.length).fill(0);
@@ -561,35 +563,50 @@ function makeLogLikGradient(
         if (e instanceof NumericalError) return g.map(() => NaN);
         throw e;
       }
-      sc.axes.forEach((ax, a) => {
+      for (let a = 0; a < sc.axes.length; a++) {
+        const ax = sc.axes[a]!;
         const vertical = a === 2;
         add(vertical ? iQV : iQH, ax.dLogQ);
         add(vertical ? iBV : iBH, ax.dLogSigmaB);
         add(vertical ? (ownTauV ? iTV : iTH) : iTH, ax.dLogTau);
-        const w = sc.dLogR[a]!;
-        let sumW = 0, sumH = 0, sumS = 0, sumQ = 0, sumR = 0;
-        for (let k = 0; k < data.N; k++) {
-          const wk = w[k]!;
-          if (wk === 0) continue;
-          sumW += wk;
-          if (quality) {
-            // log r = 2 (αₕ t_dop + αₛ t_sats + α_q t_quality) (quality-variances.ts)
-            const c = 3 * (vertical ? quality.idxV[k]! : quality.idxH[k]!);
-            const comb = vertical ? quality.combV : quality.combH;
-            sumH += wk * comb[c]!;
-            sumS += wk * comb[c + 1]!;
-            sumQ += wk * comb[c + 2]!;
-          } else if (reportedTerms) sumR += wk * reportedTerms[a]![k]!;
-        }
-        add(vertical ? iSV : iSH, 2 * sumW);
-        add(iEH, 2 * sumH);
-        add(iES, 2 * sumS);
-        add(iEQ, 2 * sumQ);
-        add(iER, 2 * sumR);
-      });
+        weightedTermSums(sc.dLogR[a]!, data.N, quality, vertical, reportedTerms ? reportedTerms[a]! : null, sums);
+        add(vertical ? iSV : iSH, 2 * sums[0]!);
+        add(iEH, 2 * sums[1]!);
+        add(iES, 2 * sums[2]!);
+        add(iEQ, 2 * sums[3]!);
+        add(iER, 2 * sums[4]!);
+      }
     }
     return g;
   };
+}
+
+/**
+ * Over an axis's epochs, with w = ∂ log L / ∂ log r per epoch: Σ w, and Σ w × the epoch's log
+ * quality terms (DOP, satellites, fix quality: log r = 2 (αₕ t_dop + αₛ t_sats + α_q t_quality),
+ * quality-variances.ts) or its reported-sigma term, into out[0..5). A module-level function (not a
+ * closure made per calibration) so that its loop is compiled once for all sessions of a thread.
+ */
+function weightedTermSums(w: Float64Array, N: number, quality: QualityTable | null, vertical: boolean, reported: Float64Array | null, out: Float64Array): void {
+  let sumW = 0, sumH = 0, sumS = 0, sumQ = 0, sumR = 0;
+  const idx = quality ? (vertical ? quality.idxV : quality.idxH) : null;
+  const comb = quality ? (vertical ? quality.combV : quality.combH) : null;
+  for (let k = 0; k < N; k++) {
+    const wk = w[k]!;
+    if (wk === 0) continue;
+    sumW += wk;
+    if (comb) {
+      const c = 3 * idx![k]!;
+      sumH += wk * comb[c]!;
+      sumS += wk * comb[c + 1]!;
+      sumQ += wk * comb[c + 2]!;
+    } else if (reported) sumR += wk * reported[k]!;
+  }
+  out[0] = sumW;
+  out[1] = sumH;
+  out[2] = sumS;
+  out[3] = sumQ;
+  out[4] = sumR;
 }
 
 /** The prior's penalty (−log density up to a constant) at search coordinates x, around the prior centres xPrior. */

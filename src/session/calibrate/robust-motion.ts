@@ -32,38 +32,48 @@ const MIN_PAIRS = 30;
  */
 export function secondDifferenceVariances(ps: PreparedSession, lagsSec: readonly number[] = ROBUST_LAGS_SEC): Float64Array {
   const out = new Float64Array(lagsSec.length).fill(NaN);
+  const scratch = { buf: new Float64Array(1024) };
+  for (let li = 0; li < lagsSec.length; li++) {
+    const m = squaredSecondDifferences(ps, lagsSec[li]!, scratch);
+    if (m >= MIN_PAIRS) out[li] = selectKth(scratch.buf.subarray(0, m), m >> 1) / MEDIAN_CHI2_1;
+  }
+  return out;
+}
+
+/**
+ * The squared east and north second differences at lag L (s) into scratch.buf (grown as needed),
+ * over every step-th centre of each segment (at most ~20,000 differences a lag: the median needs no
+ * more); returns their count. A module-level function, not a closure made per call, so that the
+ * engine compiles its loop once for all sessions of a thread.
+ */
+function squaredSecondDifferences(ps: PreparedSession, L: number, scratch: { buf: Float64Array }): number {
   const t = ps.series.tSec;
   const dt = ps.intervalSec > 0 ? ps.intervalSec : 1;
-  let scratch = new Float64Array(1024);
-  lagsSec.forEach((L, li) => {
-    const stride = Math.max(1, Math.round(L / dt));
-    const lag = stride * dt;
-    // every step-th centre: at most ~20,000 differences a lag (the median needs no more)
-    let m = 0;
-    for (const [a, b] of ps.segments) {
-      const total = b - a + 1;
-      const step = Math.max(1, Math.floor(total / 20000));
-      for (let i = a + stride; i + stride <= b; i += step) {
-        const i0 = i - stride, i2 = i + stride;
-        if (!ps.offered[i0] || !ps.offered[i] || !ps.offered[i2]) continue;
-        const d1 = t[i]! - t[i0]!, d2 = t[i2]! - t[i]!;
-        if (Math.abs(d1 - lag) > 0.1 * lag || Math.abs(d2 - lag) > 0.1 * lag) continue;
-        const de = ps.e[i2]! - 2 * ps.e[i]! + ps.e[i0]!;
-        const dn = ps.n[i2]! - 2 * ps.n[i]! + ps.n[i0]!;
-        if (!Number.isFinite(de) || !Number.isFinite(dn)) continue;
-        if (m + 2 > scratch.length) {
-          const g = new Float64Array(scratch.length * 2);
-          g.set(scratch);
-          scratch = g;
-        }
-        scratch[m++] = de * de;
-        scratch[m++] = dn * dn;
+  const stride = Math.max(1, Math.round(L / dt));
+  const lag = stride * dt;
+  let m = 0;
+  let buf = scratch.buf;
+  for (const [a, b] of ps.segments) {
+    const total = b - a + 1;
+    const step = Math.max(1, Math.floor(total / 20000));
+    for (let i = a + stride; i + stride <= b; i += step) {
+      const i0 = i - stride, i2 = i + stride;
+      if (!ps.offered[i0] || !ps.offered[i] || !ps.offered[i2]) continue;
+      const d1 = t[i]! - t[i0]!, d2 = t[i2]! - t[i]!;
+      if (Math.abs(d1 - lag) > 0.1 * lag || Math.abs(d2 - lag) > 0.1 * lag) continue;
+      const de = ps.e[i2]! - 2 * ps.e[i]! + ps.e[i0]!;
+      const dn = ps.n[i2]! - 2 * ps.n[i]! + ps.n[i0]!;
+      if (!Number.isFinite(de) || !Number.isFinite(dn)) continue;
+      if (m + 2 > buf.length) {
+        const g = new Float64Array(buf.length * 2);
+        g.set(buf);
+        buf = scratch.buf = g;
       }
+      buf[m++] = de * de;
+      buf[m++] = dn * dn;
     }
-    if (m < MIN_PAIRS) return;
-    out[li] = selectKth(scratch.subarray(0, m), m >> 1) / MEDIAN_CHI2_1;
-  });
-  return out;
+  }
+  return m;
 }
 
 /**

@@ -61,6 +61,11 @@ export function unpackCov(n: number, P: Float64Array, k: number, out: Float64Arr
   for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) out[i * n + j] = P[o + covIndex(n, i, j)]!;
 }
 
+/** What sampleBackward hands each epoch's draws to (a function also does). */
+export interface DrawVisitor {
+  visit(j: number, seg: number, pos: Float64Array[]): void;
+}
+
 /**
  * Draw `nDraws` whole tracks from the posterior, seeded, and hand each epoch's positions to
  * `visit(j, segment, pos)` where pos[a][d] is the position of draw d on axis a (m, local frame).
@@ -68,7 +73,9 @@ export function unpackCov(n: number, P: Float64Array, k: number, out: Float64Arr
  * The normals (estimation/gaussian-rng.ts) are taken in a fixed order (segment, epoch, axis, draw,
  * state), so a seed and a number of draws give the same draws on every run.
  */
-export function sampleBackward(post: TrackPosterior, nDraws: number, seed: number, visit: (j: number, seg: number, pos: Float64Array[]) => void): void {
+export function sampleBackward(post: TrackPosterior, nDraws: number, seed: number, visitor: ((j: number, seg: number, pos: Float64Array[]) => void) | DrawVisitor): void {
+  // a visitor object's method is one function for all sessions (compiled once), a closure one per call
+  const v: DrawVisitor = typeof visitor === 'function' ? { visit: visitor } : visitor;
   const nAx = post.nAx;
   // every axis with three states: the draw step in WebAssembly (estimation/draws-wasm.ts, the same draws)
   const kern = nDraws > 0 && post.segments.every((sp) => sp.models.every((m) => m.n === 3)) ? drawsKernel() : null;
@@ -114,7 +121,7 @@ export function sampleBackward(post: TrackPosterior, nDraws: number, seed: numbe
         if (kern) drawStepKernel(kern, nDraws, k === N - 1, f.x[a]!, k * n, g, cc, L, prev, out, p);
         else drawStep(rng, nDraws, n, k === N - 1, f.x[a]!, k * n, g, cc, L, prev, out, p, xi, xiBuf);
       }
-      visit(sp.epoch0 + k, si, pos);
+      v.visit(sp.epoch0 + k, si, pos);
       // the draws at k become the "next" ones of epoch k − 1
       for (let a = 0; a < nAx; a++) {
         const t = cur[a]!;

@@ -7,7 +7,7 @@
  * The survey products (session/survey/survey.ts) summarise these over the draws.
  */
 import type { SessionResult } from '../result/result.js';
-import { sampleBackward, type TrackPosterior } from './posterior.js';
+import { sampleBackward, type DrawVisitor, type TrackPosterior } from './posterior.js';
 import { intersectLines, lineOfSums, type LegSums } from './leg-corners.js';
 import type { Occupation, SurveyVertex } from '../result/survey-types.js';
 
@@ -59,50 +59,84 @@ export function accumulateDraws(r: SessionResult, post: TrackPosterior, occ: Occ
   const vPos = [0, 1, 2].map(() => Array.from({ length: vx.length }, () => new Float64Array(D)));
   const occSum = occ.map(() => [new Float64Array(D), new Float64Array(D), new Float64Array(D)]);
   const area2 = new Float64Array(D);
-  const prev: [Float64Array, Float64Array] = [new Float64Array(D), new Float64Array(D)];
-  const last: [Float64Array, Float64Array] = [new Float64Array(D), new Float64Array(D)];
-  if (D > 0)
-    sampleBackward(post, D, seed, (j, _seg, pos) => {
-      const e = pos[0]!, n = pos[1]!;
-      if (withArea && j === r.N - 1) {
-        last[0].set(e);
-        last[1].set(n);
-      } else if (withArea)
-        for (let d = 0; d < D; d++) {
-          // shoelace term of the edge j → j + 1 (across segment gaps too: the polygon is the whole track)
-          area2[d] = area2[d]! + (e[d]! * prev[1][d]! - prev[0][d]! * n[d]!);
-        }
-      const ei = edgeAt[j]!;
-      if (ei >= 0) {
-        const acc = legAcc[ei]!, ce = corners.ref[ei]![0]!, cn = corners.ref[ei]![1]!;
-        const s0 = acc[0]!, s1 = acc[1]!, s2 = acc[2]!, s3 = acc[3]!, s4 = acc[4]!;
-        for (let d = 0; d < D; d++) {
-          const x = e[d]! - ce, y = n[d]! - cn;
-          s0[d] = s0[d]! + x;
-          s1[d] = s1[d]! + y;
-          s2[d] = s2[d]! + x * x;
-          s3[d] = s3[d]! + y * y;
-          s4[d] = s4[d]! + x * y;
-        }
-      }
-      const vi = vertexAt[j]!;
-      if (vi >= 0) for (let a = 0; a < post.nAx; a++) vPos[a]![vi]!.set(pos[a]!);
-      const oi = occAt[j]!;
-      if (oi >= 0) {
-        const sum = occSum[oi]!;
-        for (let a = 0; a < post.nAx; a++) {
-          const p = pos[a]!, t = sum[a]!;
-          for (let d = 0; d < D; d++) t[d] = t[d]! + p[d]!;
-        }
-      }
-      if (withArea) {
-        prev[0].set(e);
-        prev[1].set(n);
-      }
-    });
-  // the closing edge last → first (prev holds epoch 0 now)
-  if (withArea) for (let d = 0; d < D; d++) area2[d] = area2[d]! + (last[0][d]! * prev[1][d]! - prev[0][d]! * last[1][d]!);
+  const acc = new DrawAccumulator(r.N, post.nAx, D, withArea, occAt, vertexAt, edgeAt, corners, legAcc, vPos, occSum, area2);
+  if (D > 0) sampleBackward(post, D, seed, acc);
+  acc.closeArea();
   return { legAcc, vPos, occSum, area2 };
+}
+
+/**
+ * The backward pass's visitor of accumulateDraws: per epoch (last to first) the draws' shoelace
+ * terms, leg sums, vertex positions and occupation sums. A class, so that its method is one
+ * function for every session of a thread and the engine compiles its loops once (a closure made per
+ * session is compiled again for each).
+ */
+class DrawAccumulator implements DrawVisitor {
+  private readonly prev: [Float64Array, Float64Array];
+  private readonly last: [Float64Array, Float64Array];
+  constructor(
+    private readonly N: number,
+    private readonly nAx: number,
+    private readonly D: number,
+    private readonly withArea: boolean,
+    private readonly occAt: Int32Array,
+    private readonly vertexAt: Int32Array,
+    private readonly edgeAt: Int32Array,
+    private readonly corners: LegCorners,
+    private readonly legAcc: Array<Float64Array[] | null>,
+    private readonly vPos: Float64Array[][],
+    private readonly occSum: Float64Array[][],
+    private readonly area2: Float64Array,
+  ) {
+    this.prev = [new Float64Array(D), new Float64Array(D)];
+    this.last = [new Float64Array(D), new Float64Array(D)];
+  }
+
+  visit(j: number, _seg: number, pos: Float64Array[]): void {
+    const { D, prev, last, area2 } = this;
+    const e = pos[0]!, n = pos[1]!;
+    if (this.withArea && j === this.N - 1) {
+      last[0].set(e);
+      last[1].set(n);
+    } else if (this.withArea)
+      for (let d = 0; d < D; d++) {
+        // shoelace term of the edge j → j + 1 (across segment gaps too: the polygon is the whole track)
+        area2[d] = area2[d]! + (e[d]! * prev[1][d]! - prev[0][d]! * n[d]!);
+      }
+    const ei = this.edgeAt[j]!;
+    if (ei >= 0) {
+      const acc = this.legAcc[ei]!, ce = this.corners.ref[ei]![0]!, cn = this.corners.ref[ei]![1]!;
+      const s0 = acc[0]!, s1 = acc[1]!, s2 = acc[2]!, s3 = acc[3]!, s4 = acc[4]!;
+      for (let d = 0; d < D; d++) {
+        const x = e[d]! - ce, y = n[d]! - cn;
+        s0[d] = s0[d]! + x;
+        s1[d] = s1[d]! + y;
+        s2[d] = s2[d]! + x * x;
+        s3[d] = s3[d]! + y * y;
+        s4[d] = s4[d]! + x * y;
+      }
+    }
+    const vi = this.vertexAt[j]!;
+    if (vi >= 0) for (let a = 0; a < this.nAx; a++) this.vPos[a]![vi]!.set(pos[a]!);
+    const oi = this.occAt[j]!;
+    if (oi >= 0) {
+      const sum = this.occSum[oi]!;
+      for (let a = 0; a < this.nAx; a++) {
+        const p = pos[a]!, t = sum[a]!;
+        for (let d = 0; d < D; d++) t[d] = t[d]! + p[d]!;
+      }
+    }
+    if (this.withArea) {
+      prev[0].set(e);
+      prev[1].set(n);
+    }
+  }
+
+  /** The closing edge last → first (prev holds epoch 0 once the pass is done). */
+  closeArea(): void {
+    const { D, prev, last, area2 } = this;
+    if (this.withArea) for (let d = 0; d < D; d++) area2[d] = area2[d]! + (last[0][d]! * prev[1][d]! - prev[0][d]! * last[1][d]!);
+  }
 }
 
 /** Each draw's occupied points: its mean position over the occupation (per occupation, axis and draw). */
