@@ -34,6 +34,13 @@ export interface BoxBfgsOptions {
    * `gradients`, not in `evaluations`.
    */
   gradient?: (x: number[]) => number[];
+  /**
+   * The diagonal start's second derivatives ∂²f/∂xᵢ² at x (f = f(x)) from the caller, instead of
+   * curvatureStep's n second differences: for an objective whose structure gives them for fewer
+   * evaluations (a pooled calibration steps the process noise of every log at once). Its
+   * evaluations are the caller's to count. Needs `gradient`.
+   */
+  diagonalStart?: (x: number[], f: number) => number[];
 }
 
 export interface BoxBfgsResult {
@@ -56,7 +63,10 @@ export function boxBfgs(f: (x: number[]) => number, x0: number[], opt: BoxBfgsOp
   // inverse Hessian approximation Hk (row-major n×n); null until the first update scales it
   let Hinv: number[][] | null = null;
   let g: number[];
-  if (opt.curvatureStep) {
+  if (opt.diagonalStart && opt.gradient) {
+    g = run.gradient(x, fCur, central);
+    Hinv = diagonalInverse(opt.diagonalStart(x, fCur));
+  } else if (opt.curvatureStep) {
     const start = run.curvatureStart(x, fCur, opt.curvatureStep);
     g = opt.gradient ? run.gradient(x, fCur, central) : start.g;
     Hinv = start.Hinv;
@@ -207,9 +217,7 @@ class BoxBfgsRun {
     const atBound = (xi: number, i: number) => !(Math.min(curvatureStep[i]!, hi[i]! - xi, xi - lo[i]!) > 0);
     const gb = x.some(atBound) ? this.gradient(x, fCur, false) : null;
     if (gb) x.forEach((xi, i) => { if (atBound(xi, i)) g[i] = gb[i]!; });
-    // a positive curvature each: a usable diagonal start
-    const Hinv = diag.every((v) => Number.isFinite(v) && v > 0) ? diag.map((v, i) => Array.from({ length: n }, (_, j) => (i === j ? 1 / v : 0))) : null;
-    return { g, Hinv };
+    return { g, Hinv: diagonalInverse(diag) };
   }
 
   /** Active set (Bertsekas 1982): at a bound with the gradient pointing out of the box. */
@@ -266,6 +274,12 @@ class BoxBfgsRun {
  * H₀ = (sᵀy / yᵀy) I at the first (eq. 6.20); skipped without curvature sᵀy > 0 (§6.1: H stays
  * positive definite). Updates Hinv in place; returns it (or the new one, or null as given).
  */
+/** H₀ = diag(1 / dᵢ) where every dᵢ is a positive curvature (a usable diagonal start), else null (steepest descent first). */
+function diagonalInverse(diag: number[]): number[][] | null {
+  const n = diag.length;
+  return diag.every((v) => Number.isFinite(v) && v > 0) ? diag.map((v, i) => Array.from({ length: n }, (_, j) => (i === j ? 1 / v : 0))) : null;
+}
+
 function updateInverseHessian(Hinv: number[][] | null, s: number[], yv: number[]): number[][] | null {
   const n = s.length;
   let sy = 0, yy = 0, ss = 0;

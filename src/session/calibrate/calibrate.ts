@@ -661,6 +661,7 @@ export function minimize(
   opt: CalibrationOptions,
   quasiNewton: boolean,
   gradient?: (x: number[]) => number[],
+  diagonalStart?: (x: number[], f: number) => number[],
 ): { x: number[]; f: number; evaluations: number; gradients: number } {
   if (quasiNewton) {
     // projected BFGS inside the bounds; a difference step of 1e-5 (log space: 0.001 %) is far below
@@ -675,6 +676,7 @@ export function minimize(
       // a diagonal start from second differences at 0.01 (1 % in log space): the search starts near the optimum
       curvatureStep: names.map(() => 0.01),
       gradient,
+      ...(diagonalStart ? { diagonalStart } : {}),
     });
     return { x: q.x, f: q.f, evaluations: q.evaluations, gradients: q.gradients };
   }
@@ -722,7 +724,7 @@ function gradientHessian(gradient: (x: number[]) => number[], x: number[], free:
 }
 
 /** Standard errors in search coordinates at the optimum x over the parameters `free` (NaN elsewhere, or where the information matrix is singular). */
-function searchStandardErrors(negLogLik: (x: number[]) => number, x: number[], free: number[], gradient?: (x: number[]) => number[]): number[] {
+function searchStandardErrors(negLogLik: (x: number[]) => number, x: number[], free: number[], gradient?: (x: number[]) => number[], hessian?: HessianOf): number[] {
   const seLog: number[] = x.map(() => NaN);
   try {
     const sub = (y: number[]) => {
@@ -731,7 +733,7 @@ function searchStandardErrors(negLogLik: (x: number[]) => number, x: number[], f
       return negLogLik(xs);
     };
     const finite = (M: number[][]) => M.every((row) => row.every(Number.isFinite));
-    let H = !free.length ? [] : gradient ? gradientHessian(gradient, x, free) : numericalHessian(sub, free.map((i) => x[i]!), free.map(() => 0.02));
+    let H = !free.length ? [] : hessian ? hessian(x, free) : gradient ? gradientHessian(gradient, x, free) : numericalHessian(sub, free.map((i) => x[i]!), free.map(() => 0.02));
     // an exact gradient unavailable somewhere near x: the second differences of the objective
     if (gradient && !finite(H)) H = numericalHessian(sub, free.map((i) => x[i]!), free.map(() => 0.02));
     if (free.length && H.every((row) => row.every(Number.isFinite))) {
@@ -747,9 +749,13 @@ function searchStandardErrors(negLogLik: (x: number[]) => number, x: number[], f
   return seLog;
 }
 
+/** The objective's Hessian at x over the coordinates `free` (a search whose structure gives a cheaper one than gradientHessian). */
+export type HessianOf = (x: number[], free: number[]) => number[][];
+
 /**
  * The estimates at the optimum x, one per entry of `names` (a name may repeat: a pooled search has a
- * process noise per log), with standard errors when `standardErrors` and whether each sits at a bound.
+ * process noise per log), with standard errors when `standardErrors` and whether each sits at a bound;
+ * `hessian`, where given, replaces the differences of the gradient for the standard errors.
  */
 export function estimatesAt(
   negLogLik: (x: number[]) => number,
@@ -757,6 +763,7 @@ export function estimatesAt(
   x: number[],
   standardErrors: boolean,
   gradient?: (x: number[]) => number[],
+  hessian?: HessianOf,
 ): { list: ParamEstimate[]; gradients: number } {
   // standard errors from the observed information (Hessian of −log L in log space), over the
   // parameters inside their bounds (a parameter at a bound is held there: the objective is infinite
@@ -769,10 +776,10 @@ export function estimatesAt(
     return LINEAR.has(nm) ? v <= lo + 0.02 || v >= hi - 0.02 : v <= lo * 1.05 || v >= hi / 1.05;
   });
   const free = names.map((_, i) => i).filter((i) => !atBound[i]);
-  const seLog = standardErrors ? searchStandardErrors(negLogLik, x, free, gradient) : names.map(() => NaN);
+  const seLog = standardErrors ? searchStandardErrors(negLogLik, x, free, gradient, hessian) : names.map(() => NaN);
   // delta method: se(θ) ≈ θ · se(log θ) (the exponents: their own scale)
   const list = names.map((nm, i) => ({ value: values[i]!, se: LINEAR.has(nm) ? seLog[i]! : values[i]! * seLog[i]!, atBound: atBound[i]! }));
-  return { list, gradients: standardErrors && gradient ? 2 * free.length : 0 };
+  return { list, gradients: standardErrors && gradient && !hessian ? 2 * free.length : 0 };
 }
 
 /** estimatesAt keyed by parameter name (names distinct). */

@@ -129,6 +129,17 @@ describe('the pooled search reaches the joint maximum', () => {
         expect(Math.abs(e!.value - d.value), `${nm} of log ${i}`).toBeLessThanOrEqual(tol);
       }
   });
+  it('standard errors from the structured Hessian of exact gradients agree with second differences of the objective (within 10%)', () => {
+    let compared = 0;
+    for (let i = 0; i < m.length; i++)
+      for (const [nm, e] of Object.entries(exact[i]!.info.estimates)) {
+        const d = diff[i]!.info.estimates[nm as keyof typeof exact[0]['info']['estimates']]!;
+        if (e!.atBound || !Number.isFinite(e!.se) || !Number.isFinite(d.se)) continue;
+        compared++;
+        expect(Math.abs(e!.se / d.se - 1), `${nm} of log ${i}`).toBeLessThan(0.1);
+      }
+    expect(compared).toBeGreaterThanOrEqual(3 * 6);
+  });
 });
 
 describe('groups that cannot be pooled whole', () => {
