@@ -79,7 +79,7 @@ export function addRunCommand(program: Command, setCode: (code: number) => void)
 }
 
 async function runCommand(input: string, o: RunOpts): Promise<number> {
-  const config = loadConfig({ profile: o.profile, configFile: o.config, overrides: configOverrides(o) });
+  const config = loadConfig({ profile: o.profile, configFile: o.config, overrides: configOverrides(o), overridesSource: 'command-line options' });
   const progress = makeProgress({ quiet: !!o.quiet, verbose: !!o.verbose, tty: !!process.stderr.isTTY, out: process.stdout, err: process.stderr });
   // Ctrl-C / a scheduler's TERM: every output so far is complete (atomic writes), so stop at once
   const interrupted = (signal: NodeJS.Signals): void => {

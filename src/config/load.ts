@@ -70,6 +70,8 @@ export interface LoadOptions {
   profile?: string;
   configFile?: string;
   overrides?: Json;
+  /** Where the overrides come from, for error messages (default "the settings given"; the CLI: "command-line options"). */
+  overridesSource?: string;
 }
 
 export function loadConfig(opt: LoadOptions = {}): HindcastConfig {
@@ -88,6 +90,9 @@ export function loadConfig(opt: LoadOptions = {}): HindcastConfig {
     merged = deepMerge(merged, readJson(path));
     sources.push(opt.configFile);
   }
-  if (opt.overrides) merged = deepMerge(merged, opt.overrides);
+  if (opt.overrides && Object.keys(opt.overrides).length > 0) {
+    merged = deepMerge(merged, opt.overrides);
+    sources.push(opt.overridesSource ?? 'the settings given');
+  }
   return validateConfig(merged, sources.join(' + '));
 }

@@ -60,3 +60,23 @@ describe('time zone checked at configuration load', () => {
     expect(r.stdout).toBe('');
   });
 });
+
+describe('--pool', () => {
+  it('a broken pattern is refused as a configuration error naming the command line and the field (exit 2)', () => {
+    const r = hindcast('run', input, '--out', join(root, 'o-pool'), '--pool', '(');
+    expect(r.status).toBe(2);
+    expect(r.stderr).toMatch(/command-line options: invalid configuration/);
+    expect(r.stderr).toMatch(/batch\.poolPattern: not a regular expression/);
+  });
+  it('"folder" pools the logs of a folder: summary.json names the pool and its members', async () => {
+    const dir = join(root, 'pool-in', 'rx1');
+    await (await import('node:fs/promises')).mkdir(dir, { recursive: true });
+    await writeFile(join(dir, 'a.csv'), sessionCsv(11, 400));
+    await writeFile(join(dir, 'b.csv'), sessionCsv(12, 400));
+    const out = join(root, 'o-pool2');
+    const r = hindcast('run', join(root, 'pool-in'), '--out', out, '--config', settings, '--jobs', '1', '--pool', 'folder');
+    expect(r.status).toBe(0);
+    const s = JSON.parse(await readFile(join(out, 'summary.json'), 'utf8')) as { sessions: Array<{ info: { calibration: { pool: { group: string; members: string[] } } } }> };
+    for (const e of s.sessions) expect(e.info.calibration.pool).toMatchObject({ group: 'rx1', members: ['rx1/a', 'rx1/b'] });
+  });
+});
