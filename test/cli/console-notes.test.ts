@@ -1,7 +1,8 @@
 /**
  * What the command says about each session beyond its counts (compiled, in a child process, not on
  * a terminal): warning counts and fallbacks on the per-session line, --verbose listing them, and a
- * misspelt time zone refused as a configuration error (exit 2) before any session runs.
+ * misspelt time zone refused as a configuration error (exit 2) before any session runs; --pool with
+ * a broken pattern refused alike, and pooling a folder.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { spawnSync } from 'node:child_process';
