@@ -81,12 +81,65 @@ export function px1(v: number): string {
   return String(Math.round(v * 10) / 10);
 }
 
+/**
+ * The spec with every inline dataset (`data: { values }`) replaced by a named one, and the values by
+ * name: the template is the same for every session's chart of one kind, so its compiled and parsed
+ * form is reused and only the data change. The same array object gets one name (as Vega-Lite merges
+ * equal inline datasets); empty ones share one.
+ */
+export function withNamedData(spec: unknown): { template: unknown; data: Map<string, unknown[]> } {
+  const data = new Map<string, unknown[]>();
+  const names = new Map<unknown[], string>();
+  const nameOf = (values: unknown[]): string => {
+    const key = values.length === 0 ? EMPTY : values;
+    let n = names.get(key);
+    if (n === undefined) {
+      n = `hc_data_${names.size}`;
+      names.set(key, n);
+      data.set(n, values);
+    }
+    return n;
+  };
+  const walk = (v: unknown): unknown => {
+    if (Array.isArray(v)) return v.map(walk);
+    if (!v || typeof v !== 'object') return v;
+    const out: Record<string, unknown> = {};
+    for (const [k, x] of Object.entries(v as Record<string, unknown>)) {
+      const values = k === 'data' && x && typeof x === 'object' && Array.isArray((x as { values?: unknown }).values) ? ((x as { values: unknown[] }).values) : null;
+      out[k] = values && Object.keys(x as object).length === 1 ? { name: nameOf(values) } : walk(x);
+    }
+    return out;
+  };
+  return { template: walk(spec), data };
+}
+
+const EMPTY: unknown[] = [];
+
+/** Tests and troubleshooting: false compiles every chart from its own spec with its data inline (the same SVG, slower). */
+export const CHART_CACHE: { use: boolean } = { use: true };
+
+/** Parsed Vega runtimes by template (one thread's charts of a few kinds; bounded, oldest dropped first). */
+const RUNTIMES = new Map<string, ReturnType<typeof vega.parse>>();
+const MAX_RUNTIMES = 64;
+
 export async function renderSvg(spec: TopLevelSpec): Promise<string> {
   const s = spec as TopLevelSpec & { config?: Record<string, unknown> };
   const overlay = OVERLAYS.get(spec);
   const config = { ...(s.config ?? {}), legend: { ...LEGEND_CONFIG, ...((s.config?.legend as object | undefined) ?? {}) } };
-  const vg = compile({ ...s, config } as TopLevelSpec).spec;
-  const view = new vega.View(vega.parse(vg), { renderer: 'none', loader: noLoader });
+  let view: vega.View;
+  if (CHART_CACHE.use) {
+    // the compiled and parsed chart reused across sessions: only its datasets change
+    const { template, data } = withNamedData({ ...s, config });
+    const key = JSON.stringify(template);
+    let runtime = RUNTIMES.get(key);
+    if (!runtime) {
+      runtime = vega.parse(compile(template as TopLevelSpec).spec);
+      if (RUNTIMES.size >= MAX_RUNTIMES) RUNTIMES.delete(RUNTIMES.keys().next().value!);
+      RUNTIMES.set(key, runtime);
+    }
+    view = new vega.View(runtime, { renderer: 'none', loader: noLoader });
+    for (const [name, values] of data) view.data(name, values);
+  } else view = new vega.View(vega.parse(compile({ ...s, config } as TopLevelSpec).spec), { renderer: 'none', loader: noLoader });
   try {
     const svg = roundSvgGeometry(await view.toSVG());
     return overlay ? putOverlays(svg, overlay((name) => view.scale(name) as (v: number) => number)) : svg;
