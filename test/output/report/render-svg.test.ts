@@ -3,8 +3,9 @@
  * datasets replaced by named ones, the compiled and parsed chart reused across sessions, each
  * session's data set by name) against each chart compiled and drawn from its own spec with its data
  * inline (CHART_CACHE.use false: as Vega-Lite and Vega draw it without the cache): the same SVG
- * text (clip-path ids aside, which Vega numbers over the process), overlays included, for every chart of sessions with and without heights, drawn one after
- * another (the later ones from the cache).
+ * text (clip-path ids aside, which Vega numbers over the process), overlays included, for every
+ * chart of sessions with and without heights, drawn one after another (the later ones from the
+ * cache).
  */
 import { afterEach, describe, expect, it } from 'vitest';
 import { loadConfig } from '../../../src/config/load.js';
