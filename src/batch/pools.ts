@@ -1,9 +1,12 @@
 /**
  * Which logs of a batch are calibrated together (batch.pool; session/calibrate/pooled.ts): the logs
- * of one folder, or those whose relative path a pattern matches alike. Logs with an IMU companion
- * take the IMU path and are processed alone; a group of one is no pool.
+ * of one folder, those whose relative path a pattern matches alike, or CSV logs with the same first
+ * value in a named column (read here, before the sessions run). Logs with an IMU companion take the
+ * IMU path and are processed alone; a group of one is no pool.
  */
 import type { HindcastConfig } from '../config/schema.js';
+import { csvColumnValue } from '../input/csv-fixes.js';
+import { decodeText, formatFromName, readLogBytes, sniffFormat } from '../input/read-log.js';
 import type { Planned } from './plan.js';
 
 /** The pool of a log (by its "/"-separated path relative to the input folder), or null (alone). */
@@ -20,12 +23,12 @@ export function poolOf(relPath: string, b: HindcastConfig['batch']): string | nu
 }
 
 /** The pools of the planned sessions that can run (two logs or more each, in plan order), by name. */
-export function poolGroups(planned: Planned[], cfg: HindcastConfig): Map<string, Planned[]> {
+export async function poolGroups(planned: Planned[], cfg: HindcastConfig): Promise<Map<string, Planned[]>> {
   const groups = new Map<string, Planned[]>();
   if (cfg.batch.pool === 'none') return groups;
   for (const p of planned) {
     if (p.refused || p.si.companions.some((c) => c.suffix === '.imu.csv')) continue;
-    const g = poolOf(p.si.relPath, cfg.batch);
+    const g = cfg.batch.pool === 'column' ? await columnPoolOf(p, cfg) : poolOf(p.si.relPath, cfg.batch);
     if (g === null) continue;
     const list = groups.get(g) ?? [];
     list.push(p);
@@ -33,6 +36,18 @@ export function poolGroups(planned: Planned[], cfg: HindcastConfig): Map<string,
   }
   for (const [g, list] of groups) if (list.length < 2) groups.delete(g);
   return groups;
+}
+
+/** The pool of a CSV log by its first value in batch.poolColumn, or null (not CSV, no such column, unreadable: the session says why when it runs). */
+async function columnPoolOf(p: Planned, cfg: HindcastConfig): Promise<string | null> {
+  try {
+    const text = decodeText(await readLogBytes(p.si.path, p.si.relPath), p.si.relPath);
+    const format = formatFromName(p.si.relPath);
+    if (format !== 'csv' && !(format === 'sniff' && sniffFormat(text) === 'csv')) return null;
+    return csvColumnValue(text, p.si.relPath, cfg, cfg.batch.poolColumn!);
+  } catch {
+    return null;
+  }
 }
 
 /**

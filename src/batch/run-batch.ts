@@ -110,7 +110,7 @@ export async function runBatch(opt: BatchOptions): Promise<BatchResult> {
 
   const planned = await planSessions(sessions, { out, config: opt.config, configHash: cfgHash, force: !!opt.force, inputFiles, inputRoot: inputIsFolder ? found.root : null });
   // a pool is redone whole when any of its logs is: the noise estimate depends on all of them
-  const pools = poolGroups(planned, opt.config);
+  const pools = await poolGroups(planned, opt.config);
   for (const members of pools.values()) {
     const names = members.map((m) => m.si.name);
     for (const m of members) if (m.stale === null && poolChanged(m, names)) m.stale = "the logs of its pool changed";

@@ -69,7 +69,7 @@ export function addRunCommand(program: Command, setCode: (code: number) => void)
     .option('--shard <K/N>', 'take only part K of N of the sessions (for array jobs; then run join-shards)', shardArg)
     .option('--strict', 'treat any reader warning (skipped row, duplicate time, …) as a failure of the file')
     .option('--worker-memory <MB>', 'heap limit of each worker thread; a session above it fails alone', positiveInt)
-    .option('--pool <by>', 'one noise calibration per receiver: "folder" (a folder\'s logs share one), or a regular expression over the log\'s relative path whose first group names the receiver')
+    .option('--pool <by>', 'one noise calibration per receiver: "folder" (a folder\'s logs share one), "column:NAME" (CSV logs alike in that column), or a regular expression over the log\'s relative path whose first group names the receiver')
     .option('--gpx', 'also write <stem>.gpx (GPX 1.1) with each smoothed track')
     .option('--points', 'also write every epoch as a GeoJSON point with its uncertainty')
     .option('--no-report', 'do not write report.html')
@@ -117,7 +117,8 @@ function configOverrides(o: RunOpts): Record<string, unknown> {
   if (o.maxGap !== undefined) overrides.segments = { maxGapSec: o.maxGap };
   if (o.gateProbability !== undefined) overrides.gate = { probability: o.gateProbability };
   if (o.strict) overrides.input = { strict: true };
-  if (o.pool !== undefined) overrides.batch = o.pool === 'folder' || o.pool === 'none' ? { pool: o.pool } : { pool: 'pattern', poolPattern: o.pool };
+  if (o.pool !== undefined)
+    overrides.batch = o.pool === 'folder' || o.pool === 'none' ? { pool: o.pool } : o.pool.startsWith('column:') ? { pool: 'column', poolColumn: o.pool.slice(7) } : { pool: 'pattern', poolPattern: o.pool };
   const output: Record<string, unknown> = {};
   if (o.gpx) output.gpx = true;
   if (o.points) output.points = true;

@@ -207,14 +207,18 @@ export const configSchema = z
          * (session/calibrate/pooled.ts): 'none' (default, every log alone), 'folder' (the logs of
          * one folder are one receiver's) or 'pattern' (logs whose relative path matches
          * poolPattern alike: its first capture group, or the whole match, names the group). The
-         * fix noise is shared; each log keeps its own process noise.
+         * fix noise is shared; each log keeps its own process noise. 'column' (poolColumn): CSV logs
+         * whose first value in that column is the same.
          */
-        pool: z.enum(['none', 'folder', 'pattern']).default('none'),
+        pool: z.enum(['none', 'folder', 'pattern', 'column']).default('none'),
         /** Regular expression (JavaScript syntax) over the log's "/"-separated path relative to the input folder, for pool 'pattern'. */
         poolPattern: z.string().optional(),
+        /** A CSV column naming the receiver (e.g. "receiver"), for pool 'column': logs whose first value in it is the same form a group. */
+        poolColumn: z.string().min(1).optional(),
       })
       .strict()
       .superRefine((v, ctx) => {
+        if (v.pool === 'column' && v.poolColumn === undefined) ctx.addIssue({ code: 'custom', path: ['poolColumn'], message: 'batch.pool "column" needs batch.poolColumn (the name of the column naming the receiver)' });
         if (v.pool === 'pattern' && v.poolPattern === undefined) ctx.addIssue({ code: 'custom', path: ['poolPattern'], message: 'batch.pool "pattern" needs batch.poolPattern (a regular expression over the log\'s relative path)' });
         if (v.poolPattern !== undefined)
           try {

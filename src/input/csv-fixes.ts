@@ -20,7 +20,7 @@
  */
 import type { HindcastConfig } from '../config/schema.js';
 import { InputError } from '../errors.js';
-import { matchColumns, MSL_HEIGHT_ALIASES, type ColumnRole } from './columns.js';
+import { matchColumns, MSL_HEIGHT_ALIASES, normalizeHeader, type ColumnRole } from './columns.js';
 import { detectDelimiter, parseCsvNumber, splitCsvLine } from './csv-fields.js';
 import { Lines } from './csv-lines.js';
 import { plainRowReader } from './csv-plain-rows.js';
@@ -145,6 +145,32 @@ function accuracyAsSigmas(s: FixSeries): FixSeries {
   quality.sdNorth = sd;
   const warnings = [...s.warnings, { file: s.file, code: 'accuracy-column', message: 'the accuracy column is read as the 68% horizontal radius (sd per axis = accuracy / 1.51); the calibration finds how far it predicts the error' }];
   return { ...s, quality, warnings };
+}
+
+/**
+ * The first non-empty value of the column named `column` (matched as header names are, after
+ * normalizeHeader), found as readFixCsv finds the header; null where the file has no such column or
+ * no readable header (readFixCsv then says why). For grouping logs by a column (batch.pool
+ * "column") before they are read.
+ */
+export function csvColumnValue(text: string, file: string, cfg: HindcastConfig, column: string): string | null {
+  const lines = new Lines(text);
+  let h: CsvHeader;
+  try {
+    h = readCsvHeader(lines, cfg, file);
+  } catch {
+    return null;
+  }
+  const want = normalizeHeader(column);
+  const ci = h.header.findIndex((x) => normalizeHeader(x) === want);
+  if (ci < 0) return null;
+  for (let j = h.li + 1; j < lines.length; j++) {
+    const l = lines.at(j);
+    if (isSkippable(l)) continue;
+    const v = splitCsvLine(l, h.delimiter).fields[ci]?.trim();
+    if (v) return v;
+  }
+  return null;
 }
 
 /** Find the header row (after blank and comment lines and an Excel "sep=X" line), its delimiter and columns. */

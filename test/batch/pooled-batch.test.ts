@@ -1,9 +1,9 @@
 /**
- * Batches with pooled calibration (batch.pool): the logs of a folder, or of a name pattern's group,
- * share one noise estimate; a file that cannot be read fails alone and the rest are pooled; an
- * unchanged rerun processes nothing; a changed log redoes its whole pool and nothing else; a log
- * removed from a pool redoes the logs left in it; the thread pool writes what the in-process run
- * writes. Seeded simulated logs.
+ * Batches with pooled calibration (batch.pool): the logs of a folder, of a name pattern's group, or
+ * with the same value in a named column share one noise estimate; a file that cannot be read fails
+ * alone and the rest are pooled; an unchanged rerun processes nothing; a changed log redoes its
+ * whole pool and nothing else; a log removed from a pool redoes the logs left in it; the thread
+ * pool writes what the in-process run writes. Seeded simulated logs.
  */
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { appendFile, readFile, rm, writeFile } from 'node:fs/promises';
@@ -12,7 +12,7 @@ import { loadConfig } from '../../src/config/load.js';
 import { runBatch } from '../../src/batch/run-batch.js';
 import { poolOf } from '../../src/batch/pools.js';
 import { ConfigError } from '../../src/errors.js';
-import { comparableOutputs, differingFiles, removeDir, tempDir, writeSessions } from './batch-helpers.js';
+import { comparableOutputs, differingFiles, removeDir, sessionCsv, tempDir, writeSessions } from './batch-helpers.js';
 
 let root: string, input: string, out: string;
 const byFolder = loadConfig({ overrides: { output: { report: false }, batch: { pool: 'folder' } } });
@@ -71,6 +71,28 @@ describe('pooled batches', () => {
   });
 });
 
+describe('pooled by a column', () => {
+  it('CSV logs with the same first value in the named column share a pool; a log without the column stays alone', async () => {
+    const { mkdir } = await import('node:fs/promises');
+    await mkdir(input, { recursive: true });
+    // the receiver named in a column of its own (the second log of a receiver in another folder)
+    const withColumn = (seed: number, rx: string) => sessionCsv(seed, 400).trimEnd().split('\n').map((l, i) => `${l},${i === 0 ? 'Receiver' : rx}`).join('\n') + '\n';
+    await writeFile(join(input, 'a1.csv'), withColumn(41, 'SN-7'));
+    await mkdir(join(input, 'day2'), { recursive: true });
+    await writeFile(join(input, 'day2', 'a2.csv'), withColumn(42, 'SN-7'));
+    await writeFile(join(input, 'b1.csv'), withColumn(43, 'SN-9'));
+    await writeFile(join(input, 'b2.csv'), withColumn(44, 'SN-9'));
+    await writeFile(join(input, 'plain.csv'), sessionCsv(45, 400));
+    const cfg = loadConfig({ overrides: { output: { report: false }, batch: { pool: 'column', poolColumn: 'receiver' } } });
+    const r = await runBatch({ input, out, config: cfg });
+    const by = new Map(r.summary.sessions.map((x) => [x.name, poolIn(x)]));
+    expect(by.get('a1')).toMatchObject({ group: 'SN-7', members: ['a1', 'day2/a2'] });
+    expect(by.get('day2/a2')).toMatchObject({ group: 'SN-7' });
+    expect(by.get('b1')).toMatchObject({ group: 'SN-9', members: ['b1', 'b2'] });
+    expect(by.get('plain')).toBeUndefined();
+  });
+});
+
 describe('pool keys', () => {
   it.each([
     ['folder', undefined, 'site1/rx7/a.csv', 'site1/rx7'],
@@ -86,5 +108,6 @@ describe('pool keys', () => {
     expect(() => loadConfig({ overrides: { batch: { pool: 'pattern' } } })).toThrow(ConfigError);
     expect(() => loadConfig({ overrides: { batch: { pool: 'pattern' } } })).toThrow(/batch\.poolPattern/);
     expect(() => loadConfig({ overrides: { batch: { pool: 'pattern', poolPattern: '(' } } })).toThrow(/not a regular expression/);
+    expect(() => loadConfig({ overrides: { batch: { pool: 'column' } } })).toThrow(/batch\.poolColumn/);
   });
 });
