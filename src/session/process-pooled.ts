@@ -1,7 +1,8 @@
 /**
  * Several logs of one receiver through the pipeline with one noise calibration
- * (calibrate/pooled.ts): each log is prepared and runs its own first round (its outlier decisions),
- * the second round is the joint one, and each log then goes on alone (classification, final run,
+ * (calibrate/pooled.ts): each log is prepared; the longest runs the first round and the others
+ * start from its noise (firstRounds), each classifying its own fixes (its outlier decisions); the
+ * second round is the joint one, and each log then goes on alone (classification, final run,
  * checks, survey products) under the pooled noise and its own process noise. Pure like
  * processSession: no file system.
  */
@@ -9,8 +10,9 @@ import type { HindcastConfig } from '../config/schema.js';
 import type { FixSeries } from '../input/fix-series.js';
 import type { SessionResult } from './result/result.js';
 import { beginSession, finishSession, type BegunSession } from './process-session.js';
-import { bothRounds, calibrationFirstRound, type FirstRound } from './calibrate/calibration-rounds.js';
-import { calibrateSession } from './calibrate/calibrate.js';
+import { bothRounds, calibrationFirstRound, firstDecisions, type FirstRound } from './calibrate/calibration-rounds.js';
+import { calibrateSession, type CalibrationResult } from './calibrate/calibrate.js';
+import { robustProcessNoise } from './calibrate/robust-motion.js';
 import { calibratePooled } from './calibrate/pooled.js';
 
 export interface PoolInput {
@@ -25,18 +27,69 @@ export interface PoolInput {
  * error, and the others are pooled without it. Fewer than two logs that can take part: each is
  * calibrated alone, with a warning naming why.
  */
+/**
+ * The members' first rounds: the longest log runs its own; each other starts from its noise, with
+ * its process noise scaled by the two logs' robust process noise (robust-motion.ts), and classifies
+ * its fixes as its own first round would (firstDecisions), so that a pool of one receiver runs one first round, not one a log. A log whose
+ * robust process noise cannot be had, or whose noise is a different kind of parameter (reported
+ * sigmas), runs its own. A log whose first round throws fails alone (its slot in `out`).
+ */
+function firstRounds(begun: Array<{ i: number; b: BegunSession }>, cfg: HindcastConfig, out: Array<SessionResult | Error>): Array<{ i: number; b: BegunSession; first: FirstRound }> {
+  const done: Array<{ i: number; b: BegunSession; first: FirstRound }> = [];
+  const offered = (b: BegunSession) => b.ps.offered.reduce((a, u) => a + (u ? 1 : 0), 0);
+  const order = begun.slice().sort((x, y) => offered(y.b) - offered(x.b));
+  let lead: { name: string; first: FirstRound } | null = null;
+  for (const m of order) {
+    try {
+      const borrowed: CalibrationResult | null = lead?.first.uses ? borrowedFirstRound(m.b, lead.first, lead.name) : null;
+      const first: FirstRound = borrowed ? firstDecisions(m.b.ps, cfg, m.b.ro, borrowed) : calibrationFirstRound(m.b.ps, cfg, m.b.prior, m.b.ro);
+      if (!lead) lead = { name: m.b.name, first };
+      done.push({ ...m, first });
+    } catch (e) {
+      out[m.i] = e as Error;
+    }
+  }
+  // back in input order
+  return done.sort((x, y) => x.i - y.i);
+}
+
+/**
+ * A first round's result for `b` from the lead log's: its noise, and its process noise scaled by the
+ * ratio of the two logs' robust process noise (the classification start then stiffens it to b's own
+ * robust value where that is lower, as for any first round); null where that does not apply.
+ */
+function borrowedFirstRound(b: BegunSession, lead: FirstRound, leadName: string): CalibrationResult | null {
+  const p = lead.cal1.params;
+  if (lead.cal1.info.status !== 'estimated' || p.motion !== 'cv' || lead.cal1.info.reportedSigmaScale !== b.ps.factors.reported) return null;
+  const q = robustProcessNoise(b.ps), qLead = lead.classificationStart?.robustQHorizontal ?? NaN;
+  if (!(q > 0 && Number.isFinite(q) && qLead > 0 && Number.isFinite(qLead))) return null;
+  const f = q / qLead;
+  return {
+    params: { ...p, qHorizontal: p.qHorizontal * f, qVertical: p.qVertical * f },
+    info: {
+      method: `the first round of "${leadName}" (the pool's longest log), its process noise scaled to this log's motion`,
+      status: 'estimated',
+      epochsUsed: 0,
+      logLikelihood: NaN,
+      evaluations: 0,
+      estimates: {},
+      reportedSigmaScale: b.ps.factors.reported,
+    },
+    warnings: [],
+  };
+}
+
 export function processPooledSessions(inputs: PoolInput[], cfg: HindcastConfig, group: string): Array<SessionResult | Error> {
   const out: Array<SessionResult | Error> = inputs.map(() => new Error('not processed'));
-  const begun: Array<{ i: number; b: BegunSession; first: FirstRound }> = [];
+  const begun: Array<{ i: number; b: BegunSession }> = [];
   inputs.forEach((inp, i) => {
     try {
-      const b = beginSession(inp.series, cfg, inp.name, inp.userDecisions);
-      begun.push({ i, b, first: calibrationFirstRound(b.ps, cfg, b.prior, b.ro) });
+      begun.push({ i, b: beginSession(inp.series, cfg, inp.name, inp.userDecisions) });
     } catch (e) {
       out[i] = e as Error;
     }
   });
-  const members = begun;
+  const members = firstRounds(begun, cfg, out);
   let pooled: ReturnType<typeof calibratePooled>;
   try {
     pooled = calibratePooled(

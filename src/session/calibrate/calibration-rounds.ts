@@ -31,6 +31,11 @@ export function calibrationFirstRound(ps: PreparedSession, cfg: HindcastConfig, 
   const cal1 = calibrateSession(ps, cfg, prior, FIRST_ROUND);
   if (tm) tm.calibrate += performance.now() - t0;
   if (cal1.info.status !== 'estimated') return { cal1, uses: null };
+  return firstDecisions(ps, cfg, ro, cal1, tm);
+}
+
+/** Stage 2 alone: the decisions the second round holds fixed, classified under the start model made from `cal1` (a first round's result). */
+export function firstDecisions(ps: PreparedSession, cfg: HindcastConfig, ro: ReviewOptions, cal1: CalibrationResult, tm?: StageTimings): FirstRound {
   const uses = new Map<number, Uint8Array>();
   const windows = calibrationWindows(ps, cfg.segments.bridgeFactor, DEFAULT_CALIBRATION.maxEpochs);
   const start = classificationStart(ps, cfg, cal1.params);

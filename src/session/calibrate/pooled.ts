@@ -160,7 +160,10 @@ function pooledDiagonal(pbs: CalibrationProblem[], L: JointLayout, logLiks: (x: 
         diag[j] = (-lu[m]! + 2 * ll0[m]! - ld[m]! + penalty(pu) - 2 * pen0 + penalty(pd)) / (h * h);
       });
     }
-    return diag;
+    // a coordinate without a positive curvature here (away from the optimum a time constant's can be
+    // negative) takes the largest one found, a cautious step, instead of throwing the whole start away
+    const most = Math.max(...diag.filter((v) => v > 0 && Number.isFinite(v)));
+    return diag.map((v) => (v > 0 && Number.isFinite(v) ? v : Number.isFinite(most) ? most : NaN));
   };
 }
 
