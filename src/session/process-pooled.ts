@@ -22,28 +22,27 @@ export interface PoolInput {
 }
 
 /**
- * Process `inputs` with one calibration of the fix noise shared by all (`group` names the pool in
- * each log's info.calibration.pool). One log's failure fails that log alone: its slot holds the
- * error, and the others are pooled without it. Fewer than two logs that can take part: each is
- * calibrated alone, with a warning naming why.
- */
-/**
- * The members' first rounds: the longest log runs its own; each other starts from its noise, with
- * its process noise scaled by the two logs' robust process noise (robust-motion.ts), and classifies
- * its fixes as its own first round would (firstDecisions), so that a pool of one receiver runs one first round, not one a log. A log whose
- * robust process noise cannot be had, or whose noise is a different kind of parameter (reported
- * sigmas), runs its own. A log whose first round throws fails alone (its slot in `out`).
+ * The members' first rounds: the longest moving log (one whose motion gives a robust process-noise
+ * estimate, robust-motion.ts) runs its own; each other starts from its noise, with the process
+ * noise scaled by the two logs' robust estimates, and classifies its own fixes as its own first
+ * round would (firstDecisions), so that a pool of one receiver runs one first round, not one a log.
+ * A log without a robust estimate (a static one), or whose noise is another kind of parameter
+ * (reported sigmas), runs its own. A log whose first round throws fails alone (its slot in `out`).
  */
 function firstRounds(begun: Array<{ i: number; b: BegunSession }>, cfg: HindcastConfig, out: Array<SessionResult | Error>): Array<{ i: number; b: BegunSession; first: FirstRound }> {
   const done: Array<{ i: number; b: BegunSession; first: FirstRound }> = [];
   const offered = (b: BegunSession) => b.ps.offered.reduce((a, u) => a + (u ? 1 : 0), 0);
-  const order = begun.slice().sort((x, y) => offered(y.b) - offered(x.b));
-  let lead: { name: string; first: FirstRound } | null = null;
-  for (const m of order) {
+  const robust = begun.map((m) => robustProcessNoise(m.b.ps));
+  const usable = (k: number) => robust[k]! > 0 && Number.isFinite(robust[k]!);
+  // the lead first: moving logs before static ones, longer before shorter
+  const order = begun.map((_, k) => k).sort((x, y) => Number(usable(y)) - Number(usable(x)) || offered(begun[y]!.b) - offered(begun[x]!.b));
+  let lead: { name: string; first: FirstRound; q: number } | null = null;
+  for (const k of order) {
+    const m = begun[k]!;
     try {
-      const borrowed: CalibrationResult | null = lead?.first.uses ? borrowedFirstRound(m.b, lead.first, lead.name) : null;
+      const borrowed: CalibrationResult | null = lead?.first.uses && usable(k) ? borrowedFirstRound(m.b, lead.first.cal1, lead.name, robust[k]! / lead.q) : null;
       const first: FirstRound = borrowed ? firstDecisions(m.b.ps, cfg, m.b.ro, borrowed) : calibrationFirstRound(m.b.ps, cfg, m.b.prior, m.b.ro);
-      if (!lead) lead = { name: m.b.name, first };
+      if (!lead && usable(k)) lead = { name: m.b.name, first, q: robust[k]! };
       done.push({ ...m, first });
     } catch (e) {
       out[m.i] = e as Error;
@@ -54,20 +53,17 @@ function firstRounds(begun: Array<{ i: number; b: BegunSession }>, cfg: Hindcast
 }
 
 /**
- * A first round's result for `b` from the lead log's: its noise, and its process noise scaled by the
- * ratio of the two logs' robust process noise (the classification start then stiffens it to b's own
- * robust value where that is lower, as for any first round); null where that does not apply.
+ * A first round's result for `b` from the lead log's: its noise, and its process noise scaled by
+ * `ratio` (b's robust process noise over the lead's; the classification start then stiffens it to
+ * b's own robust value where that is lower, as for any first round); null where that does not apply.
  */
-function borrowedFirstRound(b: BegunSession, lead: FirstRound, leadName: string): CalibrationResult | null {
-  const p = lead.cal1.params;
-  if (lead.cal1.info.status !== 'estimated' || p.motion !== 'cv' || lead.cal1.info.reportedSigmaScale !== b.ps.factors.reported) return null;
-  const q = robustProcessNoise(b.ps), qLead = lead.classificationStart?.robustQHorizontal ?? NaN;
-  if (!(q > 0 && Number.isFinite(q) && qLead > 0 && Number.isFinite(qLead))) return null;
-  const f = q / qLead;
+function borrowedFirstRound(b: BegunSession, lead: CalibrationResult, leadName: string, ratio: number): CalibrationResult | null {
+  const p = lead.params;
+  if (lead.info.status !== 'estimated' || p.motion !== 'cv' || lead.info.reportedSigmaScale !== b.ps.factors.reported || !(ratio > 0 && Number.isFinite(ratio))) return null;
   return {
-    params: { ...p, qHorizontal: p.qHorizontal * f, qVertical: p.qVertical * f },
+    params: { ...p, qHorizontal: p.qHorizontal * ratio, qVertical: p.qVertical * ratio },
     info: {
-      method: `the first round of "${leadName}" (the pool's longest log), its process noise scaled to this log's motion`,
+      method: `the first round of "${leadName}" (the pool's longest moving log), its process noise scaled to this log's motion`,
       status: 'estimated',
       epochsUsed: 0,
       logLikelihood: NaN,
@@ -79,6 +75,12 @@ function borrowedFirstRound(b: BegunSession, lead: FirstRound, leadName: string)
   };
 }
 
+/**
+ * Process `inputs` with one calibration of the fix noise shared by all (`group` names the pool in
+ * each log's info.calibration.pool). One log's failure fails that log alone: its slot holds the
+ * error, and the others are pooled without it. Fewer than two logs that can take part: each is
+ * calibrated alone, with a warning naming why.
+ */
 export function processPooledSessions(inputs: PoolInput[], cfg: HindcastConfig, group: string): Array<SessionResult | Error> {
   const out: Array<SessionResult | Error> = inputs.map(() => new Error('not processed'));
   const begun: Array<{ i: number; b: BegunSession }> = [];

@@ -9,6 +9,7 @@
  *   error: the acceptance bound of the fast calibration);
  * - the shared parameters' standard errors come from all the logs (smaller than any log's own);
  *   each log keeps its own process noise;
+ * - one first round for a pool's moving logs (the longest one's; the others start from it);
  * - a log too short to calibrate takes the pool's noise; a group with fewer than two long logs is
  *   not pooled and says so.
  */
@@ -75,6 +76,12 @@ describe('three moving logs and a static occupation of one receiver', () => {
       expect(p.group).toBe('rx');
       expect(p.members).toEqual(inputs.map((x) => x.name));
     }
+  });
+  it('one first round for the moving logs: the first of them (the longest) runs it, the others start from it; the static log runs its own', () => {
+    const ev = pooled.map((r) => (r.info.calibration as { evaluations: number }).evaluations);
+    // the joint round's evaluations are every log's; a first round's only its own log's
+    expect(ev[1]).toBe(ev[2]);
+    for (const i of [0, 3]) expect(ev[i]! - ev[1]!).toBeGreaterThan(100);
   });
   it('alone, the moving logs cannot tell the correlated error from their motion (measured 0.41–0.47)', () => {
     expect(aloneCover).toBeLessThan(0.6);
