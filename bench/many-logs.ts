@@ -5,8 +5,9 @@
  * alternating, the plain C program of the fixes-only job (../shared/anchors/plain-c-smoother.c,
  * compiled with `cc -O2` into a temporary folder) run on the same files in turn.
  * Targets: one worker without the report ≤ 8× the C program, with the report ≤ 10×; the unchanged
- * rerun ≤ 0.35× the first run. Best of REPEAT each. Where no C compiler or anchor source is found the
- * ratios are not printed and the part has no target.
+ * rerun ≤ 0.35× the first run; the same folder pooled (batch.pool 'folder') is timed beside them,
+ * without a target. Best of REPEAT each. Where no C compiler or anchor source is found the ratios
+ * are not printed and the part has no target.
  */
 import { execFileSync } from 'node:child_process';
 import { existsSync } from 'node:fs';
@@ -40,8 +41,8 @@ function unixCsv(seed: number): string {
   return rows.join('\n') + '\n';
 }
 
-async function timeHindcast(input: string, out: string, report: boolean, force: boolean): Promise<number> {
-  const config = loadConfig({ overrides: { output: { report } } });
+async function timeHindcast(input: string, out: string, report: boolean, force: boolean, pool = false): Promise<number> {
+  const config = loadConfig({ overrides: { output: { report }, ...(pool ? { batch: { pool: 'folder' } } : {}) } });
   const t0 = performance.now();
   const r = await runBatch({ input, out, config, jobs: 1, inProcess: false, force });
   const sec = (performance.now() - t0) / 1000;
@@ -76,13 +77,14 @@ export const manyLogsBench: BenchPart = {
       } catch {
         bin = null;
       }
-      let c = Infinity, noReport = Infinity, report = Infinity, rerun = Infinity;
+      let c = Infinity, noReport = Infinity, report = Infinity, rerun = Infinity, pooled = Infinity;
       for (let i = 0; i < REPEAT; i++) {
         if (bin) c = Math.min(c, timeAnchor(bin, files, root));
         noReport = Math.min(noReport, await timeHindcast(input, join(root, `plain${i}`), false, true));
         const out = join(root, `rep${i}`);
         report = Math.min(report, await timeHindcast(input, out, true, true));
         rerun = Math.min(rerun, await timeHindcast(input, out, true, false));
+        pooled = Math.min(pooled, await timeHindcast(input, join(root, `pool${i}`), false, true, true));
       }
       const fixes = LOGS * DURATION_SEC;
       const lines = [
@@ -90,6 +92,7 @@ export const manyLogsBench: BenchPart = {
         `Hindcast, 1 worker, --no-report: ${noReport.toFixed(2)} s (${Math.round(fixes / noReport)} fixes/s)`,
         `Hindcast, 1 worker, with report: ${report.toFixed(2)} s`,
         `unchanged rerun with report: ${rerun.toFixed(2)} s = ${(rerun / report).toFixed(2)}× the first run (target ≤ ${TARGET_RERUN}×)`,
+        `pooled (--pool folder: one calibration for the 40, drawn from one receiver), --no-report: ${pooled.toFixed(2)} s (no target)`,
       ];
       if (!bin) {
         lines.push(`plain C program: not measured (no C compiler or ${src})`);
