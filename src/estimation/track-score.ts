@@ -24,6 +24,7 @@
 import type { AxisModel } from '../models/axis-model.js';
 import { sameHorizontalInputs, type FilterOptions, type SegmentData } from './track-filter.js';
 import { NumericalError } from '../errors.js';
+import { scoreGroupKernel, scoreKernel } from './score-wasm.js';
 
 /** The score of one axis: derivatives of the log-likelihood with respect to log q, log σ_b, log τ. */
 export interface AxisScore {
@@ -81,7 +82,13 @@ export function trackScore(models: AxisModel[], data: SegmentData, opt: FilterOp
   const groups = share ? [[0, 1], ...(nAx === 3 ? [[2]] : [])] : models.map((_, a) => [a]);
   const axes: AxisScore[] = models.map(() => ({ dLogQ: 0, dLogSigmaB: 0, dLogTau: 0 }));
   let logLik = 0;
+  // the same passes in the WebAssembly module where it loads (score-wasm.ts: the same bits)
+  const kernel = scoreKernel();
   for (const g of groups) {
+    if (kernel) {
+      logLik += scoreGroupKernel(kernel, models[g[0]!]!, data, g, rScale[g[0]!]!, opt.priorVar, w.dLogR, axes);
+      continue;
+    }
     logLik += forwardGroup(models[g[0]!]!, data, g, rScale[g[0]!]!, opt.priorVar, w);
     backwardGroup(models[g[0]!]!, data, g, rScale[g[0]!]!, w, axes);
   }

@@ -8,13 +8,16 @@
  * (log q, log σ_b, log τ per axis; log of the r scale) must match the difference quotient to 1e-6
  * relative (the quotient's own truncation and rounding error at h = 1e-5 is ~1e-8 of the value);
  * the log-likelihood must equal the filter's to 1e-10 relative (the same recursions, a
- * different order of operations).
+ * different order of operations). The WebAssembly form of the passes (estimation/score-wasm.ts)
+ * against the TypeScript loops, with Object.is: log-likelihood, every axis's terms and every
+ * epoch's ∂ℓ/∂log Rₖ, on every case (the checks above run the module, the default).
  */
-import { describe, expect, it } from 'vitest';
+import { afterEach, describe, expect, it } from 'vitest';
 import { makeAxisModel, type AxisModel } from '../../src/models/axis-model.js';
 import { forwardFilter, totalLogLik, type FilterOptions, type SegmentData } from '../../src/estimation/track-filter.js';
 import { makeScoreWork, trackScore, trackScoreApplies } from '../../src/estimation/track-score.js';
 import { gaussian, rng } from '../helpers/park-miller.js';
+import { SCORE_KERNEL, scoreKernel } from '../../src/estimation/score-wasm.js';
 
 interface Case {
   name: string;
@@ -115,5 +118,32 @@ describe('trackScore: exact gradient of the innovation log-likelihood against ce
     const t = data.tSec.slice();
     t[5] = t[4]!;
     expect(trackScoreApplies(models, { ...data, tSec: t }, OPT)).toBe(false);
+  });
+});
+
+describe('trackScore in WebAssembly: the same bits as the TypeScript loops', () => {
+  afterEach(() => {
+    SCORE_KERNEL.prefer = 'wasm';
+  });
+  it('the module loads (a fallback to the TypeScript loops would fail this)', () => {
+    expect(scoreKernel()).not.toBeNull();
+  });
+  it.each(CASES.map((c) => [c.name, c] as const))('%s', (_name, c) => {
+    const data = segment(c);
+    const models = modelsOf(c, Q0, SB0, TAU0);
+    const rs = RS0.slice(0, c.nAx);
+    const copy = (sc: ReturnType<typeof trackScore>) => ({ logLik: sc.logLik, axes: sc.axes.map((a) => ({ ...a })), dLogR: sc.dLogR.map((d) => d.slice()) });
+    SCORE_KERNEL.prefer = 'wasm';
+    const w = copy(trackScore(models, data, OPT, rs, makeScoreWork(models, data.N)));
+    SCORE_KERNEL.prefer = 'js';
+    const j = copy(trackScore(models, data, OPT, rs, makeScoreWork(models, data.N)));
+    expect(Object.is(w.logLik, j.logLik)).toBe(true);
+    w.axes.forEach((a, i) => {
+      for (const k of ['dLogQ', 'dLogSigmaB', 'dLogTau'] as const) expect(Object.is(a[k], j.axes[i]![k]), `axis ${i} ${k}: ${a[k]} vs ${j.axes[i]![k]}`).toBe(true);
+    });
+    w.dLogR.forEach((d, a) => {
+      const bad = d.findIndex((v, k) => !Object.is(v, j.dLogR[a]![k]));
+      expect(bad, `axis ${a} dLogR`).toBe(-1);
+    });
   });
 });

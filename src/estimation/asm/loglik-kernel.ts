@@ -265,3 +265,226 @@ export function run(N: i32, pSt: usize, pPar: usize, pTab: usize, pSlot: usize, 
   st(pSt, 21, sum);
   return sum;
 }
+
+/*
+ * The calibration's exact gradient (../track-score.ts trackScore) for one group of axes sharing a
+ * covariance (east and north, or one axis alone): forwardGroup, then backwardGroup with gainStep,
+ * axisStep and measurementTerm, operation for operation (the same bits: test/estimation/
+ * score-wasm.test.ts). The per-Δt constants come from the caller, computed as trackScore computes
+ * them (the exponentials stay JavaScript's): per distinct Δt at tab + 8 i doubles
+ * [Δt, φ, V, qΔt³/3, qΔt²/2, qΔt, ∂φ/∂log τ, ∂V/∂log τ], and per epoch k ≥ 1 the index of the Δt
+ * from k − 1 to k (i32). Arrays: x 3 doubles an epoch, P 6 (packed upper triangle), the rest 1.
+ * Returns the group's log-likelihood, or NaN with scoreFailedAt set where a predicted covariance
+ * is not positive definite.
+ */
+
+let failedAt: i32 = -1;
+
+export function scoreFailedAt(): i32 {
+  return failedAt;
+}
+
+// @ts-ignore: decorator
+@inline
+function slotOf(pSlot: usize, k: i32): usize {
+  return <usize>load<i32>(pSlot + (<usize>k << 2));
+}
+
+// @ts-ignore: decorator
+@inline
+function isFinite64(v: f64): bool {
+  return v - v == 0;
+}
+
+export function scoreGroup(
+  N: i32, pSlot: usize, pTab: usize, pUse: usize, pZ0: usize, pZ1: usize, pR: usize, rScale: f64,
+  prior0: f64, prior1: f64, s2: f64, q: f64, two: i32,
+  pXf0: usize, pXf1: usize, pXs0: usize, pXs1: usize, pPf: usize, pPp: usize, pPs: usize,
+  pOut0: usize, pOut1: usize, pG: usize, pAcc: usize,
+): f64 {
+  failedAt = -1;
+  const ll = scoreForward(N, pSlot, pTab, pUse, pZ0, pZ1, pR, rScale, prior0, prior1, s2, two, pXf0, pXf1, pPf, pPp);
+  if (!scoreBackward(N, pSlot, pTab, pUse, pZ0, pZ1, pR, rScale, q, two, pXf0, pXf1, pXs0, pXs1, pPf, pPp, pPs, pOut0, pOut1, pG, pAcc)) return NaN;
+  return ll;
+}
+
+function scoreForward(
+  N: i32, pSlot: usize, pTab: usize, pUse: usize, pZ0: usize, pZ1: usize, pR: usize, rScale: f64,
+  prior0: f64, prior1: f64, s2: f64, two: i32, pXf0: usize, pXf1: usize, pPf: usize, pPp: usize,
+): f64 {
+  // the prior (track-filter.ts writePrior): position at the first fix, velocity and error at 0
+  let p00 = prior0, p01: f64 = 0, p02: f64 = 0, p11 = prior1, p12: f64 = 0, p22 = s2;
+  const z00 = ld(pZ0, 0);
+  let x0 = isFinite64(z00) ? z00 : 0, x1: f64 = 0, x2: f64 = 0;
+  const z10 = two ? ld(pZ1, 0) : 0;
+  let y0 = two && isFinite64(z10) ? z10 : 0, y1: f64 = 0, y2: f64 = 0;
+  let ll: f64 = 0;
+  for (let k = 0; k < N; k++) {
+    if (k > 0) {
+      const T = pTab + (slotOf(pSlot, k) << 6);
+      const dt = ld(T, 0), phi = ld(T, 1), V = ld(T, 2), q3 = ld(T, 3), q2 = ld(T, 4), q1 = ld(T, 5);
+      // P⁻ = F P Fᵀ + Q
+      const n00 = p00 + 2 * dt * p01 + dt * dt * p11 + q3;
+      const n01 = p01 + dt * p11 + q2;
+      const n02 = phi * (p02 + dt * p12);
+      const n11 = p11 + q1;
+      const n12 = phi * p12;
+      const n22 = phi * phi * p22 + V;
+      p00 = n00; p01 = n01; p02 = n02; p11 = n11; p12 = n12; p22 = n22;
+      // x⁻ = F x
+      x0 = x0 + dt * x1; x2 = phi * x2;
+      y0 = y0 + dt * y1; y2 = phi * y2;
+    }
+    const o = 6 * k;
+    st(pPp, o, p00); st(pPp, o + 1, p01); st(pPp, o + 2, p02); st(pPp, o + 3, p11); st(pPp, o + 4, p12); st(pPp, o + 5, p22);
+    const za = ld(pZ0, k);
+    if (ld(pUse, k) != 0 && isFinite64(za)) {
+      // w = P hᵀ, S = h P hᵀ + R
+      const w0 = p00 + p02, w1 = p01 + p12, w2 = p02 + p22;
+      const R = ld(pR, k) * rScale;
+      const hph = w0 + w2;
+      const S = hph + R;
+      const k0 = w0 / S, k1 = w1 / S, k2 = w2 / S;
+      const nu = za - x0 - x2;
+      x0 += k0 * nu; x1 += k1 * nu; x2 += k2 * nu;
+      const logS = ln(S);
+      ll -= 0.5 * (LOG_2PI + logS + (nu * nu) / S);
+      if (two) {
+        const nv = ld(pZ1, k) - y0 - y2;
+        y0 += k0 * nv; y1 += k1 * nv; y2 += k2 * nv;
+        ll -= 0.5 * (LOG_2PI + logS + (nv * nv) / S);
+      }
+      // Joseph form expanded
+      const c = hph + R;
+      const n00 = p00 - 2 * k0 * w0 + c * k0 * k0;
+      const n01 = p01 - k0 * w1 - w0 * k1 + c * k0 * k1;
+      const n02 = p02 - k0 * w2 - w0 * k2 + c * k0 * k2;
+      const n11 = p11 - 2 * k1 * w1 + c * k1 * k1;
+      const n12 = p12 - k1 * w2 - w1 * k2 + c * k1 * k2;
+      const n22 = p22 - 2 * k2 * w2 + c * k2 * k2;
+      p00 = n00; p01 = n01; p02 = n02; p11 = n11; p12 = n12; p22 = n22;
+    }
+    st(pPf, o, p00); st(pPf, o + 1, p01); st(pPf, o + 2, p02); st(pPf, o + 3, p11); st(pPf, o + 4, p12); st(pPf, o + 5, p22);
+    st(pXf0, 3 * k, x0); st(pXf0, 3 * k + 1, x1); st(pXf0, 3 * k + 2, x2);
+    if (two) {
+      st(pXf1, 3 * k, y0); st(pXf1, 3 * k + 1, y1); st(pXf1, 3 * k + 2, y2);
+    }
+  }
+  return ll;
+}
+
+/** measurementTerm: ∂ℓ/∂log Rₖ of one axis at epoch k from the smoothed moments. */
+// @ts-ignore: decorator
+@inline
+function measurementTermAt(pZ: usize, pR: usize, pUse: usize, k: i32, rScale: f64, pX: usize, pP: usize, pOut: usize): void {
+  const zk = ld(pZ, k);
+  if (ld(pUse, k) == 0 || !isFinite64(zk)) return;
+  const res = zk - ld(pX, 3 * k) - ld(pX, 3 * k + 2);
+  const o = 6 * k;
+  const E = res * res + ld(pP, o) + 2 * ld(pP, o + 2) + ld(pP, o + 5);
+  st(pOut, k, -0.5 + (0.5 * E) / (ld(pR, k) * rScale));
+}
+
+function scoreBackward(
+  N: i32, pSlot: usize, pTab: usize, pUse: usize, pZ0: usize, pZ1: usize, pR: usize, rScale: f64, q: f64, two: i32,
+  pXf0: usize, pXf1: usize, pXs0: usize, pXs1: usize, pPf: usize, pPp: usize, pPs: usize, pOut0: usize, pOut1: usize, pG: usize, pAcc: usize,
+): bool {
+  const last = N - 1;
+  for (let i = 0; i < 6; i++) st(pPs, 6 * last + i, ld(pPf, 6 * last + i));
+  for (let i = 0; i < 3; i++) st(pXs0, 3 * last + i, ld(pXf0, 3 * last + i));
+  for (let k = 0; k < N; k++) st(pOut0, k, 0);
+  measurementTermAt(pZ0, pR, pUse, last, rScale, pXs0, pPs, pOut0);
+  if (two) {
+    for (let i = 0; i < 3; i++) st(pXs1, 3 * last + i, ld(pXf1, 3 * last + i));
+    for (let k = 0; k < N; k++) st(pOut1, k, 0);
+    measurementTermAt(pZ1, pR, pUse, last, rScale, pXs1, pPs, pOut1);
+  }
+  for (let i = 0; i < 6; i++) st(pAcc, i, 0);
+  for (let k = N - 2; k >= 0; k--) {
+    const T = pTab + (slotOf(pSlot, k + 1) << 6);
+    const dt = ld(T, 0), phi = ld(T, 1);
+    if (!gainStepAt(pPf, pPp, pPs, k, dt, phi, pG)) {
+      failedAt = k + 1;
+      return false;
+    }
+    const used = ld(pUse, k) != 0;
+    axisStepAt(pXf0, pXs0, k, pG, T, q, used ? ld(pZ0, k) : NaN, ld(pR, k), rScale, pOut0, pAcc);
+    if (two) axisStepAt(pXf1, pXs1, k, pG, T, q, used ? ld(pZ1, k) : NaN, ld(pR, k), rScale, pOut1, pAcc + 24);
+  }
+  return true;
+}
+
+function gainStepAt(pPf: usize, pPp: usize, pPs: usize, k: i32, dt: f64, phi: f64, pG: usize): bool {
+  const ok = 6 * k, oj = ok + 6;
+  const p00 = ld(pPf, ok), p01 = ld(pPf, ok + 1), p02 = ld(pPf, ok + 2), p11 = ld(pPf, ok + 3), p12 = ld(pPf, ok + 4), p22 = ld(pPf, ok + 5);
+  const m00 = ld(pPp, oj), m01 = ld(pPp, oj + 1), m02 = ld(pPp, oj + 2), m11 = ld(pPp, oj + 3), m12 = ld(pPp, oj + 4), m22 = ld(pPp, oj + 5);
+  const s00 = ld(pPs, oj), s01 = ld(pPs, oj + 1), s02 = ld(pPs, oj + 2), s11 = ld(pPs, oj + 3), s12 = ld(pPs, oj + 4), s22 = ld(pPs, oj + 5);
+  // A = F Pₖ
+  const a00 = p00 + dt * p01, a01 = p01 + dt * p11, a02 = p02 + dt * p12;
+  const a10 = p01, a11 = p11, a12 = p12;
+  const a20 = phi * p02, a21 = phi * p12, a22 = phi * p22;
+  // Cholesky P⁻ = L Lᵀ
+  const l00 = Math.sqrt(m00);
+  const l10 = m01 / l00, l20 = m02 / l00;
+  const l11 = Math.sqrt(m11 - l10 * l10);
+  const l21 = (m12 - l20 * l10) / l11;
+  const l22 = Math.sqrt(m22 - l20 * l20 - l21 * l21);
+  if (!(l00 > 0 && l11 > 0 && l22 > 0)) return false;
+  // Gᵀ = (P⁻)⁻¹ A column by column
+  let y0 = a00 / l00, y1 = (a10 - l10 * y0) / l11, y2 = (a20 - l20 * y0 - l21 * y1) / l22;
+  const t20 = y2 / l22, t10 = (y1 - l21 * t20) / l11, t00 = (y0 - l10 * t10 - l20 * t20) / l00;
+  y0 = a01 / l00; y1 = (a11 - l10 * y0) / l11; y2 = (a21 - l20 * y0 - l21 * y1) / l22;
+  const t21 = y2 / l22, t11 = (y1 - l21 * t21) / l11, t01 = (y0 - l10 * t11 - l20 * t21) / l00;
+  y0 = a02 / l00; y1 = (a12 - l10 * y0) / l11; y2 = (a22 - l20 * y0 - l21 * y1) / l22;
+  const t22 = y2 / l22, t12 = (y1 - l21 * t22) / l11, t02 = (y0 - l10 * t12 - l20 * t22) / l00;
+  // Pˢₖ = Pₖ + G (Pˢₖ₊₁ − P⁻ₖ₊₁) Gᵀ
+  const d00 = s00 - m00, d01 = s01 - m01, d02 = s02 - m02, d11 = s11 - m11, d12 = s12 - m12, d22 = s22 - m22;
+  const f00 = t00 * d00 + t10 * d01 + t20 * d02, f01 = t00 * d01 + t10 * d11 + t20 * d12, f02 = t00 * d02 + t10 * d12 + t20 * d22;
+  const f10 = t01 * d00 + t11 * d01 + t21 * d02, f11 = t01 * d01 + t11 * d11 + t21 * d12, f12 = t01 * d02 + t11 * d12 + t21 * d22;
+  const f20 = t02 * d00 + t12 * d01 + t22 * d02, f21 = t02 * d01 + t12 * d11 + t22 * d12, f22 = t02 * d02 + t12 * d12 + t22 * d22;
+  const q00 = p00 + (f00 * t00 + f01 * t10 + f02 * t20);
+  const q01 = p01 + (f00 * t01 + f01 * t11 + f02 * t21);
+  const q02 = p02 + (f00 * t02 + f01 * t12 + f02 * t22);
+  const q11 = p11 + (f10 * t01 + f11 * t11 + f12 * t21);
+  const q12 = p12 + (f10 * t02 + f11 * t12 + f12 * t22);
+  const q22 = p22 + (f20 * t02 + f21 * t12 + f22 * t22);
+  st(pPs, ok, q00); st(pPs, ok + 1, q01); st(pPs, ok + 2, q02); st(pPs, ok + 3, q11); st(pPs, ok + 4, q12); st(pPs, ok + 5, q22);
+  // C = Pˢₖ₊₁ Gᵀ (the elements the score reads)
+  const c00 = s00 * t00 + s01 * t10 + s02 * t20, c01 = s00 * t01 + s01 * t11 + s02 * t21;
+  const c10 = s01 * t00 + s11 * t10 + s12 * t20, c11 = s01 * t01 + s11 * t11 + s12 * t21;
+  st(pG, 0, t00); st(pG, 1, t01); st(pG, 2, t02); st(pG, 3, t10); st(pG, 4, t11); st(pG, 5, t12); st(pG, 6, t20); st(pG, 7, t21); st(pG, 8, t22);
+  st(pG, 9, s00 - 2 * (c00 + dt * c01) + (q00 + 2 * dt * q01 + dt * dt * q11));
+  st(pG, 10, s01 - c01 - (c10 + dt * c11) + (q01 + dt * q11));
+  st(pG, 11, s11 - 2 * c11 + q11);
+  st(pG, 12, s02 * t02 + s12 * t12 + s22 * t22);
+  st(pG, 13, s22);
+  st(pG, 14, q22);
+  st(pG, 15, q00 + 2 * q02 + q22);
+  return true;
+}
+
+/** axisStep: xˢₖ of one axis and its terms of the score (acc: log q, log σ_b, log τ), the fix's at k (z NaN: none). */
+function axisStepAt(pXf: usize, pXs: usize, k: i32, pG: usize, T: usize, q: f64, z: f64, rk: f64, rScale: f64, pOut: usize, pAcc: usize): void {
+  const dt = ld(T, 0), phi = ld(T, 1), V = ld(T, 2), dphi = ld(T, 6), dV = ld(T, 7);
+  const j = k + 1;
+  const x0 = ld(pXf, 3 * k), x1 = ld(pXf, 3 * k + 1), x2 = ld(pXf, 3 * k + 2);
+  const mj0 = ld(pXs, 3 * j), mj1 = ld(pXs, 3 * j + 1), mj2 = ld(pXs, 3 * j + 2);
+  const dx0 = mj0 - (x0 + dt * x1), dx1 = mj1 - x1, dx2 = mj2 - phi * x2;
+  const mk0 = x0 + (ld(pG, 0) * dx0 + ld(pG, 3) * dx1 + ld(pG, 6) * dx2);
+  const mk1 = x1 + (ld(pG, 1) * dx0 + ld(pG, 4) * dx1 + ld(pG, 7) * dx2);
+  const mk2 = x2 + (ld(pG, 2) * dx0 + ld(pG, 5) * dx1 + ld(pG, 8) * dx2);
+  st(pXs, 3 * k, mk0); st(pXs, 3 * k + 1, mk1); st(pXs, 3 * k + 2, mk2);
+  const ep = mj0 - (mk0 + dt * mk1), ev = mj1 - mk1;
+  const M00 = ld(pG, 9) + ep * ep, M01 = ld(pG, 10) + ep * ev, M11 = ld(pG, 11) + ev * ev;
+  const trQinvM = ((12 * M00) / (dt * dt * dt) - (12 * M01) / (dt * dt) + (4 * M11) / dt) / q;
+  st(pAcc, 0, ld(pAcc, 0) - 1 + 0.5 * trQinvM);
+  const A = ld(pG, 13) + mj2 * mj2, B = ld(pG, 12) + mj2 * mk2, Cc = ld(pG, 14) + mk2 * mk2;
+  const E2 = A - 2 * phi * B + phi * phi * Cc;
+  st(pAcc, 1, ld(pAcc, 1) - 1 + E2 / V);
+  const dE2 = -2 * dphi * B + 2 * phi * dphi * Cc;
+  st(pAcc, 2, ld(pAcc, 2) + 0.5 * (dV / V) * (E2 / V - 1) - (0.5 * dE2) / V);
+  if (isFinite64(z)) {
+    const res = z - mk0 - mk2;
+    st(pOut, k, -0.5 + (0.5 * (res * res + ld(pG, 15))) / (rk * rScale));
+  }
+}
