@@ -78,6 +78,24 @@ export function kernelLog2Pi(k: LogLikKernel): number {
 /** Segments held at most (a calibration round passes ≤ 4 chunks; beyond this the memory starts afresh). */
 const MAX_LOADED = 16;
 
+/** A segment's distinct Δt in order of appearance, and per epoch k ≥ 1 the index of its Δt (from k − 1); the WebAssembly kernels' step tables are laid out by it. */
+export function distinctSteps(data: SegmentData): { dts: number[]; slot: Int32Array } {
+  const index = new Map<number, number>();
+  const dts: number[] = [];
+  const slot = new Int32Array(data.N);
+  for (let i = 1; i < data.N; i++) {
+    const dt = data.tSec[i]! - data.tSec[i - 1]!;
+    let s = index.get(dt);
+    if (s === undefined) {
+      s = dts.length;
+      index.set(dt, s);
+      dts.push(dt);
+    }
+    slot[i] = s;
+  }
+  return { dts, slot };
+}
+
 /**
  * Copy a segment's fixed inputs into the module (once per SegmentData object: its tSec and z are
  * taken as fixed while the same object is passed, as the calibration's chunks are): z, r per epoch
@@ -89,20 +107,7 @@ function load(k: LogLikKernel, data: SegmentData, up: boolean): Loaded {
     k.loaded.clear();
     k.top = 0;
   }
-  // distinct Δt, in order of appearance
-  const index = new Map<number, number>();
-  const dts: number[] = [];
-  const slot = new Int32Array(N);
-  for (let i = 1; i < N; i++) {
-    const dt = data.tSec[i]! - data.tSec[i - 1]!;
-    let s = index.get(dt);
-    if (s === undefined) {
-      s = dts.length;
-      index.set(dt, s);
-      dts.push(dt);
-    }
-    slot[i] = s;
-  }
+  const { dts, slot } = distinctSteps(data);
   const align = (b: number) => (b + 7) & ~7;
   const base = align(Math.max(k.top, P_TAB));
   const pTab = base;

@@ -11,6 +11,7 @@ import type { AxisModel } from '../models/axis-model.js';
 import { NumericalError } from '../errors.js';
 import { wasmInstance, wasmModule, type WasmMemory } from './wasm-module.js';
 import type { SegmentData } from './track-filter.js';
+import { distinctSteps } from './loglik-wasm.js';
 
 interface Exports {
   memory: WasmMemory;
@@ -41,20 +42,7 @@ const steps = new WeakMap<SegmentData, { slot: Int32Array; dts: number[] }>();
 
 function stepsOf(data: SegmentData): { slot: Int32Array; dts: number[] } {
   let s = steps.get(data);
-  if (s && s.slot.length === data.N) return s;
-  const slot = new Int32Array(data.N), dts: number[] = [], index = new Map<number, number>();
-  for (let k = 1; k < data.N; k++) {
-    const dt = data.tSec[k]! - data.tSec[k - 1]!;
-    let i = index.get(dt);
-    if (i === undefined) {
-      i = dts.length;
-      index.set(dt, i);
-      dts.push(dt);
-    }
-    slot[k] = i;
-  }
-  s = { slot, dts };
-  steps.set(data, s);
+  if (!s || s.slot.length !== data.N) steps.set(data, (s = distinctSteps(data)));
   return s;
 }
 

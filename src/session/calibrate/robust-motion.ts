@@ -82,6 +82,18 @@ function squaredSecondDifferences(ps: PreparedSession, L: number, scratch: { buf
  * a, b, c ≥ 0 (a negative coefficient is dropped and the rest refitted); NaN with fewer than three lags.
  */
 export function robustProcessNoise(ps: PreparedSession, lagsSec: readonly number[] = ROBUST_LAGS_SEC): number {
+  // a pool asks for a log's estimate to pick its lead, then the classification start asks again
+  const cached = lagsSec === ROBUST_LAGS_SEC ? robustCache.get(ps) : undefined;
+  if (cached !== undefined) return cached;
+  const q = robustFit(ps, lagsSec);
+  if (lagsSec === ROBUST_LAGS_SEC) robustCache.set(ps, q);
+  return q;
+}
+
+/** robustProcessNoise at the default lags, by session (a function of its fixes alone). */
+const robustCache = new WeakMap<PreparedSession, number>();
+
+function robustFit(ps: PreparedSession, lagsSec: readonly number[]): number {
   const v = secondDifferenceVariances(ps, lagsSec);
   const rows: Array<[number, number]> = [];
   lagsSec.forEach((L, i) => {
