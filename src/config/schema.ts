@@ -188,9 +188,15 @@ export const configSchema = z
          * not a lost track). 0: the count alone.
          */
         reacquireAfterSec: z.number().min(0).default(REACQUIRE_AFTER_SEC),
+        /**
+         * Widen the gate to the tails of the log's own errors (heavier than Gaussian: the same
+         * threshold would reject clean fixes more often than 1 − probability); see
+         * docs/noise-model.md "Gate fitted to the tails". false: the Gaussian threshold.
+         */
+        fitTails: z.boolean().default(true),
       })
       .strict()
-      .default({ probability: 0.9995, reacquireAfter: 6, reacquireAfterSec: REACQUIRE_AFTER_SEC }),
+      .default({ probability: 0.9995, reacquireAfter: 6, reacquireAfterSec: REACQUIRE_AFTER_SEC, fitTails: true }),
     segments: z
       .object({
         /** Gaps longer than this (s) split the track into segments; shorter gaps are bridged. */

@@ -17,6 +17,7 @@ import { axisParamsFromConfig, reviewOptions } from './prepare/axis-params.js';
 import { jumpWarnings, prepareSession } from './prepare/prepare.js';
 import { calibrationRounds } from './calibrate/calibration-rounds.js';
 import { classify } from './classify/classify.js';
+import { fitTailGate } from './classify/tail-gate.js';
 import { runPrepared } from './products/final-run.js';
 import { applyAdequacyCheck } from './check/adequacy.js';
 import { sessionVerdict, widenToResidualScatter } from './check/verdict.js';
@@ -62,11 +63,19 @@ export function beginSession(series: FixSeries, cfg: HindcastConfig, name: strin
 
 /** Everything after the calibration: classification, the final run, the checks and the survey products. */
 export function finishSession(b: BegunSession, cal: { params: AxisParams; info: CalibrationInfo; warnings: string[] }): SessionResult {
-  const { series, cfg, name, ps, prior, ro, tm } = b;
+  const { series, name, ps, prior, tm } = b;
+  let { cfg, ro } = b;
   const { params, info, warnings } = cal;
   let t0 = 0;
   // stage 4 (stage 2 of a log the calibration fell back on): classify under the final model
-  const plans = classify(ps, cfg, params, ro, tm);
+  let plans = classify(ps, cfg, params, ro, tm);
+  // the gate fitted to the tails of the log's errors (session/classify/tail-gate.ts), classified again where it widens
+  const tail = cfg.gate.fitTails ? fitTailGate(plans.map((p) => ({ T: p.statistics!.T, dof: p.statistics!.dof, offered: p.offered })), cfg.gate.probability) : null;
+  if (tail && tail.factor > 1) {
+    cfg = { ...cfg, gate: { ...cfg.gate, probability: tail.probability } };
+    ro = { ...ro, probability: tail.probability };
+    plans = classify(ps, cfg, params, ro, tm);
+  }
   let r = runPrepared(ps, cfg, params, name, plans, tm);
   // model adequacy (session/check/adequacy.ts): a motion model too stiff for the log is re-modelled
   const adequacy = cfg.model.adequacyCheck ? applyAdequacyCheck(ps, cfg, params, prior, r, (q) => runPrepared(ps, cfg, q, name, classify(ps, cfg, q, ro, tm), tm)) : { r, params, check: undefined };
@@ -84,6 +93,7 @@ export function finishSession(b: BegunSession, cal: { params: AxisParams; info: 
   for (const w of warnings) r.warnings.push({ file: series.file, code: 'calibration', message: w });
   r.warnings.push(...jumpWarnings(ps));
   r.info.calibration = info;
+  if (tail) r.info.tailGate = tail;
   if (adequacy.check) r.info.adequacy = adequacy.check;
   r.info.verdict = verdict;
   const post = posteriorOf(r);

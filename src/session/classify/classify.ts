@@ -19,6 +19,8 @@ export interface SegmentPlan {
   scale?: Float64Array | null;
   /** The converged review behind the decisions and the parameters it ran under (reused when the final run has the same). */
   outcome?: { params: AxisParams; rev: ReturnType<typeof reviewSegment> };
+  /** The review statistic and its dof per epoch behind the decisions (read by the tail fit, tail-gate.ts). */
+  statistics?: { T: Float64Array; dof: Uint8Array };
 }
 
 /** Classification of every segment's fixes: two-way gate, then the two-sided review. */
@@ -31,7 +33,7 @@ export function classify(ps: PreparedSession, cfg: HindcastConfig, params: AxisP
     if (tm) tm.review += performance.now() - t0;
     const offered = data.use.slice();
     const { rev, scale } = reviewWithLocalScale(models, data, offered, opt, ro, localScaleOptions(cfg.noise.localScaleWindowSec, cfg.gate.probability), tm);
-    return { offered, decisions: { kept: rev.kept, gateRejected: rev.gateRejected, why: rev.why }, scale, outcome: rev.converged ? { params, rev } : undefined };
+    return { offered, decisions: { kept: rev.kept, gateRejected: rev.gateRejected, why: rev.why }, scale, outcome: rev.converged ? { params, rev } : undefined, statistics: { T: rev.T, dof: rev.dof } };
   });
 }
 
