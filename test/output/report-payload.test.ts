@@ -111,6 +111,14 @@ describe('report payload', () => {
       { calibration: { status: 'estimated', reportedSigmaScale: true, estimates: { sigmaHorizontalM: { value: 0.9, se: 0.05 }, qHorizontal: { value: 1e-6, se: NaN, atBound: true } } } },
       'white 0.9 ± 0.05 × reported sd; process noise 1.0e-6 (at its bound) m²/s³ (horizontal / vertical; ± standard error)',
     ],
+    [
+      { calibration: { status: 'estimated', estimates: { sigmaHorizontalM: { value: 0.9, se: 0.05 } } }, tailGate: { fixes: 3000, quantileRatio: 2.39, clustering: 0.04, shape: 0.8, factor: 2, probability: 0.99999990 } },
+      'white 0.9 ± 0.05 m (horizontal / vertical; ± standard error); white errors heavier-tailed than Gaussian (shape 0.80, 2 = Gaussian): outlier thresholds widened ×2.00',
+    ],
+    [
+      { calibration: { status: 'estimated', estimates: { sigmaHorizontalM: { value: 0.9, se: 0.05 } } }, tailGate: { fixes: 3000, quantileRatio: 1.7, clustering: 0.05, shape: 2, factor: 1, probability: 0.9995 } },
+      'white 0.9 ± 0.05 m (horizontal / vertical; ± standard error)',
+    ],
     [{ calibration: { status: 'fallback', reason: 'only 40 usable fixes (needs 120)' } }, 'profile values (only 40 usable fixes (needs 120))'],
     [{}, null],
   ])('calibration line from info %#', (info, want) => expect(calibrationLine(info as Record<string, unknown>)).toBe(want));

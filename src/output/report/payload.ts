@@ -182,7 +182,14 @@ export function calibrationLine(info: Record<string, unknown> | undefined): stri
   const pooled = !pool ? ''
     : typeof pool.refused === 'string' ? `; not pooled with the other logs of "${String(pool.group)}" (${pool.refused})`
     : `; noise estimated jointly over the ${n} logs of "${String(pool.group)}" (each log its own process noise)`;
-  return `${parts.join('; ')} (horizontal / vertical; ± standard error${epochs !== undefined && epochs > 0 ? `; ${epochs} epochs` : ''})${exponents}${pooled}`;
+  return `${parts.join('; ')} (horizontal / vertical; ± standard error${epochs !== undefined && epochs > 0 ? `; ${epochs} epochs` : ''})${exponents}${pooled}${tailGateWords(info?.tailGate)}`;
+}
+
+/** The gate fitted to the tails (session/classify/tail-gate.ts) in words, where it widened the gate; '' otherwise. */
+function tailGateWords(t: unknown): string {
+  const g = t as { factor?: unknown; shape?: unknown } | undefined;
+  if (!g || typeof g.factor !== 'number' || !(g.factor > 1) || typeof g.shape !== 'number') return '';
+  return `; white errors heavier-tailed than Gaussian (shape ${g.shape.toFixed(2)}, 2 = Gaussian): outlier thresholds widened ×${g.factor.toFixed(2)}`;
 }
 
 /** The local frame in words, from its projection definition (centre latitude and longitude); null when it names none. */
