@@ -194,9 +194,14 @@ export const configSchema = z
          * docs/noise-model.md "Gate fitted to the tails". false: the Gaussian threshold.
          */
         fitTails: z.boolean().default(true),
+        /**
+         * Look for runs of fixes that leave the track and come back to it (a multipath offset that
+         * grows over seconds) and leave them out; see docs/outliers.md "Excursion test". false: off.
+         */
+        excursionTest: z.boolean().default(true),
       })
       .strict()
-      .default({ probability: 0.9995, reacquireAfter: 6, reacquireAfterSec: REACQUIRE_AFTER_SEC, fitTails: true }),
+      .default({ probability: 0.9995, reacquireAfter: 6, reacquireAfterSec: REACQUIRE_AFTER_SEC, fitTails: true, excursionTest: true }),
     segments: z
       .object({
         /** Gaps longer than this (s) split the track into segments; shorter gaps are bridged. */

@@ -1,6 +1,6 @@
 /**
  * <stem>.outliers.csv: every flagged fix with its stable id, its raw position, the test that
- * decided (forward gate, backward gate, two-sided review, swap test, invalid, user) with that
+ * decided (forward gate, backward gate, two-sided review, swap test, excursion test, invalid, user) with that
  * test's statistic, threshold and relative margin, its review statistic against the final track
  * and the re-admission threshold, its offset from the smoothed track, the user's note, and the
  * decision in words, for the user to review. Columns: docs/report-and-layers.md.

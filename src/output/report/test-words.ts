@@ -6,6 +6,7 @@ const WORDS: Record<DecidingTest, string> = {
   'backward-gate': 'time-reversed gate',
   review: 'two-sided review',
   swap: 'swap test',
+  excursion: 'excursion test',
   invalid: 'invalid fix',
   user: 'rejected by you',
 };

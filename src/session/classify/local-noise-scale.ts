@@ -24,6 +24,7 @@
  */
 import type { AxisModel } from '../../models/axis-model.js';
 import type { FilterOptions, SegmentData } from '../../estimation/track-filter.js';
+import { findExcursions } from './excursion.js';
 import { chiSquareQuantile } from '../../estimation/chi-square.js';
 import { reviewSegment, type ReviewOptions, type ReviewOutcome } from './review.js';
 import type { StageTimings } from '../result/timings.js';
@@ -121,10 +122,11 @@ export function reviewWithLocalScale(
   tm?: StageTimings,
 ): { rev: ReviewOutcome; scale: Float64Array | null } {
   const first = reviewSegment(models, data, offered, opt, ro, undefined, tm);
-  if (!(lo.windowSec > 0)) return { rev: first, scale: null };
+  if (!(lo.windowSec > 0)) return { rev: withExcursions(models, data, offered, opt, ro, first, tm), scale: null };
   const scale = localNoiseScale(data.tSec, first.T, first.dof, lo);
   scaleVariances(data, scale);
-  return { rev: reviewSegment(models, data, offered, opt, ro, undefined, tm), scale };
+  const rev = reviewSegment(models, data, offered, opt, ro, undefined, tm);
+  return { rev: withExcursions(models, data, offered, opt, ro, rev, tm), scale };
 }
 
 /**
@@ -140,4 +142,36 @@ export function attachNoiseScale(r: SessionResult, scale: Float64Array): void {
 
 export function noiseScaleOf(r: SessionResult): Float64Array | undefined {
   return scales.get(r);
+}
+
+/** Value in `offered` of a fix the excursion test rejected: held out (the review never judges it again, so never re-admits it). */
+export const HELD_OUT = 3;
+
+/** Scans of the excursion test per classification (a second finds what the first's runs hid; a third found nothing more on the scenario family). */
+export const EXCURSION_SCANS = 2;
+
+/**
+ * The review outcome with its excursions (excursion.ts) rejected and held out, then reviewed again
+ * from those decisions; `offered` is marked in place (HELD_OUT), so the plans carry the hold to the
+ * final run. Off with ro.excursions === false.
+ */
+export function withExcursions(models: AxisModel[], data: SegmentData, offered: Uint8Array, opt: FilterOptions, ro: ReviewOptions, rev: ReviewOutcome, tm?: StageTimings): ReviewOutcome {
+  if (ro.excursions === false) return rev;
+  for (let scan = 0; scan < EXCURSION_SCANS; scan++) {
+    const gated = Uint8Array.from(offered, (u) => (u === 1 ? 1 : 0));
+    const t0 = tm ? performance.now() : 0;
+    const ex = findExcursions(models, rev.data, rev.filtered, gated, opt, ro.probability);
+    if (tm) tm.review += performance.now() - t0;
+    if (ex.length === 0) return rev;
+    const kept = rev.kept.slice();
+    const why = new Map(rev.why);
+    for (const e of ex)
+      for (const f of e.fixes) {
+        offered[f.k] = HELD_OUT;
+        kept[f.k] = 0;
+        why.set(f.k, { test: 'excursion', statistic: f.T, threshold: f.threshold, dof: f.dof });
+      }
+    rev = reviewSegment(models, data, offered, opt, ro, { kept, gateRejected: rev.gateRejected, why }, tm);
+  }
+  return rev;
 }

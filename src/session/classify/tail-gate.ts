@@ -51,7 +51,7 @@ export const MIN_SHAPE = 0.5;
 /** Fewest gated fixes for a fit. */
 export const MIN_FIXES = 400;
 /** Gated fixes read at most (evenly spread; the quantiles need no more). */
-const MAX_SAMPLE = 20000;
+const MAX_SAMPLE = 5000;
 /** Quantiles of the bulk that fix the shape. */
 const P_LO = 0.75;
 const P_HI = 0.95;

@@ -494,7 +494,7 @@ function imuDecisionsByFix(base: SessionResult, res: SessionResult, ps: Prepared
   }
   const whyFix: DecisionLog = new Map();
   for (const o of base.outliers)
-    if (o.test === 'forward-gate' || o.test === 'backward-gate' || o.test === 'review' || o.test === 'swap') whyFix.set(o.fix, { test: o.test, statistic: o.testStatistic, threshold: o.testThreshold, dof: o.dof });
+    if (o.test === 'forward-gate' || o.test === 'backward-gate' || o.test === 'review' || o.test === 'swap' || o.test === 'excursion') whyFix.set(o.fix, { test: o.test, statistic: o.testStatistic, threshold: o.testThreshold, dof: o.dof });
   for (let j = 0; j < N; j++) {
     const i = res.fix[j]!;
     if (i < 0 || !covered[j]) continue;

@@ -68,9 +68,11 @@ export interface ReviewOptions {
   windowed?: boolean;
   /** Try the sandwiched kept runs the other way round once converged (default); false: off. */
   swaps?: boolean;
+  /** Look for runs that leave the track and come back once converged (session/classify/excursion.ts); false: off. */
+  excursions?: boolean;
 }
 
 /** Review settings from the configuration. */
 export function reviewOptions(cfg: HindcastConfig, intervalSec = 1): ReviewOptions {
-  return { probability: cfg.gate.probability, maxPasses: 10, guardSec: Math.max(5 * intervalSec, 5) };
+  return { probability: cfg.gate.probability, maxPasses: 10, guardSec: Math.max(5 * intervalSec, 5), ...(cfg.gate.excursionTest ? {} : { excursions: false }) };
 }

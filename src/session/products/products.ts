@@ -32,6 +32,8 @@ export function decisionDetail(d: Decision, T: number, readmit: number): string 
       return d.statistic > d.threshold && Math.abs(d.threshold - readmit) < 1e-12
         ? `not re-admitted by the two-sided review: T ${f2(d.statistic)} > ${f2(d.threshold)} (re-admission threshold, ${axes})`
         : `failed the two-sided review against the smoothed track: T ${f2(d.statistic)} > ${f2(d.threshold)} (${axes})${Number.isFinite(T) && Math.abs(T - d.statistic) > 1e-9 ? still : ''}`;
+    case 'excursion':
+      return `left out by the excursion test: its run leaves the track and comes back, and against the motion before and after it T ${f2(d.statistic)} > ${f2(d.threshold)} (${axes}); held out of the review`;
     case 'swap':
       return `left out by the swap test: the neighbourhood costs ${f2(d.statistic)} with its run kept and ${f2(d.threshold)} with it left out (capped χ² sums)${still}`;
   }

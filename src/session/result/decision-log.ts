@@ -1,21 +1,22 @@
 /**
  * Why a fix is out: the test that made the decision, recorded where the decision is made (the
  * forward and time-reversed gates of reviewSegment, the review's rejection step in
- * review-decisions.ts, the swap test in review-swaps.ts), with that test's statistic and threshold
+ * review-decisions.ts, the swap test in review-swaps.ts, the excursion test in excursion.ts), with that test's statistic and threshold
  * at that moment. Sparse (flagged fixes are few): epoch → decision, an entry removed when the fix
  * is re-admitted. By construction statistic > threshold for every entry, so a flagged fix never
  * shows a figure that passed the test it is said to have failed.
  */
 
-/** The tests that can leave a fix out of the track (the first four are recorded in a DecisionLog). */
-export const DECIDING_TESTS = ['forward-gate', 'backward-gate', 'review', 'swap', 'invalid', 'user'] as const;
+/** The tests that can leave a fix out of the track (the first five are recorded in a DecisionLog). */
+export const DECIDING_TESTS = ['forward-gate', 'backward-gate', 'review', 'swap', 'excursion', 'invalid', 'user'] as const;
 export type DecidingTest = (typeof DECIDING_TESTS)[number];
 
 export interface Decision {
-  test: 'forward-gate' | 'backward-gate' | 'review' | 'swap';
+  test: 'forward-gate' | 'backward-gate' | 'review' | 'swap' | 'excursion';
   /**
    * gates: NIS of the fix against the one-sided prediction; review: χ² of the fix against the
-   * smoothed track; swap: robust cost of the neighbourhood with the fix kept.
+   * smoothed track; swap: robust cost of the neighbourhood with the fix kept; excursion: χ² of the
+   * fix against the bridge of the motion before and after its run (session/classify/excursion.ts).
    */
   statistic: number;
   /**
