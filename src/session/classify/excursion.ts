@@ -17,7 +17,7 @@
  *   x = P (P_f⁻¹ x_f + P_b⁻¹ x_b): the two-filter form of the smoother (Fraser & Potter, "The
  *   optimum linear smoother as a combination of two optimum linear filters", IEEE TAC 14:387–390,
  *   1969), here a bridge across W that reads none of W's fixes;
- * - agreement: at W's middle kept fix, d² = (x_f − x_b)ᵀ (P_f + P_b)⁻¹ (x_f − x_b) over the
+ * - agreement: at a departing fix of W (one of its kept fixes at a quarter, half or three quarters), d² = (x_f − x_b)ᵀ (P_f + P_b)⁻¹ (x_f − x_b) over the
  *   kinematic states of every axis within the χ² quantile at AGREE_P (no manoeuvre across W), and
  *   the ends cross-checked: a's fix within the gate of the reversed prediction from b, b's within
  *   that of the forward prediction from a (a window that starts or ends inside a burst fails);
@@ -33,6 +33,9 @@ import type { AxisModel } from '../../models/axis-model.js';
 import { forwardFilter, allocateHistory, type FilterOptions, type SegmentData, type FilterHistory } from '../../estimation/track-filter.js';
 import { covIndex } from '../../estimation/segment.js';
 import { chiSquareQuantile } from '../../estimation/chi-square.js';
+
+/** Value in `offered` of a fix the excursion test rejected: held out (the review never judges it again, so never re-admits it). */
+export const HELD_OUT = 3;
 
 /** Window lengths (s): a ramp rises over 2–8 s, holds up to 2 s and fades over up to 5 s. */
 export const WINDOW_SEC = [2, 4, 7, 11, 16];
@@ -60,7 +63,7 @@ const START_STEP_SEC = 0.5;
 export interface Excursion {
   /** The fixes rejected: epoch, T against the bridge, its threshold and dof. */
   fixes: Array<{ k: number; T: number; threshold: number; dof: number }>;
-  /** Agreement d² of the two predictions at the window's middle fix, and its threshold. */
+  /** Agreement d² of the two predictions at the window's tested fix, and the probability of its threshold. */
   agreement: number;
   agreementThreshold: number;
 }
@@ -188,184 +191,240 @@ function reversedData(d: SegmentData): SegmentData {
   return { N, tSec, z: d.z.map(rev), r: d.r.map(rev), use: d.use.slice(0, N).reverse() };
 }
 
+/** Per-axis scratch of the bridge: the two predicted states, their inverses, the combination. */
+class BridgeScratch {
+  xf: Float64Array; Pf: Float64Array; xb: Float64Array; Pb: Float64Array;
+  If: Float64Array; Ib: Float64Array; S: Float64Array; Si: Float64Array; Pc: Float64Array;
+  gj: Float64Array; y: Float64Array; xc: Float64Array;
+  constructor(n: number) {
+    const v = () => new Float64Array(n), m = () => new Float64Array(n * n);
+    this.xf = v(); this.Pf = m(); this.xb = v(); this.Pb = m();
+    this.If = m(); this.Ib = m(); this.S = m(); this.Si = m(); this.Pc = m();
+    this.gj = new Float64Array(2 * n * n); this.y = v(); this.xc = v();
+  }
+}
+
+/**
+ * The bridge across a window between kept epochs a and b of one segment, and the tests against it
+ * (see the file header). Holds the forward history, the reversed filter's and the scratch.
+ */
+class Bridge {
+  private readonly nAx: number;
+  private readonly t: Float64Array;
+  private readonly ws: Work[];
+  private readonly sc: BridgeScratch;
+  /** Per axis at the current epoch: each side's and the combined prediction of the measured quantity, and the kinematic disagreement d². */
+  private readonly mF: Float64Array; private readonly vF: Float64Array; private readonly mB: Float64Array; private readonly vB: Float64Array;
+  private readonly mC: Float64Array; private readonly vC: Float64Array; private readonly dA: Float64Array;
+  private dofA = 0;
+  private readonly one = new Float64Array(2);
+  private readonly agreeThr = new Map<number, number>();
+  /** χ² thresholds per dof at the gate probability and at AGREE_P. */
+  readonly thr: number[];
+  private readonly thrAgree: number[];
+
+  constructor(private readonly models: AxisModel[], private readonly work: SegmentData, private readonly forward: FilterHistory, private readonly back: FilterHistory, probability: number) {
+    this.nAx = models.length;
+    this.t = work.tSec;
+    this.ws = models.map((m) => makeWork(m.n));
+    this.sc = new BridgeScratch(Math.max(...models.map((m) => m.n)));
+    const z = () => new Float64Array(this.nAx);
+    this.mF = z(); this.vF = z(); this.mB = z(); this.vB = z(); this.mC = z(); this.vC = z(); this.dA = z();
+    this.thr = [Infinity, 1, 2, 3].map((d) => (d === 0 ? Infinity : chiSquareQuantile(probability, d)));
+    this.thrAgree = [Infinity, 1, 2, 3].map((d) => (d === 0 ? Infinity : chiSquareQuantile(AGREE_P, d)));
+  }
+
+  /** The reversed history's index of epoch b. */
+  private rb(b: number): number {
+    return this.work.N - 1 - b;
+  }
+
+  /**
+   * The bridge at epoch k: the two predicted states combined as independent estimates,
+   * P = (P_f⁻¹ + P_b⁻¹)⁻¹, x = P (P_f⁻¹ x_f + P_b⁻¹ x_b); false where a covariance is singular.
+   */
+  at(a: number, b: number, k: number): boolean {
+    const { sc, t } = this;
+    this.dofA = 0;
+    for (let ax = 0; ax < this.nAx; ax++) {
+      const md = this.models[ax]!, n = md.n, h = md.h;
+      predictState(md, this.forward, ax, a, t[k]! - t[a]!, false, this.ws[ax]!, sc.xf, sc.Pf);
+      predictState(md, this.back, ax, this.rb(b), t[b]! - t[k]!, true, this.ws[ax]!, sc.xb, sc.Pb);
+      // information form: invert each side (Gauss–Jordan with pivoting: n ≤ 4), add, invert back
+      if (!invert(n, sc.Pf, sc.If, sc.gj) || !invert(n, sc.Pb, sc.Ib, sc.gj)) return false;
+      for (let i = 0; i < n * n; i++) sc.S[i] = sc.If[i]! + sc.Ib[i]!;
+      if (!invert(n, sc.S, sc.Pc, sc.gj)) return false;
+      for (let i = 0; i < n; i++) {
+        let s1 = 0;
+        for (let j = 0; j < n; j++) s1 += sc.If[i * n + j]! * sc.xf[j]! + sc.Ib[i * n + j]! * sc.xb[j]!;
+        sc.y[i] = s1;
+      }
+      for (let i = 0; i < n; i++) {
+        let s1 = 0;
+        for (let j = 0; j < n; j++) s1 += sc.Pc[i * n + j]! * sc.y[j]!;
+        sc.xc[i] = s1;
+      }
+      // H x and H P Hᵀ of the combined state and of each side's
+      let m = 0, v = 0, m1 = 0, v1 = 0, m2 = 0, v2 = 0;
+      for (let i = 0; i < n; i++) {
+        if (h[i] === 0) continue;
+        m += h[i]! * sc.xc[i]!;
+        m1 += h[i]! * sc.xf[i]!;
+        m2 += h[i]! * sc.xb[i]!;
+        for (let j = 0; j < n; j++) {
+          if (h[j] === 0) continue;
+          v += h[i]! * h[j]! * sc.Pc[i * n + j]!;
+          v1 += h[i]! * h[j]! * sc.Pf[i * n + j]!;
+          v2 += h[i]! * h[j]! * sc.Pb[i * n + j]!;
+        }
+      }
+      this.mC[ax] = m; this.vC[ax] = v; this.mF[ax] = m1; this.vF[ax] = v1; this.mB[ax] = m2; this.vB[ax] = v2;
+      // d² = (x_f − x_b)ᵀ (P_f + P_b)⁻¹ (x_f − x_b) over the kinematic states (the fix-error state is not separable from position)
+      const nk = md.nMotion;
+      for (let i = 0; i < nk; i++) for (let j = 0; j < nk; j++) sc.S[i * nk + j] = sc.Pf[i * n + j]! + sc.Pb[i * n + j]!;
+      if (!invert(nk, sc.S, sc.Si, sc.gj)) return false;
+      let d2 = 0;
+      for (let i = 0; i < nk; i++) for (let j = 0; j < nk; j++) d2 += (sc.xf[i]! - sc.xb[i]!) * sc.Si[i * nk + j]! * (sc.xf[j]! - sc.xb[j]!);
+      this.dA[ax] = d2;
+      this.dofA += nk;
+    }
+    return true;
+  }
+
+  /** T of fix k against the bridge last computed: the least of its T against the combination and against each side's prediction. */
+  departure(k: number): { T: number; dof: number } {
+    let T = 0, Tf = 0, Tb = 0, dof = 0;
+    for (let ax = 0; ax < this.nAx; ax++) {
+      const z = this.work.z[ax]![k]!;
+      if (!Number.isFinite(z)) continue;
+      const r = this.work.r[ax]![k]!;
+      T += (z - this.mC[ax]!) ** 2 / (r + this.vC[ax]!);
+      Tf += (z - this.mF[ax]!) ** 2 / (r + this.vF[ax]!);
+      Tb += (z - this.mB[ax]!) ** 2 / (r + this.vB[ax]!);
+      dof++;
+    }
+    return { T: Math.min(T, Tf, Tb), dof };
+  }
+
+  /** Whether fix k departs from the bridge at it (computing it). */
+  departs(a: number, b: number, k: number): { T: number; dof: number } | null {
+    if (!this.at(a, b, k)) return null;
+    const d = this.departure(k);
+    return d.dof > 0 && d.T > this.thr[d.dof]! ? d : null;
+  }
+
+  /** T of fix k against one side's prediction alone (forward from a, or reversed from b). */
+  private oneSided(fromForward: boolean, a: number, b: number, k: number): { T: number; dof: number } {
+    const { t, one } = this;
+    let T = 0, dof = 0;
+    for (let ax = 0; ax < this.nAx; ax++) {
+      const z = this.work.z[ax]![k]!;
+      if (!Number.isFinite(z)) continue;
+      if (fromForward) predictMeasured(this.models[ax]!, this.forward, ax, a, t[k]! - t[a]!, this.ws[ax]!, one, 0);
+      else predictMeasured(this.models[ax]!, this.back, ax, this.rb(b), t[b]! - t[k]!, this.ws[ax]!, one, 0);
+      T += (z - one[0]!) ** 2 / (this.work.r[ax]![k]! + one[1]!);
+      dof++;
+    }
+    return { T, dof };
+  }
+
+  /** A necessary condition of departs, from the two one-sided predictions alone (no inversions; the forward side first). */
+  departsFromBoth(a: number, b: number, k: number): boolean {
+    const f = this.oneSided(true, a, b, k);
+    if (!(f.dof > 0 && f.T > this.thr[f.dof]!)) return false;
+    const r = this.oneSided(false, a, b, k);
+    return r.T > this.thr[r.dof]!;
+  }
+
+  /** The ends cross-checked at AGREE_P: a's fix against the reversed prediction from b, b's against the forward prediction from a. */
+  endsAgree(a: number, b: number): boolean {
+    const ea = this.oneSided(false, a, b, a), eb = this.oneSided(true, a, b, b);
+    return !(ea.dof > 0 && ea.T > this.thrAgree[ea.dof]!) && !(eb.dof > 0 && eb.T > this.thrAgree[eb.dof]!);
+  }
+
+  /** The kinematic disagreement d² of the bridge last computed, and its threshold at AGREE_P. */
+  agreement(): { d2: number; thr: number } {
+    let d2 = 0;
+    for (let ax = 0; ax < this.nAx; ax++) d2 += this.dA[ax]!;
+    let thrA = this.agreeThr.get(this.dofA);
+    if (thrA === undefined) this.agreeThr.set(this.dofA, (thrA = chiSquareQuantile(AGREE_P, this.dofA)));
+    return { d2, thr: thrA };
+  }
+}
+
+/** A window that passed the tests: after kept a, its epochs up to end (exclusive), b the kept epoch after it. */
+interface Candidate {
+  from: number;
+  to: number;
+  end: number;
+  /** Estimated number of departing fixes. */
+  estimate: number;
+  d2: number;
+}
+
+/** The window after kept a of length L tested (see the file header); null where it is not an excursion. */
+function testWindow(br: Bridge, work: SegmentData, gated: Uint8Array, nextKept: Int32Array, a: number, L: number): Candidate | null {
+  const N = work.N, t = work.tSec;
+  const kept = (k: number) => work.use[k] === 2 && gated[k] === 1;
+  let e = a + 1;
+  while (e < N && t[e]! <= t[a]! + L) e++;
+  const b = nextKept[e]!;
+  if (b >= N || e - a < 2) return null;
+  // the gated fixes of W that are kept now (the ones the test may take out)
+  let nW = 0;
+  for (let k = a + 1; k < e; k++) if (kept(k)) nW++;
+  if (nW < MIN_FAILING) return null;
+  // prefilter: one of W's kept fixes at a quarter, half or three quarters departs (a ramp's high part
+  // is often rejected already, so its kept fixes are the rising ones): the one-sided condition first
+  let mid = -1, c = 0, q = 1;
+  for (let k = a + 1; k < e && q < 4; k++) {
+    if (!kept(k) || ++c < Math.ceil((q * nW) / 4)) continue;
+    q++;
+    if (br.departsFromBoth(a, b, k) && br.departs(a, b, k)) {
+      mid = k;
+      break;
+    }
+  }
+  if (mid < 0) return null;
+  // no manoeuvre across W: the two sides agree at that fix (the bridge last computed), and at the ends
+  const ag = br.agreement();
+  if (!(ag.d2 <= ag.thr) || !br.endsAgree(a, b)) return null;
+  // the share of W's fixes that depart, from at most SAMPLE_FIXES of them evenly spread (exact for short windows)
+  const stride = Math.max(1, Math.floor(nW / SAMPLE_FIXES));
+  let seen = 0, failed = 0, i = 0;
+  for (let k = a + 1; k < e; k++) {
+    if (!kept(k) || i++ % stride !== 0) continue;
+    seen++;
+    if (br.departs(a, b, k)) failed++;
+  }
+  const estimate = seen ? (failed / seen) * nW : 0;
+  return failed >= Math.min(MIN_FAILING, seen) && estimate >= MIN_FAILING && failed >= MIN_SHARE * seen ? { from: a, to: b, end: e, estimate, d2: ag.d2 } : null;
+}
+
 /**
  * The excursions of a segment under the review's converged decisions. `work` holds them in `use`
  * (2 kept, 0 not); `forward` is the forward filter's history under them; gated marks the fixes the
  * review judges (offered === 1). Returns the excursions found, their fixes not yet changed.
  */
 export function findExcursions(models: AxisModel[], work: SegmentData, forward: FilterHistory, gated: Uint8Array, opt: FilterOptions, probability: number): Excursion[] {
-  const N = work.N;
-  const nAx = models.length;
-  const t = work.tSec;
-  const kept = (k: number) => work.use[k] === 2;
+  const N = work.N, t = work.tSec;
   // the time-reversed filter under the same decisions (its gate cannot reject: every use is 2 or 0)
-  const rv = reversedData(work);
-  const back = forwardFilter(models, rv, opt, allocateHistory(N, models, false));
-  const thr = [Infinity, 1, 2, 3].map((d) => (d === 0 ? Infinity : chiSquareQuantile(probability, d)));
-  const thrAgree = [Infinity, 1, 2, 3].map((d) => (d === 0 ? Infinity : chiSquareQuantile(AGREE_P, d)));
-  const ws = models.map((m) => makeWork(m.n));
+  const back = forwardFilter(models, reversedData(work), opt, allocateHistory(N, models, false));
+  const br = new Bridge(models, work, forward, back, probability);
   // the next kept epoch after each epoch (N: none)
   const nextKept = new Int32Array(N + 1).fill(N);
-  for (let k = N - 1; k >= 0; k--) nextKept[k] = kept(k) ? k : nextKept[k + 1]!;
-  // per axis at the current epoch: each side's and the combined prediction of the measured quantity
-  // (m, v), and the two states' disagreement d² (with its dof)
-  const mF = new Float64Array(nAx), vF = new Float64Array(nAx), mB = new Float64Array(nAx), vB = new Float64Array(nAx);
-  const mC = new Float64Array(nAx), vC = new Float64Array(nAx), dA = new Float64Array(nAx);
-  let dofA = 0;
-  const nMax = Math.max(...models.map((m) => m.n));
-  const xf = new Float64Array(nMax), Pf = new Float64Array(nMax * nMax), xb = new Float64Array(nMax), Pb = new Float64Array(nMax * nMax);
-  const If = new Float64Array(nMax * nMax), Ib = new Float64Array(nMax * nMax), S = new Float64Array(nMax * nMax), Si = new Float64Array(nMax * nMax), Pc = new Float64Array(nMax * nMax);
-  const gj = new Float64Array(2 * nMax * nMax), y = new Float64Array(nMax), xc = new Float64Array(nMax);
-  // the bridge at epoch k between kept a (forward) and kept b (reversed): the two predicted states
-  // combined as independent estimates, P = (P_f⁻¹ + P_b⁻¹)⁻¹, x = P (P_f⁻¹ x_f + P_b⁻¹ x_b)
-  const bridge = (a: number, b: number, k: number): boolean => {
-    dofA = 0;
-    for (let ax = 0; ax < nAx; ax++) {
-      const md = models[ax]!, n = md.n, w = ws[ax]!, h = md.h;
-      predictState(md, forward, ax, a, t[k]! - t[a]!, false, w, xf, Pf);
-      predictState(md, back, ax, N - 1 - b, t[b]! - t[k]!, true, w, xb, Pb);
-      if (!invert(n, Pf, If, gj) || !invert(n, Pb, Ib, gj)) return false;
-      for (let i = 0; i < n * n; i++) S[i] = If[i]! + Ib[i]!;
-      if (!invert(n, S, Pc, gj)) return false;
-      for (let i = 0; i < n; i++) {
-        let s1 = 0;
-        for (let j = 0; j < n; j++) s1 += If[i * n + j]! * xf[j]! + Ib[i * n + j]! * xb[j]!;
-        y[i] = s1;
-      }
-      let m = 0, v = 0, m1 = 0, v1 = 0, m2 = 0, v2 = 0;
-      for (let i = 0; i < n; i++) {
-        let s1 = 0;
-        for (let j = 0; j < n; j++) s1 += Pc[i * n + j]! * y[j]!;
-        xc[i] = s1;
-      }
-      for (let i = 0; i < n; i++) {
-        if (h[i] === 0) continue;
-        m += h[i]! * xc[i]!;
-        m1 += h[i]! * xf[i]!;
-        m2 += h[i]! * xb[i]!;
-        for (let j = 0; j < n; j++) {
-          if (h[j] === 0) continue;
-          v += h[i]! * h[j]! * Pc[i * n + j]!;
-          v1 += h[i]! * h[j]! * Pf[i * n + j]!;
-          v2 += h[i]! * h[j]! * Pb[i * n + j]!;
-        }
-      }
-      mC[ax] = m; vC[ax] = v; mF[ax] = m1; vF[ax] = v1; mB[ax] = m2; vB[ax] = v2;
-      // d² = (x_f − x_b)ᵀ (P_f + P_b)⁻¹ (x_f − x_b) over the kinematic states (the fix-error state is not separable from position)
-      const nk = md.nMotion;
-      for (let i = 0; i < nk; i++) for (let j = 0; j < nk; j++) S[i * nk + j] = Pf[i * n + j]! + Pb[i * n + j]!;
-      if (!invert(nk, S, Si, gj)) return false;
-      let d2 = 0;
-      for (let i = 0; i < nk; i++) for (let j = 0; j < nk; j++) d2 += (xf[i]! - xb[i]!) * Si[i * nk + j]! * (xf[j]! - xb[j]!);
-      dA[ax] = d2;
-      dofA += nk;
-    }
-    return true;
-  };
-  // T of fix k against the bridge: against the combined estimate and against each side's own prediction (the least of the three)
-  const departure = (k: number): { T: number; dof: number } => {
-    let T = 0, Tf = 0, Tb = 0, dof = 0;
-    for (let ax = 0; ax < nAx; ax++) {
-      const z = work.z[ax]![k]!;
-      if (!Number.isFinite(z)) continue;
-      const r = work.r[ax]![k]!;
-      T += (z - mC[ax]!) ** 2 / (r + vC[ax]!);
-      Tf += (z - mF[ax]!) ** 2 / (r + vF[ax]!);
-      Tb += (z - mB[ax]!) ** 2 / (r + vB[ax]!);
-      dof++;
-    }
-    return { T: Math.min(T, Tf, Tb), dof };
-  };
-  const one = new Float64Array(2);
-  const departsFromBoth = (a: number, b: number, k: number): boolean => {
-    // the forward side first: on most windows the middle fix is where the forward prediction puts it
-    let Tf = 0, Tb = 0, dof = 0;
-    for (let ax = 0; ax < nAx; ax++) {
-      const z = work.z[ax]![k]!;
-      if (!Number.isFinite(z)) continue;
-      predictMeasured(models[ax]!, forward, ax, a, t[k]! - t[a]!, ws[ax]!, one, 0);
-      Tf += (z - one[0]!) ** 2 / (work.r[ax]![k]! + one[1]!);
-      dof++;
-    }
-    if (!(dof > 0 && Tf > thr[dof]!)) return false;
-    for (let ax = 0; ax < nAx; ax++) {
-      const z = work.z[ax]![k]!;
-      if (!Number.isFinite(z)) continue;
-      predictMeasured(models[ax]!, back, ax, N - 1 - b, t[b]! - t[k]!, ws[ax]!, one, 0);
-      Tb += (z - one[0]!) ** 2 / (work.r[ax]![k]! + one[1]!);
-    }
-    return Tb > thr[dof]!;
-  };
-  const endsAgree = (a: number, b: number): boolean => {
-    let Ta = 0, Tb = 0, da = 0, db = 0;
-    for (let ax = 0; ax < nAx; ax++) {
-      const za = work.z[ax]![a]!, zb = work.z[ax]![b]!;
-      if (Number.isFinite(za)) {
-        predictMeasured(models[ax]!, back, ax, N - 1 - b, t[b]! - t[a]!, ws[ax]!, one, 0);
-        Ta += (za - one[0]!) ** 2 / (work.r[ax]![a]! + one[1]!);
-        da++;
-      }
-      if (Number.isFinite(zb)) {
-        predictMeasured(models[ax]!, forward, ax, a, t[b]! - t[a]!, ws[ax]!, one, 0);
-        Tb += (zb - one[0]!) ** 2 / (work.r[ax]![b]! + one[1]!);
-        db++;
-      }
-    }
-    return !(da > 0 && Ta > thrAgree[da]!) && !(db > 0 && Tb > thrAgree[db]!);
-  };
-  const agreeThr = new Map<number, number>();
-  const agreement = (): { d2: number; thr: number } => {
-    let d2 = 0;
-    for (let ax = 0; ax < nAx; ax++) d2 += dA[ax]!;
-    let thrA = agreeThr.get(dofA);
-    if (thrA === undefined) agreeThr.set(dofA, (thrA = chiSquareQuantile(AGREE_P, dofA)));
-    return { d2, thr: thrA };
-  };
-  const found: Array<{ from: number; to: number; end: number; estimate: number; d2: number }> = [];
+  for (let k = N - 1; k >= 0; k--) nextKept[k] = work.use[k] === 2 ? k : nextKept[k + 1]!;
+  const found: Candidate[] = [];
   let lastStartT = -Infinity;
   for (let a = 0; a < N; a++) {
-    if (!kept(a) || t[a]! - lastStartT < START_STEP_SEC) continue;
+    if (work.use[a] !== 2 || t[a]! - lastStartT < START_STEP_SEC) continue;
     lastStartT = t[a]!;
     for (const L of WINDOW_SEC) {
-      // W = the epochs after a up to t_a + L; b the first kept epoch after W
-      let e = a + 1;
-      while (e < N && t[e]! <= t[a]! + L) e++;
-      const b = nextKept[e]!;
-      if (b >= N || e - a < 2) continue;
-      // the gated fixes of W that are kept now (the ones the test may take out)
-      let mid = -1, nW = 0;
-      for (let k = a + 1; k < e; k++) if (gated[k] && kept(k)) nW++;
-      if (nW < MIN_FAILING) continue;
-      // prefilter: the middle kept fix of W must depart, and the two sides agree there
-      let c = 0;
-      for (let k = a + 1; k < e && mid < 0; k++) if (gated[k] && kept(k) && ++c >= (nW + 1) >> 1) mid = k;
-      // a necessary condition first, from the two one-sided predictions alone (no inversions): the
-      // middle fix departs from each side's own prediction
-      if (!departsFromBoth(a, b, mid)) continue;
-      if (!bridge(a, b, mid)) continue;
-      const dm = departure(mid);
-      if (!(dm.dof > 0 && dm.T > thr[dm.dof]!)) continue;
-      // the ends cross-checked: the fix at a against the reversed filter's prediction from b, and the
-      // fix at b against the forward prediction from a (a window that starts or ends inside a burst fails here)
-      if (!endsAgree(a, b)) continue;
-      const ag = agreement();
-      const d2 = ag.d2;
-      if (!(d2 <= ag.thr)) continue;
-      // the share of W's fixes that depart, from at most SAMPLE_FIXES of them evenly spread (exact for short windows)
-      const stride = Math.max(1, Math.floor(nW / SAMPLE_FIXES));
-      let seen = 0, failed = 0, i = 0;
-      for (let k = a + 1; k < e; k++) {
-        if (!(gated[k] && kept(k)) || i++ % stride !== 0) continue;
-        if (!bridge(a, b, k)) continue;
-        const d = departure(k);
-        seen++;
-        if (d.dof > 0 && d.T > thr[d.dof]!) failed++;
-      }
-      const estimate = seen ? (failed / seen) * nW : 0;
-      if (failed >= Math.min(MIN_FAILING, seen) && estimate >= MIN_FAILING && failed >= MIN_SHARE * seen) found.push({ from: a, to: b, end: e, estimate, d2 });
+      const c = testWindow(br, work, gated, nextKept, a, L);
+      if (c) found.push(c);
     }
   }
-  // the windows that fail most first; none overlapping a window taken; their departing fixes listed
+  // the windows that depart most first; none overlapping a window taken; their departing fixes listed
   found.sort((p, q) => q.estimate - p.estimate || p.from - q.from);
   const taken: Array<[number, number]> = [];
   const out: Excursion[] = [];
@@ -373,9 +432,9 @@ export function findExcursions(models: AxisModel[], work: SegmentData, forward: 
     if (taken.some(([p, q]) => f.from < q && p < f.to)) continue;
     const fixes: Excursion['fixes'] = [];
     for (let k = f.from + 1; k < f.end; k++) {
-      if (!(gated[k] && kept(k)) || !bridge(f.from, f.to, k)) continue;
-      const d = departure(k);
-      if (d.dof > 0 && d.T > thr[d.dof]!) fixes.push({ k, T: d.T, threshold: thr[d.dof]!, dof: d.dof });
+      if (work.use[k] !== 2 || gated[k] !== 1) continue;
+      const d = br.departs(f.from, f.to, k);
+      if (d) fixes.push({ k, T: d.T, threshold: br.thr[d.dof]!, dof: d.dof });
     }
     if (fixes.length < MIN_FAILING) continue;
     taken.push([f.from, f.to]);

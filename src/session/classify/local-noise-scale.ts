@@ -24,7 +24,7 @@
  */
 import type { AxisModel } from '../../models/axis-model.js';
 import type { FilterOptions, SegmentData } from '../../estimation/track-filter.js';
-import { findExcursions } from './excursion.js';
+import { findExcursions, HELD_OUT } from './excursion.js';
 import { chiSquareQuantile } from '../../estimation/chi-square.js';
 import { reviewSegment, type ReviewOptions, type ReviewOutcome } from './review.js';
 import type { StageTimings } from '../result/timings.js';
@@ -144,8 +144,6 @@ export function noiseScaleOf(r: SessionResult): Float64Array | undefined {
   return scales.get(r);
 }
 
-/** Value in `offered` of a fix the excursion test rejected: held out (the review never judges it again, so never re-admits it). */
-export const HELD_OUT = 3;
 
 /** Scans of the excursion test per classification (a second finds what the first's runs hid; a third found nothing more on the scenario family). */
 export const EXCURSION_SCANS = 2;

@@ -15,6 +15,7 @@ import { allocateHistory, historyOf, horizontalShare } from '../../estimation/tr
 import { reviewStatisticsRange } from '../../estimation/review.js';
 import { applyReviewDecisions, reviewThresholds, type ReviewThresholds } from './review-decisions.js';
 import { findSwaps, makeSwapTrial, trySwap } from './review-swaps.js';
+import { HELD_OUT } from './excursion.js';
 import type { StageTimings } from '../result/timings.js';
 import type { DecisionLog } from '../result/decision-log.js';
 
@@ -313,7 +314,8 @@ function finishReview(run: ReviewRun, gateRejected: Uint8Array, passes: number, 
  * (T above the stricter re-admission threshold: not clearly consistent, so not taken back).
  */
 export function settleDecisions(N: number, offered: Uint8Array, kept: Uint8Array, T: Float64Array, dof: Uint8Array, threshold: Float64Array, why: DecisionLog, readmit: readonly number[]): void {
-  for (const k of why.keys()) if (kept[k] || offered[k] !== 1) why.delete(k);
+  // (a fix held out by the excursion test keeps that test's entry)
+  for (const k of why.keys()) if (kept[k] || (offered[k] !== 1 && offered[k] !== HELD_OUT)) why.delete(k);
   for (let k = 0; k < N; k++) {
     if (offered[k] !== 1 || kept[k] || !(dof[k]! > 0)) continue;
     if (T[k]! > threshold[k]!) why.set(k, { test: 'review', statistic: T[k]!, threshold: threshold[k]!, dof: dof[k]! });

@@ -1,0 +1,106 @@
+/**
+ * The excursion test (src/session/classify/excursion.ts, run by withExcursions after the review):
+ * seeded 20 Hz walks along a known path with white fix noise, processed by the review with the
+ * constant-velocity model:
+ * - a ramp (the offset grows to 20 m over 5 s, holds 1 s, fades over 3 s) on a straight leg is followed by
+ *   the review alone, and left out by the excursion test;
+ * - a 90° turn, a stop of 20 s and a lane-change-like sidestep of 3 m (real motion that the model's
+ *   process noise allows) leave nothing to the excursion test.
+ * Criteria are the product's own (common practice: a burst is an outlier, a manoeuvre is not).
+ */
+import { describe, expect, it } from 'vitest';
+import { makeAxisModel } from '../../../src/models/axis-model.js';
+import { reviewSegment } from '../../../src/session/classify/review.js';
+import { withExcursions } from '../../../src/session/classify/local-noise-scale.js';
+import { HELD_OUT } from '../../../src/session/classify/excursion.js';
+import type { FilterOptions, SegmentData } from '../../../src/estimation/track-filter.js';
+import type { ReviewOptions } from '../../../src/session/prepare/axis-params.js';
+import { Rng } from '../../../src/simulate/rng.js';
+
+const RATE_HZ = 20;
+const SIGMA_M = 0.5;
+const opt: FilterOptions = { gateProbability: 0.9995, reacquireAfter: 6, reacquireAfterSec: 5.5, priorVar: [1e6, 100, 10] };
+const ro: ReviewOptions = { probability: 0.9995, maxPasses: 10, guardSec: 5 };
+// a walker's model: little process noise, a slow correlated error (at 20 Hz the fixes' rate still lets the track follow a ramp)
+const models = [0, 1].map(() => makeAxisModel({ motion: 'cv', q: 0.05, gm: { sigmaM: 2, tauSec: 100 } }));
+
+/** A segment of `durSec` at RATE_HZ along path(t) → [e, n] (m), plus offset(t), with seeded white noise. */
+function segment(durSec: number, path: (t: number) => [number, number], offset: (t: number) => [number, number], seed: number): { data: SegmentData; off: Float64Array } {
+  const rng = new Rng(seed);
+  const N = Math.round(durSec * RATE_HZ);
+  const tSec = new Float64Array(N), ze = new Float64Array(N), zn = new Float64Array(N), off = new Float64Array(N);
+  for (let k = 0; k < N; k++) {
+    const t = k / RATE_HZ;
+    const [e, n] = path(t), [oe, on] = offset(t);
+    tSec[k] = t;
+    ze[k] = e + oe + SIGMA_M * rng.normal();
+    zn[k] = n + on + SIGMA_M * rng.normal();
+    off[k] = Math.hypot(oe, on);
+  }
+  const r = () => new Float64Array(N).fill(SIGMA_M ** 2);
+  return { data: { N, tSec, z: [ze, zn], r: [r(), r()], use: new Uint8Array(N).fill(1) }, off };
+}
+
+const none = (): [number, number] => [0, 0];
+const straight = (t: number): [number, number] => [1.4 * t, 0];
+
+function run(data: SegmentData, excursions: boolean) {
+  const offered = data.use.slice();
+  const rev = reviewSegment(models, data, offered, opt, { ...ro, excursions });
+  const out = withExcursions(models, data, offered, opt, { ...ro, excursions }, rev);
+  const byExcursion = [...out.why.values()].filter((d) => d.test === 'excursion').length;
+  return { out, offered, byExcursion };
+}
+
+describe('a ramp on a straight leg', () => {
+  // offset north grows 0 → 20 m over 5 s from t = 60 s, holds 1 s, then fades over 3 s
+  const ramp = (t: number): [number, number] => [0, t < 60 || t >= 69 ? 0 : t < 65 ? 4 * (t - 60) : t < 66 ? 20 : 20 * (1 - (t - 66) / 3)];
+  const { data, off } = segment(120, straight, ramp, 5);
+  const far = [...off.keys()].filter((k) => off[k]! >= 10);
+  const clean = [...off.keys()].filter((k) => off[k] === 0);
+  it('the review alone follows most of it', () => {
+    const { out } = run(data, false);
+    const keptFar = far.filter((k) => out.kept[k]).length;
+    console.log(`review alone: ${keptFar} of ${far.length} fixes ≥ 10 m off kept`);
+    expect(keptFar / far.length).toBeGreaterThan(0.5);
+  });
+  it('the excursion test leaves most of it out (≥ 80% of the fixes ≥ 10 m off; measured 86 of 101), holding them, and at most one clean fix', () => {
+    const { out, offered, byExcursion } = run(data, true);
+    const outFar = far.filter((k) => !out.kept[k]).length;
+    const outClean = clean.filter((k) => !out.kept[k]).length;
+    console.log(`with the excursion test: ${outFar} of ${far.length} fixes ≥ 10 m off left out (${byExcursion} by the excursion test), ${outClean} of ${clean.length} clean fixes`);
+    expect(outFar / far.length).toBeGreaterThanOrEqual(0.8);
+    expect(byExcursion).toBeGreaterThan(0);
+    expect(outClean).toBeLessThanOrEqual(1);
+    for (const [k, d] of out.why) if (d.test === 'excursion') expect(offered[k]).toBe(HELD_OUT);
+  });
+});
+
+describe('real motion is left to the track', () => {
+  const cases: Array<[string, (t: number) => [number, number]]> = [
+    // 90° left turn at 60 s over 3 s (radius 2.7 m at 1.4 m/s)
+    ['a 90° turn', (t) => {
+      const r = (1.4 * 3) / (Math.PI / 2);
+      if (t < 60) return [1.4 * t, 0];
+      if (t < 63) { const a = ((t - 60) / 3) * (Math.PI / 2); return [84 + r * Math.sin(a), r * (1 - Math.cos(a))]; }
+      return [84 + r, r + 1.4 * (t - 63)];
+    }],
+    // decelerate over 3 s, stand 20 s, accelerate over 3 s
+    ['a stop of 20 s', (t) => {
+      const v = 1.4;
+      if (t < 50) return [v * t, 0];
+      if (t < 53) return [v * 50 + v * (t - 50) - (v / 6) * (t - 50) ** 2, 0];
+      const p0 = v * 50 + 1.5 * v;
+      if (t < 73) return [p0, 0];
+      if (t < 76) return [p0 + (v / 6) * (t - 73) ** 2, 0];
+      return [p0 + 1.5 * v + v * (t - 76), 0];
+    }],
+    // a 3 m sidestep and back over 8 s
+    ['a sidestep of 3 m', (t) => [1.4 * t, t < 60 || t > 68 ? 0 : 3 * Math.sin(((t - 60) / 8) * Math.PI) ** 2]],
+  ];
+  it.each(cases)('%s: no fix left out by the excursion test', (_name, path) => {
+    const { data } = segment(120, path, none, 7);
+    const { byExcursion } = run(data, true);
+    expect(byExcursion).toBe(0);
+  });
+});
