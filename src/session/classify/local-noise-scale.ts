@@ -145,7 +145,7 @@ export function noiseScaleOf(r: SessionResult): Float64Array | undefined {
 }
 
 
-/** Scans of the excursion test per classification (a second finds what the first's runs hid; a third found nothing more on the scenario family). */
+/** Scans of the excursion test per classification: a second finds what the first one's runs hid (family seed 1: drone RMSE ratio 1.017 → 1.000); it runs only where the first found something. */
 export const EXCURSION_SCANS = 2;
 
 /**

@@ -12,7 +12,8 @@ import { describe, expect, it } from 'vitest';
 import { makeAxisModel } from '../../../src/models/axis-model.js';
 import { reviewSegment } from '../../../src/session/classify/review.js';
 import { withExcursions } from '../../../src/session/classify/local-noise-scale.js';
-import { HELD_OUT } from '../../../src/session/classify/excursion.js';
+import { HELD_OUT, makeWork, predictMeasured, predictMeasuredGeneric } from '../../../src/session/classify/excursion.js';
+import { allocateHistory } from '../../../src/estimation/track-filter.js';
 import type { FilterOptions, SegmentData } from '../../../src/estimation/track-filter.js';
 import type { ReviewOptions } from '../../../src/session/prepare/axis-params.js';
 import { Rng } from '../../../src/simulate/rng.js';
@@ -102,5 +103,35 @@ describe('real motion is left to the track', () => {
     const { data } = segment(120, path, none, 7);
     const { byExcursion } = run(data, true);
     expect(byExcursion).toBe(0);
+  });
+});
+
+describe('the closed-form prediction of the measured quantity', () => {
+  // constant velocity with and without the correlated-error state, against F P Fᵀ + Q by matrix products
+  const cases: Array<[string, ReturnType<typeof makeAxisModel>]> = [
+    ['cv + Gauss–Markov', makeAxisModel({ motion: 'cv', q: 0.7, gm: { sigmaM: 1.8, tauSec: 40 } })],
+    ['cv alone', makeAxisModel({ motion: 'cv', q: 0.05, gm: null })],
+  ];
+  it.each(cases)('%s: the same m and v as the matrix products (tol 1e-12 relative)', (_name, model) => {
+    const rng = new Rng(21);
+    const n = model.n;
+    const h = allocateHistory(4, [model]);
+    const stride = n === 3 ? 6 : n * n;
+    for (let k = 0; k < 4; k++) {
+      for (let i = 0; i < n; i++) h.x[0]![k * n + i] = 3 * rng.normal();
+      // a symmetric positive definite covariance: A Aᵀ + I
+      const A = Array.from({ length: n * n }, () => rng.normal());
+      const full = (i: number, j: number) => A.slice(i * n, i * n + n).reduce((s, v, l) => s + v * A[j * n + l]!, 0) + (i === j ? 1 : 0);
+      if (n === 3) [[0, 0], [0, 1], [0, 2], [1, 1], [1, 2], [2, 2]].forEach(([i, j], c) => (h.P[0]![k * stride + c] = full(i!, j!)));
+      else for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) h.P[0]![k * stride + i * n + j] = full(i, j);
+    }
+    const w = makeWork(n), a = new Float64Array(2), b = new Float64Array(2);
+    for (const dt of [0.05, 1, 7.5, 30])
+      for (let k = 0; k < 4; k++) {
+        predictMeasured(model, h, 0, k, dt, w, a, 0);
+        predictMeasuredGeneric(model, h, 0, k, dt, w, b, 0);
+        expect(Math.abs(a[0]! - b[0]!)).toBeLessThanOrEqual(1e-12 * Math.max(1, Math.abs(b[0]!)));
+        expect(Math.abs(a[1]! - b[1]!)).toBeLessThanOrEqual(1e-12 * Math.max(1, b[1]!));
+      }
   });
 });
