@@ -64,9 +64,9 @@ const START_STEP_SEC = 0.5;
 export interface Excursion {
   /** The fixes rejected: epoch, T against the bridge, its threshold and dof. */
   fixes: Array<{ k: number; T: number; threshold: number; dof: number }>;
-  /** Agreement d² of the two predictions at the window's tested fix, and the probability of its threshold. */
+  /** Agreement d² of the two predictions at the window's tested fix, and the probability of its χ² threshold. */
   agreement: number;
-  agreementThreshold: number;
+  agreementProbability: number;
 }
 
 /** Scratch for one axis prediction. */
@@ -76,10 +76,13 @@ export interface Work {
   P: Float64Array;
   FP: Float64Array;
   x: Float64Array;
+  /** A predicted state and covariance (predictMeasuredGeneric's). */
+  xo: Float64Array;
+  Po: Float64Array;
 }
 
 export function makeWork(n: number): Work {
-  return { F: new Float64Array(n * n), Q: new Float64Array(n * n), P: new Float64Array(n * n), FP: new Float64Array(n * n), x: new Float64Array(n) };
+  return { F: new Float64Array(n * n), Q: new Float64Array(n * n), P: new Float64Array(n * n), FP: new Float64Array(n * n), x: new Float64Array(n), xo: new Float64Array(n), Po: new Float64Array(n * n) };
 }
 
 /**
@@ -115,38 +118,16 @@ export function predictMeasured(model: AxisModel, h: FilterHistory, a: number, k
   predictMeasuredGeneric(model, h, a, k, dtSec, w, out, o);
 }
 
-/** predictMeasured by the matrix products F P Fᵀ + Q (any model; the reference of the closed form). */
+/** predictMeasured by the matrix products F P Fᵀ + Q (predictState; any model; the reference of the closed form). */
 export function predictMeasuredGeneric(model: AxisModel, h: FilterHistory, a: number, k: number, dtSec: number, w: Work, out: Float64Array, o: number): void {
-  const n = model.n;
-  const xs = h.x[a]!, Ps = h.P[a]!;
-  const stride = n === 3 ? 6 : n * n;
-  for (let i = 0; i < n; i++) {
-    w.x[i] = xs[k * n + i]!;
-    for (let j = 0; j < n; j++) w.P[i * n + j] = Ps[k * stride + covIndex(n, i, j)]!;
-  }
-  model.fillF(dtSec, w.F);
-  model.fillQ(dtSec, w.Q);
-  // F P
-  for (let i = 0; i < n; i++)
-    for (let j = 0; j < n; j++) {
-      let s = 0;
-      for (let l = 0; l < n; l++) s += w.F[i * n + l]! * w.P[l * n + j]!;
-      w.FP[i * n + j] = s;
-    }
-  // m = H F x; v = H (F P Fᵀ + Q) Hᵀ
-  const hv = model.h;
+  const n = model.n, hv = model.h;
+  predictState(model, h, a, k, dtSec, false, w, w.xo, w.Po);
+  // m = H x, v = H P Hᵀ
   let m = 0, v = 0;
   for (let i = 0; i < n; i++) {
     if (hv[i] === 0) continue;
-    let fx = 0;
-    for (let l = 0; l < n; l++) fx += w.F[i * n + l]! * w.x[l]!;
-    m += hv[i]! * fx;
-    for (let j = 0; j < n; j++) {
-      if (hv[j] === 0) continue;
-      let s = w.Q[i * n + j]!;
-      for (let l = 0; l < n; l++) s += w.FP[i * n + l]! * w.F[j * n + l]!;
-      v += hv[i]! * hv[j]! * s;
-    }
+    m += hv[i]! * w.xo[i]!;
+    for (let j = 0; j < n; j++) if (hv[j] !== 0) v += hv[i]! * hv[j]! * w.Po[i * n + j]!;
   }
   out[o] = m;
   out[o + 1] = v;
@@ -482,7 +463,7 @@ export function findExcursions(models: AxisModel[], work: SegmentData, forward: 
     }
     if (fixes.length < MIN_FAILING) continue;
     taken.push([f.from, f.to]);
-    out.push({ fixes, agreement: f.d2, agreementThreshold: AGREE_P });
+    out.push({ fixes, agreement: f.d2, agreementProbability: AGREE_P });
   }
   return out;
 }
