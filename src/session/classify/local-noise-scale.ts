@@ -144,7 +144,6 @@ export function noiseScaleOf(r: SessionResult): Float64Array | undefined {
   return scales.get(r);
 }
 
-
 /** Scans of the excursion test per classification: a second finds what the first one's runs hid (family seed 1: drone RMSE ratio 1.017 → 1.000); it runs only where the first found something. */
 export const EXCURSION_SCANS = 2;
 
