@@ -18,15 +18,6 @@
  *   Δ = max(0, (ρ σ_w)² − σ_b²)        (σ_b the calibrated correlated sigma)
  *   P_reported = P_smoothed + Δ        (east and north alike, up with its own ρ and σ's)
  *
- * Horizontally σ_b counts only with its persistent part, σ_b² · min(1, τ/T_p), T_p =
- * FLOOR_PERSISTENCE_SEC: a correlated error of short time constant averages out along the track
- * like white noise, so a calibration that explains the motion's misfit as a fast correlated error
- * (a walker circling small plots: τ 5–20 s at σ 3–5 m) has not ruled out the slow offset the floor
- * stands for. Measured on the scenario family (seeds 1–3, all synthetic kinds): horizontal 95 %
- * coverage 0.903 / 0.827 / 0.862 → 0.912 / 0.833 / 0.881, the circling walkers 0.71 / 0.80 / 0.76
- * → 0.75 / 0.90 / 0.86, no kind above 0.99; the same on the vertical put walks, circles and the
- * real drives above 0.99, so the vertical keeps its calibrated σ_b whole.
- *
  * Δ is added, not re-smoothed: the part of the correlated error the smoother cannot separate from
  * the motion is an offset shared by neighbouring epochs, and an offset shared by a whole stretch of
  * track adds its full variance to every epoch's error (and to an occupied point's average, which
@@ -46,9 +37,6 @@ import type { FixSigmaFactors } from '../prepare/fix-noise.js';
 
 export type { CorrelatedFloor };
 
-/** Time (s) over which a correlated error must persist to count against the horizontal floor in full. */
-export const FLOOR_PERSISTENCE_SEC = 60;
-
 /**
  * The white fix sigma of p in metres at the session's median quality (horizontal per axis,
  * vertical): p's own, or with reported per-fix sigmas (where p holds their scale) the scale times
@@ -64,14 +52,12 @@ export function whiteSigmaM(p: AxisParams, factors: FixSigmaFactors): { horizont
 export function correlatedFloor(p: AxisParams, ratio: { horizontal: number; vertical: number }, whiteM: { horizontal: number; vertical: number }): CorrelatedFloor {
   const wantH = Number.isFinite(whiteM.horizontal) ? ratio.horizontal * whiteM.horizontal : 0;
   const wantV = Number.isFinite(whiteM.vertical) ? ratio.vertical * whiteM.vertical : 0;
-  // the calibrated horizontal correlated error counts with its persistent part: σ_b² · min(1, τ/T_p)
-  const bH = p.gmHorizontalSigmaM * Math.sqrt(Math.min(1, p.gmTauSec / FLOOR_PERSISTENCE_SEC)), bV = p.gmVerticalSigmaM;
   // Δ = max(0, (ρ σ_w)² − σ_b²)
-  const dH = Math.max(0, wantH * wantH - bH ** 2);
-  const dV = Math.max(0, wantV * wantV - bV ** 2);
+  const dH = Math.max(0, wantH * wantH - p.gmHorizontalSigmaM ** 2);
+  const dV = Math.max(0, wantV * wantV - p.gmVerticalSigmaM ** 2);
   return {
     ratio: { ...ratio },
-    assumedSigmaM: { horizontal: Math.max(wantH, bH), vertical: Math.max(wantV, bV) },
+    assumedSigmaM: { horizontal: Math.max(wantH, p.gmHorizontalSigmaM), vertical: Math.max(wantV, p.gmVerticalSigmaM) },
     addedSdM: { horizontal: Math.sqrt(dH), vertical: Math.sqrt(dV) },
   };
 }
