@@ -32,11 +32,12 @@
 import type { AxisModel } from '../../models/axis-model.js';
 import { forwardFilter, allocateHistory, horizontalShare, type FilterOptions, type SegmentData, type FilterHistory } from '../../estimation/track-filter.js';
 import { covIndex } from '../../estimation/segment.js';
+import { cholesky, choleskySolve } from '../../estimation/cholesky.js';
 import { chiSquareQuantile } from '../../estimation/chi-square.js';
+import { reviewThresholds } from './review-decisions.js';
+import { reversed } from './review.js';
+export { HELD_OUT } from './review.js';
 import { gmPhi, gmQ } from '../../models/gauss-markov.js';
-
-/** Value in `offered` of a fix the excursion test rejected: held out (the review never judges it again, so never re-admits it). */
-export const HELD_OUT = 3;
 
 /** Window lengths (s): a ramp rises over 2–8 s, holds up to 2 s and fades over up to 5 s. */
 export const WINDOW_SEC = [2, 4, 7, 11, 16];
@@ -170,48 +171,25 @@ function predictState(model: AxisModel, h: FilterHistory, a: number, k: number, 
   }
 }
 
-/** A⁻¹ of an n×n matrix (n ≤ 4) by Gauss–Jordan elimination with partial pivoting, into out; false where singular. */
-function invert(n: number, A: Float64Array, out: Float64Array, scratch: Float64Array): boolean {
-  const m = 2 * n;
-  for (let i = 0; i < n; i++)
-    for (let j = 0; j < m; j++) scratch[i * m + j] = j < n ? A[i * n + j]! : j - n === i ? 1 : 0;
-  for (let c = 0; c < n; c++) {
-    let piv = c;
-    for (let r = c + 1; r < n; r++) if (Math.abs(scratch[r * m + c]!) > Math.abs(scratch[piv * m + c]!)) piv = r;
-    const pv = scratch[piv * m + c]!;
-    if (!(Math.abs(pv) > 0)) return false;
-    if (piv !== c) for (let j = 0; j < m; j++) { const tmp = scratch[c * m + j]!; scratch[c * m + j] = scratch[piv * m + j]!; scratch[piv * m + j] = tmp; }
-    for (let j = 0; j < m; j++) scratch[c * m + j] = scratch[c * m + j]! / pv;
-    for (let r = 0; r < n; r++) {
-      if (r === c) continue;
-      const f = scratch[r * m + c]!;
-      if (f === 0) continue;
-      for (let j = 0; j < m; j++) scratch[r * m + j] = scratch[r * m + j]! - f * scratch[c * m + j]!;
-    }
-  }
-  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) out[i * n + j] = scratch[i * m + n + j]!;
+/** A⁻¹ of a symmetric positive-definite n×n matrix by its Cholesky factor (estimation/cholesky.ts) into out; false where A is not positive definite. */
+function invertSpd(n: number, A: Float64Array, out: Float64Array, L: Float64Array): boolean {
+  if (!cholesky(n, A, 0, L)) return false;
+  out.fill(0, 0, n * n);
+  for (let i = 0; i < n; i++) out[i * n + i] = 1;
+  choleskySolve(n, L, out, n);
   return true;
 }
 
-/** The reversed data of a segment (time negated and reversed), for the time-reversed filter. */
-function reversedData(d: SegmentData): SegmentData {
-  const N = d.N;
-  const rev = (x: Float64Array) => x.slice(0, N).reverse();
-  const tSec = new Float64Array(N);
-  for (let i = 0; i < N; i++) tSec[i] = -d.tSec[N - 1 - i]!;
-  return { N, tSec, z: d.z.map(rev), r: d.r.map(rev), use: d.use.slice(0, N).reverse() };
-}
-
-/** Per-axis scratch of the bridge: the two predicted states, their inverses, the combination. */
+/** Per-axis scratch of the bridge: the two predicted states, their inverses, the combination, a Cholesky factor. */
 class BridgeScratch {
   xf: Float64Array; Pf: Float64Array; xb: Float64Array; Pb: Float64Array;
   If: Float64Array; Ib: Float64Array; S: Float64Array; Si: Float64Array; Pc: Float64Array;
-  gj: Float64Array; y: Float64Array; xc: Float64Array;
+  L: Float64Array; y: Float64Array; xc: Float64Array;
   constructor(n: number) {
     const v = () => new Float64Array(n), m = () => new Float64Array(n * n);
     this.xf = v(); this.Pf = m(); this.xb = v(); this.Pb = m();
     this.If = m(); this.Ib = m(); this.S = m(); this.Si = m(); this.Pc = m();
-    this.gj = new Float64Array(2 * n * n); this.y = v(); this.xc = v();
+    this.L = m(); this.y = v(); this.xc = v();
   }
 }
 
@@ -241,15 +219,15 @@ class Bridge {
     this.sc = new BridgeScratch(Math.max(...models.map((m) => m.n)));
     const z = () => new Float64Array(this.nAx);
     this.mF = z(); this.vF = z(); this.mB = z(); this.vB = z(); this.mC = z(); this.vC = z(); this.dA = z();
-    this.thr = [Infinity, 1, 2, 3].map((d) => (d === 0 ? Infinity : chiSquareQuantile(probability, d)));
-    this.thrAgree = [Infinity, 1, 2, 3].map((d) => (d === 0 ? Infinity : chiSquareQuantile(AGREE_P, d)));
+    this.thr = reviewThresholds(probability).reject;
+    this.thrAgree = reviewThresholds(AGREE_P).reject;
   }
 
   private backHist: FilterHistory | null = null;
   /** The time-reversed filter under the same decisions (its gate cannot reject: every use is 2 or 0), run when first needed. */
   private get back(): FilterHistory {
     if (!this.backHist) {
-      const rv = reversedData(this.work);
+      const rv = reversed(this.work);
       // east and north share one covariance array where their inputs are alike (as the review's histories do: ~48 MB less at 1M epochs)
       const share = horizontalShare(this.models, rv, this.opt.rScale, this.opt.qScale);
       this.backHist = forwardFilter(this.models, rv, this.opt, allocateHistory(this.work.N, this.models, share));
@@ -273,10 +251,10 @@ class Bridge {
       const md = this.models[ax]!, n = md.n, h = md.h;
       predictState(md, this.forward, ax, a, t[k]! - t[a]!, false, this.ws[ax]!, sc.xf, sc.Pf);
       predictState(md, this.back, ax, this.rb(b), t[b]! - t[k]!, true, this.ws[ax]!, sc.xb, sc.Pb);
-      // information form: invert each side (Gauss–Jordan with pivoting: n ≤ 4), add, invert back
-      if (!invert(n, sc.Pf, sc.If, sc.gj) || !invert(n, sc.Pb, sc.Ib, sc.gj)) return false;
+      // information form: invert each side, add, invert back (Cholesky: the covariances are positive definite, and a lost one fails loudly)
+      if (!invertSpd(n, sc.Pf, sc.If, sc.L) || !invertSpd(n, sc.Pb, sc.Ib, sc.L)) return false;
       for (let i = 0; i < n * n; i++) sc.S[i] = sc.If[i]! + sc.Ib[i]!;
-      if (!invert(n, sc.S, sc.Pc, sc.gj)) return false;
+      if (!invertSpd(n, sc.S, sc.Pc, sc.L)) return false;
       for (let i = 0; i < n; i++) {
         let s1 = 0;
         for (let j = 0; j < n; j++) s1 += sc.If[i * n + j]! * sc.xf[j]! + sc.Ib[i * n + j]! * sc.xb[j]!;
@@ -305,7 +283,7 @@ class Bridge {
       // d² = (x_f − x_b)ᵀ (P_f + P_b)⁻¹ (x_f − x_b) over the kinematic states (the fix-error state is not separable from position)
       const nk = md.nMotion;
       for (let i = 0; i < nk; i++) for (let j = 0; j < nk; j++) sc.S[i * nk + j] = sc.Pf[i * n + j]! + sc.Pb[i * n + j]!;
-      if (!invert(nk, sc.S, sc.Si, sc.gj)) return false;
+      if (!invertSpd(nk, sc.S, sc.Si, sc.L)) return false;
       let d2 = 0;
       for (let i = 0; i < nk; i++) for (let j = 0; j < nk; j++) d2 += (sc.xf[i]! - sc.xb[i]!) * sc.Si[i * nk + j]! * (sc.xf[j]! - sc.xb[j]!);
       this.dA[ax] = d2;

@@ -15,9 +15,11 @@ import { allocateHistory, historyOf, horizontalShare } from '../../estimation/tr
 import { reviewStatisticsRange } from '../../estimation/review.js';
 import { applyReviewDecisions, reviewThresholds, type ReviewThresholds } from './review-decisions.js';
 import { findSwaps, makeSwapTrial, trySwap } from './review-swaps.js';
-import { HELD_OUT } from './excursion.js';
 import type { StageTimings } from '../result/timings.js';
 import type { DecisionLog } from '../result/decision-log.js';
+
+/** Value in `offered` of a fix the excursion test (excursion.ts) rejected: held out (the review never judges it again, so never re-admits it). */
+export const HELD_OUT = 3;
 
 /**
  * Tolerance of the windowed re-runs (m, m/s, m²): a re-run stops once every state and covariance

@@ -26,6 +26,7 @@
  * 2004), fitted here to the shape of the tail instead of a location and scale.
  */
 import { chiSquareCdf, chiSquareQuantile } from '../../estimation/chi-square.js';
+import { reviewThresholds } from './review-decisions.js';
 
 /**
  * At most this factor on the χ² thresholds (the deviate's threshold at most √2 × the Gaussian one,
@@ -126,7 +127,7 @@ export function fitTailGate(stats: Array<{ T: Float64Array; dof: Uint8Array; off
   const quantileRatio = q(P_HI) / q(P_LO);
   // clustering: of the fixes in the top (1 − P_HI) whose previous gated fix is too, the share (iid: 1 − P_HI)
   const cHi = chiSquareCdf(q(P_HI) ** 2, 1);
-  const tHi = [Infinity, 1, 2, 3].map((d) => (d === 0 ? Infinity : chiSquareQuantile(cHi, d)));
+  const tHi = reviewThresholds(cHi).reject;
   let prevHigh = 0, both = 0;
   for (const s of stats) {
     let prev = false, has = false;
