@@ -15,7 +15,7 @@ import type { ReviewOptions } from './classify/review.js';
 import type { CalibrationInfo } from './calibrate/calibrate.js';
 import { axisParamsFromConfig, reviewOptions } from './prepare/axis-params.js';
 import { jumpWarnings, prepareSession } from './prepare/prepare.js';
-import { calibrationRounds } from './calibrate/calibration-rounds.js';
+import { calibrationRounds, reviewAfterCalibration } from './calibrate/calibration-rounds.js';
 import { classify } from './classify/classify.js';
 import { fitTailGate } from './classify/tail-gate.js';
 import { runPrepared } from './products/final-run.js';
@@ -67,6 +67,7 @@ export function finishSession(b: BegunSession, cal: { params: AxisParams; info: 
   let { cfg, ro } = b;
   const { params, info, warnings } = cal;
   let t0 = 0;
+  ro = reviewAfterCalibration(ro, info);
   // stage 4 (stage 2 of a log the calibration fell back on): classify under the final model
   let plans = classify(ps, cfg, params, ro, tm);
   // the gate fitted to the tails of the log's errors (session/classify/tail-gate.ts), classified again where it widens

@@ -9,7 +9,7 @@
  */
 import type { HindcastConfig } from '../../config/schema.js';
 import { axisParamsFromConfig, reviewOptions, type AxisParams } from '../prepare/axis-params.js';
-import { calibrationRounds } from './calibration-rounds.js';
+import { calibrationRounds, reviewAfterCalibration } from './calibration-rounds.js';
 import { classify } from '../classify/classify.js';
 import { runPrepared } from '../products/final-run.js';
 import { type PreparedSession } from '../prepare/prepare.js';
@@ -42,7 +42,7 @@ export function calibratedParams(ps: PreparedSession, cfg: HindcastConfig): Cali
   const prior = axisParamsFromConfig(cfg, ps.factors.reported);
   const ro = reviewOptions(cfg, ps.intervalSec);
   const { params, info, warnings } = calibrationRounds(ps, cfg, prior, ro);
-  return { params, info, warnings, plans: classifyPlans(ps, cfg, params, ro) };
+  return { params, info, warnings, plans: classifyPlans(ps, cfg, params, reviewAfterCalibration(ro, info)) };
 }
 
 /** The fixes-only result of processSession on a prepared session, with its calibrated parameters. */

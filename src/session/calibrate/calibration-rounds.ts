@@ -72,3 +72,12 @@ export function calibrationRounds(ps: PreparedSession, cfg: HindcastConfig, prio
   if (tm) tm.calibrate += performance.now() - t0;
   return bothRounds(first, cal2);
 }
+
+/**
+ * The review's options once the session is calibrated: the excursion test's agreement judged under
+ * the quiet motion of the classification start (its process noise; classify/excursion.ts).
+ */
+export function reviewAfterCalibration(ro: ReviewOptions, info: CalibrationInfo): ReviewOptions {
+  const q = info.classificationStart?.qHorizontal;
+  return q !== undefined && Number.isFinite(q) ? { ...ro, excursionQHorizontal: q } : ro;
+}

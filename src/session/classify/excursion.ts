@@ -17,19 +17,29 @@
  *   x = P (P_f⁻¹ x_f + P_b⁻¹ x_b): the two-filter form of the smoother (Fraser & Potter, "The
  *   optimum linear smoother as a combination of two optimum linear filters", IEEE TAC 14:387–390,
  *   1969), here a bridge across W that reads none of W's fixes;
- * - agreement: at a departing fix of W (one of its kept fixes at a quarter, half or three quarters), d² = (x_f − x_b)ᵀ (P_f + P_b)⁻¹ (x_f − x_b) over the
- *   kinematic states of every axis within the χ² quantile at AGREE_P (no manoeuvre across W), and
- *   the ends cross-checked: a's fix within the gate of the reversed prediction from b, b's within
- *   that of the forward prediction from a (a window that starts or ends inside a burst fails);
- * - departure: a fix departs where T = Σ (z − H x)² / (R + H P Hᵀ) exceeds the gate's χ² threshold
- *   against the bridge and against each side's own prediction; at least MIN_FAILING of W's kept
- *   fixes and MIN_SHARE of them must depart (from SAMPLE_FIXES of them, evenly spread, before the
- *   window is chosen).
+ * - the span from a to b has no outage longer than maxGapSec (an outage leaves one side's
+ *   prediction so loose that the bridge is the other side's alone, and a stop or turn inside the
+ *   outage would read as an excursion);
+ * - agreement, judged under the quiet motion (the process noise of the log's motion without its
+ *   manoeuvres, classification-start.ts; both sides filtered again with it): at a departing fix of
+ *   W (one of its kept fixes at a quarter, half or three quarters), d² = (x_f − x_b)ᵀ (P_f + P_b)⁻¹
+ *   (x_f − x_b) over the kinematic states of every axis within the χ² quantile at AGREE_P, and the
+ *   ends cross-checked: a's fix within that quantile of the reversed prediction from b, b's of the
+ *   forward prediction from a (a window that starts or ends inside a burst fails). Under the
+ *   calibrated process noise, which has to allow the log's sharpest turns, a U-turn or a stop
+ *   across 10 s still "agrees"; under the quiet one it does not;
+ * - departure, judged under the calibrated model: a fix departs where T = Σ (z − H x)² /
+ *   (R + H P Hᵀ) against the bridge exceeds the gate's χ² threshold; at least MIN_FAILING of W's
+ *   kept fixes and MIN_SHARE of them must depart (from SAMPLE_FIXES of them, evenly spread, before
+ *   the window is chosen). The combined bridge, not each side alone: a ramp's rising fixes lie
+ *   near a and far in time from b, where b's own prediction is too loose to reject anything.
  * Windows are taken from the one whose fixes depart most, none overlapping one taken; their
  * departing fixes are rejected and held out (local-noise-scale.ts withExcursions), so that the
  * review's re-admission cannot walk the track back up the ramp one fix at a time.
+ * Measured on the scenario family: docs/outliers.md "Excursion test";
+ * docs/decisions/windowed-nis-gate.md has the variants dropped.
  */
-import type { AxisModel } from '../../models/axis-model.js';
+import { makeAxisModel, type AxisModel } from '../../models/axis-model.js';
 import { forwardFilter, allocateHistory, horizontalShare, type FilterOptions, type SegmentData, type FilterHistory } from '../../estimation/track-filter.js';
 import { covIndex } from '../../estimation/segment.js';
 import { cholesky, choleskySolve } from '../../estimation/cholesky.js';
@@ -68,6 +78,14 @@ export interface Excursion {
   /** Agreement d² of the two predictions at the window's tested fix, and the probability of its χ² threshold. */
   agreement: number;
   agreementProbability: number;
+}
+
+/** What the test needs of the log beyond the model (ReviewOptions excursionQHorizontal, excursionMaxGapSec). */
+export interface QuietMotion {
+  /** Horizontal process noise of the agreement's bridge (m²/s³); the model's own where unset or not lower. */
+  qHorizontal?: number;
+  /** Longest span without a fix a bridge may cross (s); unbounded where unset. */
+  maxGapSec?: number;
 }
 
 /** Scratch for one axis prediction. */
@@ -202,8 +220,7 @@ class Bridge {
   private readonly t: Float64Array;
   private readonly ws: Work[];
   private readonly sc: BridgeScratch;
-  /** Per axis at the current epoch: each side's and the combined prediction of the measured quantity, and the kinematic disagreement d². */
-  private readonly mF: Float64Array; private readonly vF: Float64Array; private readonly mB: Float64Array; private readonly vB: Float64Array;
+  /** Per axis at the current epoch: the combined prediction of the measured quantity, and the kinematic disagreement d². */
   private readonly mC: Float64Array; private readonly vC: Float64Array; private readonly dA: Float64Array;
   private dofA = 0;
   private readonly one = new Float64Array(2);
@@ -218,7 +235,7 @@ class Bridge {
     this.ws = models.map((m) => makeWork(m.n));
     this.sc = new BridgeScratch(Math.max(...models.map((m) => m.n)));
     const z = () => new Float64Array(this.nAx);
-    this.mF = z(); this.vF = z(); this.mB = z(); this.vB = z(); this.mC = z(); this.vC = z(); this.dA = z();
+    this.mC = z(); this.vC = z(); this.dA = z();
     this.thr = reviewThresholds(probability).reject;
     this.thrAgree = reviewThresholds(AGREE_P).reject;
   }
@@ -266,20 +283,16 @@ class Bridge {
         sc.xc[i] = s1;
       }
       // H x and H P Hᵀ of the combined state and of each side's
-      let m = 0, v = 0, m1 = 0, v1 = 0, m2 = 0, v2 = 0;
+      let m = 0, v = 0;
       for (let i = 0; i < n; i++) {
         if (h[i] === 0) continue;
         m += h[i]! * sc.xc[i]!;
-        m1 += h[i]! * sc.xf[i]!;
-        m2 += h[i]! * sc.xb[i]!;
         for (let j = 0; j < n; j++) {
           if (h[j] === 0) continue;
           v += h[i]! * h[j]! * sc.Pc[i * n + j]!;
-          v1 += h[i]! * h[j]! * sc.Pf[i * n + j]!;
-          v2 += h[i]! * h[j]! * sc.Pb[i * n + j]!;
         }
       }
-      this.mC[ax] = m; this.vC[ax] = v; this.mF[ax] = m1; this.vF[ax] = v1; this.mB[ax] = m2; this.vB[ax] = v2;
+      this.mC[ax] = m; this.vC[ax] = v;
       // d² = (x_f − x_b)ᵀ (P_f + P_b)⁻¹ (x_f − x_b) over the kinematic states (the fix-error state is not separable from position)
       const nk = md.nMotion;
       for (let i = 0; i < nk; i++) for (let j = 0; j < nk; j++) sc.S[i * nk + j] = sc.Pf[i * n + j]! + sc.Pb[i * n + j]!;
@@ -292,19 +305,16 @@ class Bridge {
     return true;
   }
 
-  /** T of fix k against the bridge last computed: the least of its T against the combination and against each side's prediction. */
+  /** T of fix k against the bridge last computed: T = Σ (z − H x)² / (R + H P Hᵀ) over its measured axes. */
   departure(k: number): { T: number; dof: number } {
-    let T = 0, Tf = 0, Tb = 0, dof = 0;
+    let T = 0, dof = 0;
     for (let ax = 0; ax < this.nAx; ax++) {
       const z = this.work.z[ax]![k]!;
       if (!Number.isFinite(z)) continue;
-      const r = this.work.r[ax]![k]!;
-      T += (z - this.mC[ax]!) ** 2 / (r + this.vC[ax]!);
-      Tf += (z - this.mF[ax]!) ** 2 / (r + this.vF[ax]!);
-      Tb += (z - this.mB[ax]!) ** 2 / (r + this.vB[ax]!);
+      T += (z - this.mC[ax]!) ** 2 / (this.work.r[ax]![k]! + this.vC[ax]!);
       dof++;
     }
-    return { T: Math.min(T, Tf, Tb), dof };
+    return { T, dof };
   }
 
   /** Whether fix k departs from the bridge at it (computing it). */
@@ -327,14 +337,6 @@ class Bridge {
       dof++;
     }
     return { T, dof };
-  }
-
-  /** A necessary condition of departs, from the two one-sided predictions alone (no inversions; the forward side first). */
-  departsFromBoth(a: number, b: number, k: number): boolean {
-    const f = this.oneSided(true, a, b, k);
-    if (!(f.dof > 0 && f.T > this.thr[f.dof]!)) return false;
-    const r = this.oneSided(false, a, b, k);
-    return r.T > this.thr[r.dof]!;
   }
 
   /** The ends cross-checked at AGREE_P: a's fix against the reversed prediction from b, b's against the forward prediction from a. */
@@ -364,29 +366,32 @@ interface Candidate {
 }
 
 /** The window after kept a of length L tested (see the file header); null where it is not an excursion. */
-function testWindow(br: Bridge, work: SegmentData, gated: Uint8Array, nextKept: Int32Array, keptBefore: Int32Array, a: number, e: number): Candidate | null {
+function testWindow(br: Bridge, bq: Bridge, work: SegmentData, gated: Uint8Array, nextKept: Int32Array, keptBefore: Int32Array, outagesBefore: Int32Array, a: number, e: number): Candidate | null {
   const N = work.N;
   const kept = (k: number) => work.use[k] === 2 && gated[k] === 1;
   const b = nextKept[e]!;
   if (b >= N || e - a < 2) return null;
+  // no outage across the bridge (one ending after a, up to b)
+  if (outagesBefore[b + 1]! - outagesBefore[a + 1]! > 0) return null;
   // the gated fixes of W that are kept now (the ones the test may take out)
   const nW = keptBefore[e]! - keptBefore[a + 1]!;
   if (nW < MIN_FAILING) return null;
   // prefilter: one of W's kept fixes at a quarter, half or three quarters departs (a ramp's high part
-  // is often rejected already, so its kept fixes are the rising ones): the one-sided condition first
+  // is often rejected already, so its kept fixes are the rising ones)
   let mid = -1, c = 0, q = 1;
   for (let k = a + 1; k < e && q < 4; k++) {
     if (!kept(k) || ++c < Math.ceil((q * nW) / 4)) continue;
     q++;
-    if (br.departsFromBoth(a, b, k) && br.departs(a, b, k)) {
+    if (br.departs(a, b, k)) {
       mid = k;
       break;
     }
   }
   if (mid < 0) return null;
-  // no manoeuvre across W: the two sides agree at that fix (the bridge last computed), and at the ends
-  const ag = br.agreement();
-  if (!(ag.d2 <= ag.thr) || !br.endsAgree(a, b)) return null;
+  // no manoeuvre across W under the quiet motion: the two sides agree at that fix, and at the ends
+  if (bq !== br && !bq.at(a, b, mid)) return null;
+  const ag = bq.agreement();
+  if (!(ag.d2 <= ag.thr) || !bq.endsAgree(a, b)) return null;
   // the share of W's fixes that depart, from at most SAMPLE_FIXES of them evenly spread (exact for short windows)
   const stride = Math.max(1, Math.floor(nW / SAMPLE_FIXES));
   let seen = 0, failed = 0, i = 0;
@@ -404,9 +409,26 @@ function testWindow(br: Bridge, work: SegmentData, gated: Uint8Array, nextKept: 
  * (2 kept, 0 not); `forward` is the forward filter's history under them; gated marks the fixes the
  * review judges (offered === 1). Returns the excursions found, their fixes not yet changed.
  */
-export function findExcursions(models: AxisModel[], work: SegmentData, forward: FilterHistory, gated: Uint8Array, opt: FilterOptions, probability: number): Excursion[] {
+export function findExcursions(models: AxisModel[], work: SegmentData, forward: FilterHistory, gated: Uint8Array, opt: FilterOptions, probability: number, quiet: QuietMotion = {}): Excursion[] {
   const N = work.N, t = work.tSec;
   const br = new Bridge(models, work, forward, opt, probability);
+  // the agreement's bridge: both sides filtered again under the quiet motion's process noise (the model's own where that is not lower)
+  let bq = br;
+  const qq = quiet.qHorizontal;
+  if (qq !== undefined && qq >= 0 && qq < models[0]!.params.q) {
+    const qh = makeAxisModel({ ...models[0]!.params, q: qq });
+    const qm = [qh, qh, ...models.slice(2)];
+    bq = new Bridge(qm, work, forwardFilter(qm, work, opt, allocateHistory(N, qm, horizontalShare(qm, work, opt.rScale, opt.qScale))), opt, probability);
+  }
+  // outages: per epoch, how many spans of more than maxGapSec without a fix end before it
+  const maxGap = quiet.maxGapSec ?? Infinity;
+  const outagesBefore = new Int32Array(N + 1);
+  let lastFixT = NaN;
+  for (let k = 0; k < N; k++) {
+    const fix = Number.isFinite(work.z[0]![k]!);
+    outagesBefore[k + 1] = outagesBefore[k]! + (fix && t[k]! - lastFixT > maxGap ? 1 : 0);
+    if (fix) lastFixT = t[k]!;
+  }
   // the next kept epoch after each epoch (N: none), and the kept gated fixes before each epoch
   const nextKept = new Int32Array(N + 1).fill(N);
   for (let k = N - 1; k >= 0; k--) nextKept[k] = work.use[k] === 2 ? k : nextKept[k + 1]!;
@@ -423,7 +445,7 @@ export function findExcursions(models: AxisModel[], work: SegmentData, forward: 
       let e = Math.max(ends[li]!, a + 1);
       while (e < N && t[e]! <= t[a]! + WINDOW_SEC[li]!) e++;
       ends[li] = e;
-      const c = testWindow(br, work, gated, nextKept, keptBefore, a, e);
+      const c = testWindow(br, bq, work, gated, nextKept, keptBefore, outagesBefore, a, e);
       if (c) found.push(c);
     }
   }

@@ -157,7 +157,7 @@ export function withExcursions(models: AxisModel[], data: SegmentData, offered: 
   for (let scan = 0; scan < EXCURSION_SCANS; scan++) {
     const gated = Uint8Array.from(offered, (u) => (u === 1 ? 1 : 0));
     const t0 = tm ? performance.now() : 0;
-    const ex = findExcursions(models, rev.data, rev.filtered, gated, opt, ro.probability);
+    const ex = findExcursions(models, rev.data, rev.filtered, gated, opt, ro.probability, { qHorizontal: ro.excursionQHorizontal, maxGapSec: ro.excursionMaxGapSec });
     if (tm) tm.review += performance.now() - t0;
     if (ex.length === 0) return rev;
     const kept = rev.kept.slice();

@@ -58,6 +58,9 @@ export function filterOptions(cfg: HindcastConfig, p: AxisParams): FilterOptions
   };
 }
 
+/** Least span without a fix that ends the excursion test's bridge (s; see reviewOptions). */
+export const EXCURSION_MAX_GAP_SEC = 2;
+
 /** The two-sided review's settings (src/session/classify/review.ts). */
 export interface ReviewOptions {
   probability: number;
@@ -70,9 +73,24 @@ export interface ReviewOptions {
   swaps?: boolean;
   /** Look for runs that leave the track and come back once converged (session/classify/excursion.ts); false: off. */
   excursions?: boolean;
+  /**
+   * Horizontal process noise of the excursion test's bridge (m²/s³): the quiet motion's
+   * (classification-start.ts, the robust estimate of the log's motion), so that a turn does not pass
+   * as a motion the bridge allows; the model's own where unset or larger.
+   */
+  excursionQHorizontal?: number;
+  /** Longest span without a fix the excursion test's bridge may cross (s). */
+  excursionMaxGapSec?: number;
 }
 
 /** Review settings from the configuration. */
 export function reviewOptions(cfg: HindcastConfig, intervalSec = 1): ReviewOptions {
-  return { probability: cfg.gate.probability, maxPasses: 10, guardSec: Math.max(5 * intervalSec, 5), ...(cfg.gate.excursionTest ? {} : { excursions: false }) };
+  return {
+    probability: cfg.gate.probability,
+    maxPasses: 10,
+    guardSec: Math.max(5 * intervalSec, 5),
+    // an outage of more than two missing fixes (at least 2 s) ends the bridge
+    excursionMaxGapSec: Math.max(EXCURSION_MAX_GAP_SEC, 3 * intervalSec),
+    ...(cfg.gate.excursionTest ? {} : { excursions: false }),
+  };
 }
