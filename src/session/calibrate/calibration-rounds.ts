@@ -39,9 +39,11 @@ export function firstDecisions(ps: PreparedSession, cfg: HindcastConfig, ro: Rev
   const uses = new Map<number, Uint8Array>();
   const windows = calibrationWindows(ps, cfg.segments.bridgeFactor, DEFAULT_CALIBRATION.maxEpochs);
   const start = classificationStart(ps, cfg, cal1.params);
-  if (windows) classifyWindows(ps, start.cfg, start.params, ro, windows, uses, tm);
+  // the start model's motion is the quiet one (classification-start.ts): the excursion test's agreement under it
+  const roStart = start.params.motion === 'cv' ? { ...ro, excursionQHorizontal: start.params.qHorizontal } : ro;
+  if (windows) classifyWindows(ps, start.cfg, start.params, roStart, windows, uses, tm);
   else
-    classify(ps, start.cfg, start.params, ro, tm).forEach((pl, si) => {
+    classify(ps, start.cfg, start.params, roStart, tm).forEach((pl, si) => {
       uses.set(si, Uint8Array.from(pl.offered, (u, k) => (u === 0 ? 0 : pl.decisions!.kept[k] ? 2 : 0)));
     });
   return { cal1, uses, classificationStart: { robustQHorizontal: start.robustQHorizontal, qHorizontal: start.params.qHorizontal } };

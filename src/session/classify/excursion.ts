@@ -31,8 +31,11 @@
  * - departure, judged under the calibrated model: a fix departs where T = Σ (z − H x)² /
  *   (R + H P Hᵀ) against the bridge exceeds the gate's χ² threshold; at least MIN_FAILING of W's
  *   kept fixes and MIN_SHARE of them must depart (from SAMPLE_FIXES of them, evenly spread, before
- *   the window is chosen). The combined bridge, not each side alone: a ramp's rising fixes lie
- *   near a and far in time from b, where b's own prediction is too loose to reject anything.
+ *   the window is chosen). Against the combined bridge alone where the agreement was judged under
+ *   the quiet motion: a ramp's rising fixes lie near a and far in time from b, where b's own
+ *   prediction is too loose to reject anything. Where there is no quiet motion (a constant-
+ *   acceleration model, a calibration that fell back) the agreement is only as strict as the
+ *   model, and a fix must depart from each side's own prediction as well.
  * Windows are taken from the one whose fixes depart most, none overlapping one taken; their
  * departing fixes are rejected and held out (local-noise-scale.ts withExcursions), so that the
  * review's re-admission cannot walk the track back up the ramp one fix at a time.
@@ -220,7 +223,8 @@ class Bridge {
   private readonly t: Float64Array;
   private readonly ws: Work[];
   private readonly sc: BridgeScratch;
-  /** Per axis at the current epoch: the combined prediction of the measured quantity, and the kinematic disagreement d². */
+  /** Per axis at the current epoch: each side's and the combined prediction of the measured quantity, and the kinematic disagreement d². */
+  private readonly mF: Float64Array; private readonly vF: Float64Array; private readonly mB: Float64Array; private readonly vB: Float64Array;
   private readonly mC: Float64Array; private readonly vC: Float64Array; private readonly dA: Float64Array;
   private dofA = 0;
   private readonly one = new Float64Array(2);
@@ -235,7 +239,7 @@ class Bridge {
     this.ws = models.map((m) => makeWork(m.n));
     this.sc = new BridgeScratch(Math.max(...models.map((m) => m.n)));
     const z = () => new Float64Array(this.nAx);
-    this.mC = z(); this.vC = z(); this.dA = z();
+    this.mF = z(); this.vF = z(); this.mB = z(); this.vB = z(); this.mC = z(); this.vC = z(); this.dA = z();
     this.thr = reviewThresholds(probability).reject;
     this.thrAgree = reviewThresholds(AGREE_P).reject;
   }
@@ -283,16 +287,20 @@ class Bridge {
         sc.xc[i] = s1;
       }
       // H x and H P Hᵀ of the combined state and of each side's
-      let m = 0, v = 0;
+      let m = 0, v = 0, m1 = 0, v1 = 0, m2 = 0, v2 = 0;
       for (let i = 0; i < n; i++) {
         if (h[i] === 0) continue;
         m += h[i]! * sc.xc[i]!;
+        m1 += h[i]! * sc.xf[i]!;
+        m2 += h[i]! * sc.xb[i]!;
         for (let j = 0; j < n; j++) {
           if (h[j] === 0) continue;
           v += h[i]! * h[j]! * sc.Pc[i * n + j]!;
+          v1 += h[i]! * h[j]! * sc.Pf[i * n + j]!;
+          v2 += h[i]! * h[j]! * sc.Pb[i * n + j]!;
         }
       }
-      this.mC[ax] = m; this.vC[ax] = v;
+      this.mC[ax] = m; this.vC[ax] = v; this.mF[ax] = m1; this.vF[ax] = v1; this.mB[ax] = m2; this.vB[ax] = v2;
       // d² = (x_f − x_b)ᵀ (P_f + P_b)⁻¹ (x_f − x_b) over the kinematic states (the fix-error state is not separable from position)
       const nk = md.nMotion;
       for (let i = 0; i < nk; i++) for (let j = 0; j < nk; j++) sc.S[i * nk + j] = sc.Pf[i * n + j]! + sc.Pb[i * n + j]!;
@@ -305,16 +313,25 @@ class Bridge {
     return true;
   }
 
-  /** T of fix k against the bridge last computed: T = Σ (z − H x)² / (R + H P Hᵀ) over its measured axes. */
+  /**
+   * Judge departures against the combined bridge alone (set where the agreement is judged under the
+   * quiet motion); otherwise against the least of it and each side's own prediction.
+   */
+  combinedOnly = false;
+
+  /** T of fix k against the bridge last computed: T = Σ (z − H x)² / (R + H P Hᵀ) over its measured axes (see combinedOnly). */
   departure(k: number): { T: number; dof: number } {
-    let T = 0, dof = 0;
+    let T = 0, Tf = 0, Tb = 0, dof = 0;
     for (let ax = 0; ax < this.nAx; ax++) {
       const z = this.work.z[ax]![k]!;
       if (!Number.isFinite(z)) continue;
-      T += (z - this.mC[ax]!) ** 2 / (this.work.r[ax]![k]! + this.vC[ax]!);
+      const r = this.work.r[ax]![k]!;
+      T += (z - this.mC[ax]!) ** 2 / (r + this.vC[ax]!);
+      Tf += (z - this.mF[ax]!) ** 2 / (r + this.vF[ax]!);
+      Tb += (z - this.mB[ax]!) ** 2 / (r + this.vB[ax]!);
       dof++;
     }
-    return { T, dof };
+    return { T: this.combinedOnly ? T : Math.min(T, Tf, Tb), dof };
   }
 
   /** Whether fix k departs from the bridge at it (computing it). */
@@ -415,10 +432,15 @@ export function findExcursions(models: AxisModel[], work: SegmentData, forward: 
   // the agreement's bridge: both sides filtered again under the quiet motion's process noise (the model's own where that is not lower)
   let bq = br;
   const qq = quiet.qHorizontal;
-  if (qq !== undefined && qq >= 0 && qq < models[0]!.params.q) {
-    const qh = makeAxisModel({ ...models[0]!.params, q: qq });
-    const qm = [qh, qh, ...models.slice(2)];
-    bq = new Bridge(qm, work, forwardFilter(qm, work, opt, allocateHistory(N, qm, horizontalShare(qm, work, opt.rScale, opt.qScale))), opt, probability);
+  // (a constant-velocity q: the classification start's; a model re-made as constant acceleration keeps its own)
+  if (qq !== undefined && qq >= 0 && models[0]!.params.motion === 'cv') {
+    if (qq < models[0]!.params.q) {
+      const qh = makeAxisModel({ ...models[0]!.params, q: qq });
+      const qm = [qh, qh, ...models.slice(2)];
+      bq = new Bridge(qm, work, forwardFilter(qm, work, opt, allocateHistory(N, qm, horizontalShare(qm, work, opt.rScale, opt.qScale))), opt, probability);
+    }
+    // an agreement as strict as the quiet motion's lets the departure be judged against the combined bridge
+    br.combinedOnly = true;
   }
   // outages: per epoch, how many spans of more than maxGapSec without a fix end before it
   const maxGap = quiet.maxGapSec ?? Infinity;

@@ -76,7 +76,8 @@ export interface ReviewOptions {
   /**
    * Horizontal process noise of the excursion test's bridge (m²/s³): the quiet motion's
    * (classification-start.ts, the robust estimate of the log's motion), so that a turn does not pass
-   * as a motion the bridge allows; the model's own where unset or larger.
+   * as a motion the bridge allows; the model's own where unset or larger, or where the model is not
+   * constant-velocity (the value is a constant-velocity spectral density).
    */
   excursionQHorizontal?: number;
   /** Longest span without a fix the excursion test's bridge may cross (s). */
